@@ -1,0 +1,170 @@
+/**
+ * Cell functions of the fit: FIT, ELASTICITY, ELASTICITIES, EFFECTS, SUMMARY, ZEROS.
+ * Each reads the one cached fit for its inputs and shapes a table; the numbers come from the engine.
+ */
+import { getFit } from "../engine/model";
+import { seTypeOf, type Options } from "../engine/options";
+import { fail, unavailable } from "../engine/problems";
+import { resolveColumn } from "../engine/transforms";
+import { elasticity, percentEffect } from "../engine/elasticity";
+import { readRange, asMatrix, CellIssue } from "../engine/intake";
+import type { OlsFit } from "../engine/fit";
+import { guarded, hostError, levelLabel, num, options, originsOf, table, type Cell, type Table } from "./host";
+
+/** Fit for a cell function whose first two parameters are y and x. */
+export function fitFor(y: unknown, x: unknown, o: Options, invocation: unknown): OlsFit {
+  const [yo, xo] = originsOf(invocation);
+  return getFit({ y, x, options: o, yOrigin: yo ?? null, xOrigin: xo ?? null });
+}
+
+export function fitTable(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
+  return guarded(() => {
+    const o = options(opts);
+    const fit = fitFor(y, x, o, invocation);
+    const cov = fit.covariance(seTypeOf(o), o.lags);
+    const se = fit.standardErrors(cov);
+    const crit = fit.criticalValue(o.level);
+    const lv = levelLabel(o.level);
+    const body: Table = fit.terms.map((t, j) => {
+      const b = fit.coef[j];
+      const tstat = b / se[j];
+      const why = se[j] === 0 ? "the standard error is zero (exact fit), so t and p are undefined" : undefined;
+      return [
+        t.name,
+        fit.termLabel(t),
+        num(b),
+        num(se[j]),
+        num(tstat, why),
+        num(fit.pValue(tstat), why),
+        num(b - crit * se[j]),
+        num(b + crit * se[j]),
+      ];
+    });
+    return table(["Term", "Transform", "Coefficient", `Std. error (${cov.label})`, "t", "p-value", `Lower ${lv}`, `Upper ${lv}`], body, o);
+  });
+}
+
+function binaryMessage(name: string): string {
+  return `${name} is binary (0/1): its effect is a percent change, not an elasticity; see ELX.EFFECTS`;
+}
+
+export function elasticityValue(y: unknown, x: unknown, term: unknown, opts: unknown, invocation: unknown): Table {
+  return guarded(() => {
+    const o = options(opts);
+    const fit = fitFor(y, x, o, invocation);
+    const column = resolveColumn(term, fit.data.xNames);
+    if (fit.data.binary[column]) unavailable(binaryMessage(fit.data.xNames[column]));
+    const cov = fit.covariance(seTypeOf(o), o.lags);
+    return [[num(elasticity(fit, column, cov, o.level, o.at).estimate)]];
+  });
+}
+
+export function elasticitiesTable(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
+  return guarded(() => {
+    const o = options(opts);
+    const fit = fitFor(y, x, o, invocation);
+    const cov = fit.covariance(seTypeOf(o), o.lags);
+    const lv = levelLabel(o.level);
+    const body: Table = fit.data.xNames.map((name, j) => {
+      const t = fit.terms[fit.coefIndex(j)];
+      if (fit.data.binary[j]) {
+        const e = hostError("na", binaryMessage(name));
+        return [name, fit.termLabel(t), e, e, e, e, "binary: see ELX.EFFECTS"];
+      }
+      const r = elasticity(fit, j, cov, o.level, o.at);
+      return [name, fit.termLabel(t), num(r.estimate), num(r.se), num(r.lower), num(r.upper), r.at];
+    });
+    return table(["Term", "Transform", "Elasticity", `Std. error (${cov.label})`, `Lower ${lv}`, `Upper ${lv}`, "Evaluated at"], body, o);
+  });
+}
+
+export function effectsTable(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
+  return guarded(() => {
+    const o = options(opts);
+    const fit = fitFor(y, x, o, invocation);
+    const g = fit.data.yTransform;
+    if (g.kind === "level") unavailable("percent effects need y in logs (form=log-log or form=log-level); with y in levels a coefficient is a change in units of y: read ELX.FIT");
+    if (g.kind !== "log") unavailable(`percent effects need y in plain logs; here y is transformed by ${g.kind === "asinh" ? "asinh" : "log(y + c)"} (zeros=${g.kind === "asinh" ? "ihs" : "shift"}), whose coefficients are not percent changes of y: use zeros=drop or, in a later version, estimator=ppml`);
+    const cols = fit.data.xTransforms.map((t, j) => (t.kind === "level" ? j : -1)).filter((j) => j >= 0);
+    if (cols.length === 0) unavailable("no regressor is in levels here: under a log x side each coefficient is already an elasticity (ELX.ELASTICITIES); percent effects are for binary columns or those named in levels=");
+    const cov = fit.covariance(seTypeOf(o), o.lags);
+    const lv = levelLabel(o.level);
+    const body: Table = cols.map((j) => {
+      const r = percentEffect(fit, j, cov, o.level);
+      return [r.term.name, num(r.percent), num(r.corrected), num(r.lower), num(r.upper)];
+    });
+    return table(["Term", "Percent effect", "Corrected (Kennedy 1981)", `Lower ${lv}`, `Upper ${lv}`], body, o);
+  });
+}
+
+const CAUTION = "Associations, not causes: prices often respond to demand, and results depend on the sample and data quality; decisions stay with the analyst and their organisation's review.";
+
+export function summaryTable(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
+  return guarded(() => {
+    const o = options(opts);
+    const fit = fitFor(y, x, o, invocation);
+    const s = fit.statistics();
+    const cov = fit.covariance(seTypeOf(o), o.lags);
+    const scale = fit.data.yTransform.kind === "level" ? "" : ` (scale of ${fit.data.yTransform.kind === "log" ? "log y" : "transformed y"})`;
+    const noF = "no regressor besides the intercept, or an exact fit: the F test is undefined";
+    const rows: [string, Cell][] = [
+      ["Form", `${o.form}${fit.intercept ? "" : ", no intercept"}`],
+      ["Std. errors", cov.label],
+      ["Observations used", fit.n],
+      ["Rows left out: blank or non-numeric", fit.data.leftOutBlank],
+      ["Rows left out: zero or negative under a log", fit.data.leftOutNonPositive],
+      ["R²" + scale, num(s.rSquared, "R² is undefined: y does not vary")],
+      ["Adjusted R²", num(s.adjRSquared, "adjusted R² is undefined: y does not vary")],
+      ["Residual std. error", num(s.sigma)],
+      ["F statistic", s.fStatistic === null ? hostError("na", noF) : num(s.fStatistic)],
+      ["F p-value", s.fPValue === null ? hostError("na", noF) : num(s.fPValue)],
+      ["Log-likelihood", num(s.logLik, "the log-likelihood is unbounded for an exact fit")],
+      ["AIC", num(s.aic, "AIC is undefined for an exact fit")],
+      ["BIC", num(s.bic, "BIC is undefined for an exact fit")],
+      ["Caution", CAUTION],
+    ];
+    return table(["Statistic", "Value"], rows, o);
+  });
+}
+
+export function zerosTable(range: unknown, opts: unknown): Table {
+  return guarded(() => {
+    const o = options(opts);
+    const m = asMatrix(range, "range");
+    const r = readRange(m, (j) => (m[0].length === 1 ? "y" : `column ${j + 1}`), 1);
+    if (r.rows === 0) fail("the range has a header row but no data rows below it");
+    const k = r.columns.length;
+    const anyLost = new Uint8Array(r.rows);
+    const body: Table = [];
+    for (let j = 0; j < k; j++) {
+      const c = r.columns[j];
+      let values = 0;
+      let blank = 0;
+      let zeros = 0;
+      let negatives = 0;
+      let binary = true;
+      for (let i = 0; i < r.rows; i++) {
+        const v = c[i];
+        if (Number.isNaN(v)) {
+          blank++;
+          continue;
+        }
+        values++;
+        if (v === 0) zeros++;
+        else if (v < 0) negatives++;
+        if (v !== 0 && v !== 1) binary = false;
+      }
+      binary = binary && values > 0;
+      if (!binary) for (let i = 0; i < r.rows; i++) if (c[i] <= 0) anyLost[i] = 1;
+      body.push([binary ? `${r.names[j]} (binary: kept in levels)` : r.names[j], values, blank, zeros, negatives, binary ? 0 : zeros + negatives]);
+    }
+    if (k > 1) {
+      let lost = 0;
+      for (let i = 0; i < r.rows; i++) lost += anyLost[i];
+      let blankRows = 0;
+      for (let i = 0; i < r.rows; i++) if (r.issues[i] !== CellIssue.None) blankRows++;
+      body.push(["All columns (rows)", r.rows - blankRows, blankRows, "", "", lost]);
+    }
+    return table(["Column", "Values", "Blank or non-numeric", "Zeros", "Negatives", "Rows a plain log would lose"], body, o);
+  });
+}

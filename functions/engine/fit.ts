@@ -1,0 +1,222 @@
+/**
+ * The OLS fit: computed once from a prepared dataset, read by every cell function.
+ *
+ * Like a results object in statsmodels, expensive parts (leverages, each covariance type, medians)
+ * are computed on first use and memoised, without side effects on other fields.
+ */
+import { fail, unavailable } from "./problems";
+import { leastSquares, type Dependency, type QrFit } from "./leastSquares";
+import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, leverages, type Covariance } from "./covariance";
+import { originalMedian, transformLabel, type Dataset, type Transform } from "./transforms";
+import { fisherSf, studentQuantile, studentTwoSided } from "./distributions";
+import type { SeType } from "./options";
+
+export const INTERCEPT = "(Intercept)";
+
+export interface Term {
+  name: string;
+  /** Index in dataset.x, or −1 for the intercept. */
+  column: number;
+  transform: Transform | null;
+  binary: boolean;
+}
+
+export interface FitStatistics {
+  rSquared: number;
+  adjRSquared: number;
+  sigma: number;
+  fStatistic: number | null;
+  fDf1: number;
+  fDf2: number;
+  fPValue: number | null;
+  logLik: number;
+  aic: number;
+  bic: number;
+}
+
+export class OlsFit {
+  readonly estimator = "ols" as const;
+  readonly data: Dataset;
+  readonly intercept: boolean;
+  readonly terms: Term[];
+  readonly design: Float64Array[];
+  readonly qr: QrFit;
+  readonly n: number;
+  readonly k: number;
+  readonly dfResid: number;
+  private leverageCache: Float64Array | null = null;
+  private readonly covCache = new Map<string, Covariance>();
+  private medianCache = new Map<number, number>();
+  private statsCache: FitStatistics | null = null;
+
+  constructor(data: Dataset, intercept: boolean) {
+    this.data = data;
+    this.intercept = intercept;
+    const terms: Term[] = [];
+    const design: Float64Array[] = [];
+    if (intercept) {
+      terms.push({ name: INTERCEPT, column: -1, transform: null, binary: false });
+      design.push(new Float64Array(data.n).fill(1));
+    }
+    data.x.forEach((c, j) => {
+      terms.push({ name: data.xNames[j], column: j, transform: data.xTransforms[j], binary: data.binary[j] });
+      design.push(c);
+    });
+    this.terms = terms;
+    this.design = design;
+    this.n = data.n;
+    this.k = design.length;
+    checkShape(data, this.k, intercept);
+    this.qr = leastSquares(design, data.y, (d) => explainDependency(d, terms));
+    this.dfResid = this.n - this.k;
+  }
+
+  get coef(): Float64Array {
+    return this.qr.coef;
+  }
+
+  get resid(): Float64Array {
+    return this.qr.resid;
+  }
+
+  get fitted(): Float64Array {
+    return this.qr.fitted;
+  }
+
+  get rss(): number {
+    return this.qr.rss;
+  }
+
+  /** Residual variance s² = RSS/(n − k). */
+  get s2(): number {
+    return this.qr.rss / this.dfResid;
+  }
+
+  leverage(): Float64Array {
+    if (!this.leverageCache) this.leverageCache = leverages(this.design, this.qr);
+    return this.leverageCache;
+  }
+
+  /** The covariance of the coefficients of the given type (memoised). */
+  covariance(type: SeType, lags: number | null = null): Covariance {
+    const L = type === "HAC" ? lags ?? defaultLags(this.n) : 0;
+    const key = type === "HAC" ? `HAC${L}` : type;
+    let c = this.covCache.get(key);
+    if (!c) {
+      let V: Float64Array;
+      if (type === "classical") V = classicalCovariance(this.qr);
+      else if (type === "HAC") V = hacCovariance(this.design, this.qr, L);
+      else V = hcCovariance(this.design, this.qr, type, type === "HC2" || type === "HC3" ? this.leverage() : new Float64Array(0), this.data.rowNumbers);
+      c = { type, V, lags: type === "HAC" ? L : undefined, label: type === "HAC" ? `HAC, ${L} lag${L === 1 ? "" : "s"}` : type };
+      this.covCache.set(key, c);
+    }
+    return c;
+  }
+
+  /** Standard errors under a covariance. */
+  standardErrors(c: Covariance): Float64Array {
+    const se = new Float64Array(this.k);
+    for (let j = 0; j < this.k; j++) se[j] = Math.sqrt(Math.max(0, c.V[j * this.k + j]));
+    return se;
+  }
+
+  /** The Student t quantile for a two-sided interval at `level`, on n − k df. */
+  criticalValue(level: number): number {
+    return studentQuantile(0.5 + level / 2, this.dfResid);
+  }
+
+  pValue(t: number): number {
+    return studentTwoSided(t, this.dfResid);
+  }
+
+  /** Mean or median, in original units, of x column j (−1: y) over the rows used. */
+  centre(column: number, at: "mean" | "median"): number {
+    if (at === "mean") return column < 0 ? this.data.yMean : this.data.xMeans[column];
+    let m = this.medianCache.get(column);
+    if (m === undefined) {
+      m = column < 0
+        ? originalMedian(this.data.y, this.data.yTransform)
+        : originalMedian(this.data.x[column], this.data.xTransforms[column]);
+      this.medianCache.set(column, m);
+    }
+    return m;
+  }
+
+  statistics(): FitStatistics {
+    if (this.statsCache) return this.statsCache;
+    const { n, k } = this;
+    const y = this.data.y;
+    let tss = 0;
+    if (this.intercept) {
+      let mean = 0;
+      for (let i = 0; i < n; i++) mean += y[i];
+      mean /= n;
+      // second pass for accuracy
+      let corr = 0;
+      for (let i = 0; i < n; i++) corr += y[i] - mean;
+      mean += corr / n;
+      for (let i = 0; i < n; i++) tss += (y[i] - mean) * (y[i] - mean);
+    } else {
+      for (let i = 0; i < n; i++) tss += y[i] * y[i];
+    }
+    const rss = this.rss;
+    const dfModel = k - (this.intercept ? 1 : 0);
+    const rSquared = tss > 0 ? 1 - rss / tss : NaN;
+    const adjRSquared = 1 - (1 - rSquared) * ((n - (this.intercept ? 1 : 0)) / this.dfResid);
+    const sigma = Math.sqrt(rss / this.dfResid);
+    let fStatistic: number | null = null;
+    let fPValue: number | null = null;
+    if (dfModel > 0 && rss > 0) {
+      fStatistic = ((tss - rss) / dfModel) / (rss / this.dfResid);
+      fPValue = fisherSf(fStatistic, dfModel, this.dfResid);
+    }
+    const logLik = -0.5 * n * (Math.log(2 * Math.PI) + Math.log(rss / n) + 1);
+    const aic = -2 * logLik + 2 * (k + 1);
+    const bic = -2 * logLik + (k + 1) * Math.log(n);
+    this.statsCache = { rSquared, adjRSquared, sigma, fStatistic, fDf1: dfModel, fDf2: this.dfResid, fPValue, logLik, aic, bic };
+    return this.statsCache;
+  }
+
+  termLabel(t: Term): string {
+    return t.transform ? transformLabel(t.transform) : "constant";
+  }
+
+  /** Index in the coefficient vector of x column j. */
+  coefIndex(column: number): number {
+    return column + (this.intercept ? 1 : 0);
+  }
+
+  /** Refuses a perfect fit where a quantity needs residual variation. */
+  requireResidualVariation(what: string): void {
+    if (!(this.rss > 0)) unavailable(`the fit is exact (every residual is zero), so ${what} is undefined`);
+  }
+}
+
+function checkShape(data: Dataset, k: number, intercept: boolean): void {
+  const n = data.n;
+  if (n <= k) {
+    const left = data.leftOutBlank + data.leftOutNonPositive;
+    fail(`${n} usable rows are too few for ${k} coefficients${intercept ? " (the intercept counts)" : ""}: need at least ${k + 1}${left > 0 ? `; ${left} rows were left out` : ""}`);
+  }
+  // Constant regressors: a clearer message than the rank check's.
+  data.x.forEach((c, j) => {
+    let min = Infinity;
+    let max = -Infinity;
+    for (let i = 0; i < c.length; i++) {
+      if (c[i] < min) min = c[i];
+      if (c[i] > max) max = c[i];
+    }
+    if (min === max) {
+      if (intercept) fail(`${data.xNames[j]} has the same value in every row used, so it cannot be told apart from the intercept: remove it from x`);
+      if (min === 0) fail(`${data.xNames[j]} is zero in every row used: remove it from x`);
+    }
+  });
+}
+
+function explainDependency(d: Dependency, terms: Term[]): never {
+  const name = terms[d.column].name;
+  if (d.on.length === 0) return fail(`${name} is zero in every row used: remove it from x`);
+  const others = d.on.map((i) => terms[i].name);
+  const list = others.length === 1 ? others[0] : `${others.slice(0, -1).join(", ")} and ${others[others.length - 1]}`;
+  return fail(`${name} is an exact linear combination of ${list} (collinear): remove one of these columns`);
+}

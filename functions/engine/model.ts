@@ -1,0 +1,64 @@
+/**
+ * From cells to a cached fit: intake → transforms → estimator, once per distinct input.
+ */
+import { BoundedCache, hashCells, type Sized } from "./cache";
+import { readYX, type Origin } from "./intake";
+import { modelKey, type Options } from "./options";
+import { ElxProblem } from "./problems";
+import { prepare } from "./transforms";
+import { OlsFit } from "./fit";
+
+/** At most this many fits are kept (each cell function of a block reads the same one). */
+export const CACHE_ENTRIES = 32;
+/** And at most this many doubles in all (about 400 MB), so large ranges do not pile up. */
+export const CACHE_DOUBLES = 50_000_000;
+
+type Entry = Sized & ({ fit: OlsFit; problem?: undefined } | { fit?: undefined; problem: ElxProblem });
+
+const cache = new BoundedCache<Entry>(CACHE_ENTRIES, CACHE_DOUBLES);
+
+export interface ModelInput {
+  y: unknown;
+  x: unknown;
+  options: Options;
+  yOrigin: Origin | null;
+  xOrigin: Origin | null;
+}
+
+function keyOf(input: ModelInput): string {
+  const o = (p: Origin | null) => (p ? `${p.row},${p.column}` : "-");
+  return [hashCells(input.y, 1), hashCells(input.x, 2), modelKey(input.options), o(input.yOrigin), o(input.xOrigin)].join("/");
+}
+
+/** Fits without the cache (for tests and for callers that build their own data). */
+export function fitUncached(input: ModelInput): OlsFit {
+  const raw = readYX(input.y, input.x, input.yOrigin, input.xOrigin);
+  const data = prepare(raw, input.options);
+  return new OlsFit(data, input.options.intercept);
+}
+
+/** The fit for these cells and options, from the cache when the same content was fitted before. */
+export function getFit(input: ModelInput): OlsFit {
+  const key = keyOf(input);
+  const hit = cache.get(key);
+  if (hit) {
+    if (hit.problem) throw hit.problem;
+    return hit.fit as OlsFit;
+  }
+  try {
+    const fit = fitUncached(input);
+    cache.set(key, { fit, size: fit.n * (fit.k + 6) });
+    return fit;
+  } catch (e) {
+    if (e instanceof ElxProblem) cache.set(key, { problem: e, size: 1 });
+    throw e;
+  }
+}
+
+export function cacheStats(): { hits: number; misses: number; entries: number } {
+  return { hits: cache.hits, misses: cache.misses, entries: cache.entries };
+}
+
+export function clearCache(): void {
+  cache.clear();
+}
