@@ -207,8 +207,17 @@ function printResult(res, indent = "  ") {
   }
   const text = res.map((r) => r.map(fmtCell));
   const width = Math.max(...res.map((r) => r.length));
+  // Column widths from the cells up to LONG characters, so that one long text cell (a caution, a
+  // reading) overflows its row instead of pushing the whole column to the right. Numbers are
+  // right-aligned, text left-aligned.
+  const LONG = 48;
   const colW = [];
-  for (let j = 0; j < width; j++) colW[j] = Math.max(...text.map((r) => (r[j] || "").length));
+  for (let j = 0; j < width; j++) {
+    colW[j] = Math.max(0, ...text.map((r, i) => {
+      const len = (r[j] || "").length;
+      return typeof res[i][j] === "number" || len <= LONG ? len : 0;
+    }));
+  }
   res.forEach((r, i) => {
     const cells = [];
     for (let j = 0; j < width; j++) {
@@ -353,7 +362,12 @@ async function main() {
   await formula(F("FIT", "zeros=shift; shift=1"), "FIT", [y, x, "zeros=shift; shift=1"], yx);
   out("  (shift and ihs keep the closed weeks in, with 0 loaves at 0 footfall: that pulls the Footfall");
   out("   slope toward whatever the closures imply, which is why the drop policy is used above.)");
-  await formula(F("FIT", "estimator=ppml; zeros=drop"), "FIT", [y, x, "estimator=ppml; zeros=drop"], yx);
+  const ppml = await formula(F("FIT", "estimator=ppml; zeros=drop"), "FIT", [y, x, "estimator=ppml; zeros=drop"], yx);
+  if (Array.isArray(ppml) && ppml[0] && ppml[0][4] !== "z") {
+    out("  NOTE: this build does not seem to fit PPML: the table has a t column (PPML reports z) and its");
+    out("  coefficients are on the scale of Units, as a least-squares fit of Units in levels would give.");
+    noticed.push(`${F("FIT", "estimator=ppml; zeros=drop")}: header says "${ppml[0][4]}", not "z"; estimator=ppml looks ignored (a level-y OLS came back)`);
+  }
   out("  (PPML fits the mean of Units itself, so the two stock-out weeks with normal footfall stay in;");
   out("   zeros=drop still removes the closed weeks, where the logged Footfall is 0.)");
 

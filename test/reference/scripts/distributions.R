@@ -74,13 +74,18 @@ t_df <- c(1, 2, 3, 4, 5, 7, 10, 15, 20, 30, 50, 100, 200, 500, 1000, 1e4, 1e5, 4
 pt_tab <- expand.grid(t = t_grid, df = t_df)
 pt_tab$lower <- pt(pt_tab$t, pt_tab$df, lower.tail = TRUE)
 pt_tab$upper <- pt(pt_tab$t, pt_tab$df, lower.tail = FALSE)
+# huge |t| on few df (t^2 overflows a double beyond 1.3e154; the quantile search reaches there)
+pt_huge <- expand.grid(t = c(-1e200, -1e100, -1e10, 1e10, 1e100, 1e200), df = c(1, 2, 3))
+pt_huge$lower <- pt(pt_huge$t, pt_huge$df, lower.tail = TRUE)
+pt_huge$upper <- pt(pt_huge$t, pt_huge$df, lower.tail = FALSE)
+pt_tab <- rbind(pt_tab, pt_huge)
 pt_tab <- pt_tab[keep_p(pt_tab$lower) & keep_p(pt_tab$upper), ]
 
 # ---- F tails ---------------------------------------------------------------------------------
 f_grid <- c(1e-4, 1e-3, 0.01, 0.1, 0.5, 0.9, 1, 1.1, 2, 3, 4, 5, 10, 20, 50, 100, 400, 1000, 1e4, 1e6)
 f_df <- rbind(c(1, 1), c(1, 2), c(1, 10), c(2, 10), c(2, 1000), c(3, 30), c(4, 100), c(5, 5),
               c(10, 10), c(10, 1000), c(1, 1e6), c(20, 3), c(50, 50), c(3, 1e4), c(100, 200),
-              c(2, 2), c(7, 40))
+              c(2, 2), c(7, 40), c(2, 1e6), c(5, 1e5), c(30, 1e6), c(1, 3), c(3, 997))
 pf_tab <- do.call(rbind, lapply(seq_len(nrow(f_df)), function(i) data.frame(f = f_grid, d1 = f_df[i, 1], d2 = f_df[i, 2])))
 pf_tab$upper <- pf(pf_tab$f, pf_tab$d1, pf_tab$d2, lower.tail = FALSE)
 pf_tab$lower <- pf(pf_tab$f, pf_tab$d1, pf_tab$d2, lower.tail = TRUE)

@@ -1,0 +1,77 @@
+/**
+ * NIST StRD linear least squares (../shared/data/nist-strd/strd.json, public domain, certified values
+ * to 15 digits): all eleven problems through ELX.FIT and ELX.SUMMARY in level-level form, classical
+ * standard errors (NIST certifies the usual OLS standard deviations), polynomial columns built from x,
+ * NoInt1 and NoInt2 without intercept. Scored by the log relative error (LRE) as the StRD README
+ * defines it, capped at the printed digits.
+ */
+import * as fs from "fs";
+import * as path from "path";
+import { call, HostError, loadFunctions, lookup } from "../harness/loadFunctions";
+
+interface Coef { estimate: number; estimateText: string; standardDeviation: number; standardDeviationText: string }
+interface StrdSet {
+  name: string;
+  design: { intercept: boolean; terms: { variable?: string; power: number }[] };
+  certified: { coefficients: Coef[]; residualStandardDeviation: number; residualStandardDeviationText: string; rSquared: number; rSquaredText: string };
+  data: { y: number[]; x: Record<string, number[]> };
+}
+
+const strdPath = path.resolve(__dirname, "../../../shared/data/nist-strd/strd.json");
+const strd: { datasets: StrdSet[] } = JSON.parse(fs.readFileSync(strdPath, "utf8"));
+
+/** Significant digits printed; a certified zero such as 0.00000000000000E+00 counts every digit shown. */
+function digits(text: string): number {
+  const all = text.replace(/^[-+]/, "").split(/[eE]/)[0].replace(".", "");
+  const significant = all.replace(/^0+/, "");
+  return significant === "" ? all.length : significant.length;
+}
+
+/** LRE = −log10(|q − c|/|c|), or −log10|q| when c = 0; capped at the certified digits. */
+function lre(q: number, c: number, text: string): number {
+  const cap = digits(text);
+  const err = c === 0 ? Math.abs(q) : Math.abs(q - c) / Math.abs(c);
+  if (err === 0) return cap;
+  return Math.min(cap, -Math.log10(err));
+}
+
+const reg = loadFunctions();
+const table: Record<string, { coef: number; sd: number; resSd: number; r2: number }> = {};
+
+describe("NIST StRD linear regression, certified values (LRE)", () => {
+  for (const set of strd.datasets) {
+    it(`${set.name}: coefficients, standard deviations, residual SD and R² to the required digits`, () => {
+      const n = set.data.y.length;
+      const terms = set.design.terms.filter((t) => t.power !== 0);
+      const yRows = set.data.y.map((v) => [v]);
+      const xRows: number[][] = [];
+      for (let i = 0; i < n; i++) {
+        xRows.push(terms.map((t) => Math.pow(set.data.x[t.variable as string][i], t.power)));
+      }
+      const opts = `form=level-level; se=classical; intercept=${set.design.intercept}; headers=false`;
+      const fit = call(reg, "FIT", yRows, xRows, opts) as unknown[][];
+      expect(fit).not.toBeInstanceOf(HostError);
+      const summary = call(reg, "SUMMARY", yRows, xRows, opts) as unknown[][];
+      const cert = set.certified;
+      let coefLre = Infinity;
+      let sdLre = Infinity;
+      cert.coefficients.forEach((c, j) => {
+        coefLre = Math.min(coefLre, lre(fit[j][2] as number, c.estimate, c.estimateText));
+        sdLre = Math.min(sdLre, lre(fit[j][3] as number, c.standardDeviation, c.standardDeviationText));
+      });
+      const resSd = lre(lookup(summary, "Residual std. error") as number, cert.residualStandardDeviation, cert.residualStandardDeviationText);
+      const r2label = summary.find((r) => String(r[0]).startsWith("R²"))![0] as string;
+      const r2 = lre(lookup(summary, r2label) as number, cert.rSquared, cert.rSquaredText);
+      table[set.name] = { coef: +coefLre.toFixed(1), sd: +sdLre.toFixed(1), resSd: +resSd.toFixed(1), r2: +r2.toFixed(1) };
+      const need = set.name === "Filip" ? 7 : 9;
+      expect(coefLre).toBeGreaterThanOrEqual(need);
+      expect(sdLre).toBeGreaterThanOrEqual(need);
+      expect(resSd).toBeGreaterThanOrEqual(need);
+      expect(r2).toBeGreaterThanOrEqual(need);
+    });
+  }
+  afterAll(() => {
+    // The LRE table (smallest per quantity and set), printed for the record.
+    console.log("NIST StRD log relative errors (min per quantity)\n" + JSON.stringify(table, null, 1));
+  });
+});
