@@ -30,9 +30,10 @@ const { spawnSync } = require("child_process");
 const { Worker } = require("worker_threads");
 
 const ROOT = path.join(__dirname, "..");
-const BUNDLE = path.join(ROOT, "dist", "functions.js");
-
 const argv = process.argv.slice(2);
+// --bundle <file> loads another build (e.g. to compare two builds); its functions.json is read
+// from the same folder when present.
+const BUNDLE = argv.includes("--bundle") ? path.resolve(argv[argv.indexOf("--bundle") + 1]) : path.join(ROOT, "dist", "functions.js");
 const ONLY = argv.includes("--only") ? argv[argv.indexOf("--only") + 1] : null;
 const QUICK = argv.includes("--quick");
 const USE_R = !argv.includes("--no-r");
@@ -83,7 +84,7 @@ function isHostError(v) {
 
 const METADATA = new Map();
 {
-  const metaPath = path.join(ROOT, "dist", "functions.json");
+  const metaPath = path.join(path.dirname(BUNDLE), "functions.json");
   if (fs.existsSync(metaPath)) for (const f of JSON.parse(fs.readFileSync(metaPath, "utf8")).functions || []) METADATA.set(f.id, f);
 }
 function colName(i) {
@@ -317,7 +318,7 @@ async function peakDuring(fn) {
     Atomics.notify(flag, 0);
     await worker.terminate();
   }
-  return { value, heapExtra: heapPeak - base, rssExtra: peak[0] - rssBase };
+  return { value, heapExtra: heapPeak - base, rssExtra: peak[0] - rssBase, base };
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -508,16 +509,23 @@ for (const { n, k } of SIZES) {
       name: `memory ${key}`,
       requires: ["FIT"],
       async run() {
-        const d = data(key, make);
-        const p = fresh(d);
-        const m = await peakDuring(() => invoke("FIT", p.yRows, p.xRows, FIT_OPTIONS));
-        if (isHostError(m.value)) throw new HostError(m.value.code, m.value.message);
+        // In a child process of its own, so that the heap and the allocator hold nothing from the
+        // cases before; MALLOC_MMAP_THRESHOLD_ fixes glibc's threshold so that freed large buffers
+        // go back to the system at once and the resident set follows the live memory.
+        dropData(key);
+        const child = spawnSync(process.execPath, ["--expose-gc", __filename, "--bundle", BUNDLE, "--memory-child", String(n), String(k)],
+          { encoding: "utf8", env: { ...process.env, MALLOC_MMAP_THRESHOLD_: "65536" }, maxBuffer: 1 << 20 });
+        const line = (child.stdout || "").split("\n").find((l) => l.startsWith("MEMORY "));
+        if (child.status !== 0 || !line) throw new Error(`memory child failed: ${(child.stderr || child.stdout || "").trim().slice(-300)}`);
+        const m = JSON.parse(line.slice(7));
+        if (m.error) throw new HostError(m.error.code, m.error.message);
         const input = n * (k + 1) * 8;
         const heapX = m.heapExtra / input;
         const rssX = m.rssExtra / input;
         store.memory = { heapX, rssX, worst: Math.max(heapX, rssX), key };
         results.push(["peak memory during FIT", key, `${heapX.toFixed(2)}x / ${rssX.toFixed(2)}x`,
-          `extra heapUsed+arrayBuffers / extra RSS, as multiples of n(k+1)*8 = ${(input / 2 ** 20).toFixed(0)} MiB`]);
+          `extra heapUsed+arrayBuffers / extra RSS, as multiples of n(k+1)*8 = ${(input / 2 ** 20).toFixed(0)} MiB` +
+          `; still held after the call (cache), inputs freed: ${(m.retained / input).toFixed(2)}x`]);
       },
     });
   }
@@ -607,7 +615,7 @@ CASES.push({
 // ---------------------------------------------------------------------------------------------
 async function main() {
   out(`Elasticell benchmark  (node ${process.version}, ${os.cpus().length} x ${os.cpus()[0] && os.cpus()[0].model}, ${(os.totalmem() / 2 ** 30).toFixed(0)} GiB)`);
-  out(`bundle: dist/functions.js; registered: ${[...registry.keys()].sort().join(", ")}`);
+  out(`bundle: ${path.relative(ROOT, BUNDLE)}; registered: ${[...registry.keys()].sort().join(", ")}`);
   out(`missing (cases skipped): ${KNOWN_IDS.filter((id) => !registry.has(id)).join(", ") || "none"}`);
   out(`R: ${HAVE_R ? spawnSync("Rscript", ["--version"], { encoding: "utf8" }).stderr.trim().split("\n")[0] || "Rscript found" : USE_R ? "Rscript not on PATH: no comparison" : "skipped (--no-r)"}`);
   out(`FIT options "${FIT_OPTIONS}"; medians over 5 runs (3 for 10^6 rows), one untimed warm-up below 10^6; data as the host's row arrays`);
@@ -684,7 +692,27 @@ function printTable(header, rows) {
   for (const r of all.slice(1)) out(line(r));
 }
 
-main().catch((e) => {
+/** Child mode for the memory case: one data set, a short warm-up, one measured FIT call. */
+async function memoryChild(n, k) {
+  const d = makeData(n, k, 1000 + n / 1000 + k);
+  const w = makeData(1e4, k, 5);
+  for (let r = 0; r < 6; r++) {
+    const p = fresh(w);
+    await settle(invoke("FIT", p.yRows, p.xRows, FIT_OPTIONS));
+  }
+  const p = fresh(d);
+  const m = await peakDuring(() => invoke("FIT", p.yRows, p.xRows, FIT_OPTIONS));
+  const error = isHostError(m.value) ? { code: m.value.code, message: m.value.message } : null;
+  // What stays after the call (the fit cache), with the inputs and the result released.
+  p.yRows = p.xRows = m.value = null;
+  global.gc();
+  global.gc();
+  const after = process.memoryUsage();
+  out("MEMORY " + JSON.stringify({ heapExtra: m.heapExtra, rssExtra: m.rssExtra, retained: after.heapUsed + after.arrayBuffers - m.base, error }));
+}
+
+const childAt = argv.indexOf("--memory-child");
+(childAt >= 0 ? memoryChild(Number(argv[childAt + 1]), Number(argv[childAt + 2])) : main()).catch((e) => {
   process.stderr.write(`bench failed: ${e && e.stack ? e.stack : e}\n`);
   process.exit(1);
 });

@@ -17,8 +17,11 @@ const fs = require("fs");
 const path = require("path");
 
 const ROOT = path.join(__dirname, "..");
-const BUNDLE = path.join(ROOT, "dist", "functions.js");
-const METADATA = path.join(ROOT, "dist", "functions.json");
+// --bundle <file> loads another build (e.g. to compare two builds); its functions.json is read
+// from the same folder when present.
+const BUNDLE_ARG = process.argv.indexOf("--bundle");
+const BUNDLE = BUNDLE_ARG > 0 ? path.resolve(process.argv[BUNDLE_ARG + 1]) : path.join(ROOT, "dist", "functions.js");
+const METADATA = path.join(path.dirname(BUNDLE), "functions.json");
 const DATA = path.join(ROOT, "data", "demo.json");
 
 // ---------------------------------------------------------------------------------------------

@@ -12,7 +12,7 @@
  * Cost: one pass over the rows with O(k²) work per row (HAC: O(k²·L) per row).
  */
 import { fail, rowsPhrase } from "./problems";
-import { forwardSolveRt, type QrFit } from "./leastSquares";
+import type { QrFit } from "./leastSquares";
 import type { SeType } from "./options";
 
 /** Leverage at or above 1 − LEVERAGE_TOL counts as 1: HC2/HC3 are then undefined. */
@@ -23,18 +23,44 @@ export function defaultLags(n: number): number {
   return Math.floor(4 * Math.pow(n / 100, 2 / 9));
 }
 
-/** Leverages h_i = |R⁻ᵀ x_i|² of the design rows. */
+/** Rows per block in the passes below (k·BLOCK doubles stay in cache). */
+const BLOCK = 256;
+
+/**
+ * Rows start … start+m−1 of Q = X_s R⁻¹ into Z (column-major, column j at j·BLOCK): for each j,
+ * z_j = (x_j/s_j − Σ_{l<j} R_lj z_l)/R_jj, as whole-block vector operations.
+ */
+function qRows(X: Float64Array[], qr: QrFit, inv: Float64Array, start: number, m: number, Z: Float64Array): void {
+  const { k, R } = qr;
+  for (let j = 0; j < k; j++) {
+    const o = j * BLOCK;
+    const src = X[j];
+    const s = inv[j];
+    for (let i = 0; i < m; i++) Z[o + i] = src[start + i] * s;
+    for (let l = 0; l < j; l++) {
+      const r = R[l * k + j];
+      if (r === 0) continue;
+      const ol = l * BLOCK;
+      for (let i = 0; i < m; i++) Z[o + i] -= r * Z[ol + i];
+    }
+    const d = 1 / R[j * k + j];
+    for (let i = 0; i < m; i++) Z[o + i] *= d;
+  }
+}
+
+/** Leverages h_i = |R⁻ᵀ x_i|² (squared row norms of Q). */
 export function leverages(X: Float64Array[], qr: QrFit): Float64Array {
-  const { n, k, R, scale } = qr;
+  const { n, k } = qr;
   const h = new Float64Array(n);
-  const z = new Float64Array(k);
-  const inv = Array.from(scale, (s) => 1 / s);
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < k; j++) z[j] = X[j][i] * inv[j];
-    forwardSolveRt(R, k, z);
-    let s = 0;
-    for (let j = 0; j < k; j++) s += z[j] * z[j];
-    h[i] = s;
+  const Z = new Float64Array(k * BLOCK);
+  const inv = Float64Array.from(qr.scale, (s) => 1 / s);
+  for (let start = 0; start < n; start += BLOCK) {
+    const m = Math.min(BLOCK, n - start);
+    qRows(X, qr, inv, start, m, Z);
+    for (let j = 0; j < k; j++) {
+      const o = j * BLOCK;
+      for (let i = 0; i < m; i++) h[start + i] += Z[o + i] * Z[o + i];
+    }
   }
   return h;
 }
@@ -78,7 +104,7 @@ export function classicalCovariance(qr: QrFit): Float64Array {
  * @param rowNumbers sheet rows, to name a row whose leverage is 1
  */
 export function hcCovariance(X: Float64Array[], qr: QrFit, type: "HC0" | "HC1" | "HC2" | "HC3", h: Float64Array, rowNumbers: Int32Array): Float64Array {
-  const { n, k, R, scale, resid } = qr;
+  const { n, k, resid } = qr;
   if (type === "HC2" || type === "HC3") {
     const ones: number[] = [];
     for (let i = 0; i < n; i++) if (h[i] >= 1 - LEVERAGE_TOL) ones.push(rowNumbers[i]);
@@ -87,40 +113,64 @@ export function hcCovariance(X: Float64Array[], qr: QrFit, type: "HC0" | "HC1" |
     }
   }
   const M = new Float64Array(k * k);
-  const z = new Float64Array(k);
-  const inv = Array.from(scale, (s) => 1 / s);
+  const Z = new Float64Array(k * BLOCK);
+  const W = new Float64Array(k * BLOCK);
+  const w = new Float64Array(BLOCK);
+  const inv = Float64Array.from(qr.scale, (s) => 1 / s);
   const hc1 = n / (n - k);
-  for (let i = 0; i < n; i++) {
-    const e = resid[i];
-    let w = e * e;
-    if (type === "HC1") w *= hc1;
-    else if (type === "HC2") w /= 1 - h[i];
-    else if (type === "HC3") w /= (1 - h[i]) * (1 - h[i]);
-    if (w === 0) continue;
-    for (let j = 0; j < k; j++) z[j] = X[j][i] * inv[j];
-    forwardSolveRt(R, k, z);
+  for (let start = 0; start < n; start += BLOCK) {
+    const m = Math.min(BLOCK, n - start);
+    qRows(X, qr, inv, start, m, Z);
+    for (let i = 0; i < m; i++) {
+      const e = resid[start + i];
+      const hi = type === "HC2" || type === "HC3" ? h[start + i] : 0;
+      w[i] = type === "HC0" ? e * e : type === "HC1" ? e * e * hc1 : type === "HC2" ? (e * e) / (1 - hi) : (e * e) / ((1 - hi) * (1 - hi));
+    }
     for (let a = 0; a < k; a++) {
-      const wa = w * z[a];
-      for (let b = a; b < k; b++) M[a * k + b] += wa * z[b];
+      const o = a * BLOCK;
+      for (let i = 0; i < m; i++) W[o + i] = w[i] * Z[o + i];
+    }
+    for (let a = 0; a < k; a++) {
+      for (let b = a; b < k; b++) M[a * k + b] += dotBlock(W, a * BLOCK, Z, b * BLOCK, m);
     }
   }
   for (let a = 0; a < k; a++) for (let b = 0; b < a; b++) M[a * k + b] = M[b * k + a];
   return sandwich(qr, M);
 }
 
+/** Σ_{i<m} A[a+i]·B[b+i] with four partial sums. */
+function dotBlock(A: Float64Array, a: number, B: Float64Array, b: number, m: number): number {
+  let s0 = 0;
+  let s1 = 0;
+  let s2 = 0;
+  let s3 = 0;
+  let i = 0;
+  for (; i + 3 < m; i += 4) {
+    s0 += A[a + i] * B[b + i];
+    s1 += A[a + i + 1] * B[b + i + 1];
+    s2 += A[a + i + 2] * B[b + i + 2];
+    s3 += A[a + i + 3] * B[b + i + 3];
+  }
+  for (; i < m; i++) s0 += A[a + i] * B[b + i];
+  return s0 + s1 + (s2 + s3);
+}
+
 /** Newey–West HAC covariance with L lags (Bartlett weights, no prewhitening, no df factor). */
 export function hacCovariance(X: Float64Array[], qr: QrFit, L: number): Float64Array {
-  const { n, k, R, scale, resid } = qr;
+  const { n, k, resid } = qr;
   if (L > n - 1) fail(`lags=${L} is more than the data allow: with ${n} rows use at most lags=${n - 1} (the default is ${defaultLags(n)})`);
   const G: Float64Array[] = [];
   for (let j = 0; j < k; j++) G.push(new Float64Array(n));
-  const z = new Float64Array(k);
-  const inv = Array.from(scale, (s) => 1 / s);
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < k; j++) z[j] = X[j][i] * inv[j];
-    forwardSolveRt(R, k, z);
-    const e = resid[i];
-    for (let j = 0; j < k; j++) G[j][i] = z[j] * e;
+  const Z = new Float64Array(k * BLOCK);
+  const inv = Float64Array.from(qr.scale, (s) => 1 / s);
+  for (let start = 0; start < n; start += BLOCK) {
+    const m = Math.min(BLOCK, n - start);
+    qRows(X, qr, inv, start, m, Z);
+    for (let j = 0; j < k; j++) {
+      const g = G[j];
+      const o = j * BLOCK;
+      for (let i = 0; i < m; i++) g[start + i] = Z[o + i] * resid[start + i];
+    }
   }
   const M = new Float64Array(k * k);
   for (let a = 0; a < k; a++) {

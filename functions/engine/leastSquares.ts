@@ -1,28 +1,45 @@
 /**
- * Least squares by Householder QR on column-major Float64Array columns.
+ * Least squares by Householder QR, row-blocked, on column-major Float64Array columns.
  *
  * Each column is first scaled to unit length (so the rank test and the condition number do not
- * depend on units), then reduced by Householder reflections (Golub and Van Loan, Matrix
- * Computations, 4th ed., Algorithm 5.2.1), never through the normal equations. The reflections are
- * applied column by column on contiguous typed arrays, one pass per column pair, which is what makes
- * n = 10^6 fast in plain JavaScript. Coefficients come from back substitution on R; residuals are
- * recomputed from the original columns.
+ * depend on units). The rows are then taken in blocks of BLOCK_ROWS: each block is copied into a
+ * small cache-resident buffer and reduced by Householder reflections against the running triangle R
+ * (the sequential "tall and skinny" QR; Golub and Van Loan, Matrix Computations, 4th ed., §5.2 and
+ * §6.5; LAPACK's xTPQRT does the same step). Every reflection is an orthogonal Householder step, so
+ * the method has the backward stability of ordinary Householder QR, never forming XᵀX, while reading
+ * the data once. Coefficients come from back substitution on R; residuals are recomputed from the
+ * original columns.
  *
- * Rank: after reflecting the earlier columns, the part of unit column j orthogonal to them has length
- * |R_jj|. Below RANK_TOL the column is (numerically) a linear combination of the earlier ones and the
- * fit is refused with the combination named. An ill-conditioned full-rank design (NIST Filip, whose
- * smallest |R_jj| is about 1e-11 after scaling) is solved.
+ * Accuracy: where the design is ill-conditioned or the coefficients differ widely in size, the
+ * solution is refined through the augmented system with double-double residuals (Björck 1967),
+ * which recovers the digits a single solve loses (NIST Wampler, Filip, Longley; see the LRE table in
+ * test/host/nist.test.ts).
  *
- * Cost: about 2·n·k² flops and k²/2 passes over n doubles; memory one working copy of X.
+ * Rank: with unit columns, |R_jj| at the end is the length of the part of column j orthogonal to the
+ * earlier ones. Below RANK_TOL the column is taken as a linear combination of them and the fit is
+ * refused with the combination named; an ill-conditioned full-rank design (NIST Filip, smallest
+ * |R_jj| about 2e-9 after scaling) is solved.
+ *
+ * Cost: about 2·n·k² flops and one pass over the data (two when refinement is needed).
  */
 import { fail } from "./problems";
 
 /**
  * Relative length below which a column counts as a linear combination of the earlier ones. Exact
- * collinearity leaves about sqrt(n)·ε ≈ 1e-13 at n = 10^6; NIST Filip, the most ill-conditioned
- * full-rank design we accept, leaves about 4e-11 (measured in test/engine/leastSquares.test.ts).
+ * collinearity leaves about sqrt(n)·ε (≈ 1e-13 at n = 10^6); NIST Filip, the most ill-conditioned
+ * full-rank design we accept, leaves about 2e-9 (test/engine/leastSquares.test.ts measures both).
  */
-export const RANK_TOL = 1e-12;
+export const RANK_TOL = 1e-11;
+
+/** Rows per block: BLOCK_ROWS·(k+1) doubles stay in the processor's cache for k up to about 20. */
+export const BLOCK_ROWS = 256;
+
+/**
+ * When κ·max|c|/min|c| (κ the 1-norm condition estimate of the column-scaled design, c the scaled
+ * coefficients) exceeds this, some coefficient may have lost more than 4 of its 16 digits in one
+ * solve, and the solution is refined.
+ */
+export const REFINE_ABOVE = 1e4;
 
 export interface QrFit {
   n: number;
@@ -40,28 +57,120 @@ export interface QrFit {
   rss: number;
   /** 1-norm condition estimate of the column-scaled design. */
   condition: number;
+  /** Whether the solution was refined. */
+  refined: boolean;
 }
 
-function norm2(a: Float64Array, from: number): number {
+/** The first column that depends on earlier ones, and on which (empty: the column is all zeros). */
+export interface Dependency {
+  column: number;
+  on: number[];
+}
+
+function norm2(a: Float64Array): number {
   let s = 0;
-  for (let i = from; i < a.length; i++) s += a[i] * a[i];
+  for (let i = 0; i < a.length; i++) s += a[i] * a[i];
   if (s > 1e-280 && s < 1e280) return Math.sqrt(s);
-  // Rescale to avoid overflow or underflow.
-  let m = 0;
-  for (let i = from; i < a.length; i++) m = Math.max(m, Math.abs(a[i]));
+  let m = 0; // rescale to avoid overflow or underflow
+  for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs(a[i]));
   if (m === 0) return 0;
   let t = 0;
-  for (let i = from; i < a.length; i++) {
+  for (let i = 0; i < a.length; i++) {
     const v = a[i] / m;
     t += v * v;
   }
   return m * Math.sqrt(t);
 }
 
-/** The result of a rank check: the first column that depends on earlier ones, and on which. */
-export interface Dependency {
-  column: number;
-  on: number[];
+/**
+ * s0 + Σ_{i<m} C[a+i]·C[b+i], with four partial sums: it breaks the chain of dependent additions
+ * that otherwise bounds the speed of a dot product.
+ */
+function blockDot(C: Float64Array, a: number, b: number, m: number, s0: number): number {
+  let s1 = 0;
+  let s2 = 0;
+  let s3 = 0;
+  let i = 0;
+  for (; i + 3 < m; i += 4) {
+    s0 += C[a + i] * C[b + i];
+    s1 += C[a + i + 1] * C[b + i + 1];
+    s2 += C[a + i + 2] * C[b + i + 2];
+    s3 += C[a + i + 3] * C[b + i + 3];
+  }
+  for (; i < m; i++) s0 += C[a + i] * C[b + i];
+  return s0 + s1 + (s2 + s3);
+}
+
+/** C[b+i] −= w·C[a+i] for i < m. */
+function blockAxpy(C: Float64Array, a: number, b: number, m: number, w: number): void {
+  let i = 0;
+  for (; i + 3 < m; i += 4) {
+    C[b + i] -= w * C[a + i];
+    C[b + i + 1] -= w * C[a + i + 1];
+    C[b + i + 2] -= w * C[a + i + 2];
+    C[b + i + 3] -= w * C[a + i + 3];
+  }
+  for (; i < m; i++) C[b + i] -= w * C[a + i];
+}
+
+/** Reflectors of one block, kept only when the solution is to be refined. */
+interface BlockReflectors {
+  start: number;
+  rows: number;
+  tau: Float64Array;
+  /** k vectors of `rows` entries (the implicit leading 1 sits in the running triangle's row j). */
+  v: Float64Array;
+}
+
+/**
+ * Row-blocked Householder QR of the scaled design [X/scale | y].
+ * T (row-major (k+1)×(k+1)) receives R in its leading k×k block and Qᵀy in its column k.
+ */
+function blockedQr(X: Float64Array[], y: Float64Array, inv: Float64Array, keep: BlockReflectors[] | null): Float64Array {
+  const k = X.length;
+  const k1 = k + 1;
+  const n = y.length;
+  const B = BLOCK_ROWS;
+  const T = new Float64Array(k1 * k1);
+  const C = new Float64Array(k1 * B);
+  for (let start = 0; start < n; start += B) {
+    const m = Math.min(B, n - start);
+    for (let j = 0; j < k; j++) {
+      const src = X[j];
+      const s = inv[j];
+      const o = j * B;
+      for (let i = 0; i < m; i++) C[o + i] = src[start + i] * s;
+    }
+    const oy = k * B;
+    for (let i = 0; i < m; i++) C[oy + i] = y[start + i];
+    const tau = keep ? new Float64Array(k) : null;
+    for (let j = 0; j < k; j++) {
+      const oj = j * B;
+      const ss = blockDot(C, oj, oj, m, 0);
+      if (ss === 0) continue; // nothing below the diagonal to annihilate: the identity, tau = 0
+      const rjj = T[j * k1 + j];
+      const alpha = Math.sqrt(rjj * rjj + ss);
+      const beta = rjj >= 0 ? -alpha : alpha;
+      const v0 = rjj - beta;
+      const t = (beta - rjj) / beta;
+      const iv0 = 1 / v0;
+      for (let i = 0; i < m; i++) C[oj + i] *= iv0;
+      T[j * k1 + j] = beta;
+      if (tau) tau[j] = t;
+      for (let c = j + 1; c < k1; c++) {
+        const oc = c * B;
+        const w = t * blockDot(C, oj, oc, m, T[j * k1 + c]);
+        T[j * k1 + c] -= w;
+        blockAxpy(C, oj, oc, m, w);
+      }
+    }
+    if (keep && tau) {
+      const v = new Float64Array(k * m);
+      for (let j = 0; j < k; j++) for (let i = 0; i < m; i++) v[j * m + i] = C[j * B + i];
+      keep.push({ start, rows: m, tau, v });
+    }
+  }
+  return T;
 }
 
 /**
@@ -72,72 +181,61 @@ export interface Dependency {
  */
 export function leastSquares(X: Float64Array[], y: Float64Array, onDependent: (d: Dependency) => never): QrFit {
   const k = X.length;
+  const k1 = k + 1;
   const n = y.length;
   if (n <= k) fail(`${n} usable rows are too few for ${k} coefficients`);
   const scale = new Float64Array(k);
-  const A: Float64Array[] = new Array(k);
+  const inv = new Float64Array(k);
   for (let j = 0; j < k; j++) {
-    const s = norm2(X[j], 0);
+    const s = norm2(X[j]);
     if (s === 0) onDependent({ column: j, on: [] });
     scale[j] = s;
-    const a = new Float64Array(n);
-    const src = X[j];
-    const inv = 1 / s;
-    for (let i = 0; i < n; i++) a[i] = src[i] * inv;
-    A[j] = a;
+    inv[j] = 1 / s;
   }
-  const b = Float64Array.from(y);
+  let T = blockedQr(X, y, inv, null);
   const R = new Float64Array(k * k);
-  const tau = new Float64Array(k);
+  const readR = () => {
+    for (let i = 0; i < k; i++) for (let j = i; j < k; j++) R[i * k + j] = T[i * k1 + j];
+  };
+  readR();
   for (let j = 0; j < k; j++) {
-    const a = A[j];
-    const alpha = norm2(a, j);
-    if (alpha < RANK_TOL) onDependent({ column: j, on: dependencyOf(R, A, j, k) });
-    const ajj = a[j];
-    const beta = ajj >= 0 ? -alpha : alpha;
-    const v0 = ajj - beta;
-    const t = (beta - ajj) / beta;
-    tau[j] = t;
-    // v = a[j:] / v0 with v[j] = 1, stored below the diagonal
-    const iv0 = 1 / v0;
-    for (let i = j + 1; i < n; i++) a[i] *= iv0;
-    a[j] = beta;
-    R[j * k + j] = beta;
-    for (let c = j + 1; c <= k; c++) {
-      const col = c < k ? A[c] : b;
-      let w = col[j];
-      for (let i = j + 1; i < n; i++) w += a[i] * col[i];
-      w *= t;
-      col[j] -= w;
-      for (let i = j + 1; i < n; i++) col[i] -= w * a[i];
-      if (c < k) R[j * k + c] = col[j];
-    }
+    if (!(Math.abs(R[j * k + j]) >= RANK_TOL)) onDependent({ column: j, on: dependencyOf(R, k, j) });
   }
-  // Back substitution: R c = (Qᵀy)[0:k]
   const c = new Float64Array(k);
-  for (let i = k - 1; i >= 0; i--) {
-    let s = b[i];
-    for (let j = i + 1; j < k; j++) s -= R[i * k + j] * c[j];
-    c[i] = s / R[i * k + i];
-  }
-  const Rinv = upperInverse(R, k);
+  const backSolve = () => {
+    for (let i = k - 1; i >= 0; i--) {
+      let s = T[i * k1 + k];
+      for (let j = i + 1; j < k; j++) s -= R[i * k + j] * c[j];
+      c[i] = s / R[i * k + i];
+    }
+  };
+  backSolve();
+  let Rinv = upperInverse(R, k);
   const condition = conditionEstimate(R, Rinv, k);
-  const coef = new Float64Array(k);
-  for (let j = 0; j < k; j++) coef[j] = c[j] / scale[j];
-  let resid: Float64Array;
   let big = 0;
   let small = Infinity;
   for (let j = 0; j < k; j++) {
     big = Math.max(big, Math.abs(c[j]));
     small = Math.min(small, Math.abs(c[j]));
   }
-  // Predicted digits lost in the smallest coefficient: κ·max|c|/min|c| (normwise error bounds
-  // do not protect small components, as NIST Wampler's intercept shows).
-  if (condition * (big / small) > REFINE_ABOVE) {
-    resid = refine(X, y, A, tau, R, scale, c, coef);
+  const coef = new Float64Array(k);
+  let resid: Float64Array;
+  // Predicted digits lost in the smallest coefficient: κ·max|c|/min|c| (normwise error bounds do
+  // not protect small components, as NIST Wampler's intercept shows).
+  const refined = condition * (big / small) > REFINE_ABOVE;
+  if (refined) {
+    // Factor again keeping the reflectors (the same arithmetic, so the same R), then refine.
+    const blocks: BlockReflectors[] = [];
+    T = blockedQr(X, y, inv, blocks);
+    readR();
+    backSolve();
+    Rinv = upperInverse(R, k);
+    for (let j = 0; j < k; j++) coef[j] = c[j] / scale[j];
+    resid = refine(X, y, blocks, R, scale, c, coef);
   } else {
+    for (let j = 0; j < k; j++) coef[j] = c[j] / scale[j];
     resid = new Float64Array(n);
-    for (let i = 0; i < n; i++) resid[i] = y[i];
+    resid.set(y);
     for (let j = 0; j < k; j++) {
       const bj = coef[j];
       const xj = X[j];
@@ -151,15 +249,8 @@ export function leastSquares(X: Float64Array[], y: Float64Array, onDependent: (d
     fitted[i] = y[i] - e;
     rss += e * e;
   }
-  return { n, k, R, Rinv, scale, coef, resid, fitted, rss, condition };
+  return { n, k, R, Rinv, scale, coef, resid, fitted, rss, condition, refined };
 }
-
-/**
- * When κ·max|c|/min|c| (κ the 1-norm condition estimate of the column-scaled design, c the scaled
- * coefficients) exceeds this, some coefficient may have lost more than 4 of its 16 digits in one
- * solve, and the solution is refined.
- */
-export const REFINE_ABOVE = 1e4;
 
 /** κ₁(R) = ‖R‖₁‖R⁻¹‖₁ of the column-scaled design. */
 function conditionEstimate(R: Float64Array, Rinv: Float64Array, k: number): number {
@@ -190,7 +281,7 @@ function twoProdErr(a: number, b: number, p: number): number {
   return ((ah * bh - p) + ah * bl + al * bh) + al * bl;
 }
 
-/** y_i − r_i − Σ_j b_j x_ij for every row, accumulated in double-double. */
+/** out_i = y_i − r_i − Σ_j b_j x_ij for every row, accumulated in double-double. */
 function augmentedResidual(X: Float64Array[], y: Float64Array, r: Float64Array | null, coef: Float64Array, out: Float64Array): void {
   const n = y.length;
   const k = X.length;
@@ -216,7 +307,7 @@ function augmentedResidual(X: Float64Array[], y: Float64Array, r: Float64Array |
   }
 }
 
-/** Σ_i a_i b_i in double-double (Dot2). */
+/** Σ_i a_i b_i in double-double (Dot2 of Ogita, Rump and Oishi). */
 function dot2(a: Float64Array, b: Float64Array): number {
   let hi = 0;
   let lo = 0;
@@ -231,51 +322,60 @@ function dot2(a: Float64Array, b: Float64Array): number {
   return hi + lo;
 }
 
-/** Applies Qᵀ (forward = true) or Q to v in place, from the stored reflectors. */
-function applyQ(A: Float64Array[], tau: Float64Array, v: Float64Array, forward: boolean): void {
-  const k = A.length;
-  const n = v.length;
-  for (let s = 0; s < k; s++) {
-    const j = forward ? s : k - 1 - s;
-    const a = A[j];
-    let w = v[j];
-    for (let i = j + 1; i < n; i++) w += a[i] * v[i];
-    w *= tau[j];
-    v[j] -= w;
-    for (let i = j + 1; i < n; i++) v[i] -= w * a[i];
+/**
+ * Applies the orthogonal factor of the blocked QR to the (k + n)-vector [top; v]: Pᵀ (forward) or P.
+ * The blocked QR reduces [0; X] to [R; 0], so P acts on k leading "triangle" rows and the n data rows.
+ */
+function applyQ(blocks: BlockReflectors[], k: number, top: Float64Array, v: Float64Array, forward: boolean): void {
+  const nb = blocks.length;
+  for (let s = 0; s < nb; s++) {
+    const blk = blocks[forward ? s : nb - 1 - s];
+    const { start, rows: m, tau, v: V } = blk;
+    for (let q = 0; q < k; q++) {
+      const j = forward ? q : k - 1 - q;
+      const t = tau[j];
+      if (t === 0) continue;
+      const o = j * m;
+      let w = top[j];
+      for (let i = 0; i < m; i++) w += V[o + i] * v[start + i];
+      w *= t;
+      top[j] -= w;
+      for (let i = 0; i < m; i++) v[start + i] -= w * V[o + i];
+    }
   }
 }
 
 /**
  * Iterative refinement of the least squares solution through the augmented system
  * [I X; Xᵀ 0][r; c] = [y; 0] (Björck 1967, "Iterative refinement of linear least squares
- * solutions I", BIT 7), with its residuals in double-double and the corrections solved by the same
- * QR. It recovers the digits an ill-conditioned design (NIST Wampler, Filip) loses in one solve, also
- * when the residual is large. Updates c and coef in place; returns the residual vector.
+ * solutions I", BIT 7), with its residuals in double-double and the corrections solved with the same
+ * factorisation. It recovers the digits an ill-conditioned design loses in one solve, also when the
+ * residual is large. Updates c and coef in place; returns the residuals.
  */
-function refine(X: Float64Array[], y: Float64Array, A: Float64Array[], tau: Float64Array, R: Float64Array, scale: Float64Array, c: Float64Array, coef: Float64Array): Float64Array {
+function refine(X: Float64Array[], y: Float64Array, blocks: BlockReflectors[], R: Float64Array, scale: Float64Array, c: Float64Array, coef: Float64Array): Float64Array {
   const n = y.length;
   const k = X.length;
   const r = new Float64Array(n);
+  const rTop = new Float64Array(k); // the residual's part in the k leading rows (zero at the solution)
   augmentedResidual(X, y, null, coef, r); // r₀ = y − Xb
   const f = new Float64Array(n);
+  const fTop = new Float64Array(k);
   const g = new Float64Array(k);
+  const dc = new Float64Array(k);
   for (let iter = 0; iter < 4; iter++) {
     augmentedResidual(X, y, r, coef, f); // f = y − r − Xb
+    for (let j = 0; j < k; j++) fTop[j] = -rTop[j];
     for (let j = 0; j < k; j++) g[j] = -dot2(X[j], r) / scale[j]; // g = −X_sᵀ r
-    applyQ(A, tau, f, true); // f ← Qᵀf = [u1; u2]
-    // p1 = R⁻ᵀ g
+    applyQ(blocks, k, fTop, f, true); // [u1; u2] = Pᵀ f
     const p1 = Float64Array.from(g);
-    forwardSolveRt(R, k, p1);
-    const dc = new Float64Array(k);
+    forwardSolveRt(R, k, p1); // p1 = R⁻ᵀ g
     for (let i = k - 1; i >= 0; i--) {
-      let s = f[i] - p1[i];
+      let s = fTop[i] - p1[i];
       for (let j = i + 1; j < k; j++) s -= R[i * k + j] * dc[j];
       dc[i] = s / R[i * k + i];
     }
-    // dr = Q [p1; u2]
-    for (let j = 0; j < k; j++) f[j] = p1[j];
-    applyQ(A, tau, f, false);
+    fTop.set(p1);
+    applyQ(blocks, k, fTop, f, false); // dr = P [p1; u2]
     let change = 0;
     let size = 0;
     for (let j = 0; j < k; j++) {
@@ -283,12 +383,12 @@ function refine(X: Float64Array[], y: Float64Array, A: Float64Array[], tau: Floa
       coef[j] = c[j] / scale[j];
       change = Math.max(change, Math.abs(dc[j]));
       size = Math.max(size, Math.abs(c[j]));
+      rTop[j] += fTop[j];
     }
     for (let i = 0; i < n; i++) r[i] += f[i];
     if (change <= 4 * Number.EPSILON * size) break;
   }
-  // Final residuals recomputed from the refined coefficients, in double-double.
-  augmentedResidual(X, y, null, coef, r);
+  augmentedResidual(X, y, null, coef, r); // final residuals from the refined coefficients
   return r;
 }
 
@@ -307,14 +407,13 @@ export function upperInverse(R: Float64Array, k: number): Float64Array {
 }
 
 /**
- * Which earlier columns column j depends on: solve R[0:j,0:j] c = (Qᵀ a_j)[0:j] and keep the
- * coefficients that matter.
+ * Which earlier columns column j depends on: with unit columns, column j ≈ Σ_i c_i col_i where
+ * R[0:j,0:j] c = R[0:j, j]; keep the coefficients that matter.
  */
-function dependencyOf(R: Float64Array, A: Float64Array[], j: number, k: number): number[] {
-  const col = A[j];
+function dependencyOf(R: Float64Array, k: number, j: number): number[] {
   const c = new Float64Array(j);
   for (let i = j - 1; i >= 0; i--) {
-    let s = col[i];
+    let s = R[i * k + j];
     for (let m = i + 1; m < j; m++) s -= R[i * k + m] * c[m];
     c[i] = s / R[i * k + i];
   }
@@ -326,8 +425,8 @@ function dependencyOf(R: Float64Array, A: Float64Array[], j: number, k: number):
 }
 
 /**
- * Solves Rᵀ z = v in place for one row (forward substitution); R row-major upper k×k.
- * Used to map a design row into the orthonormal Q space: z = R⁻ᵀ x_i is row i of Q.
+ * Solves Rᵀ z = v in place (forward substitution); R row-major upper k×k.
+ * Maps a scaled design row into the orthonormal space: z = R⁻ᵀ x_i is row i of Q.
  */
 export function forwardSolveRt(R: Float64Array, k: number, v: Float64Array): void {
   for (let j = 0; j < k; j++) {

@@ -42,7 +42,7 @@ const ref = JSON.parse(
 };
 
 const TAIL_TOL = 1e-12;
-const QUANTILE_TOL = 1e-10;
+const QUANTILE_TOL = 1e-12;
 
 /** Relative error, with an absolute floor of 1e-300 for a reference of zero. */
 function relativeError(actual: number, expected: number): number {

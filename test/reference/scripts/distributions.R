@@ -87,6 +87,11 @@ f_df <- rbind(c(1, 1), c(1, 2), c(1, 10), c(2, 10), c(2, 1000), c(3, 30), c(4, 1
               c(10, 10), c(10, 1000), c(1, 1e6), c(20, 3), c(50, 50), c(3, 1e4), c(100, 200),
               c(2, 2), c(7, 40), c(2, 1e6), c(5, 1e5), c(30, 1e6), c(1, 3), c(3, 997))
 pf_tab <- do.call(rbind, lapply(seq_len(nrow(f_df)), function(i) data.frame(f = f_grid, d1 = f_df[i, 1], d2 = f_df[i, 2])))
+# even and odd d1 against a large d2 (the regression F test on many rows)
+pf_big_df <- expand.grid(d1 = c(2, 3, 4, 5, 6, 8, 9, 10, 11, 20, 21, 30, 40, 50, 61, 100, 1000), d2 = c(100, 500, 899, 999, 1000, 5000, 9999, 1e4, 99999, 1e5, 100001, 1e6, 1000001))
+pf_big <- do.call(rbind, lapply(seq_len(nrow(pf_big_df)), function(i)
+  data.frame(f = c(0.01, 0.2, 0.5, 0.9, 1, 1.1, 1.5, 2, 3, 5, 10, 20, 50, 100), d1 = pf_big_df$d1[i], d2 = pf_big_df$d2[i])))
+pf_tab <- rbind(pf_tab, pf_big)
 pf_tab$upper <- pf(pf_tab$f, pf_tab$d1, pf_tab$d2, lower.tail = FALSE)
 pf_tab$lower <- pf(pf_tab$f, pf_tab$d1, pf_tab$d2, lower.tail = TRUE)
 pf_tab <- pf_tab[keep_p(pf_tab$upper) & keep_p(pf_tab$lower), ]
@@ -97,6 +102,13 @@ x_df <- c(1, 2, 3, 4, 5, 7, 10, 20, 30, 50, 100, 200, 1000, 1e4)
 pc_tab <- expand.grid(x = x_grid, df = x_df)
 pc_tab$upper <- pchisq(pc_tab$x, pc_tab$df, lower.tail = FALSE)
 pc_tab$lower <- pchisq(pc_tab$x, pc_tab$df, lower.tail = TRUE)
+# large df around and beyond the centre (x / 2 > 1000 is a separate code path in some libraries)
+pc_big <- do.call(rbind, lapply(c(600, 1000, 2001, 2500, 5000, 1e4, 4e4, 1e5, 2e5), function(k)
+  data.frame(x = k * c(0.5, 0.7, 0.8, 0.9, 0.95, 0.99, 1, 1.01, 1.05, 1.1, 1.2, 1.5, 2, 3, 4), df = k)))
+pc_big <- rbind(pc_big, expand.grid(x = c(2001, 2100, 2500, 3000), df = c(300, 400, 500, 800, 1200)))
+pc_big$upper <- pchisq(pc_big$x, pc_big$df, lower.tail = FALSE)
+pc_big$lower <- pchisq(pc_big$x, pc_big$df, lower.tail = TRUE)
+pc_tab <- rbind(pc_tab, pc_big)
 pc_tab <- pc_tab[keep_p(pc_tab$upper) & keep_p(pc_tab$lower), ]
 
 # ---- normal tails ----------------------------------------------------------------------------
@@ -166,7 +178,7 @@ qt_tab$q <- mapply(function(q, p, df) refine_root(q, p,
   function(x) dt(x, df, log = TRUE)), qt_tab$r_q, qt_tab$p, qt_tab$df)
 qt_tab <- qt_tab[keep_q(qt_tab$q), c("p", "df", "q", "r_q")]
 
-qc_tab <- expand.grid(p = p_grid, df = c(1, 2, 3, 4, 5, 10, 20, 30, 100, 1000, 1e4))
+qc_tab <- expand.grid(p = p_grid, df = c(1, 2, 3, 4, 5, 10, 20, 30, 100, 1000, 2500, 1e4, 1e5))
 qc_tab$r_q <- qchisq(qc_tab$p, qc_tab$df)
 qc_tab$q <- mapply(function(q, p, df) refine_root(q, p,
   function(x, lo) pchisq(x, df, lower.tail = lo, log.p = TRUE),
@@ -174,7 +186,7 @@ qc_tab$q <- mapply(function(q, p, df) refine_root(q, p,
 qc_tab <- qc_tab[keep_q(qc_tab$q) & qc_tab$q > 0, c("p", "df", "q", "r_q")]
 
 qf_df <- rbind(c(1, 1), c(1, 10), c(2, 1000), c(3, 30), c(5, 5), c(10, 100), c(1, 1e6), c(20, 3),
-               c(4, 96), c(2, 2))
+               c(4, 96), c(2, 2), c(10, 1e5), c(4, 1e6), c(30, 1e6), c(9, 99991))
 qf_tab <- do.call(rbind, lapply(seq_len(nrow(qf_df)), function(i) data.frame(p = p_grid, d1 = qf_df[i, 1], d2 = qf_df[i, 2])))
 qf_tab$r_q <- qf(qf_tab$p, qf_tab$d1, qf_tab$d2)
 qf_tab$q <- mapply(function(q, p, d1, d2) refine_root(q, p,
