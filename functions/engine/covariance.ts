@@ -99,32 +99,45 @@ export function classicalCovariance(qr: QrFit): Float64Array {
 }
 
 /**
- * Heteroskedasticity-consistent covariance HC0–HC3.
- * @param X design columns; qr their factorisation; h leverages (needed for HC2, HC3)
+ * Heteroskedasticity-consistent covariance HC0–HC3, in one blocked pass over the rows.
+ * @param X design columns; qr their factorisation; h leverages when known (HC2 and HC3 compute
+ *   them in the same pass otherwise, and return them)
  * @param rowNumbers sheet rows, to name a row whose leverage is 1
  */
-export function hcCovariance(X: Float64Array[], qr: QrFit, type: "HC0" | "HC1" | "HC2" | "HC3", h: Float64Array, rowNumbers: Int32Array): Float64Array {
+export function hcCovariance(X: Float64Array[], qr: QrFit, type: "HC0" | "HC1" | "HC2" | "HC3", h: Float64Array | null, rowNumbers: Int32Array): { V: Float64Array; h: Float64Array | null } {
   const { n, k, resid } = qr;
-  if (type === "HC2" || type === "HC3") {
-    const ones: number[] = [];
-    for (let i = 0; i < n; i++) if (h[i] >= 1 - LEVERAGE_TOL) ones.push(rowNumbers[i]);
-    if (ones.length > 0) {
-      fail(`${rowsPhrase(ones)} alone ${ones.length === 1 ? "determines" : "determine"} a coefficient (leverage 1), so ${type} is undefined; use se=HC1 or se=HC0, or add rows`);
-    }
-  }
+  const needH = type === "HC2" || type === "HC3";
+  // Leverages are computed in the same pass when they are needed and not known yet.
+  const lev = needH ? h ?? new Float64Array(n) : null;
+  const fillH = needH && h === null;
   const M = new Float64Array(k * k);
   const Z = new Float64Array(k * BLOCK);
   const W = new Float64Array(k * BLOCK);
   const w = new Float64Array(BLOCK);
   const inv = Float64Array.from(qr.scale, (s) => 1 / s);
   const hc1 = n / (n - k);
+  const ones: number[] = [];
   for (let start = 0; start < n; start += BLOCK) {
     const m = Math.min(BLOCK, n - start);
     qRows(X, qr, inv, start, m, Z);
+    if (fillH && lev) {
+      for (let j = 0; j < k; j++) {
+        const o = j * BLOCK;
+        for (let i = 0; i < m; i++) lev[start + i] += Z[o + i] * Z[o + i];
+      }
+    }
     for (let i = 0; i < m; i++) {
       const e = resid[start + i];
-      const hi = type === "HC2" || type === "HC3" ? h[start + i] : 0;
-      w[i] = type === "HC0" ? e * e : type === "HC1" ? e * e * hc1 : type === "HC2" ? (e * e) / (1 - hi) : (e * e) / ((1 - hi) * (1 - hi));
+      const e2 = e * e;
+      if (type === "HC0") w[i] = e2;
+      else if (type === "HC1") w[i] = e2 * hc1;
+      else {
+        const hi = (lev as Float64Array)[start + i];
+        if (hi >= 1 - LEVERAGE_TOL) {
+          ones.push(rowNumbers[start + i]);
+          w[i] = 0;
+        } else w[i] = type === "HC2" ? e2 / (1 - hi) : e2 / ((1 - hi) * (1 - hi));
+      }
     }
     for (let a = 0; a < k; a++) {
       const o = a * BLOCK;
@@ -134,8 +147,11 @@ export function hcCovariance(X: Float64Array[], qr: QrFit, type: "HC0" | "HC1" |
       for (let b = a; b < k; b++) M[a * k + b] += dotBlock(W, a * BLOCK, Z, b * BLOCK, m);
     }
   }
+  if (ones.length > 0) {
+    fail(`${rowsPhrase(ones)} alone ${ones.length === 1 ? "determines" : "determine"} a coefficient (leverage 1), so ${type} is undefined; use se=HC1 or se=HC0, or add rows`);
+  }
   for (let a = 0; a < k; a++) for (let b = 0; b < a; b++) M[a * k + b] = M[b * k + a];
-  return sandwich(qr, M);
+  return { V: sandwich(qr, M), h: lev };
 }
 
 /** Σ_{i<m} A[a+i]·B[b+i] with four partial sums. */

@@ -106,7 +106,11 @@ export class OlsFit {
       let V: Float64Array;
       if (type === "classical") V = classicalCovariance(this.qr);
       else if (type === "HAC") V = hacCovariance(this.design, this.qr, L);
-      else V = hcCovariance(this.design, this.qr, type, type === "HC2" || type === "HC3" ? this.leverage() : new Float64Array(0), this.data.rowNumbers);
+      else {
+        const r = hcCovariance(this.design, this.qr, type, this.leverageCache, this.data.rowNumbers);
+        if (r.h) this.leverageCache = r.h;
+        V = r.V;
+      }
       c = { type, V, lags: type === "HAC" ? L : undefined, label: type === "HAC" ? `HAC, ${L} lag${L === 1 ? "" : "s"}` : type };
       this.covCache.set(key, c);
     }

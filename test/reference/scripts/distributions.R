@@ -39,6 +39,7 @@ json_str <- function(s) {
 to_json <- function(v, indent = "") {
   inner <- paste0(indent, "  ")
   if (is.null(v)) return("null")
+  if (!is.list(v) && length(v) == 0) return("[]")
   if (is.list(v)) {
     if (length(v) == 0) return(if (is.null(names(v))) "[]" else "{}")
     parts <- vapply(v, to_json, "", indent = inner)
