@@ -247,13 +247,20 @@ const median = (a) => {
 };
 const now = () => Number(process.hrtime.bigint()) / 1e6; // ms
 
-/** Runs prepare() untimed, then body(prepared) timed, `runs` times; returns ms per run and the last value. */
-async function timeRuns(runs, prepare, body, warmup = 0) {
+/**
+ * Runs prepare() untimed, then body(prepared) timed, `runs` times; returns ms per run and the last
+ * value. A full collection (global.gc()) runs once before the first run and, with gcEach, before
+ * every run: that keeps the garbage of 10^6-row runs out of the next timing, but costs a call on
+ * small inputs a few milliseconds afterwards (measured: a 10^4-row cache hit takes 0.6 ms without a
+ * preceding gc and 6 ms with one), so small cases do not use it.
+ */
+async function timeRuns(runs, prepare, body, warmup = 0, gcEach = false) {
   const times = [];
   let last;
+  global.gc();
   for (let r = 0; r < warmup + runs; r++) {
     const p = prepare(r);
-    global.gc();
+    if (gcEach) global.gc();
     const t0 = now();
     const v = await settle(body(p));
     const t1 = now();
@@ -445,7 +452,7 @@ for (const { n, k } of SIZES) {
     async run() {
       const d = data(key, make);
       let lastInputs = null;
-      const t = await timeRuns(runsFor(n), () => (lastInputs = fresh(d)), (p) => invoke("FIT", p.yRows, p.xRows, FIT_OPTIONS), warmFor(n));
+      const t = await timeRuns(runsFor(n), () => (lastInputs = fresh(d)), (p) => invoke("FIT", p.yRows, p.xRows, FIT_OPTIONS), warmFor(n), n >= 1e6);
       store[`fit ${key}`] = { median: t.median, table: t.last, inputs: lastInputs };
       results.push([`ELX.FIT log-log HC3`, key, fmtMs(t.median), `${t.times.length} runs: ${t.times.map(fmtMs).join(", ")}`]);
     },
@@ -457,7 +464,7 @@ for (const { n, k } of SIZES) {
       const prev = store[`fit ${key}`];
       if (!prev) return;
       const t = await timeRuns(3, () => ({ yRows: deepCopy(prev.inputs.yRows), xRows: deepCopy(prev.inputs.xRows) }),
-        (p) => invoke("FIT", p.yRows, p.xRows, FIT_OPTIONS));
+        (p) => invoke("FIT", p.yRows, p.xRows, FIT_OPTIONS), 0, n >= 1e6);
       const same = JSON.stringify(t.last) === JSON.stringify(prev.table);
       const share = (100 * t.median) / prev.median;
       store[`cache ${key}`] = share;
@@ -471,7 +478,7 @@ for (const { n, k } of SIZES) {
     async run() {
       const d = data(key, make);
       const id = CONVERT_ID || "ZEROS";
-      const t = await timeRuns(runsFor(n), () => fresh(d), (p) => (CONVERT_ID ? invoke(id, p.yRows, p.xRows) : invoke(id, p.xRows)), warmFor(n));
+      const t = await timeRuns(runsFor(n), () => fresh(d), (p) => (CONVERT_ID ? invoke(id, p.yRows, p.xRows) : invoke(id, p.xRows)), warmFor(n), n >= 1e6);
       store[`convert ${key}`] = t.median;
       const fitMs = store[`fit ${key}`] && store[`fit ${key}`].median;
       results.push([CONVERT_ID ? `conversion (ELX.${id})` : `conversion ~ ELX.ZEROS(x)`, key, fmtMs(t.median),
@@ -618,7 +625,7 @@ async function main() {
   out(`bundle: ${path.relative(ROOT, BUNDLE)}; registered: ${[...registry.keys()].sort().join(", ")}`);
   out(`missing (cases skipped): ${KNOWN_IDS.filter((id) => !registry.has(id)).join(", ") || "none"}`);
   out(`R: ${HAVE_R ? spawnSync("Rscript", ["--version"], { encoding: "utf8" }).stderr.trim().split("\n")[0] || "Rscript found" : USE_R ? "Rscript not on PATH: no comparison" : "skipped (--no-r)"}`);
-  out(`FIT options "${FIT_OPTIONS}"; medians over 5 runs (3 for 10^6 rows), one untimed warm-up below 10^6; data as the host's row arrays`);
+  out(`FIT options "${FIT_OPTIONS}"; medians over 5 runs (3 for 10^6 rows), one untimed warm-up below 10^6, gc before each 10^6 run; data as the host's row arrays`);
   // JIT warm-up: the engine's code needs a handful of calls before it runs at speed (measured: the
   // first five FIT calls on 10^4 rows take 2-6x longer than the later ones). Medians below are for
   // warmed code; a cold first call in a fresh host is slower.

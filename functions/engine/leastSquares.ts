@@ -18,7 +18,7 @@
  * Rank: with unit columns, |R_jj| at the end is the length of the part of column j orthogonal to the
  * earlier ones. Below RANK_TOL the column is taken as a linear combination of them and the fit is
  * refused with the combination named; an ill-conditioned full-rank design (NIST Filip, smallest
- * |R_jj| about 2e-9 after scaling) is solved.
+ * |R_jj| about 5e-8 after scaling) is solved.
  *
  * Cost: about 2·n·k² flops and one pass over the data (two when refinement is needed).
  */
@@ -27,7 +27,7 @@ import { fail } from "./problems";
 /**
  * Relative length below which a column counts as a linear combination of the earlier ones. Exact
  * collinearity leaves about sqrt(n)·ε (≈ 1e-13 at n = 10^6); NIST Filip, the most ill-conditioned
- * full-rank design we accept, leaves about 2e-9 (test/engine/leastSquares.test.ts measures both).
+ * full-rank design we accept, leaves about 5e-8 (test/engine/leastSquares.test.ts measures it).
  */
 export const RANK_TOL = 1e-11;
 
