@@ -8,6 +8,7 @@
  * reports name sheet rows; that needs matrix results, so single numbers come back as 1×1 tables.
  */
 import { effectsTable, elasticitiesTable, elasticityValue, fitTable, summaryTable, zerosTable } from "./cells/regression";
+import { formCheckTable, heteroValue, normalValue, predictTable, smearingValue, testsTable } from "./cells/diagnostics";
 
 /**
  * Fits a log model by least squares and returns the coefficient table: Term, Transform, Coefficient, Std. error (its type in the header), t, p-value and the interval. Default form log-log, HC3 errors.
@@ -84,4 +85,84 @@ export function summary(y: any[][], x: any[][], options?: string, invocation?: C
  */
 export function zeros(range: any[][], options?: string): any[][] {
   return zerosTable(range, options);
+}
+
+/**
+ * The factor that turns exp(fitted log y) into a prediction of the mean of y: Duan's smearing factor (mean of exp of the residuals) or, with retransform=normal, e^(s²/2).
+ * @customfunction SMEARING
+ * @param y Dependent variable: one column.
+ * @param x Regressors: one or more columns, same rows as y.
+ * @param [options] Text like "retransform=duan". Keys: form, levels, zeros, shift, retransform, intercept.
+ * @requiresParameterAddresses
+ * @returns The retransformation factor.
+ */
+export function smearing(y: any[][], x: any[][], options?: string, invocation?: CustomFunctions.Invocation): any[][] {
+  return smearingValue(y, x, options, invocation);
+}
+
+/**
+ * Predicts y in its original units for new rows of x, retransformed to the mean (Duan by default); with interval=mean or individual also Lower and Upper.
+ * @customfunction PREDICT
+ * @param y Dependent variable: one column.
+ * @param x Regressors: one or more columns, same rows as y.
+ * @param new_x New rows with the same columns as x (a header row matches columns by name).
+ * @param [options] Text like "retransform=duan; interval=individual; level=0.9". Keys: form, levels, se, zeros, shift, retransform, interval, level, intercept, headers.
+ * @requiresParameterAddresses
+ * @returns One prediction per row of new_x.
+ */
+export function predict(y: any[][], x: any[][], new_x: any[][], options?: string, invocation?: CustomFunctions.Invocation): any[][] {
+  return predictTable(y, x, new_x, options, invocation);
+}
+
+/**
+ * p-value of a test of constant error spread: bp (studentized Breusch–Pagan, default), bp-original, white (squares and cross-products) or white-special (fitted and fitted²).
+ * @customfunction HETEROTEST
+ * @param y Dependent variable: one column.
+ * @param x Regressors: one or more columns, same rows as y.
+ * @param [test] One of bp, bp-original, white, white-special.
+ * @param [options] Text like "form=log-log". Keys: form, levels, zeros, shift, intercept.
+ * @requiresParameterAddresses
+ * @returns The p-value.
+ */
+export function heterotest(y: any[][], x: any[][], test?: string, options?: string, invocation?: CustomFunctions.Invocation): any[][] {
+  return heteroValue(y, x, test, options, invocation);
+}
+
+/**
+ * p-value of the Jarque–Bera test that the residuals are normal (skewness 0, kurtosis 3).
+ * @customfunction NORMALTEST
+ * @param y Dependent variable: one column.
+ * @param x Regressors: one or more columns, same rows as y.
+ * @param [options] Text like "form=log-log". Keys: form, levels, zeros, shift, intercept.
+ * @requiresParameterAddresses
+ * @returns The p-value.
+ */
+export function normaltest(y: any[][], x: any[][], options?: string, invocation?: CustomFunctions.Invocation): any[][] {
+  return normalValue(y, x, options, invocation);
+}
+
+/**
+ * Table of specification tests: both Breusch–Pagan forms, White, White special, Jarque–Bera and RESET, with statistic, df, p-value and a plain reading at 5%.
+ * @customfunction TESTS
+ * @param y Dependent variable: one column.
+ * @param x Regressors: one or more columns, same rows as y.
+ * @param [options] Text like "form=log-level". Keys: form, levels, zeros, shift, intercept, headers.
+ * @requiresParameterAddresses
+ * @returns The test table.
+ */
+export function tests(y: any[][], x: any[][], options?: string, invocation?: CustomFunctions.Invocation): any[][] {
+  return testsTable(y, x, options, invocation);
+}
+
+/**
+ * Logs or levels for y, with the same x side: Box–Cox λ with its interval and p-values of λ = 0 and 1, the PE test both ways, residual checks side by side, and a one-line reading.
+ * @customfunction FORMCHECK
+ * @param y Dependent variable: one column, above zero.
+ * @param x Regressors: one or more columns, same rows as y.
+ * @param [options] Text like "form=log-log; level=0.95". The x side of form is used. Keys: form, levels, se, level, zeros, intercept, headers.
+ * @requiresParameterAddresses
+ * @returns The comparison table.
+ */
+export function formcheck(y: any[][], x: any[][], options?: string, invocation?: CustomFunctions.Invocation): any[][] {
+  return formCheckTable(y, x, options, invocation);
 }

@@ -4,7 +4,9 @@
  */
 import { getFit } from "../engine/model";
 import { seTypeOf, type Options } from "../engine/options";
-import { fail, unavailable } from "../engine/problems";
+import { ElxProblem, fail, unavailable } from "../engine/problems";
+import { retransformFactor } from "../engine/retransform";
+import { conditionNumber, varianceInflation } from "../engine/collinearity";
 import { resolveColumn } from "../engine/transforms";
 import { elasticity, percentEffect } from "../engine/elasticity";
 import { readRange, asMatrix, CellIssue } from "../engine/intake";
@@ -97,6 +99,39 @@ export function effectsTable(y: unknown, x: unknown, opts: unknown, invocation: 
   });
 }
 
+function safe(compute: () => Cell): Cell {
+  try {
+    return compute();
+  } catch (e) {
+    if (e instanceof ElxProblem) return hostError(e.kind, e.message);
+    throw e;
+  }
+}
+
+function retransformRows(fit: OlsFit): [string, Cell][] {
+  if (fit.data.yTransform.kind === "level") {
+    const why = "y is in levels: predictions need no retransformation factor";
+    return [["Smearing factor (Duan)", hostError("na", why)], ["Normal-theory factor", hostError("na", why)]];
+  }
+  return [
+    ["Smearing factor (Duan)", safe(() => num(retransformFactor(fit, "duan")))],
+    ["Normal-theory factor", safe(() => num(retransformFactor(fit, "normal")))],
+  ];
+}
+
+function collinearityRows(fit: OlsFit): [string, Cell][] {
+  const vif = varianceInflation(fit);
+  const rows: [string, Cell][] = [];
+  if (vif === null) {
+    rows.push(["Largest VIF", hostError("na", "VIFs are defined for a model with an intercept (intercept=true)")]);
+  } else {
+    rows.push(["Largest VIF", num(Math.max(...vif))]);
+    vif.forEach((v, j) => rows.push([`VIF: ${fit.data.xNames[j]}`, num(v)]));
+  }
+  rows.push(["Condition number", safe(() => num(conditionNumber(fit)))]);
+  return rows;
+}
+
 const CAUTION = "Associations, not causes: prices often respond to demand, and results depend on the sample and data quality; decisions stay with the analyst and their organisation's review.";
 
 export function summaryTable(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
@@ -105,15 +140,17 @@ export function summaryTable(y: unknown, x: unknown, opts: unknown, invocation: 
     const fit = fitFor(y, x, o, invocation);
     const s = fit.statistics();
     const cov = fit.covariance(seTypeOf(o), o.lags);
-    const scale = fit.data.yTransform.kind === "level" ? "" : ` (scale of ${fit.data.yTransform.kind === "log" ? "log y" : "transformed y"})`;
+    const g = fit.data.yTransform;
+    const scale = g.kind === "level" ? "y" : g.kind === "log" ? "log y" : g.kind === "shift" ? `log(y+${g.c})` : "asinh(y)";
     const noF = "no regressor besides the intercept, or an exact fit: the F test is undefined";
     const rows: [string, Cell][] = [
       ["Form", `${o.form}${fit.intercept ? "" : ", no intercept"}`],
       ["Std. errors", cov.label],
+      ["Fit statistics on the scale of", scale],
       ["Observations used", fit.n],
       ["Rows left out: blank or non-numeric", fit.data.leftOutBlank],
       ["Rows left out: zero or negative under a log", fit.data.leftOutNonPositive],
-      ["R²" + scale, num(s.rSquared, "R² is undefined: y does not vary")],
+      ["R²", num(s.rSquared, "R² is undefined: y does not vary")],
       ["Adjusted R²", num(s.adjRSquared, "adjusted R² is undefined: y does not vary")],
       ["Residual std. error", num(s.sigma)],
       ["F statistic", s.fStatistic === null ? hostError("na", noF) : num(s.fStatistic)],
@@ -121,6 +158,8 @@ export function summaryTable(y: unknown, x: unknown, opts: unknown, invocation: 
       ["Log-likelihood", num(s.logLik, "the log-likelihood is unbounded for an exact fit")],
       ["AIC", num(s.aic, "AIC is undefined for an exact fit")],
       ["BIC", num(s.bic, "BIC is undefined for an exact fit")],
+      ...retransformRows(fit),
+      ...collinearityRows(fit),
       ["Caution", CAUTION],
     ];
     return table(["Statistic", "Value"], rows, o);

@@ -9,7 +9,10 @@
  * are then refined by Newton's method on the log of our own tail probability (in log x, kept inside
  * a bracket), because those packages alone lose digits far out and for large df (stdlib's
  * chi-square quantile is 5e-4 off at 10,000 df; its normal quantile is −∞ below p ≈ 1e-16): a
- * quantile is then as accurate as the tail function it inverts. Measured accuracy against R 4.x
+ * quantile is then as accurate as the tail function it inverts (near p = ½ the t and normal
+ * quantiles invert the central probability P(0 < T < t) instead, whose tiny values keep their
+ * digits). Two regions of stdlib's incomplete gamma and beta are routed around (regularizedGamma,
+ * fisherTailsWholeA, with the numbers that made it necessary). Measured accuracy against R 4.x
  * (pt, pf, pchisq, pnorm, qt, qnorm, qchisq, qf) is in test/engine/distributions.test.ts; the
  * reasons for the choice are in DEVELOPERS.md.
  *
@@ -61,7 +64,8 @@ function logGamma(x: number): number {
  * exponentials of x, where this step is nearly exact), the step applied as x·e^Δ so that x keeps
  * its full precision, and a bracket (geometric bisection) whenever a step would leave it.
  * logDensity enters only the step size. `increasing`: tail grows with x (a lower tail).
- * Returns the iterate whose tail is closest to target in relative terms.
+ * Returns the iterate whose tail is closest to target in relative terms (∞ or 0 when the root lies
+ * beyond the doubles).
  */
 function solveTail(
   target: number,
@@ -106,6 +110,9 @@ function solveTail(
     }
     x = next;
   }
+  // a root beyond the largest double, or below the smallest, is reported as ∞ or 0
+  if (best >= Number.MAX_VALUE) return Infinity;
+  if (best <= Number.MIN_VALUE) return 0;
   return best;
 }
 
@@ -155,7 +162,12 @@ export function normalQuantile(p: number): number {
   if (p === 0.5) return 0;
   const small = p < 0.5 ? p : 1 - p; // 1 − p is exact for p ≥ ½
   const start = startingValue(-normalQuantileLib(small, 0, 1), () => Math.sqrt(-2 * Math.log(small)));
-  const z = solveTail(small, normalSf, (v) => -0.5 * v * v - LN_SQRT_2PI, false, start);
+  const logDensity = (v: number) => -0.5 * v * v - LN_SQRT_2PI;
+  const centre = Math.abs(p - 0.5); // exact for ¼ ≤ p ≤ ¾
+  // near the centre, solve P(0 < Z < z) = |p − ½| = ½·P(χ²₁ ≤ z²) (keeps tiny z exact)
+  const z = centre < 0.25
+    ? solveTail(centre, (v) => 0.5 * gammainc((v * v) / 2, 0.5, true, false), logDensity, true, start)
+    : solveTail(small, normalSf, logDensity, false, start);
   return p < 0.5 ? -z : z;
 }
 
@@ -198,7 +210,11 @@ export function studentQuantile(p: number, df: number): number {
   const logConstant = logGamma((df + 1) / 2) - logGamma(df / 2) - 0.5 * Math.log(df * Math.PI);
   const logDensity = (v: number) =>
     logConstant - ((df + 1) / 2) * (v > 1e150 ? 2 * Math.log(v) - Math.log(df) : Math.log1p((v * v) / df));
-  const t = solveTail(small, (v) => studentSf(v, df), logDensity, false, start);
+  const centre = Math.abs(p - 0.5); // exact for ¼ ≤ p ≤ ¾
+  // near the centre, solve P(0 < T < t) = |p − ½| = ½·I_{t²/(df+t²)}(½, df/2) (keeps tiny t exact)
+  const t = centre < 0.25
+    ? solveTail(centre, (v) => 0.5 * betainc((v * v) / (df + v * v), 0.5, df / 2, true, false), logDensity, true, start)
+    : solveTail(small, (v) => studentSf(v, df), logDensity, false, start);
   return p < 0.5 ? -t : t;
 }
 
@@ -281,10 +297,11 @@ export function chiSquareQuantile(p: number, df: number): number {
  * terms of j ≥ a add up to I_x(a, b) = P(F ≤ f). All terms are positive; log y is taken as
  * −log1p(d1·f/d2), and the terms are scaled by the largest one (found by a compensated sum of
  * their logs), so nothing cancels, overflows or underflows early.
- * Why: stdlib's betainc loses about b·ε relative for a whole-number a ≥ 2 and large b (2e-11 at
- * F(30, 1e6), 8e-11 at F(10, 1000001); 0 instead of 6.8e-297 at f = 50 on (30, 1e6)), while this
- * sum stays within 2e-13 (measured against R for d1 ≤ 1000, d2 ≥ 100). Used for 2 ≤ a ≤ 500 and
- * d2 ≥ 100 (at most a terms for P(F > f)).
+ * Why: stdlib's betainc loses digits for a whole-number a ≥ 2 (d1 even, from 4) once b is large,
+ * measured against R's pf: 2e-11 at F(30, 1e6), 8e-11 at F(10, 1000001), 2e-10 at F(30, 999),
+ * 1e-10 at F(6..30, 901), 4e-5 at F(50, 99999), and 0 instead of 6.8e-297 at f = 50 on (30, 1e6);
+ * odd d1 was not affected. This sum stays within 2e-13 of R for d1 ≤ 1000, d2 ≥ 100. Used for
+ * 2 ≤ a ≤ 500 and d2 ≥ 100 (at most a terms for P(F > f)).
  */
 function fisherTailsWholeA(f: number, d1: number, d2: number): { sf: number; cdf: number } {
   const a = d1 / 2;

@@ -48,6 +48,7 @@ export class OlsFit {
   private readonly covCache = new Map<string, Covariance>();
   private medianCache = new Map<number, number>();
   private statsCache: FitStatistics | null = null;
+  private readonly memos = new Map<string, unknown>();
 
   constructor(data: Dataset, intercept: boolean) {
     this.data = data;
@@ -179,6 +180,14 @@ export class OlsFit {
     const bic = -2 * logLik + (k + 1) * Math.log(n);
     this.statsCache = { rSquared, adjRSquared, sigma, fStatistic, fDf1: dfModel, fDf2: this.dfResid, fPValue, logLik, aic, bic };
     return this.statsCache;
+  }
+
+  /** A derived result computed once per fit (tests, factors, collinearity). */
+  memo<T>(key: string, compute: () => T): T {
+    if (this.memos.has(key)) return this.memos.get(key) as T;
+    const v = compute();
+    this.memos.set(key, v);
+    return v;
   }
 
   termLabel(t: Term): string {

@@ -4,7 +4,7 @@
 import { BoundedCache, hashCells, type Sized } from "./cache";
 import { readYX, type Origin } from "./intake";
 import { modelKey, type Options } from "./options";
-import { ElxProblem } from "./problems";
+import { ElxProblem, fail } from "./problems";
 import { prepare } from "./transforms";
 import { OlsFit } from "./fit";
 
@@ -32,6 +32,7 @@ function keyOf(input: ModelInput): string {
 
 /** Fits without the cache (for tests and for callers that build their own data). */
 export function fitUncached(input: ModelInput): OlsFit {
+  if (input.options.estimator === "ppml") fail("estimator=ppml is not available in this version yet; use estimator=ols with zeros=drop, zeros=shift or zeros=ihs");
   const raw = readYX(input.y, input.x, input.yOrigin, input.xOrigin);
   const data = prepare(raw, input.options);
   return new OlsFit(data, input.options.intercept);

@@ -119,7 +119,7 @@ function inputs(c: CaseRef): { y: unknown[][]; x: unknown[][] } {
 }
 
 function seLabel(se: string, f: FormRef): string {
-  return se === "HAC" ? `HAC (${f.hac_lag} lags)` : se;
+  return se === "HAC" ? `HAC, ${f.hac_lag} lag${f.hac_lag === 1 ? "" : "s"}` : se;
 }
 
 let reg: Map<string, CellFn>;

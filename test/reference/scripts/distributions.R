@@ -136,14 +136,32 @@ pn_tab <- pn_tab[keep_p(pn_tab$upper) & keep_p(pn_tab$lower), ]
 # 1e-14 relative in the regions used (checked independently), and a quantile's relative error is
 # that divided by |q f(q) / F(q)|. The unrefined R value is kept beside it as "r_q".
 p_grid <- c(1e-300, 1e-200, 1e-100, 1e-50, 1e-20, 1e-10, 1e-6, 1e-4, 1e-3, 0.005, 0.01, 0.025, 0.05,
-            0.1, 0.25, 0.5, 0.6, 0.75, 0.8, 0.9, 0.95, 0.975, 0.99, 0.995, 0.999, 0.9995, 0.999999)
+            0.1, 0.25, 0.4, 0.5 - 1e-12, 0.5, 0.5 + 2^-53, 0.5 + 1e-12, 0.6, 0.75, 0.8, 0.9, 0.95,
+            0.975, 0.99, 0.995, 0.999, 0.9995, 0.999999)
 keep_q <- function(q) is.finite(q) & (q == 0 | abs(q) >= TINY) & abs(q) < 1e300
 
-# Newton on the log tail probability; log_tail(q, lower) and log_dens(q) are R's functions
-refine_root <- function(q, p, log_tail, log_dens, positive = FALSE, max_it = 60) {
+# Newton on the log tail probability; log_tail(q, lower) and log_dens(q) are R's functions.
+# With log_central given (normal and t) and |p - 1/2| < 1/4, the root is found on the central
+# probability P(0 < X < |q|) = |p - 1/2| instead (p - 1/2 is exact there), because the tails near
+# 1/2 carry only absolute precision and would leave a tiny quantile with few correct digits:
+# log_central(q) = log(pchisq(q^2, 1) / 2) for the normal, log(pbeta(q^2 / (df + q^2), 1/2, df/2) / 2)
+# for t.
+refine_root <- function(q, p, log_tail, log_dens, positive = FALSE, max_it = 60, log_central = NULL,
+                        central_target = NULL) {
   if (!is.finite(q)) return(q)
+  if (!is.null(log_central) && abs(p - 0.5) < 0.25) {
+    if (p == 0.5) return(0)
+    s <- sign(p - 0.5)
+    r <- refine_root(abs(q), 0.5 - abs(p - 0.5), function(x, lo) log_central(x), log_dens,
+                     positive = TRUE, max_it = max_it, central_target = log(abs(p - 0.5)))
+    return(s * r)
+  }
   lower <- p <= 0.5
   target <- if (lower) log(p) else log1p(-p)
+  if (!is.null(central_target)) {
+    lower <- TRUE # the central probability rises with q
+    target <- central_target
+  }
   best <- q
   best_g <- Inf
   for (it in seq_len(max_it)) {
@@ -169,14 +187,16 @@ qn_tab <- data.frame(p = p_grid)
 qn_tab$r_q <- qnorm(p_grid)
 qn_tab$q <- mapply(function(q, p) refine_root(q, p,
   function(x, lo) pnorm(x, lower.tail = lo, log.p = TRUE),
-  function(x) dnorm(x, log = TRUE)), qn_tab$r_q, qn_tab$p)
+  function(x) dnorm(x, log = TRUE),
+  log_central = function(x) log(pchisq(x^2, 1) / 2)), qn_tab$r_q, qn_tab$p)
 qn_tab <- qn_tab[keep_q(qn_tab$q), c("p", "q", "r_q")]
 
 qt_tab <- expand.grid(p = p_grid, df = c(1, 2, 3, 4, 5, 10, 20, 30, 100, 1000, 1e4, 1e6, 2.5))
 qt_tab$r_q <- qt(qt_tab$p, qt_tab$df)
 qt_tab$q <- mapply(function(q, p, df) refine_root(q, p,
   function(x, lo) pt(x, df, lower.tail = lo, log.p = TRUE),
-  function(x) dt(x, df, log = TRUE)), qt_tab$r_q, qt_tab$p, qt_tab$df)
+  function(x) dt(x, df, log = TRUE),
+  log_central = function(x) log(pbeta(x^2 / (df + x^2), 0.5, df / 2) / 2)), qt_tab$r_q, qt_tab$p, qt_tab$df)
 qt_tab <- qt_tab[keep_q(qt_tab$q), c("p", "df", "q", "r_q")]
 
 qc_tab <- expand.grid(p = p_grid, df = c(1, 2, 3, 4, 5, 10, 20, 30, 100, 1000, 2500, 1e4, 1e5))

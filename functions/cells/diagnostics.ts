@@ -1,0 +1,203 @@
+/**
+ * Cell functions that read a fit back in the original units and test what the logs were taken for:
+ * SMEARING, PREDICT, HETEROTEST, NORMALTEST, TESTS, FORMCHECK.
+ */
+import { getFit } from "../engine/model";
+import { seTypeOf, type Form } from "../engine/options";
+import { fail, nearest, ElxProblem } from "../engine/problems";
+import { asMatrix, originOf } from "../engine/intake";
+import { apply } from "../engine/transforms";
+import { predictRow, retransformFactor } from "../engine/retransform";
+import { heteroTest, jarqueBera, moments, reset, breuschPaganKoenker, breuschPaganOriginal, white, whiteSpecial, type HeteroTest, type TestResult } from "../engine/specTests";
+import { boxCox, peTest, readEvidence } from "../engine/formCheck";
+import type { OlsFit } from "../engine/fit";
+import { fitFor } from "./regression";
+import { guarded, hostError, levelLabel, num, options, originsOf, table, toHostError, type Cell, type Table } from "./host";
+
+export function smearingValue(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
+  return guarded(() => {
+    const o = options(opts);
+    const fit = fitFor(y, x, o, invocation);
+    if (o.retransform === "none") fail("retransform=none asks for no factor; use retransform=duan (default) or retransform=normal");
+    return [[num(retransformFactor(fit, o.retransform))]];
+  });
+}
+
+/** The transformed design row for one row of new_x, or a problem naming that row. */
+function designRow(fit: OlsFit, values: unknown[], map: number[], rowLabel: string): Float64Array {
+  const k = fit.k;
+  const x0 = new Float64Array(k);
+  let j0 = 0;
+  if (fit.intercept) {
+    x0[0] = 1;
+    j0 = 1;
+  }
+  fit.data.xNames.forEach((name, j) => {
+    const raw = values[map[j]];
+    let v: number;
+    if (typeof raw === "number" && Number.isFinite(raw)) v = raw;
+    else if (typeof raw === "boolean") v = raw ? 1 : 0;
+    else fail(`${rowLabel}: ${name} is ${raw === null || raw === undefined || raw === "" ? "blank" : "not a number"}; give a number`);
+    const t = fit.data.xTransforms[j];
+    if (t.kind === "log" && !(v > 0)) fail(`${rowLabel}: ${name} is ${v === 0 ? "zero (or blank)" : "negative"}, which the log of the fitted model cannot take`);
+    if (t.kind === "shift" && !(v + t.c > 0)) fail(`${rowLabel}: ${name} is at or below −${t.c}, which log(v + ${t.c}) cannot take`);
+    x0[j0 + j] = apply(t, v);
+  });
+  return x0;
+}
+
+export function predictTable(y: unknown, x: unknown, newX: unknown, opts: unknown, invocation: unknown): Table {
+  return guarded(() => {
+    const o = options(opts);
+    const fit = fitFor(y, x, o, invocation);
+    const cells = asMatrix(newX, "new_x");
+    const addrs = (invocation as { parameterAddresses?: unknown[] } | undefined)?.parameterAddresses;
+    const origin = Array.isArray(addrs) ? originOf(addrs[2]) : null;
+    const names = fit.data.xNames;
+    const header = cells[0].every((v) => typeof v === "string" && v.trim() !== "");
+    let map: number[];
+    if (header) {
+      const given = cells[0].map((v) => String(v).trim());
+      map = names.map((name) => {
+        const i = given.findIndex((g) => g.toLowerCase() === name.toLowerCase());
+        if (i < 0) fail(`new_x has no column ${name}; its header names are ${given.join(", ")}; give new_x the same columns as x`);
+        return i;
+      });
+      given.forEach((g) => {
+        if (!names.some((n) => n.toLowerCase() === g.toLowerCase())) fail(`new_x column "${g}" is not a column of x; did you mean ${nearest(g, names)}? (x has ${names.join(", ")})`);
+      });
+    } else {
+      if (cells[0].length !== names.length) fail(`new_x has ${cells[0].length} columns but x has ${names.length} (${names.join(", ")}); give new_x the same columns, in the same order, or add a header row to match them by name`);
+      map = names.map((_, j) => j);
+    }
+    const cov = fit.covariance(seTypeOf(o), o.lags);
+    const first = header ? 1 : 0;
+    const width = o.interval === "none" ? 1 : 3;
+    const body: Table = [];
+    const startRow = (origin?.row ?? 1) + first;
+    for (let i = first; i < cells.length; i++) {
+      try {
+        const x0 = designRow(fit, cells[i], map, `new_x row ${startRow + i - first}`);
+        const p = predictRow(fit, x0, o.retransform, o.interval, o.level, cov);
+        body.push(width === 1 ? [num(p.value)] : [num(p.value), num(p.lower), num(p.upper)]);
+      } catch (e) {
+        if (!(e instanceof ElxProblem)) throw e;
+        const err = toHostError(e);
+        body.push(new Array<Cell>(width).fill(err));
+      }
+    }
+    if (body.length === 0) fail("new_x has a header row but no rows to predict");
+    const lv = levelLabel(o.level);
+    const head = [`Predicted ${fit.data.yName}`, `Lower ${lv}`, `Upper ${lv}`].slice(0, width);
+    return header && o.headers ? [head, ...body] : body;
+  });
+}
+
+const HETERO_TESTS: readonly HeteroTest[] = ["bp", "bp-original", "white", "white-special"];
+
+function memoTest(fit: OlsFit, key: string, run: (f: OlsFit) => TestResult): TestResult {
+  return fit.memo(`test:${key}`, () => run(fit));
+}
+
+export function heteroValue(y: unknown, x: unknown, test: unknown, opts: unknown, invocation: unknown): Table {
+  return guarded(() => {
+    const o = options(opts);
+    let which: HeteroTest = "bp";
+    if (test !== null && test !== undefined && test !== "") {
+      const t = String(test).trim().toLowerCase();
+      const hit = HETERO_TESTS.find((h) => h === t);
+      if (!hit) fail(`test "${test}" is not known; did you mean ${nearest(t, HETERO_TESTS)}? (tests: ${HETERO_TESTS.join(", ")})`);
+      which = hit;
+    }
+    const fit = fitFor(y, x, o, invocation);
+    return [[num(memoTest(fit, which, (f) => heteroTest(f, which)).pValue)]];
+  });
+}
+
+export function normalValue(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
+  return guarded(() => {
+    const fit = fitFor(y, x, options(opts), invocation);
+    return [[num(memoTest(fit, "jb", jarqueBera).pValue)]];
+  });
+}
+
+export function testsTable(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
+  return guarded(() => {
+    const o = options(opts);
+    const fit = fitFor(y, x, o, invocation);
+    const runs: [string, string, (f: OlsFit) => TestResult][] = [
+      ["Breusch–Pagan (Koenker, studentized)", "bp", breuschPaganKoenker],
+      ["Breusch–Pagan (original)", "bp-original", breuschPaganOriginal],
+      ["White", "white", white],
+      ["White (special form)", "white-special", whiteSpecial],
+      ["Jarque–Bera", "jb", jarqueBera],
+      ["RESET (fitted², fitted³)", "reset", reset],
+    ];
+    const body: Table = runs.map(([label, key, run]) => {
+      try {
+        const r = memoTest(fit, key, run);
+        return [label, num(r.statistic), r.df.length === 1 ? r.df[0] : r.df.join(", "), num(r.pValue), `${r.pValue < 0.05 ? "rejected" : "not rejected"}: ${r.reading}`];
+      } catch (e) {
+        if (!(e instanceof ElxProblem)) throw e;
+        const err = toHostError(e);
+        return [label, err, err, err, e.message];
+      }
+    });
+    return table(["Test", "Statistic", "df", "p-value", "Reading at the 5% level"], body, o);
+  });
+}
+
+function otherSide(form: Form, y: "log" | "level"): Form {
+  const xSide = form.endsWith("-log") ? "log" : "level";
+  return `${y}-${xSide}` as Form;
+}
+
+export function formCheckTable(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
+  return guarded(() => {
+    const o = options(opts);
+    if (o.estimator === "ppml") fail("ELX.FORMCHECK compares least-squares fits of y in logs and in levels; drop estimator=ppml");
+    if (o.zeros === "shift" || o.zeros === "ihs") fail(`ELX.FORMCHECK compares plain logs with levels; zeros=${o.zeros} changes the log, so Box–Cox does not apply: use zeros=stop or zeros=drop on data with y above zero`);
+    const [yo, xo] = originsOf(invocation);
+    const get = (form: Form): OlsFit => getFit({ y, x, options: { ...o, form }, yOrigin: yo ?? null, xOrigin: xo ?? null });
+    const levelFit = get(otherSide(o.form, "level"));
+    const yv = levelFit.data.y;
+    for (let i = 0; i < yv.length; i++) {
+      if (!(yv[i] > 0)) {
+        fail(`Box–Cox and the log of y need y above zero, and ${levelFit.data.yName} has a zero or negative value (row ${levelFit.data.rowNumbers[i]}); the comparison is undefined: use zeros=drop to compare on the positive rows, or estimator=ppml, which keeps zeros`);
+      }
+    }
+    const logFit = get(otherSide(o.form, "log"));
+    if (logFit.n !== levelFit.n) fail("the log and level fits use different rows (a regressor has zeros under zeros=drop); use zeros=stop or clean the x columns");
+    const se = seTypeOf(o);
+    const bc = levelFit.memo(`boxcox:${o.level}`, () => boxCox(levelFit, o.level));
+    const pe = logFit.memo(`pe:${se}:${o.lags}`, () => peTest(logFit, levelFit, se, o.lags));
+    const side = (f: OlsFit) => {
+      f.requireResidualVariation("the residual checks");
+      return {
+        skew: moments(f.resid).skewness,
+        jb: memoTest(f, "jb", jarqueBera).pValue,
+        bp: memoTest(f, "bp", breuschPaganKoenker).pValue,
+      };
+    };
+    const lg = side(logFit);
+    const lv = side(levelFit);
+    const reading = readEvidence(bc, pe);
+    const level = levelLabel(o.level);
+    const beyond = (end: "lower" | "upper") => hostError("na", `the ${level} interval extends beyond λ = ${end === "lower" ? "−5" : "5"}: the likelihood is flat in λ`);
+    const body: Table = [
+      ["Box–Cox λ̂", num(bc.lambda), bc.onBoundary ? "at the edge of [−2, 2]" : ""],
+      [`Box–Cox interval lower (${level})`, bc.lower === null ? beyond("lower") : num(bc.lower), ""],
+      [`Box–Cox interval upper (${level})`, bc.upper === null ? beyond("upper") : num(bc.upper), ""],
+      ["Box–Cox LR p-value", num(bc.pLog), num(bc.pLevels)],
+      ["PE test t (this form, other as alternative)", num(pe.logs.t), num(pe.levels.t)],
+      ["PE test p-value", num(pe.logs.p), num(pe.levels.p)],
+      ["PE test: rows left out (fitted level ≤ 0)", 0, pe.levels.leftOut],
+      ["Residual skewness", num(lg.skew), num(lv.skew)],
+      ["Jarque–Bera p-value", num(lg.jb), num(lv.jb)],
+      ["Breusch–Pagan p-value", num(lg.bp), num(lv.bp)],
+      ["Reading", reading.verdict, reading.why],
+    ];
+    return table(["Check", "y in logs", "y in levels"], body, o);
+  });
+}
+

@@ -1,0 +1,243 @@
+/**
+ * Specification tests on a fitted OLS model: did the logs give constant spread, symmetric errors and
+ * the right functional form?
+ *
+ * - Breusch–Pagan, studentized (Koenker 1981, J. Econometrics 17): n·R² of e² on the model's
+ *   regressors, chi-square with (regressors − 1) df. The default, robust to non-normal errors.
+ * - Breusch–Pagan, original (Breusch and Pagan 1979, Econometrica 47): half the explained sum of
+ *   squares of e²/σ̂² (σ̂² = RSS/n) on the same regressors.
+ * - White (1980, Econometrica 48): n·R² of e² on the regressors, their squares (binary columns'
+ *   squares are the columns themselves and are dropped) and all pairwise cross-products.
+ * - White's special form: n·R² of e² on ŷ and ŷ², 2 df.
+ * - Jarque–Bera (1980, Economics Letters 6): n/6·(S² + (K − 3)²/4) with moments of the residuals
+ *   taken with n denominators, chi-square 2 df.
+ * - RESET (Ramsey 1969, JRSS B 31): F test of ŷ² and ŷ³ added to the model.
+ *
+ * These agree with R's lmtest::bptest and lmtest::resettest (test/reference/diagnostics.test.ts).
+ * Each auxiliary regression runs on the engine's QR; an auxiliary column that is an exact combination
+ * of earlier ones is dropped and the degrees of freedom count only the columns kept.
+ */
+import { leastSquares, type Dependency } from "./leastSquares";
+import { chiSquareSf, fisherSf } from "./distributions";
+import { fail, unavailable } from "./problems";
+import type { OlsFit } from "./fit";
+
+export interface TestResult {
+  name: string;
+  statistic: number;
+  /** Degrees of freedom: one number for chi-square, two for F. */
+  df: number[];
+  pValue: number;
+  /** What a rejection at 5% means, and what not rejecting means, in plain words. */
+  reading: string;
+}
+
+class Dropped extends Error {
+  constructor(readonly column: number) {
+    super("dependent auxiliary column");
+  }
+}
+
+interface AuxFit {
+  rss: number;
+  tss: number;
+  /** Columns kept (intercept included). */
+  kept: number;
+  fitted: Float64Array;
+}
+
+/**
+ * Regresses v on an intercept and the columns W, dropping columns that depend on earlier ones.
+ * Returns the RSS, the centred TSS and the number of columns kept.
+ */
+export function auxiliary(v: Float64Array, W: Float64Array[]): AuxFit {
+  const n = v.length;
+  let cols = [new Float64Array(n).fill(1), ...W];
+  for (;;) {
+    if (cols.length >= n) {
+      fail(`the auxiliary regression has ${cols.length} terms for ${n} rows; it needs more rows than terms`);
+    }
+    try {
+      const q = leastSquares(cols, v, (d: Dependency) => {
+        throw new Dropped(d.column);
+      });
+      let mean = 0;
+      for (let i = 0; i < n; i++) mean += v[i];
+      mean /= n;
+      let tss = 0;
+      for (let i = 0; i < n; i++) tss += (v[i] - mean) * (v[i] - mean);
+      return { rss: q.rss, tss, kept: cols.length, fitted: q.fitted };
+    } catch (e) {
+      if (!(e instanceof Dropped) || e.column === 0) throw e;
+      cols = cols.filter((_, j) => j !== e.column);
+    }
+  }
+}
+
+/** The model's regressors other than the intercept (as fitted: transformed). */
+function regressors(fit: OlsFit): Float64Array[] {
+  return fit.data.x;
+}
+
+function squaredResiduals(fit: OlsFit): Float64Array {
+  const e = fit.resid;
+  return Float64Array.from(e, (v) => v * v);
+}
+
+function requireSpread(fit: OlsFit): void {
+  fit.requireResidualVariation("this test");
+}
+
+const HET_REJECT = "spread of the errors changes with the regressors: use robust errors (se=HC3, the default) and read intervals with care";
+const HET_KEEP = "no evidence against a constant spread";
+
+function nR2(e2: Float64Array, W: Float64Array[], name: string): TestResult {
+  const a = auxiliary(e2, W);
+  const df = a.kept - 1;
+  if (df <= 0) unavailable(`${name} needs at least one regressor besides the intercept`);
+  if (!(a.tss > 0)) unavailable(`${name} is undefined: the squared residuals do not vary`);
+  const stat = e2.length * (1 - a.rss / a.tss);
+  const p = chiSquareSf(stat, df);
+  return { name, statistic: stat, df: [df], pValue: p, reading: p < 0.05 ? HET_REJECT : HET_KEEP };
+}
+
+/** Studentized Breusch–Pagan (Koenker 1981). */
+export function breuschPaganKoenker(fit: OlsFit): TestResult {
+  requireSpread(fit);
+  return nR2(squaredResiduals(fit), regressors(fit), "Breusch–Pagan (Koenker, studentized)");
+}
+
+/** Original Breusch–Pagan (1979): ESS/2 of e²/σ̂² on the regressors. */
+export function breuschPaganOriginal(fit: OlsFit): TestResult {
+  requireSpread(fit);
+  const n = fit.n;
+  const sigma2 = fit.rss / n;
+  const g = Float64Array.from(fit.resid, (v) => (v * v) / sigma2);
+  const a = auxiliary(g, regressors(fit));
+  const df = a.kept - 1;
+  if (df <= 0) unavailable("Breusch–Pagan needs at least one regressor besides the intercept");
+  const stat = (a.tss - a.rss) / 2;
+  const p = chiSquareSf(stat, df);
+  return { name: "Breusch–Pagan (original)", statistic: stat, df: [df], pValue: p, reading: p < 0.05 ? HET_REJECT : HET_KEEP };
+}
+
+/** White (1980): squares (not of binary columns) and cross-products. */
+export function white(fit: OlsFit): TestResult {
+  requireSpread(fit);
+  const X = regressors(fit);
+  const n = fit.n;
+  const W: Float64Array[] = [...X];
+  X.forEach((c, j) => {
+    if (!fit.data.binary[j]) W.push(Float64Array.from(c, (v) => v * v));
+  });
+  for (let a = 0; a < X.length; a++) {
+    for (let b = a + 1; b < X.length; b++) {
+      const ca = X[a];
+      const cb = X[b];
+      W.push(Float64Array.from(ca, (v, i) => v * cb[i]));
+    }
+  }
+  if (W.length + 1 >= n) {
+    fail(`White's test needs ${W.length + 1} auxiliary terms (regressors, squares and cross-products) but the fit has only ${n} rows; use the special form, test "white-special"`);
+  }
+  return nR2(squaredResiduals(fit), W, "White");
+}
+
+/** White's special form: e² on ŷ and ŷ². */
+export function whiteSpecial(fit: OlsFit): TestResult {
+  requireSpread(fit);
+  const f = fit.fitted;
+  return nR2(squaredResiduals(fit), [Float64Array.from(f), Float64Array.from(f, (v) => v * v)], "White (special form)");
+}
+
+/** Skewness and kurtosis of the residuals with n denominators. */
+export function moments(e: Float64Array): { skewness: number; kurtosis: number } {
+  const n = e.length;
+  let mean = 0;
+  for (let i = 0; i < n; i++) mean += e[i];
+  mean /= n;
+  let m2 = 0;
+  let m3 = 0;
+  let m4 = 0;
+  for (let i = 0; i < n; i++) {
+    const d = e[i] - mean;
+    const d2 = d * d;
+    m2 += d2;
+    m3 += d2 * d;
+    m4 += d2 * d2;
+  }
+  m2 /= n;
+  m3 /= n;
+  m4 /= n;
+  return { skewness: m3 / Math.pow(m2, 1.5), kurtosis: m4 / (m2 * m2) };
+}
+
+/** Jarque–Bera test of normal residuals. */
+export function jarqueBera(fit: OlsFit): TestResult {
+  requireSpread(fit);
+  const { skewness: S, kurtosis: K } = moments(fit.resid);
+  const n = fit.n;
+  const stat = (n / 6) * (S * S + ((K - 3) * (K - 3)) / 4);
+  const p = chiSquareSf(stat, 2);
+  return {
+    name: "Jarque–Bera",
+    statistic: stat,
+    df: [2],
+    pValue: p,
+    reading: p < 0.05
+      ? `residuals are not normal (skewness ${S.toFixed(2)}, kurtosis ${K.toFixed(2)}): prefer Duan's smearing factor to the normal one; large samples still give valid robust intervals`
+      : "no evidence against normal residuals",
+  };
+}
+
+/** RESET with powers 2 and 3 of the fitted values (lmtest::resettest, type = "fitted"). */
+export function reset(fit: OlsFit): TestResult {
+  requireSpread(fit);
+  const f = fit.fitted;
+  const n = fit.n;
+  const k = fit.k;
+  const cols = [...fit.design, Float64Array.from(f, (v) => v * v), Float64Array.from(f, (v) => v * v * v)];
+  if (n <= k + 2) fail(`RESET needs more than ${k + 2} rows (the fit has ${n})`);
+  let rss1: number;
+  let added = 2;
+  try {
+    rss1 = leastSquares(cols, fit.data.y, () => {
+      throw new Dropped(-1);
+    }).rss;
+  } catch (e) {
+    if (!(e instanceof Dropped)) throw e;
+    // ŷ³ may depend on ŷ² and the regressors (for example with one binary regressor)
+    added = 1;
+    try {
+      rss1 = leastSquares(cols.slice(0, k + 1), fit.data.y, () => {
+        throw new Dropped(-1);
+      }).rss;
+    } catch (e2) {
+      if (!(e2 instanceof Dropped)) throw e2;
+      unavailable("RESET is undefined here: the powers of the fitted values are combinations of the regressors");
+    }
+  }
+  const df2 = n - k - added;
+  const stat = ((fit.rss - rss1) / added) / (rss1 / df2);
+  const p = fisherSf(stat, added, df2);
+  return {
+    name: "RESET (fitted², fitted³)",
+    statistic: stat,
+    df: [added, df2],
+    pValue: p,
+    reading: p < 0.05
+      ? "powers of the fitted values add explanation: the functional form may be wrong (try another form or add terms)"
+      : "no evidence against the functional form",
+  };
+}
+
+export type HeteroTest = "bp" | "bp-original" | "white" | "white-special";
+
+export function heteroTest(fit: OlsFit, test: HeteroTest): TestResult {
+  switch (test) {
+    case "bp": return breuschPaganKoenker(fit);
+    case "bp-original": return breuschPaganOriginal(fit);
+    case "white": return white(fit);
+    case "white-special": return whiteSpecial(fit);
+  }
+}
