@@ -8,6 +8,7 @@
  * reports name sheet rows; that needs matrix results, so single numbers come back as 1×1 tables.
  */
 import { effectsTable, elasticitiesTable, elasticityValue, fitTable, summaryTable, zerosTable } from "./cells/regression";
+import { fitView, makeCaller, cacheStats, type CellFunction } from "./paneApi";
 import { formCheckTable, heteroValue, normalValue, predictTable, smearingValue, testsTable } from "./cells/diagnostics";
 
 /**
@@ -166,3 +167,15 @@ export function tests(y: any[][], x: any[][], options?: string, invocation?: Cus
 export function formcheck(y: any[][], x: any[][], options?: string, invocation?: CustomFunctions.Invocation): any[][] {
   return formCheckTable(y, x, options, invocation);
 }
+
+// Published for the pane (shared runtime): the same module instances, so the same fit cache.
+const cellFunctions = {
+  FIT: fit, ELASTICITY: elasticity, ELASTICITIES: elasticities, EFFECTS: effects, SUMMARY: summary, ZEROS: zeros,
+  SMEARING: smearing, PREDICT: predict, HETEROTEST: heterotest, NORMALTEST: normaltest, TESTS: tests, FORMCHECK: formcheck,
+};
+(globalThis as unknown as { Elasticell: unknown }).Elasticell = {
+  functions: cellFunctions,
+  call: makeCaller(cellFunctions as unknown as Record<string, CellFunction>),
+  fitView,
+  cacheStats,
+};

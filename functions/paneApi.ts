@@ -1,0 +1,81 @@
+/**
+ * What the pane reads from the functions' runtime. In the shared runtime the pane and the custom
+ * functions run in one page, but webpack bundles them as two scripts; so that the pane reads the
+ * same cached fits as the cells, functions.js publishes this object on `globalThis.Elasticell` when it
+ * loads (no DOM, no host API). The pane only reads: nothing here writes to a workbook.
+ */
+import { getFit, cacheStats } from "./engine/model";
+import { parseOptions, seTypeOf } from "./engine/options";
+import { ElxProblem } from "./engine/problems";
+import { transformLabel } from "./engine/transforms";
+import type { Origin } from "./engine/intake";
+
+export type Outcome<T> = { ok: true; value: T } | { ok: false; message: string; kind: "value" | "na" };
+
+/** A plain view of one fit, for the pane's pictures and sentences. */
+export interface FitView {
+  n: number;
+  yName: string;
+  xNames: string[];
+  yTransform: string;
+  xTransforms: string[];
+  binary: boolean[];
+  coefficients: number[];
+  standardErrors: number[];
+  seLabel: string;
+  residuals: Float64Array;
+  fitted: Float64Array;
+  leftOutBlank: number;
+  leftOutNonPositive: number;
+}
+
+function outcome<T>(run: () => T): Outcome<T> {
+  try {
+    return { ok: true, value: run() };
+  } catch (e) {
+    if (e instanceof ElxProblem) return { ok: false, message: e.message, kind: e.kind };
+    return { ok: false, message: `internal error in Elasticell (${e instanceof Error ? e.message : String(e)})`, kind: "value" };
+  }
+}
+
+/** The (cached) fit of y on x under the options text, as a plain view. */
+export function fitView(y: unknown[][], x: unknown[][], optionsText: string | null, yOrigin: Origin | null = null, xOrigin: Origin | null = null): Outcome<FitView> {
+  return outcome(() => {
+    const o = parseOptions(optionsText);
+    const fit = getFit({ y, x, options: o, yOrigin, xOrigin });
+    const cov = fit.covariance(seTypeOf(o), o.lags);
+    return {
+      n: fit.n,
+      yName: fit.data.yName,
+      xNames: fit.data.xNames.slice(),
+      yTransform: transformLabel(fit.data.yTransform),
+      xTransforms: fit.data.xTransforms.map(transformLabel),
+      binary: fit.data.binary.slice(),
+      coefficients: Array.from(fit.coef),
+      standardErrors: Array.from(fit.standardErrors(cov)),
+      seLabel: cov.label,
+      residuals: fit.resid,
+      fitted: fit.fitted,
+      leftOutBlank: fit.data.leftOutBlank,
+      leftOutNonPositive: fit.data.leftOutNonPositive,
+    };
+  });
+}
+
+export type CellFunction = (...args: unknown[]) => unknown;
+
+/** Calls a cell function by its id (FIT, ZEROS, …) as a cell would; errors come back as outcomes. */
+export function makeCaller(functions: Record<string, CellFunction>) {
+  return (id: string, ...args: unknown[]): Outcome<unknown> => {
+    const f = functions[id];
+    if (!f) return { ok: false, message: `no function ${id}`, kind: "value" };
+    try {
+      return { ok: true, value: f(...args) };
+    } catch (e) {
+      const m = e && typeof e === "object" && "message" in e ? String((e as { message: unknown }).message) : String(e);
+      return { ok: false, message: m, kind: "value" };
+    }
+  };
+}
+
+export { cacheStats };
