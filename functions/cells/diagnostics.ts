@@ -2,7 +2,6 @@
  * Cell functions that read a fit back in the original units and test what the logs were taken for:
  * SMEARING, PREDICT, HETEROTEST, NORMALTEST, TESTS, FORMCHECK.
  */
-import { getFit } from "../engine/model";
 import { seTypeOf, type Form } from "../engine/options";
 import { fail, nearest, ElxProblem } from "../engine/problems";
 import { asMatrix, originOf } from "../engine/intake";
@@ -11,20 +10,21 @@ import { predictRow, retransformFactor } from "../engine/retransform";
 import { heteroTest, jarqueBera, moments, reset, breuschPaganKoenker, breuschPaganOriginal, white, whiteSpecial, type HeteroTest, type TestResult } from "../engine/specTests";
 import { boxCox, peTest, readEvidence } from "../engine/formCheck";
 import type { OlsFit } from "../engine/fit";
-import { fitFor } from "./regression";
+import { getOlsFit, type AnyFit } from "../engine/model";
+import { fitFor, olsFor } from "./regression";
 import { guarded, hostError, levelLabel, num, options, originsOf, table, toHostError, type Cell, type Table } from "./host";
 
 export function smearingValue(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
   return guarded(() => {
     const o = options(opts);
-    const fit = fitFor(y, x, o, invocation);
+    const fit = olsFor(y, x, o, invocation, "ELX.SMEARING");
     if (o.retransform === "none") fail("retransform=none asks for no factor; use retransform=duan (default) or retransform=normal");
     return [[num(retransformFactor(fit, o.retransform))]];
   });
 }
 
 /** The transformed design row for one row of new_x, or a problem naming that row. */
-function designRow(fit: OlsFit, values: unknown[], map: number[], rowLabel: string): Float64Array {
+function designRow(fit: AnyFit, values: unknown[], map: number[], rowLabel: string): Float64Array {
   const k = fit.k;
   const x0 = new Float64Array(k);
   let j0 = 0;
@@ -109,14 +109,14 @@ export function heteroValue(y: unknown, x: unknown, test: unknown, opts: unknown
       if (!hit) fail(`test "${test}" is not known; did you mean ${nearest(t, HETERO_TESTS)}? (tests: ${HETERO_TESTS.join(", ")})`);
       which = hit;
     }
-    const fit = fitFor(y, x, o, invocation);
+    const fit = olsFor(y, x, o, invocation, "ELX.HETEROTEST");
     return [[num(memoTest(fit, which, (f) => heteroTest(f, which)).pValue)]];
   });
 }
 
 export function normalValue(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
   return guarded(() => {
-    const fit = fitFor(y, x, options(opts), invocation);
+    const fit = olsFor(y, x, options(opts), invocation, "ELX.NORMALTEST");
     return [[num(memoTest(fit, "jb", jarqueBera).pValue)]];
   });
 }
@@ -124,7 +124,7 @@ export function normalValue(y: unknown, x: unknown, opts: unknown, invocation: u
 export function testsTable(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
   return guarded(() => {
     const o = options(opts);
-    const fit = fitFor(y, x, o, invocation);
+    const fit = olsFor(y, x, o, invocation, "ELX.TESTS");
     const runs: [string, string, (f: OlsFit) => TestResult][] = [
       ["Breusch–Pagan (Koenker, studentized)", "bp", breuschPaganKoenker],
       ["Breusch–Pagan (original)", "bp-original", breuschPaganOriginal],
@@ -158,7 +158,7 @@ export function formCheckTable(y: unknown, x: unknown, opts: unknown, invocation
     if (o.estimator === "ppml") fail("ELX.FORMCHECK compares least-squares fits of y in logs and in levels; drop estimator=ppml");
     if (o.zeros === "shift" || o.zeros === "ihs") fail(`ELX.FORMCHECK compares plain logs with levels; zeros=${o.zeros} changes the log, so Box–Cox does not apply: use zeros=stop or zeros=drop on data with y above zero`);
     const [yo, xo] = originsOf(invocation);
-    const get = (form: Form): OlsFit => getFit({ y, x, options: { ...o, form }, yOrigin: yo ?? null, xOrigin: xo ?? null });
+    const get = (form: Form): OlsFit => getOlsFit({ y, x, options: { ...o, form }, yOrigin: yo ?? null, xOrigin: xo ?? null }, "ELX.FORMCHECK");
     const levelFit = get(otherSide(o.form, "level"));
     const yv = levelFit.data.y;
     for (let i = 0; i < yv.length; i++) {

@@ -2,7 +2,7 @@
  * Cell functions of the fit: FIT, ELASTICITY, ELASTICITIES, EFFECTS, SUMMARY, ZEROS.
  * Each reads the one cached fit for its inputs and shapes a table; the numbers come from the engine.
  */
-import { getFit } from "../engine/model";
+import { getFit, getOlsFit, type AnyFit } from "../engine/model";
 import { seTypeOf, type Options } from "../engine/options";
 import { ElxProblem, fail, unavailable } from "../engine/problems";
 import { retransformFactor } from "../engine/retransform";
@@ -11,12 +11,19 @@ import { resolveColumn } from "../engine/transforms";
 import { elasticity, percentEffect } from "../engine/elasticity";
 import { readRange, asMatrix, CellIssue } from "../engine/intake";
 import type { OlsFit } from "../engine/fit";
+import type { PpmlFit } from "../engine/ppml";
 import { guarded, hostError, levelLabel, num, options, originsOf, table, type Cell, type Table } from "./host";
 
 /** Fit for a cell function whose first two parameters are y and x. */
-export function fitFor(y: unknown, x: unknown, o: Options, invocation: unknown): OlsFit {
+export function fitFor(y: unknown, x: unknown, o: Options, invocation: unknown): AnyFit {
   const [yo, xo] = originsOf(invocation);
   return getFit({ y, x, options: o, yOrigin: yo ?? null, xOrigin: xo ?? null });
+}
+
+/** The least-squares fit for functions that apply to OLS only (tests, retransformation factors). */
+export function olsFor(y: unknown, x: unknown, o: Options, invocation: unknown, what: string): OlsFit {
+  const [yo, xo] = originsOf(invocation);
+  return getOlsFit({ y, x, options: o, yOrigin: yo ?? null, xOrigin: xo ?? null }, what);
 }
 
 export function fitTable(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
@@ -42,7 +49,7 @@ export function fitTable(y: unknown, x: unknown, opts: unknown, invocation: unkn
         num(b + crit * se[j]),
       ];
     });
-    return table(["Term", "Transform", "Coefficient", `Std. error (${cov.label})`, "t", "p-value", `Lower ${lv}`, `Upper ${lv}`], body, o);
+    return table(["Term", "Transform", "Coefficient", `Std. error (${cov.label})`, fit.estimator === "ppml" ? "z" : "t", "p-value", `Lower ${lv}`, `Upper ${lv}`], body, o);
   });
 }
 
@@ -84,7 +91,7 @@ export function effectsTable(y: unknown, x: unknown, opts: unknown, invocation: 
   return guarded(() => {
     const o = options(opts);
     const fit = fitFor(y, x, o, invocation);
-    const g = fit.data.yTransform;
+    const g = fit.meanTransform;
     if (g.kind === "level") unavailable("percent effects need y in logs (form=log-log or form=log-level); with y in levels a coefficient is a change in units of y: read ELX.FIT");
     if (g.kind !== "log") unavailable(`percent effects need y in plain logs; here y is transformed by ${g.kind === "asinh" ? "asinh" : "log(y + c)"} (zeros=${g.kind === "asinh" ? "ihs" : "shift"}), whose coefficients are not percent changes of y: use zeros=drop or, in a later version, estimator=ppml`);
     const cols = fit.data.xTransforms.map((t, j) => (t.kind === "level" ? j : -1)).filter((j) => j >= 0);
@@ -132,12 +139,32 @@ function collinearityRows(fit: OlsFit): [string, Cell][] {
   return rows;
 }
 
+function ppmlSummaryRows(fit: PpmlFit, o: Options): [string, Cell][] {
+  const s = fit.statistics();
+  const cov = fit.covariance(seTypeOf(o), o.lags);
+  return [
+    ["Form", `${o.form}${fit.intercept ? "" : ", no intercept"}`],
+    ["Estimator", "PPML (Poisson pseudo-maximum likelihood, mean exp(x'b), y in levels)"],
+    ["Std. errors", cov.label],
+    ["Observations used", fit.n],
+    ["Rows left out: blank or non-numeric", fit.data.leftOutBlank],
+    ["Rows left out: zero or negative under a log", fit.data.leftOutNonPositive],
+    [`Zeros kept in ${fit.data.yName}`, s.zerosKept],
+    ["Deviance", num(s.deviance)],
+    ["Pseudo R² (squared correlation of y and fitted)", num(s.pseudoRSquared, "pseudo R² is undefined: the fitted values do not vary")],
+    ["Pearson dispersion", num(s.dispersion)],
+    ["Iterations", s.iterations],
+    ["Caution", CAUTION],
+  ];
+}
+
 const CAUTION = "Associations, not causes: prices often respond to demand, and results depend on the sample and data quality; decisions stay with the analyst and their organisation's review.";
 
 export function summaryTable(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
   return guarded(() => {
     const o = options(opts);
     const fit = fitFor(y, x, o, invocation);
+    if (fit.estimator === "ppml") return table(["Statistic", "Value"], ppmlSummaryRows(fit, o), o);
     const s = fit.statistics();
     const cov = fit.covariance(seTypeOf(o), o.lags);
     const g = fit.data.yTransform;

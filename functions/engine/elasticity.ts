@@ -9,7 +9,7 @@
  * American Economic Review 71(4), p. 801) corrects it to 100(e^(b − V/2) − 1) with V = Var(b).
  */
 import { relativeSlope } from "./transforms";
-import type { OlsFit, Term } from "./fit";
+import type { Model, Term } from "./fit";
 import type { AtPoint } from "./options";
 import type { Covariance } from "./covariance";
 
@@ -32,9 +32,9 @@ function formatNumber(v: number): string {
 }
 
 /** The factor that turns coefficient b of x column j into an elasticity, and its description. */
-export function elasticityFactor(fit: OlsFit, column: number, at: AtPoint): { factor: number; at: string } {
+export function elasticityFactor(fit: Model, column: number, at: AtPoint): { factor: number; at: string } {
   const t = fit.data.xTransforms[column];
-  const g = fit.data.yTransform;
+  const g = fit.meanTransform;
   const parts: string[] = [];
   let num = 1;
   if (t.kind !== "log") {
@@ -52,7 +52,7 @@ export function elasticityFactor(fit: OlsFit, column: number, at: AtPoint): { fa
 }
 
 /** Elasticity of y with respect to x column j, with its delta-method error and interval. */
-export function elasticity(fit: OlsFit, column: number, cov: Covariance, level: number, at: AtPoint): ElasticityRow {
+export function elasticity(fit: Model, column: number, cov: Covariance, level: number, at: AtPoint): ElasticityRow {
   const idx = fit.coefIndex(column);
   const b = fit.coef[idx];
   const se = Math.sqrt(Math.max(0, cov.V[idx * fit.k + idx]));
@@ -80,7 +80,7 @@ export interface EffectRow {
 }
 
 /** Percent effect of a level regressor in a log-y model, with Kennedy's correction. */
-export function percentEffect(fit: OlsFit, column: number, cov: Covariance, level: number): EffectRow {
+export function percentEffect(fit: Model, column: number, cov: Covariance, level: number): EffectRow {
   const idx = fit.coefIndex(column);
   const b = fit.coef[idx];
   const V = cov.V[idx * fit.k + idx];

@@ -34,20 +34,25 @@ export interface FitStatistics {
   bic: number;
 }
 
-export class OlsFit {
-  readonly estimator = "ols" as const;
+/**
+ * What every estimator's fit shares: the terms and design built from the dataset, and readers of a
+ * covariance computed on a QR factor (the design's for OLS, the weighted design's for PPML).
+ */
+export abstract class Model {
+  abstract readonly estimator: "ols" | "ppml";
   readonly data: Dataset;
   readonly intercept: boolean;
   readonly terms: Term[];
   readonly design: Float64Array[];
-  readonly qr: QrFit;
   readonly n: number;
   readonly k: number;
   readonly dfResid: number;
-  private leverageCache: Float64Array | null = null;
+  /** The factor and columns the covariances are computed on, and their residuals (qr.resid). */
+  abstract readonly qr: QrFit;
+  protected abstract readonly covDesign: Float64Array[];
+  protected leverageCache: Float64Array | null = null;
   private readonly covCache = new Map<string, Covariance>();
   private medianCache = new Map<number, number>();
-  private statsCache: FitStatistics | null = null;
   private readonly memos = new Map<string, unknown>();
 
   constructor(data: Dataset, intercept: boolean) {
@@ -67,9 +72,101 @@ export class OlsFit {
     this.design = design;
     this.n = data.n;
     this.k = design.length;
-    checkShape(data, this.k, intercept);
-    this.qr = leastSquares(design, data.y, (d) => explainDependency(d, terms));
     this.dfResid = this.n - this.k;
+    checkShape(data, this.k, intercept);
+  }
+
+  abstract get coef(): Float64Array;
+  /** Fitted values on the scale of the mean (OLS: the transformed y; PPML: μ̂ in y's units). */
+  abstract get fitted(): Float64Array;
+  /** How y enters the mean: the elasticity's g (OLS: y's transform; PPML: log, as E[y|x] = exp(x'b)). */
+  abstract readonly meanTransform: Transform;
+
+  /** Refuses a covariance type the estimator does not offer. */
+  protected checkSeType(type: SeType): void {
+    void type;
+  }
+
+  /** The covariance of the coefficients of the given type (memoised). */
+  covariance(type: SeType, lags: number | null = null): Covariance {
+    this.checkSeType(type);
+    const L = type === "HAC" ? lags ?? defaultLags(this.n) : 0;
+    const key = type === "HAC" ? `HAC${L}` : type;
+    let c = this.covCache.get(key);
+    if (!c) {
+      let V: Float64Array;
+      if (type === "classical") V = classicalCovariance(this.qr);
+      else if (type === "HAC") V = hacCovariance(this.covDesign, this.qr, L);
+      else {
+        const r = hcCovariance(this.covDesign, this.qr, type, this.leverageCache, this.data.rowNumbers);
+        if (r.h) this.leverageCache = r.h;
+        V = r.V;
+      }
+      c = { type, V, lags: type === "HAC" ? L : undefined, label: type === "HAC" ? `HAC, ${L} lag${L === 1 ? "" : "s"}` : type };
+      this.covCache.set(key, c);
+    }
+    return c;
+  }
+
+  /** Standard errors under a covariance. */
+  standardErrors(c: Covariance): Float64Array {
+    const se = new Float64Array(this.k);
+    for (let j = 0; j < this.k; j++) se[j] = Math.sqrt(Math.max(0, c.V[j * this.k + j]));
+    return se;
+  }
+
+  /** The quantile for a two-sided interval at `level` (Student t for OLS, normal for PPML). */
+  abstract criticalValue(level: number): number;
+
+  /** Two-sided p-value of a t (or z) statistic. */
+  abstract pValue(t: number): number;
+
+  /** Mean or median, in original units, of x column j (−1: y) over the rows used. */
+  centre(column: number, at: "mean" | "median"): number {
+    if (at === "mean") return column < 0 ? this.data.yMean : this.data.xMeans[column];
+    let m = this.medianCache.get(column);
+    if (m === undefined) {
+      m = column < 0
+        ? originalMedian(this.data.y, this.data.yTransform)
+        : originalMedian(this.data.x[column], this.data.xTransforms[column]);
+      this.medianCache.set(column, m);
+    }
+    return m;
+  }
+
+  /** A derived result computed once per fit (tests, factors, collinearity). */
+  memo<T>(key: string, compute: () => T): T {
+    if (this.memos.has(key)) return this.memos.get(key) as T;
+    const v = compute();
+    this.memos.set(key, v);
+    return v;
+  }
+
+  termLabel(t: Term): string {
+    return t.transform ? transformLabel(t.transform) : "constant";
+  }
+
+  /** Index in the coefficient vector of x column j. */
+  coefIndex(column: number): number {
+    return column + (this.intercept ? 1 : 0);
+  }
+}
+
+export class OlsFit extends Model {
+  readonly estimator = "ols" as const;
+  readonly qr: QrFit;
+  protected readonly covDesign: Float64Array[];
+  private statsCache: FitStatistics | null = null;
+
+  get meanTransform(): Transform {
+    return this.data.yTransform;
+  }
+
+  constructor(data: Dataset, intercept: boolean) {
+    super(data, intercept);
+    const terms = this.terms;
+    this.qr = leastSquares(this.design, data.y, (d) => explainDependency(d, terms));
+    this.covDesign = this.design;
   }
 
   get coef(): Float64Array {
@@ -98,33 +195,6 @@ export class OlsFit {
     return this.leverageCache;
   }
 
-  /** The covariance of the coefficients of the given type (memoised). */
-  covariance(type: SeType, lags: number | null = null): Covariance {
-    const L = type === "HAC" ? lags ?? defaultLags(this.n) : 0;
-    const key = type === "HAC" ? `HAC${L}` : type;
-    let c = this.covCache.get(key);
-    if (!c) {
-      let V: Float64Array;
-      if (type === "classical") V = classicalCovariance(this.qr);
-      else if (type === "HAC") V = hacCovariance(this.design, this.qr, L);
-      else {
-        const r = hcCovariance(this.design, this.qr, type, this.leverageCache, this.data.rowNumbers);
-        if (r.h) this.leverageCache = r.h;
-        V = r.V;
-      }
-      c = { type, V, lags: type === "HAC" ? L : undefined, label: type === "HAC" ? `HAC, ${L} lag${L === 1 ? "" : "s"}` : type };
-      this.covCache.set(key, c);
-    }
-    return c;
-  }
-
-  /** Standard errors under a covariance. */
-  standardErrors(c: Covariance): Float64Array {
-    const se = new Float64Array(this.k);
-    for (let j = 0; j < this.k; j++) se[j] = Math.sqrt(Math.max(0, c.V[j * this.k + j]));
-    return se;
-  }
-
   /** The Student t quantile for a two-sided interval at `level`, on n − k df. */
   criticalValue(level: number): number {
     return studentQuantile(0.5 + level / 2, this.dfResid);
@@ -132,19 +202,6 @@ export class OlsFit {
 
   pValue(t: number): number {
     return studentTwoSided(t, this.dfResid);
-  }
-
-  /** Mean or median, in original units, of x column j (−1: y) over the rows used. */
-  centre(column: number, at: "mean" | "median"): number {
-    if (at === "mean") return column < 0 ? this.data.yMean : this.data.xMeans[column];
-    let m = this.medianCache.get(column);
-    if (m === undefined) {
-      m = column < 0
-        ? originalMedian(this.data.y, this.data.yTransform)
-        : originalMedian(this.data.x[column], this.data.xTransforms[column]);
-      this.medianCache.set(column, m);
-    }
-    return m;
   }
 
   statistics(): FitStatistics {
@@ -180,23 +237,6 @@ export class OlsFit {
     const bic = -2 * logLik + (k + 1) * Math.log(n);
     this.statsCache = { rSquared, adjRSquared, sigma, fStatistic, fDf1: dfModel, fDf2: this.dfResid, fPValue, logLik, aic, bic };
     return this.statsCache;
-  }
-
-  /** A derived result computed once per fit (tests, factors, collinearity). */
-  memo<T>(key: string, compute: () => T): T {
-    if (this.memos.has(key)) return this.memos.get(key) as T;
-    const v = compute();
-    this.memos.set(key, v);
-    return v;
-  }
-
-  termLabel(t: Term): string {
-    return t.transform ? transformLabel(t.transform) : "constant";
-  }
-
-  /** Index in the coefficient vector of x column j. */
-  coefIndex(column: number): number {
-    return column + (this.intercept ? 1 : 0);
   }
 
   /** Refuses a perfect fit where a quantity needs residual variation. */

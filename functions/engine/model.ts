@@ -7,13 +7,16 @@ import { modelKey, type Options } from "./options";
 import { ElxProblem, fail } from "./problems";
 import { prepare } from "./transforms";
 import { OlsFit } from "./fit";
+import { PpmlFit } from "./ppml";
+
+export type AnyFit = OlsFit | PpmlFit;
 
 /** At most this many fits are kept (each cell function of a block reads the same one). */
 export const CACHE_ENTRIES = 32;
 /** And at most this many doubles in all (about 400 MB), so large ranges do not pile up. */
 export const CACHE_DOUBLES = 50_000_000;
 
-type Entry = Sized & ({ fit: OlsFit; problem?: undefined } | { fit?: undefined; problem: ElxProblem });
+type Entry = Sized & ({ fit: AnyFit; problem?: undefined } | { fit?: undefined; problem: ElxProblem });
 
 const cache = new BoundedCache<Entry>(CACHE_ENTRIES, CACHE_DOUBLES);
 
@@ -31,20 +34,19 @@ function keyOf(input: ModelInput): string {
 }
 
 /** Fits without the cache (for tests and for callers that build their own data). */
-export function fitUncached(input: ModelInput): OlsFit {
-  if (input.options.estimator === "ppml") fail("estimator=ppml is not available in this version yet; use estimator=ols with zeros=drop, zeros=shift or zeros=ihs");
+export function fitUncached(input: ModelInput): AnyFit {
   const raw = readYX(input.y, input.x, input.yOrigin, input.xOrigin);
   const data = prepare(raw, input.options);
-  return new OlsFit(data, input.options.intercept);
+  return input.options.estimator === "ppml" ? new PpmlFit(data, input.options.intercept) : new OlsFit(data, input.options.intercept);
 }
 
 /** The fit for these cells and options, from the cache when the same content was fitted before. */
-export function getFit(input: ModelInput): OlsFit {
+export function getFit(input: ModelInput): AnyFit {
   const key = keyOf(input);
   const hit = cache.get(key);
   if (hit) {
     if (hit.problem) throw hit.problem;
-    return hit.fit as OlsFit;
+    return hit.fit as AnyFit;
   }
   try {
     const fit = fitUncached(input);
@@ -62,4 +64,10 @@ export function cacheStats(): { hits: number; misses: number; entries: number } 
 
 export function clearCache(): void {
   cache.clear();
+}
+
+/** The least-squares fit, refusing estimator=ppml for functions that only apply to OLS. */
+export function getOlsFit(input: ModelInput, what: string): OlsFit {
+  if (input.options.estimator === "ppml") fail(`${what} applies to least-squares fits of log or level y; drop estimator=ppml (PPML has no residual variance to test or retransform)`);
+  return getFit(input) as OlsFit;
 }

@@ -14,6 +14,7 @@
  */
 import { unavailable } from "./problems";
 import type { OlsFit } from "./fit";
+import type { AnyFit } from "./model";
 import type { Covariance } from "./covariance";
 import type { Retransform } from "./options";
 
@@ -52,7 +53,8 @@ export function retransformFactor(fit: OlsFit, how: Retransform): number {
 }
 
 /** Back to y's units from a value m on the fitted scale, with retransformation. */
-export function toLevels(fit: OlsFit, m: number, how: Retransform): number {
+export function toLevels(fit: AnyFit, m: number, how: Retransform): number {
+  if (fit.estimator === "ppml") return Math.exp(m); // PPML fits the mean itself: no factor
   const g = fit.data.yTransform;
   switch (g.kind) {
     case "level":
@@ -74,7 +76,7 @@ export function toLevels(fit: OlsFit, m: number, how: Retransform): number {
 }
 
 /** Inverse transform without retransformation (for individual intervals). */
-export function inverseOnly(fit: OlsFit, m: number): number {
+export function inverseOnly(fit: AnyFit, m: number): number {
   return toLevels(fit, m, "none");
 }
 
@@ -100,7 +102,7 @@ export function quadraticForm(V: Float64Array, x0: Float64Array): number {
  * The prediction for one transformed design row x0 and, when asked, its interval.
  * @param cov covariance for interval=mean (the chosen se); the individual interval uses the classical one
  */
-export function predictRow(fit: OlsFit, x0: Float64Array, how: Retransform, interval: "none" | "mean" | "individual", level: number, cov: Covariance): Prediction {
+export function predictRow(fit: AnyFit, x0: Float64Array, how: Retransform, interval: "none" | "mean" | "individual", level: number, cov: Covariance): Prediction {
   let m = 0;
   for (let j = 0; j < x0.length; j++) m += fit.coef[j] * x0[j];
   const value = toLevels(fit, m, how);
@@ -110,6 +112,7 @@ export function predictRow(fit: OlsFit, x0: Float64Array, how: Retransform, inte
     const se = Math.sqrt(Math.max(0, quadraticForm(cov.V, x0)));
     return { value, lower: toLevels(fit, m - t * se, how), upper: toLevels(fit, m + t * se, how) };
   }
+  if (fit.estimator === "ppml") unavailable("interval=individual needs a distribution for single outcomes; PPML models only the mean: use interval=mean");
   const Vc = fit.covariance("classical").V;
   const se = Math.sqrt(fit.s2 + Math.max(0, quadraticForm(Vc, x0)));
   return { value, lower: inverseOnly(fit, m - t * se), upper: inverseOnly(fit, m + t * se) };
