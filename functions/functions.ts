@@ -8,6 +8,7 @@
  * reports name sheet rows; that needs matrix results, so single numbers come back as 1×1 tables.
  */
 import { effectsTable, elasticitiesTable, elasticityValue, fitTable, summaryTable, zerosTable } from "./cells/regression";
+import { byGroupTable } from "./cells/groups";
 import { fitView, makeCaller, cacheStats, type CellFunction } from "./paneApi";
 import { formCheckTable, heteroValue, normalValue, predictTable, smearingValue, testsTable } from "./cells/diagnostics";
 
@@ -171,7 +172,7 @@ export function formcheck(y: any[][], x: any[][], options?: string, invocation?:
 // Published for the pane (shared runtime): the same module instances, so the same fit cache.
 const cellFunctions = {
   FIT: fit, ELASTICITY: elasticity, ELASTICITIES: elasticities, EFFECTS: effects, SUMMARY: summary, ZEROS: zeros,
-  SMEARING: smearing, PREDICT: predict, HETEROTEST: heterotest, NORMALTEST: normaltest, TESTS: tests, FORMCHECK: formcheck,
+  SMEARING: smearing, PREDICT: predict, HETEROTEST: heterotest, NORMALTEST: normaltest, TESTS: tests, FORMCHECK: formcheck, BYGROUP: bygroup,
 };
 (globalThis as unknown as { Elasticell: unknown }).Elasticell = {
   functions: cellFunctions,
@@ -179,3 +180,17 @@ const cellFunctions = {
   fitView,
   cacheStats,
 };
+
+/**
+ * One row per distinct key (product, store, region): Group, Observations, then the elasticity and its standard error for each regressor, R² and the Breusch–Pagan p. A group that cannot be fitted shows why; the others still come.
+ * @customfunction BYGROUP
+ * @param keys The segment of each row: one column, same rows as y (blank keys are left out and counted).
+ * @param y Dependent variable: one column.
+ * @param x Regressors: one or more columns, same rows as y.
+ * @param [options] Text like "se=HC3; zeros=drop" or "estimator=ppml". All model options apply to every group.
+ * @requiresParameterAddresses
+ * @returns The table of segments.
+ */
+export function bygroup(keys: any[][], y: any[][], x: any[][], options?: string, invocation?: CustomFunctions.Invocation): any[][] {
+  return byGroupTable(keys, y, x, options, invocation);
+}

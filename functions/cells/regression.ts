@@ -139,6 +139,37 @@ function collinearityRows(fit: OlsFit): [string, Cell][] {
   return rows;
 }
 
+/**
+ * For a log-y OLS fit that dropped zero rows of y: how many the log lost, and whether PPML on the same
+ * data, which keeps them, gives an elasticity outside the OLS interval.
+ */
+function ppmlContrastRows(fit: OlsFit, o: Options, y: unknown, x: unknown, invocation: unknown): [string, Cell][] {
+  if (o.zeros !== "drop" || fit.data.yTransform.kind !== "log" || fit.data.yNonPositive === 0) return [];
+  const rows: [string, Cell][] = [[`Rows the log of ${fit.data.yName} lost (zero or negative)`, fit.data.yNonPositive]];
+  let text: string;
+  try {
+    const p = fitFor(y, x, { ...o, estimator: "ppml", se: null }, invocation);
+    const cov = fit.covariance(seTypeOf(o), o.lags);
+    const pc = p.covariance("HC1");
+    const differ: string[] = [];
+    const fmt = (v: number) => Number(v.toPrecision(4)).toString();
+    fit.data.xNames.forEach((name, j) => {
+      if (fit.data.binary[j]) return;
+      const a = elasticity(fit, j, cov, o.level, o.at);
+      const b = elasticity(p, j, pc, o.level, o.at);
+      if (b.estimate < a.lower || b.estimate > a.upper) differ.push(`${name} ${fmt(b.estimate)} against ${fmt(a.estimate)} [${fmt(a.lower)}, ${fmt(a.upper)}]`);
+    });
+    text = differ.length > 0
+      ? `PPML, which keeps the ${fit.data.yNonPositive} zero rows, gives a materially different elasticity (outside the OLS interval): ${differ.join("; ")}; the dropped zeros or heteroskedasticity may bias the log fit: compare with estimator=ppml`
+      : `PPML, which keeps the ${fit.data.yNonPositive} zero rows, gives elasticities inside the OLS intervals`;
+  } catch (e) {
+    if (!(e instanceof ElxProblem)) throw e;
+    text = `PPML on the same rows could not be fitted: ${e.message}`;
+  }
+  rows.push(["PPML contrast", text]);
+  return rows;
+}
+
 function ppmlSummaryRows(fit: PpmlFit, o: Options): [string, Cell][] {
   const s = fit.statistics();
   const cov = fit.covariance(seTypeOf(o), o.lags);
@@ -187,6 +218,7 @@ export function summaryTable(y: unknown, x: unknown, opts: unknown, invocation: 
       ["BIC", num(s.bic, "BIC is undefined for an exact fit")],
       ...retransformRows(fit),
       ...collinearityRows(fit),
+      ...ppmlContrastRows(fit, o, y, x, invocation),
       ["Caution", CAUTION],
     ];
     return table(["Statistic", "Value"], rows, o);

@@ -160,6 +160,11 @@ export interface RawData {
   leftOutBlankRows: number[];
   /** Rows at the bottom blank in every column, trimmed and not counted (whole-column references). */
   trailingBlank: number;
+  /** Sheet (or range) row of the first data row, and the number of data rows read (after trimming). */
+  firstRow: number;
+  dataRows: number;
+  /** Whether y had a header row (a keys range beside it then has one too). */
+  yHeader: boolean;
 }
 
 /** Makes names unique by adding " (2)", " (3)" to repeats. */
@@ -248,6 +253,9 @@ export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null,
     leftOutBlank: leftOut,
     leftOutBlankRows: blankRows,
     trailingBlank: trailing,
+    firstRow: yr.firstRow,
+    dataRows: rows,
+    yHeader: yr.header,
   };
 }
 

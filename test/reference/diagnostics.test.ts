@@ -418,10 +418,6 @@ for (const [dataset, c] of Object.entries(ref.cases)) {
             const peP = rowOf(t, "PE test p-value", where);
             check(peP[1], pe.p_log, `FORMCHECK PE p (${se})`, `${where} PE p (logs)`);
             check(peP[2], pe.p_lin, `FORMCHECK PE p (${se})`, `${where} PE p (levels)`);
-            // R: sum(fitted(lm(y ~ X)) <= 0) (those rows are NaN in petest's log(fit(M1)) and dropped by lm)
-            const left = rowOf(t, "PE test: rows left out (fitted level ≤ 0)", where);
-            expect(left[1]).toBe(fc.pe_rows_left_out);
-            expect(left[2]).toBe("");
             // R: mean(d^3) / mean(d^2)^1.5, d = resid - mean(resid), of lm(log(y) ~ X) and lm(y ~ X)
             const sk = rowOf(t, "Residual skewness", where);
             check(sk[1], fc.skewness.log, "FORMCHECK residual skewness", `${where} skewness (logs)`);
@@ -440,6 +436,17 @@ for (const [dataset, c] of Object.entries(ref.cases)) {
             expect((reading[2] as string).length).toBeGreaterThan(0);
           });
         }
+
+        it(`FORMCHECK ${dataset} ${form}: PE test rows left out (fitted level ≤ 0) = ${fc.pe_rows_left_out}, layout [0, count]`, () => {
+          const where = `${dataset} ${form} FORMCHECK`;
+          const t = table(invoke("FORMCHECK", y, x, opt), where);
+          // R: sum(fitted(lm(y ~ X)) <= 0) (those rows are NaN in petest's log(fit(M1)) and dropped by lm)
+          // layout: [0, count]: the rows belong to the level model's auxiliary regression ("y in levels")
+          const left = rowOf(t, "PE test: rows left out (fitted level ≤ 0)", where);
+          if (left[1] !== 0 || left[2] !== fc.pe_rows_left_out) {
+            throw new Error(`${where} PE rows left out: got [${show(left[1])}, ${show(left[2])}], expected [0, ${fc.pe_rows_left_out}] (R: sum(fitted(lm(y ~ X)) <= 0); layout [0, count])`);
+          }
+        });
       });
     }
   });

@@ -1,0 +1,72 @@
+/** ELX.BYGROUP: one row of elasticities per segment. */
+import { getGroups } from "../engine/byGroup";
+import { seTypeOf } from "../engine/options";
+import { ElxProblem } from "../engine/problems";
+import { elasticity } from "../engine/elasticity";
+import { breuschPaganKoenker } from "../engine/specTests";
+import type { OlsFit } from "../engine/fit";
+import { guarded, hostError, num, options, originsOf, table, type Cell, type Table } from "./host";
+
+function safe(compute: () => Cell): Cell {
+  try {
+    return compute();
+  } catch (e) {
+    if (e instanceof ElxProblem) return hostError(e.kind, e.message);
+    throw e;
+  }
+}
+
+export function byGroupTable(keys: unknown, y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
+  return guarded(() => {
+    const o = options(opts);
+    const origins = originsOf(invocation);
+    const g = getGroups(keys, y, x, o, origins[1] ?? null, origins[2] ?? null);
+    const ppml = o.estimator === "ppml";
+    const se = seTypeOf(o);
+    const header = ["Group", "Observations"];
+    g.xNames.forEach((n) => header.push(`Elasticity: ${n}`, `Std. error: ${n}`));
+    header.push(ppml ? "Pseudo R²" : "R²");
+    if (!ppml) header.push("Breusch–Pagan p");
+    const width = header.length;
+    const body: Table = g.groups.map((grp) => {
+      const row: Cell[] = [grp.key, grp.rows];
+      const fit = grp.fit;
+      if (!fit) {
+        row.push(`cannot fit: ${(grp.problem as ElxProblem).message}`);
+        while (row.length < width) row.push("");
+        return row;
+      }
+      row[1] = fit.n;
+      let cov: ReturnType<typeof fit.covariance> | null = null;
+      let covProblem: Cell | null = null;
+      try {
+        cov = fit.covariance(se, o.lags);
+      } catch (e) {
+        if (!(e instanceof ElxProblem)) throw e;
+        covProblem = hostError(e.kind, e.message);
+      }
+      g.xNames.forEach((name, j) => {
+        if (fit.data.binary[j]) {
+          const e = hostError("na", `${name} is binary (0/1) here: its effect is a percent change; see ELX.EFFECTS on this group`);
+          row.push(e, e);
+        } else if (!cov) row.push(covProblem as Cell, covProblem as Cell);
+        else {
+          const r = elasticity(fit, j, cov, o.level, o.at);
+          row.push(num(r.estimate), num(r.se));
+        }
+      });
+      if (fit.estimator === "ppml") row.push(num(fit.statistics().pseudoRSquared));
+      else {
+        row.push(num(fit.statistics().rSquared, "R² is undefined: y does not vary in this group"));
+        row.push(safe(() => num(fit.memo("test:bp", () => breuschPaganKoenker(fit as OlsFit)).pValue)));
+      }
+      return row;
+    });
+    if (g.blankKeys > 0) {
+      const row: Cell[] = ["(blank key)", g.blankKeys, "rows with a blank key are left out"];
+      while (row.length < width) row.push("");
+      body.push(row);
+    }
+    return table(header, body, o);
+  });
+}

@@ -1,0 +1,118 @@
+/**
+ * One fit per segment: the rows of y and x split by a key column (product, store, region).
+ *
+ * The cells are read once; rows are bucketed by key in one pass (first-appearance order), and each
+ * bucket goes through the same transforms and estimator as a fit of that segment's rows alone, so a
+ * group's numbers equal ELX.ELASTICITIES on its rows. A group that cannot be fitted keeps its reason
+ * and the others still come. Rows with a blank key are left out and counted.
+ */
+import { readYX, asMatrix, type Origin, type RawData } from "./intake";
+import { prepare } from "./transforms";
+import { OlsFit } from "./fit";
+import { PpmlFit } from "./ppml";
+import { ElxProblem, fail } from "./problems";
+import { modelKey, type Options } from "./options";
+import { BoundedCache, hashCells, type Sized } from "./cache";
+import type { AnyFit } from "./model";
+
+export interface GroupFit {
+  key: string;
+  /** Usable rows of the group (before any zeros=drop). */
+  rows: number;
+  fit: AnyFit | null;
+  problem: ElxProblem | null;
+}
+
+export interface Groups {
+  groups: GroupFit[];
+  blankKeys: number;
+  xNames: string[];
+  yName: string;
+}
+
+function keyText(v: unknown): string | null {
+  if (v === null || v === undefined) return null;
+  if (typeof v === "string") return v.trim() === "" ? null : v.trim();
+  if (typeof v === "number") return Number.isFinite(v) ? String(v) : null;
+  if (typeof v === "boolean") return v ? "TRUE" : "FALSE";
+  if (typeof v === "object") {
+    const basic = (v as { basicValue?: unknown }).basicValue;
+    if (basic !== undefined && typeof basic !== "object") return keyText(basic);
+  }
+  return null; // error cells and anything else: no key
+}
+
+/**
+ * Splits the rows by key and fits each group.
+ * @param keys one column, same height as y (with a header row when y has one)
+ */
+export function fitGroups(keys: unknown, y: unknown, x: unknown, o: Options, yOrigin: Origin | null, xOrigin: Origin | null): Groups {
+  const km = asMatrix(keys, "keys");
+  if (km[0].length !== 1) fail(`keys must be one column (it has ${km[0].length}); give the column of product, store or region names`);
+  const raw = readYX(y, x, yOrigin, xOrigin);
+  const start = raw.yHeader ? 1 : 0;
+  const keyRows = km.length - start;
+  if (keyRows < raw.dataRows || keyRows > raw.dataRows + raw.trailingBlank) {
+    fail(`keys has ${km.length} rows but y has ${raw.dataRows + raw.trailingBlank + start}; give keys the same rows as y`);
+  }
+  // Bucket the usable rows by key, in first-appearance order over all rows.
+  const order: string[] = [];
+  const members = new Map<string, number[]>();
+  const leftOut = new Map<string, number>();
+  const used = new Uint8Array(raw.dataRows);
+  for (let w = 0; w < raw.rowNumbers.length; w++) used[raw.rowNumbers[w] - raw.firstRow] = 1;
+  const usedPos = new Int32Array(raw.dataRows).fill(-1);
+  for (let w = 0; w < raw.rowNumbers.length; w++) usedPos[raw.rowNumbers[w] - raw.firstRow] = w;
+  let blankKeys = 0;
+  for (let i = 0; i < raw.dataRows; i++) {
+    const key = keyText(km[i + start][0]);
+    if (key === null) {
+      blankKeys++;
+      continue;
+    }
+    if (!members.has(key)) {
+      members.set(key, []);
+      leftOut.set(key, 0);
+      order.push(key);
+    }
+    if (used[i]) (members.get(key) as number[]).push(usedPos[i]);
+    else leftOut.set(key, (leftOut.get(key) as number) + 1);
+  }
+  if (order.length === 0) fail("every key is blank: give keys the product, store or region of each row");
+  const groups = order.map((key): GroupFit => {
+    const idx = members.get(key) as number[];
+    const pick = (c: Float64Array) => Float64Array.from(idx, (w) => c[w]);
+    const sub: RawData = {
+      ...raw,
+      y: pick(raw.y),
+      x: raw.x.map(pick),
+      rowNumbers: Int32Array.from(idx, (w) => raw.rowNumbers[w]),
+      leftOutBlank: leftOut.get(key) as number,
+      leftOutBlankRows: [],
+    };
+    try {
+      if (idx.length === 0) fail("no usable row: every row of this group has a blank, text or error cell");
+      const data = prepare(sub, o);
+      const fit = o.estimator === "ppml" ? new PpmlFit(data, o.intercept) : new OlsFit(data, o.intercept);
+      return { key, rows: idx.length, fit, problem: null };
+    } catch (e) {
+      if (!(e instanceof ElxProblem)) throw e;
+      return { key, rows: idx.length, fit: null, problem: e };
+    }
+  });
+  return { groups, blankKeys, xNames: raw.xNames, yName: raw.yName };
+}
+
+const groupCache = new BoundedCache<Groups & Sized>(8, 20_000_000);
+
+/** The grouped fits for these cells and model options, from the cache when seen before. */
+export function getGroups(keys: unknown, y: unknown, x: unknown, o: Options, yOrigin: Origin | null, xOrigin: Origin | null): Groups {
+  const p = (q: Origin | null) => (q ? `${q.row},${q.column}` : "-");
+  const key = [hashCells(keys, 3), hashCells(y, 1), hashCells(x, 2), modelKey(o), p(yOrigin), p(xOrigin)].join("/");
+  const hit = groupCache.get(key);
+  if (hit) return hit;
+  const g = fitGroups(keys, y, x, o, yOrigin, xOrigin);
+  const size = g.groups.reduce((s, e) => s + (e.fit ? e.fit.n * (e.fit.k + 6) : 1), 0);
+  groupCache.set(key, { ...g, size });
+  return g;
+}
