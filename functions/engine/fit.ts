@@ -13,6 +13,9 @@ import type { SeType } from "./options";
 
 export const INTERCEPT = "(Intercept)";
 
+/** Relative size of RSS (to Σy²) below which a fit counts as exact: far below any real data's noise. */
+export const EXACT_FIT = 1e-24;
+
 export interface Term {
   name: string;
   /** Index in dataset.x, or −1 for the intercept. */
@@ -241,7 +244,20 @@ export class OlsFit extends Model {
 
   /** Refuses a perfect fit where a quantity needs residual variation. */
   requireResidualVariation(what: string): void {
-    if (!(this.rss > 0)) unavailable(`the fit is exact (every residual is zero), so ${what} is undefined`);
+    if (this.isExact()) unavailable(`the fit is exact (every residual is zero up to rounding), so ${what} is undefined`);
+  }
+
+  /**
+   * An exact fit: the residuals are rounding noise. RSS below EXACT_FIT·Σy² (Σy² uncentred, so the
+   * rule does not depend on where y is centred) cannot be told from zero in double precision.
+   */
+  isExact(): boolean {
+    return this.memo("exact", () => {
+      let yy = 0;
+      const y = this.data.y;
+      for (let i = 0; i < y.length; i++) yy += y[i] * y[i];
+      return !(this.rss > EXACT_FIT * yy);
+    });
   }
 }
 
