@@ -5,11 +5,11 @@
 import { seTypeOf, type Form } from "../engine/options";
 import { fail, nearest, ElxProblem } from "../engine/problems";
 import { asMatrix, originOf } from "../engine/intake";
-import { apply } from "../engine/transforms";
+import { apply, LEVEL } from "../engine/transforms";
 import { predictRow, retransformFactor } from "../engine/retransform";
 import { heteroTest, jarqueBera, moments, reset, breuschPaganKoenker, breuschPaganOriginal, white, whiteSpecial, type HeteroTest, type TestResult } from "../engine/specTests";
 import { boxCox, peTest, readEvidence } from "../engine/formCheck";
-import type { OlsFit } from "../engine/fit";
+import { OlsFit } from "../engine/fit";
 import { getOlsFit, type AnyFit } from "../engine/model";
 import { fitFor, olsFor } from "./regression";
 import { guarded, hostError, levelLabel, num, options, originsOf, table, toHostError, type Cell, type Table } from "./host";
@@ -147,6 +147,12 @@ export function testsTable(y: unknown, x: unknown, opts: unknown, invocation: un
   });
 }
 
+/** The same rows and x side with y back in levels. */
+function levelTwin(logFit: OlsFit): OlsFit {
+  const d = logFit.data;
+  return new OlsFit({ ...d, y: Float64Array.from(d.y, Math.exp), yTransform: LEVEL }, logFit.intercept);
+}
+
 function otherSide(form: Form, y: "log" | "level"): Form {
   const xSide = form.endsWith("-log") ? "log" : "level";
   return `${y}-${xSide}` as Form;
@@ -159,15 +165,19 @@ export function formCheckTable(y: unknown, x: unknown, opts: unknown, invocation
     if (o.zeros === "shift" || o.zeros === "ihs") fail(`ELX.FORMCHECK compares plain logs with levels; zeros=${o.zeros} changes the log, so Box–Cox does not apply: use zeros=stop or zeros=drop on data with y above zero`);
     const [yo, xo] = originsOf(invocation);
     const get = (form: Form): OlsFit => getOlsFit({ y, x, options: { ...o, form }, yOrigin: yo ?? null, xOrigin: xo ?? null }, "ELX.FORMCHECK");
-    const levelFit = get(otherSide(o.form, "level"));
-    const yv = levelFit.data.y;
-    for (let i = 0; i < yv.length; i++) {
-      if (!(yv[i] > 0)) {
-        fail(`Box–Cox and the log of y need y above zero, and ${levelFit.data.yName} has a zero or negative value (row ${levelFit.data.rowNumbers[i]}); the comparison is undefined: use zeros=drop to compare on the positive rows, or estimator=ppml, which keeps zeros`);
+    if (o.zeros !== "drop") {
+      // Check y first for the message that fits a form comparison (the log fit's would name the log).
+      const probe = get(otherSide(o.form, "level"));
+      const yv = probe.data.y;
+      for (let i = 0; i < yv.length; i++) {
+        if (!(yv[i] > 0)) {
+          fail(`Box–Cox and the log of y need y above zero, and ${probe.data.yName} has a zero or negative value (row ${probe.data.rowNumbers[i]}); the comparison is undefined: use zeros=drop to compare on the rows above zero, or estimator=ppml, which keeps zeros`);
+        }
       }
     }
     const logFit = get(otherSide(o.form, "log"));
-    if (logFit.n !== levelFit.n) fail("the log and level fits use different rows (a regressor has zeros under zeros=drop); use zeros=stop or clean the x columns");
+    // The level fit on exactly the rows of the log fit (under zeros=drop those are the rows above zero).
+    const levelFit = logFit.memo("levelTwin", () => levelTwin(logFit));
     const se = seTypeOf(o);
     const bc = levelFit.memo(`boxcox:${o.level}`, () => boxCox(levelFit, o.level));
     const pe = logFit.memo(`pe:${se}:${o.lags}`, () => peTest(logFit, levelFit, se, o.lags));

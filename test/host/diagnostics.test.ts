@@ -91,7 +91,7 @@ describe("bad input", () => {
     ["an unknown heteroskedasticity test", () => call(reg, "HETEROTEST", Y, X, "whit", null), /test "whit" is not known; did you mean white\?/],
     ["White with more terms than rows", () => call(reg, "HETEROTEST", Y.slice(0, 9), rows([price, foot, promo, price.map((p, i) => p * foot[i] % 7 + 1)], ["Price", "Footfall", "Promo", "Other"]).slice(0, 9), "white", null), /White's test needs \d+ auxiliary terms.*white-special/],
     ["a perfect fit leaves tests undefined", () => call(reg, "NORMALTEST", [1, 2, 3, 4, 5, 6].map((v) => [Math.exp(1 + 2 * Math.log(v)) * 1]), [1, 2, 3, 4, 5, 6].map((v) => [v]), null), /exact|undefined/],
-    ["FORMCHECK with zeros in y", () => call(reg, "FORMCHECK", rows([[0, ...units.slice(1)]], ["Units"]), X, "zeros=drop"), /Box–Cox.*above zero.*estimator=ppml/],
+    ["FORMCHECK with zeros in y", () => call(reg, "FORMCHECK", rows([[0, ...units.slice(1)]], ["Units"]), X, null), /Box–Cox.*above zero.*zeros=drop.*estimator=ppml/],
     ["tests under ppml", () => call(reg, "TESTS", Y, X, "estimator=ppml"), /least-squares fits.*drop estimator=ppml/],
     ["negative y under ppml", () => call(reg, "FIT", rows([[-3, ...units.slice(1)]], ["Units"]), X, "estimator=ppml"), /Units has 1 negative value \(row 2\); PPML/],
     ["HC3 under ppml", () => call(reg, "FIT", Y, X, "estimator=ppml; se=HC3"), /se=HC3 is not offered with estimator=ppml/],
@@ -105,6 +105,13 @@ describe("bad input", () => {
       expect(e.message).toMatch(message);
     });
   }
+
+  it("FORMCHECK with zeros=drop compares both forms on the rows above zero", () => {
+    const y = rows([[0, ...units.slice(1)]], ["Units"]);
+    const dropped = call(reg, "FORMCHECK", y, X, "zeros=drop") as unknown[][];
+    const by = call(reg, "FORMCHECK", rows([units.slice(1)], ["Units"]), [X[0], ...X.slice(2)], null) as unknown[][];
+    expect(lookup(dropped, "Box–Cox λ̂") as number).toBeCloseTo(lookup(by, "Box–Cox λ̂") as number, 9);
+  });
 
   it("under ppml the zeros in y are kept and counted", () => {
     const y = rows([[0, 0, ...units.slice(2)]], ["Units"]);
