@@ -37,11 +37,19 @@ function qRows(X: Float64Array[], qr: QrFit, inv: Float64Array, start: number, m
     const src = X[j];
     const s = inv[j];
     for (let i = 0; i < m; i++) Z[o + i] = src[start + i] * s;
-    for (let l = 0; l < j; l++) {
-      const r = R[l * k + j];
-      if (r === 0) continue;
-      const ol = l * BLOCK;
-      for (let i = 0; i < m; i++) Z[o + i] -= r * Z[ol + i];
+    // two earlier columns per pass: half the passes over the block
+    let l = 0;
+    for (; l + 1 < j; l += 2) {
+      const r0 = R[l * k + j];
+      const r1 = R[(l + 1) * k + j];
+      const o0 = l * BLOCK;
+      const o1 = o0 + BLOCK;
+      for (let i = 0; i < m; i++) Z[o + i] -= r0 * Z[o0 + i] + r1 * Z[o1 + i];
+    }
+    if (l < j) {
+      const r0 = R[l * k + j];
+      const o0 = l * BLOCK;
+      for (let i = 0; i < m; i++) Z[o + i] -= r0 * Z[o0 + i];
     }
     const d = 1 / R[j * k + j];
     for (let i = 0; i < m; i++) Z[o + i] *= d;

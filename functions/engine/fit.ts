@@ -180,8 +180,13 @@ export class OlsFit extends Model {
     return this.qr.resid;
   }
 
+  /** Fitted values ŷ = y − e on the fitted scale (computed on first use). */
   get fitted(): Float64Array {
-    return this.qr.fitted;
+    return this.memo("fitted", () => {
+      const y = this.data.y;
+      const e = this.qr.resid;
+      return Float64Array.from(y, (v, i) => v - e[i]);
+    });
   }
 
   get rss(): number {

@@ -53,7 +53,6 @@ export interface QrFit {
   /** Coefficients in the original units of the columns. */
   coef: Float64Array;
   resid: Float64Array;
-  fitted: Float64Array;
   rss: number;
   /** 1-norm condition estimate of the column-scaled design. */
   condition: number;
@@ -242,14 +241,9 @@ export function leastSquares(X: Float64Array[], y: Float64Array, onDependent: (d
       for (let i = 0; i < n; i++) resid[i] -= bj * xj[i];
     }
   }
-  const fitted = new Float64Array(n);
   let rss = 0;
-  for (let i = 0; i < n; i++) {
-    const e = resid[i];
-    fitted[i] = y[i] - e;
-    rss += e * e;
-  }
-  return { n, k, R, Rinv, scale, coef, resid, fitted, rss, condition, refined };
+  for (let i = 0; i < n; i++) rss += resid[i] * resid[i];
+  return { n, k, R, Rinv, scale, coef, resid, rss, condition, refined };
 }
 
 /** κ₁(R) = ‖R‖₁‖R⁻¹‖₁ of the column-scaled design. */

@@ -126,7 +126,7 @@ export class PpmlFit extends Model {
     const pearson = Float64Array.from(y, (v, i) => (v - mu[i]) / Math.sqrt(mu[i]));
     let rss = 0;
     for (let i = 0; i < n; i++) rss += pearson[i] * pearson[i];
-    this.qr = { ...q, resid: pearson, rss, fitted: mu };
+    this.qr = { ...q, resid: pearson, rss };
     this.covDesign = A;
   }
 

@@ -43,7 +43,6 @@ interface AuxFit {
   tss: number;
   /** Columns kept (intercept included). */
   kept: number;
-  fitted: Float64Array;
 }
 
 /**
@@ -66,7 +65,7 @@ export function auxiliary(v: Float64Array, W: Float64Array[]): AuxFit {
       mean /= n;
       let tss = 0;
       for (let i = 0; i < n; i++) tss += (v[i] - mean) * (v[i] - mean);
-      return { rss: q.rss, tss, kept: cols.length, fitted: q.fitted };
+      return { rss: q.rss, tss, kept: cols.length };
     } catch (e) {
       if (!(e instanceof Dropped) || e.column === 0) throw e;
       cols = cols.filter((_, j) => j !== e.column);
