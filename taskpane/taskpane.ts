@@ -1,14 +1,527 @@
 /*
- * The side pane (shared runtime with the custom functions). Placeholder until the pane's issue:
- * it only reports that the functions are loaded. Guarded so that it is inert outside the host.
+ * The Elasticell pane (shared runtime with the custom functions). It reads the y and x ranges through
+ * taskpane/host.ts, checks the data (taskpane/check.ts), reads fits through the functions' own global
+ * (globalThis.Elasticell, published by functions.js: the same cache the cells use), draws the pictures
+ * (taskpane/charts.ts) and writes a block of ELX formulas (taskpane/formulas.ts) only when asked and
+ * only into empty cells. It builds its own DOM inside #elx-pane, so the host page and the preview
+ * page show the same pane.
+ *
+ * Long work is split into steps that yield to the page, with a progress bar after half a second.
  */
-export function paneStatus(): string {
-  return "Elasticell functions are loaded.";
+import css from "./pane.css";
+import { engineValues, Host, hostRunner, type RangeSnapshot } from "./host";
+import { checkData, yieldToPage, type CheckResult, type Estimator, type Form } from "./check";
+import { intervalPlot, quantilePlot, residualPlot, shortNumber, type IntervalRow } from "./charts";
+import { CAUTIONS, formAssumptions, testReadings } from "./assumptions";
+import { buildBlock, type BlockItem } from "./formulas";
+import { formatAddress } from "./address";
+
+type Outcome<T> = { ok: true; value: T } | { ok: false; message: string };
+
+interface FitView {
+  n: number;
+  yName: string;
+  xNames: string[];
+  yTransform: string;
+  xTransforms: string[];
+  binary: boolean[];
+  residuals: ArrayLike<number>;
+  fitted: ArrayLike<number>;
+  seLabel: string;
+  leftOutBlank: number;
+  leftOutNonPositive: number;
 }
 
+interface EngineApi {
+  call(id: string, ...args: unknown[]): Outcome<unknown>;
+  fitView(y: unknown[][], x: unknown[][], options: string | null, yOrigin?: unknown, xOrigin?: unknown): Outcome<FitView>;
+}
+
+function engine(): EngineApi | null {
+  const e = (globalThis as unknown as { Elasticell?: EngineApi }).Elasticell;
+  return e && typeof e.call === "function" ? e : null;
+}
+
+export interface Choices {
+  form: Form;
+  estimator: Estimator;
+  se: string;
+  zeros: string;
+  level: string;
+}
+
+/** The options text for the chosen controls (estimator only when not the default). */
+export function optionsText(c: Choices, override: Partial<Choices> = {}): string {
+  const o = { ...c, ...override };
+  const parts = [`form=${o.form}`];
+  if (o.estimator === "ppml") parts.push("estimator=ppml");
+  parts.push(`se=${o.se}`, `zeros=${o.zeros}`, `level=${o.level}`);
+  return parts.join("; ");
+}
+
+const esc = (s: unknown): string => String(s).replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
+const fmt = (n: number): string => n.toLocaleString("en-GB");
+const pText = (p: unknown): string => (typeof p === "number" && Number.isFinite(p) ? (p < 0.0001 ? "p < 0.0001" : `p = ${p.toFixed(4)}`) : "p not available");
+const cellText = (v: unknown): string => (typeof v === "number" ? (Number.isFinite(v) ? shortNumber(v) : "–") : v && typeof v === "object" ? "n/a" : String(v ?? ""));
+
+function table2d(v: unknown): unknown[][] | null {
+  return Array.isArray(v) && v.every((r) => Array.isArray(r)) ? (v as unknown[][]) : null;
+}
+
+export interface Timings {
+  read: number;
+  check: number;
+  pictures: number;
+  choices: number;
+  assumptions: number;
+  total: number;
+}
+
+const TEMPLATE = `
+<header>
+  <h1>Elasticell</h1>
+  <p class="elx-sub">See what a log does to your ranges, and what the model assumes, before trusting a number.</p>
+</header>
+<section aria-labelledby="elx-h-ranges">
+  <h2 id="elx-h-ranges">Ranges and model</h2>
+  <div class="elx-field">
+    <label for="elx-y">y: the dependent variable (one column, header on top)</label>
+    <div class="elx-inline"><input id="elx-y" type="text" spellcheck="false" autocomplete="off" placeholder="e.g. Sales!C1:C1249" />
+    <button type="button" id="elx-y-sel" aria-describedby="elx-sel-note">Use selection</button></div>
+  </div>
+  <div class="elx-field">
+    <label for="elx-x">x: the regressors (one or more columns, same rows)</label>
+    <div class="elx-inline"><input id="elx-x" type="text" spellcheck="false" autocomplete="off" placeholder="e.g. Sales!D1:G1249" />
+    <button type="button" id="elx-x-sel" aria-describedby="elx-sel-note">Use selection</button></div>
+  </div>
+  <p id="elx-sel-note" class="elx-muted">"Use selection" copies the selected cells' address. A first row that is all text is read as the header row.</p>
+  <div class="elx-options">
+    <div><label for="elx-form">Form (y – x)</label>
+      <select id="elx-form"><option value="log-log">log y – log x</option><option value="log-level">log y – x in levels</option><option value="level-log">y in levels – log x</option><option value="level-level">levels – levels</option></select></div>
+    <div><label for="elx-estimator">Estimator</label>
+      <select id="elx-estimator"><option value="ols">least squares</option><option value="ppml">PPML (keeps zero y)</option></select></div>
+    <div><label for="elx-zeros">Zeros under a log</label>
+      <select id="elx-zeros"><option value="stop">stop and tell me</option><option value="drop">leave those rows out</option><option value="shift">log(v + 1)</option><option value="ihs">inverse hyperbolic sine</option></select></div>
+    <div><label for="elx-se">Standard errors</label>
+      <select id="elx-se"><option>HC3</option><option>HC1</option><option>HC0</option><option>HC2</option><option value="classical">classical</option><option value="HAC">HAC (weekly series)</option></select></div>
+    <div><label for="elx-level">Interval level</label>
+      <select id="elx-level"><option value="0.9">90%</option><option value="0.95" selected>95%</option><option value="0.99">99%</option></select></div>
+  </div>
+  <button type="button" id="elx-run" class="elx-primary">Check ranges and model</button>
+  <div id="elx-status" class="elx-status" role="status" aria-live="polite"></div>
+  <progress id="elx-progress" class="elx-hidden" max="1" value="0" aria-label="Progress of the check"></progress>
+</section>
+<section id="elx-check" class="elx-hidden" aria-labelledby="elx-h-check">
+  <h2 id="elx-h-check">Data check</h2>
+  <div id="elx-check-body"></div>
+</section>
+<section id="elx-choices" class="elx-hidden" aria-labelledby="elx-h-choices">
+  <h2 id="elx-h-choices">Zero choices side by side</h2>
+  <div id="elx-choices-body"></div>
+</section>
+<section id="elx-pictures" class="elx-hidden" aria-labelledby="elx-h-pictures">
+  <h2 id="elx-h-pictures">Pictures</h2>
+  <div id="elx-pictures-body"></div>
+</section>
+<section id="elx-assume" class="elx-hidden" aria-labelledby="elx-h-assume">
+  <h2 id="elx-h-assume">What this form assumes</h2>
+  <div id="elx-assume-body"></div>
+</section>
+<section id="elx-write" aria-labelledby="elx-h-write">
+  <h2 id="elx-h-write">Put the formulas in the sheet</h2>
+  <p class="elx-muted">Writes ELX.FIT, ELX.ELASTICITIES, ELX.TESTS and ELX.SUMMARY for these ranges and options, so the results live in the workbook and recalculate with the data. Only empty cells are used.</p>
+  <div class="elx-field">
+    <label for="elx-target">Top left cell of the block</label>
+    <div class="elx-inline"><input id="elx-target" type="text" spellcheck="false" autocomplete="off" value="I2" />
+    <button type="button" id="elx-write-btn">Write ELX formulas</button></div>
+  </div>
+  <div id="elx-write-msg" role="status" aria-live="polite"></div>
+</section>
+<section aria-labelledby="elx-h-care">
+  <h2 id="elx-h-care">Read with care</h2>
+  <ul class="elx-cautions">${CAUTIONS.map((c) => `<li>${esc(c)}</li>`).join("")}</ul>
+</section>`;
+
+interface RunState {
+  y: RangeSnapshot;
+  x: RangeSnapshot;
+  yCells: unknown[][];
+  xCells: unknown[][];
+  choices: Choices;
+  check: CheckResult;
+}
+
+export class Pane {
+  private readonly el: Record<string, HTMLElement>;
+  private runId = 0;
+  state: RunState | null = null;
+  lastTimings: Timings | null = null;
+  busy = false;
+
+  constructor(private readonly root: HTMLElement, private readonly host: Host) {
+    root.classList.add("elx-pane");
+    root.innerHTML = TEMPLATE;
+    const q = (id: string) => root.querySelector(`#${id}`) as HTMLElement;
+    this.el = Object.fromEntries(
+      ["elx-y", "elx-x", "elx-form", "elx-estimator", "elx-zeros", "elx-se", "elx-level", "elx-run", "elx-status", "elx-progress", "elx-check", "elx-check-body",
+        "elx-choices", "elx-choices-body", "elx-pictures", "elx-pictures-body", "elx-assume", "elx-assume-body", "elx-target", "elx-write-btn", "elx-write-msg", "elx-y-sel", "elx-x-sel"]
+        .map((id) => [id, q(id)]),
+    );
+    this.el["elx-y-sel"].addEventListener("click", () => void this.useSelection("elx-y"));
+    this.el["elx-x-sel"].addEventListener("click", () => void this.useSelection("elx-x"));
+    this.el["elx-run"].addEventListener("click", () => void this.run());
+    this.el["elx-write-btn"].addEventListener("click", () => void this.write());
+    for (const id of ["elx-y", "elx-x"]) {
+      this.el[id].addEventListener("keydown", (e) => {
+        if ((e as KeyboardEvent).key === "Enter") void this.run();
+      });
+    }
+    this.el["elx-target"].addEventListener("keydown", (e) => {
+      if ((e as KeyboardEvent).key === "Enter") void this.write();
+    });
+  }
+
+  private input(id: string): HTMLInputElement {
+    return this.el[id] as HTMLInputElement;
+  }
+
+  choices(): Choices {
+    const v = (id: string) => (this.el[id] as HTMLInputElement | HTMLSelectElement).value;
+    return { form: v("elx-form") as Form, estimator: v("elx-estimator") as Estimator, se: v("elx-se"), zeros: v("elx-zeros"), level: v("elx-level") };
+  }
+
+  private status(text: string): void {
+    this.el["elx-status"].textContent = text;
+  }
+
+  private show(id: string, html: string): void {
+    this.el[`${id}-body`].innerHTML = html;
+    this.el[id].classList.remove("elx-hidden");
+  }
+
+  async useSelection(field: "elx-y" | "elx-x"): Promise<void> {
+    const r = await this.host.readSelection();
+    if (!r.ok) {
+      this.status(`The selection could not be used: ${r.message}.`);
+      return;
+    }
+    this.input(field).value = r.value.requested;
+    this.status(`${field === "elx-y" ? "y" : "x"} set to ${r.value.requested}.`);
+  }
+
+  /** Reads the ranges, checks them and draws everything; returns when all steps are done. */
+  async run(): Promise<void> {
+    const id = ++this.runId;
+    const t0 = performance.now();
+    const stale = () => id !== this.runId;
+    const progress = this.el["elx-progress"] as HTMLProgressElement;
+    let shown = false;
+    const timer = setTimeout(() => {
+      shown = true;
+      progress.classList.remove("elx-hidden");
+    }, 500);
+    const step = (label: string, fraction: number) => {
+      progress.value = fraction;
+      this.status(label);
+    };
+    this.busy = true;
+    this.root.setAttribute("aria-busy", "true");
+    try {
+      for (const s of ["elx-check", "elx-choices", "elx-pictures", "elx-assume"]) this.el[s].classList.add("elx-hidden");
+      this.el["elx-write-msg"].textContent = "";
+      const yText = this.input("elx-y").value.trim();
+      const xText = this.input("elx-x").value.trim();
+      if (!yText || !xText) {
+        this.status(`Give ${!yText && !xText ? "the y and x ranges" : !yText ? "the y range" : "the x range"} first: type an address or select the cells and press "Use selection".`);
+        return;
+      }
+      step("Reading the ranges…", 0.02);
+      const [y, x] = [await this.host.readAddress(yText), await this.host.readAddress(xText)];
+      if (stale()) return;
+      if (!y.ok || !x.ok) {
+        this.status(`${!y.ok ? `y: ${y.message}. ` : ""}${!x.ok ? `x: ${x.message}.` : ""}`.trim());
+        return;
+      }
+      const tRead = performance.now();
+      const choices = this.choices();
+      step("Checking the data…", 0.05);
+      const check = await checkData({ y: y.value, x: x.value, form: choices.form, estimator: choices.estimator }, (f) => step("Checking the data…", 0.05 + 0.25 * f));
+      if (stale()) return;
+      this.renderCheck(check, y.value, x.value);
+      const tCheck = performance.now();
+      this.state = { y: y.value, x: x.value, yCells: engineValues(y.value), xCells: engineValues(x.value), choices, check };
+      const eng = engine();
+      if (!eng) {
+        this.status("The ELX functions are not loaded in this page, so no fit can be shown (the data check above still holds).");
+        return;
+      }
+      if (!check.canFit) {
+        this.status("The ranges cannot be fitted as they are: see the data check.");
+        return;
+      }
+      step("Fitting and drawing the pictures…", 0.35);
+      await yieldToPage();
+      await this.renderPictures(eng, (f) => step("Fitting and drawing the pictures…", 0.35 + 0.35 * f), stale);
+      if (stale()) return;
+      const tPictures = performance.now();
+      step("Comparing the zero choices…", 0.72);
+      await yieldToPage();
+      await this.renderChoices(eng, stale);
+      if (stale()) return;
+      const tChoices = performance.now();
+      step("Running the specification tests…", 0.88);
+      await yieldToPage();
+      this.renderAssumptions(eng);
+      const tEnd = performance.now();
+      this.lastTimings = { read: tRead - t0, check: tCheck - tRead, pictures: tPictures - tCheck, choices: tChoices - tPictures, assumptions: tEnd - tChoices, total: tEnd - t0 };
+      this.status(`Checked ${fmt(check.rows)} rows × ${check.columns.length} columns in ${((tEnd - t0) / 1000).toFixed(1)} s.`);
+    } catch (e) {
+      this.status(`Something went wrong in the pane (${e instanceof Error ? e.message : String(e)}); the workbook was not changed.`);
+    } finally {
+      clearTimeout(timer);
+      if (id === this.runId) {
+        progress.classList.add("elx-hidden");
+        this.busy = false;
+        this.root.setAttribute("aria-busy", "false");
+      }
+      void shown;
+    }
+  }
+
+  private invocation(): unknown {
+    const s = this.state as RunState;
+    return { parameterAddresses: [s.y.address, s.x.address] };
+  }
+
+  private origins(): [unknown, unknown] {
+    const s = this.state as RunState;
+    return [{ row: s.y.area.top, column: s.y.area.left }, { row: s.x.area.top, column: s.x.area.left }];
+  }
+
+  private callFor(eng: EngineApi, id: string, options: string, extra: unknown[] = []): Outcome<unknown> {
+    const s = this.state as RunState;
+    return eng.call(id, s.yCells, s.xCells, ...extra, options, this.invocation());
+  }
+
+  private renderCheck(c: CheckResult, y: RangeSnapshot, x: RangeSnapshot): void {
+    const head = `<p class="elx-muted">y ${esc(y.address)}, x ${esc(x.address)}${y.clipped || x.clipped ? " (cut to the sheet's used cells)" : ""}: ${fmt(c.rows)} data rows, ${fmt(c.usable)} usable.</p>`;
+    const rows = c.columns.map((col) => `<tr><th scope="row">${esc(col.name)}${col.role === "y" ? " (y)" : ""}</th><td>${fmt(col.values)}</td><td>${fmt(col.blank + col.text + col.errors)}</td><td>${fmt(col.zeros)}</td><td>${fmt(col.negatives)}</td><td>${col.binary ? "binary" : col.logged ? "log" : "levels"}</td></tr>`).join("");
+    const tableHtml = c.columns.length === 0 ? "" : `<div class="elx-table-wrap"><table id="elx-check-table"><caption>Per column, over the data rows</caption><thead><tr><th scope="col">Column</th><th scope="col">Values</th><th scope="col">Blank or non-numeric</th><th scope="col">Zeros</th><th scope="col">Negatives</th><th scope="col">Taken as</th></tr></thead><tbody>${rows}</tbody></table></div>`;
+    const label = { problem: "Problem:", warning: "Warning:", note: "Note:" };
+    const sentences = `<ul class="elx-sentences" id="elx-sentences">${c.sentences.map((s) => `<li class="elx-${s.severity}"><span class="elx-tag">${label[s.severity]}</span>${esc(s.text)}</li>`).join("")}</ul>`;
+    this.show("elx-check", (c.columns.length ? head : "") + tableHtml + sentences);
+  }
+
+  private async renderPictures(eng: EngineApi, progress: (f: number) => void, stale: () => boolean): Promise<void> {
+    const s = this.state as RunState;
+    const c = s.choices;
+    const xSide = c.form === "log-log" || c.form === "level-log" ? "log" : "level";
+    const [yo, xo] = this.origins();
+    const parts: string[] = [];
+    // Residuals against fitted values, y in levels and y in logs, same x side and zero policy (OLS).
+    const figs: string[] = [];
+    const variants: [string, string][] = [[`level-${xSide}`, "y in levels"], [`log-${xSide}`, "y in logs"]];
+    for (let v = 0; v < variants.length; v++) {
+      const [form, label] = variants[v];
+      const opts = optionsText(c, { form: form as Form, estimator: "ols" });
+      const view = eng.fitView(s.yCells, s.xCells, opts, yo, xo);
+      if (!view.ok) {
+        figs.push(`<figure><figcaption><strong>${esc(label)}:</strong> no fit (${esc(view.message)}).</figcaption></figure>`);
+      } else {
+        const yl = form.startsWith("log") ? `log ${view.value.yName}` : view.value.yName;
+        const bp = this.callFor(eng, "HETEROTEST", opts, ["bp"]);
+        const p = bp.ok ? (table2d(bp.value)?.[0]?.[0] as number) : null;
+        const plot = residualPlot({ fitted: view.value.fitted, residuals: view.value.residuals, title: `Residuals against fitted values, ${label}`, xLabel: `Fitted ${yl}`, yLabel: "Residual" });
+        const thinned = plot.drawn < view.value.n ? ` ${fmt(plot.drawn)} of ${fmt(view.value.n)} points drawn.` : "";
+        figs.push(`<figure data-form="${esc(form)}">${plot.svg}<figcaption><strong>${esc(label)}</strong> (${esc(form)}, ${fmt(view.value.n)} rows): Breusch–Pagan ${bp.ok ? pText(p) : `not available (${esc(bp.message)})`}.${thinned}</figcaption></figure>`);
+      }
+      progress((v + 1) / 4);
+      await yieldToPage();
+      if (stale()) return;
+    }
+    parts.push(`<h3>Residuals: levels against logs</h3><p class="elx-muted">A fan (spread growing with the fitted value) or a curve is what the log is meant to remove; a small Breusch–Pagan p says the spread is not constant.</p><div class="elx-pair">${figs.join("")}</div>`);
+    // Normal quantile plot of the chosen form's residuals (the log-y least-squares fit when PPML is chosen).
+    const qForm = c.estimator === "ppml" ? `log-${xSide}` : c.form;
+    const qOpts = optionsText(c, { form: qForm as Form, estimator: "ols" });
+    const qView = eng.fitView(s.yCells, s.xCells, qOpts, yo, xo);
+    if (qView.ok) {
+      const jb = this.callFor(eng, "NORMALTEST", qOpts);
+      const p = jb.ok ? (table2d(jb.value)?.[0]?.[0] as number) : null;
+      const plot = quantilePlot(qView.value.residuals, `Normal quantile plot of the residuals, ${qForm}`);
+      parts.push(`<h3>Are the residuals normal?</h3><figure id="elx-qq">${plot.svg}<figcaption>Residuals of the ${esc(qForm)} fit against a normal curve's quantiles: Jarque–Bera ${jb.ok ? pText(p) : `not available (${esc(jb.message)})`}. Normality matters for the normal-theory factor and small samples, not for robust intervals in large ones.</figcaption></figure>`);
+    } else {
+      parts.push(`<h3>Are the residuals normal?</h3><p>No quantile plot: the ${esc(qForm)} fit did not run (${esc(qView.message)}).</p>`);
+    }
+    progress(3 / 4);
+    await yieldToPage();
+    if (stale()) return;
+    // Elasticities with their intervals, for the chosen options (PPML included).
+    const opts = optionsText(c);
+    const el = this.callFor(eng, "ELASTICITIES", opts);
+    const t = el.ok ? table2d(el.value) : null;
+    if (t) {
+      const rows: IntervalRow[] = [];
+      const binaries: string[] = [];
+      for (const r of t.slice(1)) {
+        if (typeof r[2] === "number" && typeof r[4] === "number" && typeof r[5] === "number") rows.push({ term: String(r[0]), estimate: r[2], lower: r[4], upper: r[5] });
+        else binaries.push(String(r[0]));
+      }
+      const lv = String(t[0][4] ?? "").replace("Lower ", "") || "95%";
+      const txt = t.slice(1).map((r) => `<tr><th scope="row">${esc(r[0])}</th><td>${esc(cellText(r[2]))}</td><td>${esc(cellText(r[4]))}</td><td>${esc(cellText(r[5]))}</td></tr>`).join("");
+      parts.push(`<h3>Elasticities (${esc(c.estimator === "ppml" ? "PPML" : c.form)}, ${esc(String(t[0][3]).replace("Std. error ", "").replace(/[()]/g, ""))} errors)</h3>` +
+        (rows.length ? `<figure id="elx-elasticities">${intervalPlot(rows, "Elasticities with their intervals", lv)}<figcaption>Dots are elasticities, bars their ${esc(lv)} intervals; the black line is zero.</figcaption></figure>` : "") +
+        `<div class="elx-table-wrap"><table><caption>The same numbers${binaries.length ? `; ${esc(binaries.join(", "))}: binary, see ELX.EFFECTS` : ""}</caption><thead><tr><th scope="col">Term</th><th scope="col">Elasticity</th><th scope="col">Lower ${esc(lv)}</th><th scope="col">Upper ${esc(lv)}</th></tr></thead><tbody>${txt}</tbody></table></div>`);
+    } else {
+      parts.push(`<h3>Elasticities</h3><p id="elx-elasticity-error">${c.estimator === "ppml" ? "PPML did not run for these ranges" : "No elasticities for these options"}: ${esc(el.ok ? "unexpected result" : el.message)}.</p>`);
+    }
+    progress(1);
+    this.show("elx-pictures", parts.join(""));
+  }
+
+  private async renderChoices(eng: EngineApi, stale: () => boolean): Promise<void> {
+    const s = this.state as RunState;
+    const c = s.choices;
+    if (s.check.lostToLog === 0) {
+      this.show("elx-choices", `<p>No row is lost to a log here, so the zero choices give the same fit${c.form === "level-level" ? " (nothing is logged in levels – levels)" : ""}.</p>`);
+      return;
+    }
+    const [yo, xo] = this.origins();
+    const choices: { key: string; label: string; options: string }[] = [
+      { key: "drop", label: "leave out", options: optionsText(c, { zeros: "drop", estimator: "ols" }) },
+      { key: "shift", label: "log(v + 1)", options: optionsText(c, { zeros: "shift", estimator: "ols" }) },
+      { key: "ihs", label: "asinh", options: optionsText(c, { zeros: "ihs", estimator: "ols" }) },
+      { key: "ppml", label: "PPML", options: optionsText(c, { zeros: "drop", estimator: "ppml" }) },
+    ];
+    const results: { key: string; label: string; table: unknown[][] | null; message: string; n: number | null }[] = [];
+    for (const ch of choices) {
+      const r = this.callFor(eng, "ELASTICITIES", ch.options);
+      const view = r.ok ? eng.fitView(s.yCells, s.xCells, ch.options, yo, xo) : null;
+      results.push({ key: ch.key, label: ch.label, table: r.ok ? table2d(r.value) : null, message: r.ok ? "" : r.message, n: view && view.ok ? view.value.n : null });
+      await yieldToPage();
+      if (stale()) return;
+    }
+    const ok = results.filter((r) => r.table);
+    const failed = results.filter((r) => !r.table);
+    const terms = (ok[0]?.table ?? []).slice(1).map((r) => String(r[0]));
+    const cell = (t: unknown[][] | null, term: string) => {
+      const row = t?.find((r) => r[0] === term);
+      if (!row) return "–";
+      if (typeof row[2] !== "number") return "binary";
+      return `${shortNumber(row[2])}<br><span class="elx-muted">[${cellText(row[4])}, ${cellText(row[5])}]</span>`;
+    };
+    const head = ok.map((r) => `<th scope="col" data-choice="${r.key}">${esc(r.label)}</th>`).join("");
+    const body = terms.map((term) => `<tr><th scope="row">${esc(term)}</th>${ok.map((r) => `<td>${cell(r.table, term)}</td>`).join("")}</tr>`).join("") +
+      `<tr><th scope="row">Rows used</th>${ok.map((r) => `<td>${r.n === null ? "–" : fmt(r.n)}</td>`).join("")}</tr>`;
+    const html = (ok.length ? `<p>${fmt(s.check.lostToLog)} rows hold a zero or negative in a logged column. The elasticity under each way of handling them, with its interval:</p><div class="elx-table-wrap"><table id="elx-choices-table"><caption>Elasticity [interval] by zero choice</caption><thead><tr><th scope="col">Term</th>${head}</tr></thead><tbody>${body}</tbody></table></div>` : "") +
+      failed.map((r) => `<p data-choice-error="${r.key}">${r.key === "ppml" ? "PPML" : esc(r.label)}: not available for these ranges (${esc(r.message)}).</p>`).join("") +
+      `<p class="elx-muted">log(v + 1) and asinh results depend on the units of the shifted column; PPML keeps zero y and leaves out only rows with a zero in a logged x. Whichever you choose, say so where the number is used.</p>`;
+    this.show("elx-choices", html);
+  }
+
+  private renderAssumptions(eng: EngineApi): void {
+    const s = this.state as RunState;
+    const c = s.choices;
+    const paras = formAssumptions(c.form, c.estimator, c.se);
+    let tests = "";
+    if (c.estimator === "ols") {
+      const r = this.callFor(eng, "TESTS", optionsText(c));
+      const readings = testReadings(r.ok ? table2d(r.value) : null, r.ok ? null : r.message);
+      tests = `<h3>What the tests say for these data now</h3><ul class="elx-cautions" id="elx-tests">${readings.map((t) => `<li>${esc(t)}</li>`).join("")}</ul>`;
+      const sm = c.form.startsWith("log") ? this.callFor(eng, "SMEARING", optionsText(c)) : null;
+      if (sm && sm.ok) {
+        const f = table2d(sm.value)?.[0]?.[0];
+        if (typeof f === "number") tests += `<p>Duan's smearing factor is ${shortNumber(f)}: exp(fitted log y) understates the mean of y by about ${shortNumber((f - 1) * 100)}% here.</p>`;
+      }
+    } else {
+      tests = "<p>The specification tests (ELX.TESTS) are for the least-squares forms; the pictures above show the least-squares residuals for comparison.</p>";
+    }
+    this.show("elx-assume", paras.map((p) => `<h3>${esc(p.heading)}</h3><p>${esc(p.text)}</p>`).join("") + tests);
+  }
+
+  /** Writes the formula block at the target cell (after the whole block is checked to be empty). */
+  async write(target?: string): Promise<void> {
+    const msg = this.el["elx-write-msg"];
+    const show = (cls: string, html: string) => {
+      msg.className = `elx-message ${cls}`;
+      msg.innerHTML = html;
+    };
+    const s = this.state;
+    const eng = engine();
+    if (!s || !eng) {
+      show("elx-refused", "Check the ranges first (the button above); the block is written for the ranges and options checked.");
+      return;
+    }
+    const anchor = (target ?? this.input("elx-target").value).trim();
+    if (target) this.input("elx-target").value = target;
+    const opts = optionsText(s.choices);
+    const measure = (id: string): { height: number; width: number; ok: boolean } => {
+      const r = this.callFor(eng, id, opts);
+      const t = r.ok ? table2d(r.value) : null;
+      return t ? { height: t.length, width: t[0]?.length ?? 1, ok: true } : { height: 1, width: 1, ok: false };
+    };
+    const items: BlockItem[] = [];
+    const add = (id: string, label: string, optional = false) => {
+      const m = measure(id);
+      if (optional && !m.ok) return;
+      items.push({ id, label, height: m.height, width: m.width });
+    };
+    add("FIT", "Coefficients (ELX.FIT)");
+    add("ELASTICITIES", "Elasticities (ELX.ELASTICITIES)");
+    if (s.choices.estimator === "ols" && s.check.columns.some((col) => col.role === "x" && col.binary) && s.choices.form.startsWith("log")) add("EFFECTS", "Percent effects of binary columns (ELX.EFFECTS)", true);
+    if (s.choices.estimator === "ols") add("TESTS", "Specification tests (ELX.TESTS)");
+    add("SUMMARY", "Fit summary (ELX.SUMMARY)");
+    const yName = s.check.columns[0]?.name ?? "y";
+    const xNames = s.check.columns.slice(1).map((col) => col.name).join(", ");
+    const block = buildBlock({
+      y: formatAddress(s.y.area, { absolute: true }),
+      x: formatAddress(s.x.area, { absolute: true }),
+      options: opts,
+      title: `Elasticell: ${yName} on ${xNames} (${opts})`,
+      items,
+    });
+    const r = await this.host.writeBlock(anchor, block);
+    if (r.ok) {
+      show("elx-done", `Written at ${esc(r.address)}: ${items.length} formulas with room for their results. They recalculate when the data change.`);
+      return;
+    }
+    show("elx-refused", `<p id="elx-refusal">${esc(r.message)}</p>` + (r.suggestion ? `<button type="button" id="elx-write-there">Write at ${esc(r.suggestion)} instead</button>` : ""));
+    const there = msg.querySelector("#elx-write-there");
+    if (there && r.suggestion) {
+      const place = r.suggestion;
+      there.addEventListener("click", () => void this.write(place));
+    }
+  }
+}
+
+function injectStyle(): void {
+  if (document.getElementById("elx-pane-style")) return;
+  const style = document.createElement("style");
+  style.id = "elx-pane-style";
+  style.textContent = css;
+  document.head.appendChild(style);
+}
+
+/** Mounts the pane into #elx-pane (or the given element) over the host's runner. */
+export function mountPane(root: HTMLElement | null = document.getElementById("elx-pane")): Pane | null {
+  if (!root) return null;
+  const runner = hostRunner();
+  injectStyle();
+  if (!runner) {
+    root.textContent = "Elasticell's pane needs the spreadsheet host (or the preview page): the workbook API is not available here.";
+    return null;
+  }
+  const pane = new Pane(root, new Host(runner));
+  (globalThis as unknown as { ElxPane: Pane }).ElxPane = pane;
+  return pane;
+}
+
+// Inert outside the host: real office.js outside a host resolves onReady with host null.
 if (typeof Office !== "undefined" && typeof document !== "undefined") {
-  Office.onReady(() => {
-    const el = document.getElementById("elx-status");
-    if (el) el.textContent = paneStatus();
+  Office.onReady((info) => {
+    if (info && info.host) mountPane();
+    else {
+      const root = document.getElementById("elx-pane");
+      if (root) root.textContent = "Open this pane from the spreadsheet host (Data tab › Elasticell), or use the preview page (npm start).";
+    }
   });
 }
