@@ -9,7 +9,7 @@
  */
 import { effectsTable, elasticitiesTable, elasticityValue, fitTable, summaryTable, zerosTable } from "./cells/regression";
 import { byGroupTable } from "./cells/groups";
-import { fitView, makeCaller, cacheStats, type CellFunction } from "./paneApi";
+import { fitView, makeCaller, cacheStats, readColumns, type CellFunction } from "./paneApi";
 import { formCheckTable, heteroValue, normalValue, predictTable, smearingValue, testsTable } from "./cells/diagnostics";
 
 /**
@@ -178,6 +178,7 @@ const cellFunctions = {
   functions: cellFunctions,
   call: makeCaller(cellFunctions as unknown as Record<string, CellFunction>),
   fitView,
+  readColumns,
   cacheStats,
 };
 

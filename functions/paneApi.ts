@@ -8,7 +8,7 @@ import { getFit, cacheStats } from "./engine/model";
 import { parseOptions, seTypeOf } from "./engine/options";
 import { ElxProblem } from "./engine/problems";
 import { transformLabel } from "./engine/transforms";
-import type { Origin } from "./engine/intake";
+import { readYX, type Origin } from "./engine/intake";
 
 export type Outcome<T> = { ok: true; value: T } | { ok: false; message: string; kind: "value" | "na" };
 
@@ -59,6 +59,17 @@ export function fitView(y: unknown[][], x: unknown[][], optionsText: string | nu
       leftOutBlank: fit.data.leftOutBlank,
       leftOutNonPositive: fit.data.leftOutNonPositive,
     };
+  });
+}
+
+/**
+ * Reads y and x into columns the way every fit does (headers, listwise deletion) and reports the
+ * counts: the pane's data check, and the benchmark of the host-rows-to-columns conversion.
+ */
+export function readColumns(y: unknown[][], x: unknown[][]): Outcome<{ rows: number; leftOutBlank: number; yName: string; xNames: string[] }> {
+  return outcome(() => {
+    const r = readYX(y, x, null, null);
+    return { rows: r.y.length, leftOutBlank: r.leftOutBlank, yName: r.yName, xNames: r.xNames };
   });
 }
 

@@ -474,7 +474,7 @@ describe("SUMMARY's PPML contrast for a log-log OLS fit that dropped zero rows (
     }
   });
 
-  it("has no contrast rows when nothing was dropped from y", () => {
+  it("has no contrast rows when nothing was dropped from y (a logic check: esoph's ncases + 1, no zeros left in y)", () => {
     const { y, x } = inputs(ref.ppml.esoph.data, "ncases", ["ncontrols", "age"]);
     const t = table(call(reg, "SUMMARY", y.map((r, i) => (i === 0 ? r : [(r[0] as number) + 1])), x, "zeros=drop; levels=age"), "SUMMARY no contrast");
     expect(t.some((r) => String(r[0]).startsWith("Rows the log of"))).toBe(false);
