@@ -4,7 +4,7 @@
  * Like a results object in statsmodels, expensive parts (leverages, each covariance type, medians)
  * are computed on first use and memoised, without side effects on other fields.
  */
-import { fail, unavailable } from "./problems";
+import { count, fail, unavailable } from "./problems";
 import { leastSquares, type Dependency, type QrFit } from "./leastSquares";
 import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, leverages, type Covariance } from "./covariance";
 import { originalMedian, transformLabel, type Dataset, type Transform } from "./transforms";
@@ -270,7 +270,7 @@ function checkShape(data: Dataset, k: number, intercept: boolean): void {
   const n = data.n;
   if (n <= k) {
     const left = data.leftOutBlank + data.leftOutNonPositive;
-    fail(`${n} usable rows are too few for ${k} coefficients${intercept ? " (the intercept counts)" : ""}: need at least ${k + 1}${left > 0 ? `; ${left} rows were left out` : ""}`);
+    fail(`${count(n, "usable row")} ${n === 1 ? "is" : "are"} too few for ${k} coefficients${intercept ? " (the intercept counts)" : ""}: need at least ${k + 1}${left > 0 ? `; ${left} rows were left out` : ""}`);
   }
   // Constant regressors: a clearer message than the rank check's.
   data.x.forEach((c, j) => {

@@ -22,7 +22,7 @@
  *
  * Cost: about 2·n·k² flops and one pass over the data (two when refinement is needed).
  */
-import { fail } from "./problems";
+import { count, fail } from "./problems";
 
 /**
  * Relative length below which a column counts as a linear combination of the earlier ones. Exact
@@ -182,7 +182,7 @@ export function leastSquares(X: Float64Array[], y: Float64Array, onDependent: (d
   const k = X.length;
   const k1 = k + 1;
   const n = y.length;
-  if (n <= k) fail(`${n} usable rows are too few for ${k} coefficients`);
+  if (n <= k) fail(`${count(n, "usable row")} ${n === 1 ? "is" : "are"} too few for ${k} coefficients`);
   const scale = new Float64Array(k);
   const inv = new Float64Array(k);
   for (let j = 0; j < k; j++) {

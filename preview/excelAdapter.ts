@@ -1,0 +1,193 @@
+/**
+ * The preview's stand-in for the host's workbook API, over the preview workbook: just the part that
+ * taskpane/host.ts uses (selected range, worksheets by name or active, used range, getRange, load,
+ * values, valueTypes, formulas, sync). Like the host, properties must be loaded and synced before
+ * they are read (reading one early throws), and writes are applied at sync.
+ */
+import { formatAddress, MAX_ROWS, parseAddress, quoteSheet, type Address } from "../taskpane/address";
+import { isError, type Sheet, type Workbook } from "./workbook";
+
+class NotLoaded extends Error {
+  constructor(property: string) {
+    super(`The property '${property}' is not available. Before reading the property's value, call the load method on the containing object and call "context.sync()" on the associated request context.`);
+  }
+}
+
+abstract class Proxy {
+  protected readonly wanted = new Set<string>();
+  protected readonly data: Record<string, unknown> = {};
+  constructor(protected readonly context: PreviewContext) {
+    context.track(this);
+  }
+  load(props?: string | string[] | Record<string, boolean>): this {
+    const list = props === undefined ? ["*"] : typeof props === "string" ? props.split(",") : Array.isArray(props) ? props : Object.keys(props).filter((k) => props[k]);
+    for (const p of list) this.wanted.add(p.trim());
+    return this;
+  }
+  protected get<T>(name: string): T {
+    if (!(name in this.data)) throw new NotLoaded(name);
+    return this.data[name] as T;
+  }
+  abstract resolve(): void;
+}
+
+function addressText(sheet: string, a: Address): string {
+  const whole = a.top === 1 && a.bottom === MAX_ROWS;
+  const body = formatAddress({ ...a, sheet: null });
+  return `${quoteSheet(sheet)}!${whole ? body.replace(/\d+/g, "") : body}`;
+}
+
+export class RangeProxy extends Proxy {
+  private pendingFormulas: unknown[][] | null = null;
+  constructor(context: PreviewContext, private readonly sheetRef: SheetProxy, private readonly area: (() => Address | null) | Address | null) {
+    super(context);
+  }
+  get worksheet(): SheetProxy {
+    return this.sheetRef;
+  }
+  private rect(): Address | null {
+    return typeof this.area === "function" ? this.area() : this.area;
+  }
+  get isNullObject(): boolean {
+    return this.get<boolean>("isNullObject");
+  }
+  get address(): string {
+    return this.get<string>("address");
+  }
+  get values(): unknown[][] {
+    return this.get<unknown[][]>("values");
+  }
+  get valueTypes(): string[][] {
+    return this.get<string[][]>("valueTypes");
+  }
+  get formulas(): unknown[][] {
+    return this.get<unknown[][]>("formulas");
+  }
+  set formulas(v: unknown[][]) {
+    this.pendingFormulas = v;
+    this.context.queueWrite(() => this.applyFormulas());
+  }
+  private applyFormulas(): void {
+    const a = this.rect();
+    const sheet = this.sheetRef.sheet();
+    if (!a || !sheet || !this.pendingFormulas) return;
+    const updates: { row: number; column: number; input: string }[] = [];
+    this.pendingFormulas.forEach((line, i) => line.forEach((v, j) => updates.push({ row: a.top + i, column: a.left + j, input: v === null || v === undefined ? "" : String(v) })));
+    this.pendingFormulas = null;
+    this.context.book.setInputs(sheet, updates);
+  }
+  resolve(): void {
+    const a = this.rect();
+    const sheet = this.sheetRef.sheet();
+    this.data.isNullObject = !a || !sheet;
+    if (!a || !sheet) return;
+    this.data.address = addressText(sheet.name, a);
+    const need = (p: string) => this.wanted.has(p) || this.wanted.has("*");
+    if (need("values") || need("valueTypes") || need("formulas")) {
+      if ((a.bottom - a.top + 1) * (a.right - a.left + 1) > 5_000_000) throw new Error("The request payload size has exceeded the limit.");
+      const values: unknown[][] = [];
+      const types: string[][] = [];
+      const formulas: unknown[][] = [];
+      for (let r = a.top; r <= a.bottom; r++) {
+        const vr: unknown[] = [];
+        const tr: string[] = [];
+        const fr: unknown[] = [];
+        for (let c = a.left; c <= a.right; c++) {
+          const cell = sheet.get(r, c);
+          const v = cell ? cell.value : null;
+          if (v === null || v === "") {
+            vr.push("");
+            tr.push("Empty");
+          } else if (isError(v)) {
+            vr.push(v.code);
+            tr.push("Error");
+          } else {
+            vr.push(v);
+            tr.push(typeof v === "number" ? "Double" : typeof v === "boolean" ? "Boolean" : "String");
+          }
+          fr.push(cell && cell.input !== null ? (cell.input.startsWith("=") ? cell.input : v) : "");
+        }
+        values.push(vr);
+        types.push(tr);
+        formulas.push(fr);
+      }
+      this.data.values = values;
+      this.data.valueTypes = types;
+      this.data.formulas = formulas;
+    }
+  }
+}
+
+export class SheetProxy extends Proxy {
+  constructor(context: PreviewContext, readonly sheet: () => Sheet | undefined) {
+    super(context);
+  }
+  get name(): string {
+    return this.get<string>("name");
+  }
+  get isNullObject(): boolean {
+    return this.get<boolean>("isNullObject");
+  }
+  getRange(address: string): RangeProxy {
+    const p = parseAddress(address);
+    if (!p.ok) throw new Error(`getRange: ${p.message}`);
+    return new RangeProxy(this.context, this, { ...p.value, sheet: null });
+  }
+  getUsedRangeOrNullObject(valuesOnly?: boolean): RangeProxy {
+    void valuesOnly;
+    return new RangeProxy(this.context, this, () => this.sheet()?.usedBounds() ?? null);
+  }
+  resolve(): void {
+    const s = this.sheet();
+    this.data.isNullObject = !s;
+    this.data.name = s ? s.name : undefined;
+  }
+}
+
+export class PreviewContext {
+  private proxies: Proxy[] = [];
+  private writes: (() => void)[] = [];
+  readonly workbook: {
+    getSelectedRange(): RangeProxy;
+    worksheets: { getItem(name: string): SheetProxy; getItemOrNullObject(name: string): SheetProxy; getActiveWorksheet(): SheetProxy };
+  };
+  constructor(readonly book: Workbook) {
+    const ctx = this;
+    this.workbook = {
+      getSelectedRange() {
+        const sel = { ...book.selection };
+        const sheet = new SheetProxy(ctx, () => book.sheet(sel.sheet ?? book.activeSheet.name));
+        return new RangeProxy(ctx, sheet, sel);
+      },
+      worksheets: {
+        getItem(name: string) {
+          if (!book.sheet(name)) throw new Error(`The requested resource doesn't exist (sheet ${name}).`);
+          return new SheetProxy(ctx, () => book.sheet(name));
+        },
+        getItemOrNullObject(name: string) {
+          return new SheetProxy(ctx, () => book.sheet(name));
+        },
+        getActiveWorksheet() {
+          const s = book.activeSheet;
+          return new SheetProxy(ctx, () => s);
+        },
+      },
+    };
+  }
+  /** @internal */
+  track(p: Proxy): void {
+    this.proxies.push(p);
+  }
+  /** @internal */
+  queueWrite(f: () => void): void {
+    this.writes.push(f);
+  }
+  /** Applies queued writes, then fills every loaded property. */
+  async sync(): Promise<void> {
+    const writes = this.writes;
+    this.writes = [];
+    for (const w of writes) w();
+    for (const p of this.proxies) p.resolve();
+    await new Promise((r) => setTimeout(r, 0));
+  }
+}

@@ -1,0 +1,242 @@
+/**
+ * The preview's sheet view: a name box (the selection's address; type one and press Enter to
+ * select it), a formula bar (the active cell's formula; edit it and press Enter to recalculate), and
+ * the grid, drawn only for the rows in view so that large sheets stay quick. Mouse: click, drag or
+ * shift-click to select; click a column letter to select the whole column. Keyboard: arrows move
+ * (shift extends), Enter or F2 goes to the formula bar.
+ */
+import { columnLetters, formatAddress, MAX_ROWS, parseAddress } from "../taskpane/address";
+import { isError, key, type CellValue, type Workbook } from "./workbook";
+
+const ROW_HEIGHT = 21;
+const OVERSCAN = 12;
+
+const esc = (s: string): string => s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
+
+/** How a cell shows a value (a short general number format, like a spreadsheet's). */
+export function display(v: CellValue): string {
+  if (v === null || v === "") return "";
+  if (typeof v === "number") {
+    if (Number.isInteger(v) && Math.abs(v) < 1e11) return String(v);
+    const a = Math.abs(v);
+    if (a !== 0 && (a < 1e-4 || a >= 1e11)) return v.toExponential(4);
+    return String(Number(v.toPrecision(6)));
+  }
+  if (typeof v === "boolean") return v ? "TRUE" : "FALSE";
+  if (isError(v)) return v.code;
+  return String(v);
+}
+
+export class GridView {
+  private readonly scroller: HTMLElement;
+  private readonly table: HTMLTableElement;
+  private readonly nameBox: HTMLInputElement;
+  private readonly formulaBar: HTMLInputElement;
+  private readonly cellNote: HTMLElement;
+  private anchor = { row: 1, column: 1 };
+  private dragging = false;
+  private columns = 16;
+  private rows = 60;
+  private frame = 0;
+  renderCount = 0;
+
+  constructor(root: HTMLElement, private readonly book: Workbook) {
+    root.innerHTML = `
+      <div class="pv-bar">
+        <label for="pv-name">Cell</label><input id="pv-name" class="pv-name" type="text" spellcheck="false" autocomplete="off" aria-describedby="pv-help" />
+        <label for="pv-formula">Formula</label><input id="pv-formula" class="pv-formula" type="text" spellcheck="false" autocomplete="off" aria-describedby="pv-help" />
+      </div>
+      <p id="pv-help" class="pv-help">Type an address in Cell and press Enter to select it; edit a formula and press Enter to see it recalculate.</p>
+      <p id="pv-note" class="pv-note" aria-live="polite"></p>
+      <div class="pv-scroll" tabindex="0" aria-label="Sheet ${esc(book.activeSheet.name)}: arrow keys move, shift extends, Enter edits">
+        <table class="pv-grid" aria-label="Sheet ${esc(book.activeSheet.name)}"><colgroup></colgroup><thead></thead><tbody></tbody></table>
+      </div>`;
+    this.scroller = root.querySelector(".pv-scroll") as HTMLElement;
+    this.table = root.querySelector("table") as HTMLTableElement;
+    this.nameBox = root.querySelector("#pv-name") as HTMLInputElement;
+    this.formulaBar = root.querySelector("#pv-formula") as HTMLInputElement;
+    this.cellNote = root.querySelector("#pv-note") as HTMLElement;
+    this.scroller.addEventListener("scroll", () => this.schedule());
+    this.scroller.addEventListener("mousedown", (e) => this.mouseDown(e));
+    this.scroller.addEventListener("mouseover", (e) => this.mouseOver(e));
+    document.addEventListener("mouseup", () => {
+      this.dragging = false;
+    });
+    this.scroller.addEventListener("keydown", (e) => this.key(e));
+    this.nameBox.addEventListener("keydown", (e) => {
+      if (e.key === "Enter") this.selectAddress(this.nameBox.value);
+    });
+    this.formulaBar.addEventListener("keydown", (e) => {
+      if (e.key === "Enter") this.commit();
+      if (e.key === "Escape") this.syncBars();
+    });
+    book.onChange(() => this.refresh());
+    this.refresh();
+  }
+
+  /** Re-measures the sheet and redraws. */
+  refresh(): void {
+    const used = this.book.activeSheet.usedBounds();
+    this.columns = Math.max(16, (used?.right ?? 0) + 2);
+    this.rows = Math.max(60, (used?.bottom ?? 0) + 20);
+    const cols = ['<col class="pv-rowhead-col">'];
+    for (let c = 1; c <= this.columns; c++) cols.push(`<col class="${c === 1 ? "pv-wide" : c >= 9 ? "pv-mid" : ""}">`);
+    (this.table.querySelector("colgroup") as HTMLElement).innerHTML = cols.join("");
+    const head = ['<tr><th class="pv-corner" scope="col"><span class="pv-sr">Row</span></th>'];
+    for (let c = 1; c <= this.columns; c++) head.push(`<th scope="col" data-col="${c}">${columnLetters(c)}</th>`);
+    head.push("</tr>");
+    (this.table.querySelector("thead") as HTMLElement).innerHTML = head.join("");
+    this.draw();
+    this.syncBars();
+  }
+
+  private schedule(): void {
+    if (this.frame) return;
+    this.frame = requestAnimationFrame(() => {
+      this.frame = 0;
+      this.draw();
+    });
+  }
+
+  /** Draws the rows in view (plus a margin), with spacer rows above and below. */
+  draw(): void {
+    const sheet = this.book.activeSheet;
+    const view = this.scroller.clientHeight || 600;
+    const first = Math.max(1, Math.floor(this.scroller.scrollTop / ROW_HEIGHT) - OVERSCAN);
+    const last = Math.min(this.rows, first + Math.ceil(view / ROW_HEIGHT) + 2 * OVERSCAN);
+    const sel = this.book.selection;
+    const act = this.book.active;
+    const html: string[] = [];
+    html.push(`<tr class="pv-spacer" aria-hidden="true"><td colspan="${this.columns + 1}" style="height:${(first - 1) * ROW_HEIGHT}px"></td></tr>`);
+    for (let r = first; r <= last; r++) {
+      html.push(`<tr><th scope="row">${r}</th>`);
+      for (let c = 1; c <= this.columns; c++) {
+        const cell = sheet.get(r, c);
+        const v = cell ? cell.value : null;
+        const cls: string[] = [];
+        if (cell?.input?.startsWith("=")) cls.push("pv-f");
+        if (cell?.spillFrom !== undefined) cls.push("pv-s");
+        if (isError(v)) cls.push("pv-e");
+        else if (typeof v === "number") cls.push("pv-n");
+        else if (typeof v === "string" && v !== "" && !sheet.get(r, c + 1)) cls.push("pv-over");
+        if (r >= sel.top && r <= sel.bottom && c >= sel.left && c <= sel.right) cls.push("pv-sel");
+        if (r === act.row && c === act.column) cls.push("pv-act");
+        const text = display(v);
+        const title = isError(v) && v.message ? ` title="${esc(`${v.code} ${v.message}`)}"` : text.length > 10 ? ` title="${esc(text)}"` : "";
+        html.push(`<td data-a="${columnLetters(c)}${r}"${cls.length ? ` class="${cls.join(" ")}"` : ""}${title}>${esc(text)}</td>`);
+      }
+      html.push("</tr>");
+    }
+    html.push(`<tr class="pv-spacer" aria-hidden="true"><td colspan="${this.columns + 1}" style="height:${(this.rows - last) * ROW_HEIGHT}px"></td></tr>`);
+    (this.table.querySelector("tbody") as HTMLElement).innerHTML = html.join("");
+    this.renderCount++;
+  }
+
+  private cellAt(e: Event): { row: number; column: number } | null {
+    const t = (e.target as HTMLElement).closest("td[data-a], th[data-col]") as HTMLElement | null;
+    if (!t) return null;
+    if (t.dataset.col) return { row: 0, column: Number(t.dataset.col) };
+    const p = parseAddress(t.dataset.a as string);
+    return p.ok ? { row: p.value.top, column: p.value.left } : null;
+  }
+
+  private mouseDown(e: MouseEvent): void {
+    const at = this.cellAt(e);
+    if (!at) return;
+    if (at.row === 0) {
+      this.select({ row: 1, column: at.column }, { row: MAX_ROWS, column: at.column }, { row: 1, column: at.column });
+      return;
+    }
+    e.preventDefault();
+    this.scroller.focus();
+    if (e.shiftKey) this.select(this.anchor, at, this.book.active);
+    else {
+      this.anchor = at;
+      this.select(at, at, at);
+    }
+    this.dragging = true;
+  }
+
+  private mouseOver(e: MouseEvent): void {
+    if (!this.dragging) return;
+    const at = this.cellAt(e);
+    if (at && at.row > 0) this.select(this.anchor, at, this.book.active);
+  }
+
+  private key(e: KeyboardEvent): void {
+    const moves: Record<string, [number, number]> = { ArrowUp: [-1, 0], ArrowDown: [1, 0], ArrowLeft: [0, -1], ArrowRight: [0, 1] };
+    if (e.key === "Enter" || e.key === "F2") {
+      e.preventDefault();
+      this.formulaBar.focus();
+      return;
+    }
+    const m = moves[e.key];
+    if (!m) return;
+    e.preventDefault();
+    const sel = this.book.selection;
+    if (e.shiftKey) {
+      // Extend from the anchor to the moved far corner.
+      const far = { row: this.anchor.row === sel.top ? sel.bottom : sel.top, column: this.anchor.column === sel.left ? sel.right : sel.left };
+      const to = { row: Math.max(1, far.row + m[0]), column: Math.max(1, far.column + m[1]) };
+      this.select(this.anchor, to, this.book.active);
+    } else {
+      const a = this.book.active;
+      const to = { row: Math.max(1, a.row + m[0]), column: Math.max(1, a.column + m[1]) };
+      this.anchor = to;
+      this.select(to, to, to);
+    }
+  }
+
+  /** Selects the rectangle spanned by two corners and makes `active` the active cell. */
+  select(a: { row: number; column: number }, b: { row: number; column: number }, active: { row: number; column: number }): void {
+    this.book.selection = { sheet: this.book.activeSheet.name, top: Math.min(a.row, b.row), left: Math.min(a.column, b.column), bottom: Math.max(a.row, b.row), right: Math.max(a.column, b.column) };
+    this.book.active = active;
+    this.draw();
+    this.syncBars();
+  }
+
+  /** Selects a typed address ("C1:C1249", "Sales!D1:G1249", "C:C") and scrolls it into view. */
+  selectAddress(text: string): boolean {
+    const p = parseAddress(text);
+    if (!p.ok || (p.value.sheet && !this.book.sheet(p.value.sheet))) {
+      this.cellNote.textContent = p.ok ? `There is no sheet ${p.value.sheet} in this preview.` : p.message;
+      return false;
+    }
+    const a = p.value;
+    this.anchor = { row: a.top, column: a.left };
+    this.select({ row: a.top, column: a.left }, { row: a.bottom, column: a.right }, { row: a.top, column: a.left });
+    const y = (a.top - 1) * ROW_HEIGHT;
+    if (y < this.scroller.scrollTop || y > this.scroller.scrollTop + this.scroller.clientHeight - 3 * ROW_HEIGHT) this.scroller.scrollTop = Math.max(0, y - ROW_HEIGHT);
+    return true;
+  }
+
+  private syncBars(): void {
+    const sel = this.book.selection;
+    const whole = sel.top === 1 && sel.bottom === MAX_ROWS;
+    this.nameBox.value = whole ? `${columnLetters(sel.left)}:${columnLetters(sel.right)}` : formatAddress({ ...sel, sheet: null });
+    const a = this.book.active;
+    const cell = this.book.activeSheet.get(a.row, a.column);
+    this.formulaBar.value = cell?.input ?? (cell?.spillFrom !== undefined ? display(cell.value) : "");
+    this.formulaBar.readOnly = cell?.spillFrom !== undefined;
+    const v = cell?.value ?? null;
+    this.cellNote.textContent = isError(v) ? `${columnLetters(a.column)}${a.row}: ${v.code} ${v.message ?? ""}` : cell?.spillFrom !== undefined ? `${columnLetters(a.column)}${a.row} is part of a spilled result.` : "";
+  }
+
+  /** Puts the formula bar's text into the active cell and recalculates. */
+  commit(): void {
+    const a = this.book.active;
+    const cell = this.book.activeSheet.get(a.row, a.column);
+    if (cell?.spillFrom !== undefined) return;
+    this.book.setInputs(this.book.activeSheet, [{ row: a.row, column: a.column, input: this.formulaBar.value }]);
+  }
+
+  /** The cell's shown text (for tests and the benchmark). */
+  shown(address: string): string {
+    const p = parseAddress(address);
+    if (!p.ok) return "";
+    const c = this.book.activeSheet.get(p.value.top, p.value.left);
+    return display(c ? c.value : null);
+  }
+}
+
+export { key };

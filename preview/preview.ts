@@ -1,0 +1,121 @@
+/**
+ * The preview page: the demo data (data/demo.json, made by scripts/make-demo-data.js) as a sheet,
+ * a set of ELX formulas evaluated live by the real dist/functions.js, and the real pane beside it,
+ * talking to the sheet through taskpane/host.ts and the in-page adapter (preview/excelAdapter.ts).
+ *
+ * Runs after office-stub.js, functions.js and taskpane.js. `?rows=100000` shows a synthetic sheet
+ * of that many rows × 5 columns instead (for the benchmark, scripts/bench-pane.js).
+ */
+import css from "./preview.css";
+import demo from "../data/demo.json";
+import { GridView } from "./grid";
+import { parseAddress } from "../taskpane/address";
+import type { CellValue, FunctionMetadata, Workbook } from "./workbook";
+
+const g = globalThis as unknown as Record<string, unknown>;
+const book = g.ElxPreviewWorkbook as Workbook;
+const sheet = book.activeSheet;
+
+/** The formulas on the demo sheet: label above, formula below, in column I. */
+export const DEMO_FORMULAS: { at: string; label: string; formula: string }[] = [
+  { at: "I2", label: "Coefficients: log-log, HC3, weeks with zero sales left out", formula: '=ELX.FIT(C1:C1249, D1:G1249, "zeros=drop")' },
+  { at: "I9", label: "Elasticities at the means, with intervals", formula: '=ELX.ELASTICITIES(C1:C1249, D1:G1249, "zeros=drop")' },
+  { at: "I16", label: "Price elasticity, one number", formula: '=ELX.ELASTICITY(C1:C1249, D1:G1249, "Price", "zeros=drop")' },
+  { at: "I19", label: "Percent effect of a promotion week", formula: '=ELX.EFFECTS(C1:C1249, D1:G1249, "zeros=drop")' },
+  { at: "I23", label: "Zeros and blanks per column", formula: "=ELX.ZEROS(C1:G1249)" },
+  { at: "I32", label: "Specification tests", formula: '=ELX.TESTS(C1:C1249, D1:G1249, "zeros=drop")' },
+  { at: "I41", label: "What a plain log does with the zero weeks", formula: "=ELX.FIT(C1:C1249, D1:G1249)" },
+  { at: "I44", label: "Fit summary", formula: '=ELX.SUMMARY(C1:C1249, D1:G1249, "zeros=drop")' },
+];
+
+/** Seeded synthetic data for the benchmark: Units on Price, Footfall, Promo, Income (invented). */
+function synthetic(rows: number): CellValue[][] {
+  let s = 20240607 >>> 0;
+  const u = () => {
+    s = (s + 0x6d2b79f5) >>> 0;
+    let t = s;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return (((t ^ (t >>> 14)) >>> 0) + 1) / 4294967297;
+  };
+  const out: CellValue[][] = [["Units", "Price", "Footfall", "Promo", "Income"]];
+  for (let i = 0; i < rows; i++) {
+    const price = 2 + u();
+    const foot = 60 + 80 * u();
+    const promo = u() < 0.15 ? 1 : 0;
+    const income = 80 + 40 * u();
+    const mean = Math.exp(1 - 1.4 * Math.log(price) + 0.8 * Math.log(foot) + 0.25 * promo + 0.6 * Math.log(income) - 2);
+    const units = u() < 0.02 ? 0 : Math.round(mean * Math.exp(0.2 * (u() + u() + u() - 1.5)));
+    out.push([units, Math.round(price * 100) / 100, Math.round(foot * 10) / 10, promo, Math.round(income * 10) / 10]);
+  }
+  return out;
+}
+
+function place(at: string, input: string): { row: number; column: number; input: string } {
+  const p = parseAddress(at);
+  if (!p.ok) throw new Error(p.message);
+  return { row: p.value.top, column: p.value.left, input };
+}
+
+async function start(): Promise<void> {
+  const style = document.createElement("style");
+  style.textContent = css;
+  document.head.appendChild(style);
+  const params = new URLSearchParams(location.search);
+  const big = Number(params.get("rows") ?? "0");
+  // The host reads the functions' metadata (parameters, address options) from functions.json.
+  const meta = (await (await fetch("functions.json")).json()) as { functions: FunctionMetadata[] };
+  for (const f of meta.functions) book.metadata.set(f.id.toUpperCase(), f);
+  const missing = [...book.metadata.keys()].filter((id) => !book.registry.has(id));
+  const note = document.getElementById("pv-registered") as HTMLElement;
+  note.textContent = `${book.registry.size} ELX functions registered by functions.js${missing.length ? `; listed but not registered: ${missing.join(", ")}` : ""}.`;
+  if (big > 0) {
+    book.loadValues(sheet, 1, 1, synthetic(Math.min(big, 1_000_000)));
+    (document.getElementById("pv-title") as HTMLElement).textContent = `Synthetic sheet: ${big.toLocaleString("en-GB")} rows × 5 columns (benchmark)`;
+    book.setInputs(sheet, [place("H1", "Zeros per column"), place("H2", `=ELX.ZEROS(A1:E${big + 1})`)]);
+  } else {
+    const columns = demo.columns as string[];
+    book.loadValues(sheet, 1, 1, [columns, ...(demo.rows as CellValue[][])]);
+    const inputs: { row: number; column: number; input: string }[] = [];
+    for (const f of DEMO_FORMULAS) {
+      const p = parseAddress(f.at);
+      if (!p.ok) continue;
+      inputs.push({ row: p.value.top - 1, column: p.value.left, input: f.label });
+      inputs.push({ row: p.value.top, column: p.value.left, input: f.formula });
+    }
+    book.setInputs(sheet, inputs);
+  }
+  const grid = new GridView(document.getElementById("pv-sheet") as HTMLElement, book);
+  const firstRenderMs = performance.now();
+  g.ElxPreview = {
+    book,
+    grid,
+    firstRenderMs,
+    recalcMs: book.lastRecalcMs,
+    /** The value in a cell of the active sheet (a number, text, boolean, null or { code, message }). */
+    value(address: string): unknown {
+      const p = parseAddress(address);
+      if (!p.ok) return undefined;
+      const c = sheet.get(p.value.top, p.value.left);
+      return c ? c.value : null;
+    },
+    shown: (address: string) => grid.shown(address),
+    select: (address: string) => grid.selectAddress(address),
+    setInput(address: string, input: string): void {
+      book.setInputs(sheet, [place(address, input)]);
+    },
+    input(address: string): string | null {
+      const p = parseAddress(address);
+      if (!p.ok) return null;
+      return sheet.get(p.value.top, p.value.left)?.input ?? null;
+    },
+  };
+  (g.ElxPreviewReady as () => void)();
+}
+
+document.addEventListener("DOMContentLoaded", () => {
+  start().catch((e: unknown) => {
+    const el = document.getElementById("pv-registered");
+    if (el) el.textContent = `The preview could not start: ${e instanceof Error ? e.message : String(e)}`;
+  });
+});
