@@ -34,10 +34,19 @@ module.exports = (env, argv) => ({
   entry: {
     functions: "./functions/functions.ts",
     taskpane: "./taskpane/taskpane.ts",
+    // The preview workbook (not part of the add-in): host stand-ins first, the sheet view last.
+    "office-stub": "./preview/officeStub.ts",
+    preview: "./preview/preview.ts",
   },
   output: { path: path.resolve(__dirname, "dist"), filename: "[name].js", clean: true },
   resolve: { extensions: [".ts", ".js"] },
-  module: { rules: [{ test: /\.ts$/, exclude: /node_modules/, use: "ts-loader" }] },
+  module: {
+    rules: [
+      { test: /\.ts$/, exclude: /node_modules/, use: "ts-loader" },
+      // Style sheets as text: the pane and the preview put them into a <style> element themselves.
+      { test: /\.css$/, type: "asset/source" },
+    ],
+  },
   performance: { hints: false },
   plugins: [
     new CustomFunctionsMetadataPlugin({ input: "./functions/functions.ts", output: "functions.json" }),
@@ -46,6 +55,15 @@ module.exports = (env, argv) => ({
       filename: "taskpane.html",
       template: "./taskpane/taskpane.html",
       chunks: ["functions", "taskpane"],
+      inject: "body",
+      scriptLoading: "blocking",
+    }),
+    // preview.html: the same functions.js and taskpane.js as the add-in, after the host stand-ins.
+    new HtmlWebpackPlugin({
+      filename: "preview.html",
+      template: "./preview/preview.html",
+      chunks: ["office-stub", "functions", "taskpane", "preview"],
+      chunksSortMode: "manual",
       inject: "body",
       scriptLoading: "blocking",
     }),

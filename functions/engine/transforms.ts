@@ -13,7 +13,6 @@
  */
 import { fail, count, rowsPhrase, nearest } from "./problems";
 import type { Options } from "./options";
-import { logInPlace } from "./fastLog";
 import type { RawData } from "./intake";
 
 export type Transform =
@@ -278,7 +277,7 @@ export function prepare(raw: RawData, o: Options): Dataset {
 
 function transformInPlace(col: Float64Array, t: Transform): void {
   if (t.kind === "log") {
-    logInPlace(col);
+    for (let i = 0; i < col.length; i++) col[i] = Math.log(col[i]);
   } else {
     for (let i = 0; i < col.length; i++) col[i] = apply(t, col[i]);
   }
