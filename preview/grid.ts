@@ -82,6 +82,10 @@ export class GridView {
     const cols = ['<col class="pv-rowhead-col">'];
     for (let c = 1; c <= this.columns; c++) cols.push(`<col class="${c === 1 ? "pv-wide" : c >= 9 ? "pv-mid" : ""}">`);
     (this.table.querySelector("colgroup") as HTMLElement).innerHTML = cols.join("");
+    // A fixed-layout table needs its width: row header 46 px, A and I onwards 96 px, B–H 78 px.
+    let width = 46;
+    for (let c = 1; c <= this.columns; c++) width += c === 1 || c >= 9 ? 96 : 78;
+    this.table.style.width = `${width}px`;
     const head = ['<tr><th class="pv-corner" scope="col"><span class="pv-sr">Row</span></th>'];
     for (let c = 1; c <= this.columns; c++) head.push(`<th scope="col" data-col="${c}">${columnLetters(c)}</th>`);
     head.push("</tr>");

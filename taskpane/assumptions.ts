@@ -29,7 +29,7 @@ export function formAssumptions(form: Form, estimator: Estimator, se: string): P
   if (yLog) {
     out.push({
       heading: "What it assumes",
-      text: "Errors multiply y rather than add to it, so the spread of y grows with its level; the log of y is linear in the regressors. exp(fitted log y) predicts the median of y, not its mean: a prediction of the mean needs a retransformation factor (Duan's smearing, ELX.SMEARING), and a log cannot take a zero or negative y.",
+      text: "Errors multiply y rather than add to it, so the spread of y grows with its level; the log of y is linear in the regressors. exp(fitted log y) predicts the geometric mean of y (its median when the errors are symmetric), not its mean: a prediction of the mean needs a retransformation factor (Duan's smearing, ELX.SMEARING), and a log cannot take a zero or negative y.",
     });
   } else {
     out.push({ heading: "What it assumes", text: `Errors add to y in its own units; y is linear in ${xLog ? "the logs of the regressors" : "the regressors"}. Predictions need no retransformation, but a spread that grows with the level is common in sales data and shows as a fan in the residual picture.` });

@@ -32,7 +32,7 @@ export function ticks(lo: number, hi: number, count = 4): number[] {
   const raw = (hi - lo) / count;
   const p = Math.pow(10, Math.floor(Math.log10(raw)));
   const m = raw / p;
-  const step = (m >= 5 ? 10 : m >= 2 ? 5 : m >= 1 ? 2 : 1) * p;
+  const step = (m < 1.5 ? 1 : m < 3 ? 2 : m < 7 ? 5 : 10) * p;
   const out: number[] = [];
   for (let t = Math.ceil(lo / step) * step; t <= hi + step * 1e-9; t += step) out.push(Math.abs(t) < step * 1e-9 ? 0 : t);
   return out;

@@ -59,6 +59,14 @@ export function optionsText(c: Choices, override: Partial<Choices> = {}): string
   return parts.join("; ");
 }
 
+/** Covariance types the engine offers with estimator=ppml (its default is HC1). */
+export const PPML_SE = ["HC1", "HC0", "classical"];
+
+/** The standard errors to use for PPML: the chosen ones when PPML offers them, else its default HC1. */
+export function ppmlSe(se: string): string {
+  return PPML_SE.includes(se) ? se : "HC1";
+}
+
 const esc = (s: unknown): string => String(s).replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
 const fmt = (n: number): string => n.toLocaleString("en-GB");
 const pText = (p: unknown): string => (typeof p === "number" && Number.isFinite(p) ? (p < 0.0001 ? "p < 0.0001" : `p = ${p.toFixed(4)}`) : "p not available");
@@ -170,6 +178,13 @@ export class Pane {
     this.el["elx-y-sel"].addEventListener("click", () => void this.useSelection("elx-y"));
     this.el["elx-x-sel"].addEventListener("click", () => void this.useSelection("elx-x"));
     this.el["elx-run"].addEventListener("click", () => void this.run());
+    this.el["elx-estimator"].addEventListener("change", () => {
+      const se = this.el["elx-se"] as HTMLSelectElement;
+      if (this.choices().estimator === "ppml" && ppmlSe(se.value) !== se.value) {
+        se.value = ppmlSe(se.value);
+        this.status(`PPML offers ${PPML_SE.join(", ")} errors; standard errors set to ${se.value}.`);
+      }
+    });
     this.el["elx-write-btn"].addEventListener("click", () => void this.write());
     for (const id of ["elx-y", "elx-x"]) {
       this.el[id].addEventListener("keydown", (e) => {
@@ -390,7 +405,7 @@ export class Pane {
       { key: "drop", label: "leave out", options: optionsText(c, { zeros: "drop", estimator: "ols" }) },
       { key: "shift", label: "log(v + 1)", options: optionsText(c, { zeros: "shift", estimator: "ols" }) },
       { key: "ihs", label: "asinh", options: optionsText(c, { zeros: "ihs", estimator: "ols" }) },
-      { key: "ppml", label: "PPML", options: optionsText(c, { zeros: "drop", estimator: "ppml" }) },
+      { key: "ppml", label: ppmlSe(c.se) === c.se ? "PPML" : `PPML (${ppmlSe(c.se)})`, options: optionsText(c, { zeros: "drop", estimator: "ppml", se: ppmlSe(c.se) }) },
     ];
     const results: { key: string; label: string; table: unknown[][] | null; message: string; n: number | null }[] = [];
     for (const ch of choices) {

@@ -5,16 +5,7 @@ import { ElxProblem } from "../engine/problems";
 import { elasticity } from "../engine/elasticity";
 import { breuschPaganKoenker } from "../engine/specTests";
 import type { OlsFit } from "../engine/fit";
-import { guarded, hostError, num, options, originsOf, table, type Cell, type Table } from "./host";
-
-function safe(compute: () => Cell): Cell {
-  try {
-    return compute();
-  } catch (e) {
-    if (e instanceof ElxProblem) return hostError(e.kind, e.message);
-    throw e;
-  }
-}
+import { guarded, hostError, num, options, originsOf, table, safe, type Cell, type Table } from "./host";
 
 export function byGroupTable(keys: unknown, y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
   return guarded(() => {

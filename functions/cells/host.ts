@@ -60,3 +60,13 @@ export function table(header: string[], body: Table, o: Options): Table {
 export function levelLabel(level: number): string {
   return `${Number((level * 100).toPrecision(6))}%`;
 }
+
+/** A cell from a computation that may meet a data problem: the value, or the problem's error value. */
+export function safe(compute: () => Cell): Cell {
+  try {
+    return compute();
+  } catch (e) {
+    if (e instanceof ElxProblem) return hostError(e.kind, e.message);
+    throw e;
+  }
+}

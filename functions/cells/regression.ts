@@ -12,7 +12,7 @@ import { elasticity, percentEffect } from "../engine/elasticity";
 import { readRange, asMatrix, CellIssue } from "../engine/intake";
 import type { OlsFit } from "../engine/fit";
 import type { PpmlFit } from "../engine/ppml";
-import { guarded, hostError, levelLabel, num, options, originsOf, table, type Cell, type Table } from "./host";
+import { guarded, hostError, levelLabel, num, options, originsOf, table, safe, type Cell, type Table } from "./host";
 
 /** Fit for a cell function whose first two parameters are y and x. */
 export function fitFor(y: unknown, x: unknown, o: Options, invocation: unknown): AnyFit {
@@ -104,15 +104,6 @@ export function effectsTable(y: unknown, x: unknown, opts: unknown, invocation: 
     });
     return table(["Term", "Percent effect", "Corrected (Kennedy 1981)", `Lower ${lv}`, `Upper ${lv}`], body, o);
   });
-}
-
-function safe(compute: () => Cell): Cell {
-  try {
-    return compute();
-  } catch (e) {
-    if (e instanceof ElxProblem) return hostError(e.kind, e.message);
-    throw e;
-  }
 }
 
 function retransformRows(fit: OlsFit): [string, Cell][] {

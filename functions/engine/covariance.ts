@@ -13,6 +13,7 @@
  */
 import { fail, rowsPhrase } from "./problems";
 import type { QrFit } from "./leastSquares";
+import { dotBlock } from "./blocks";
 import type { SeType } from "./options";
 
 /** Leverage at or above 1 − LEVERAGE_TOL counts as 1: HC2/HC3 are then undefined. */
@@ -56,20 +57,27 @@ function qRows(X: Float64Array[], qr: QrFit, inv: Float64Array, start: number, m
   }
 }
 
+/** Visits the rows of Q block by block: visit(start, m, Z) with Z as qRows fills it. */
+function forEachQBlock(X: Float64Array[], qr: QrFit, visit: (start: number, m: number, Z: Float64Array) => void): void {
+  const Z = new Float64Array(qr.k * BLOCK);
+  const inv = Float64Array.from(qr.scale, (s) => 1 / s);
+  for (let start = 0; start < qr.n; start += BLOCK) {
+    const m = Math.min(BLOCK, qr.n - start);
+    qRows(X, qr, inv, start, m, Z);
+    visit(start, m, Z);
+  }
+}
+
 /** Leverages h_i = |R⁻ᵀ x_i|² (squared row norms of Q). */
 export function leverages(X: Float64Array[], qr: QrFit): Float64Array {
   const { n, k } = qr;
   const h = new Float64Array(n);
-  const Z = new Float64Array(k * BLOCK);
-  const inv = Float64Array.from(qr.scale, (s) => 1 / s);
-  for (let start = 0; start < n; start += BLOCK) {
-    const m = Math.min(BLOCK, n - start);
-    qRows(X, qr, inv, start, m, Z);
+  forEachQBlock(X, qr, (start, m, Z) => {
     for (let j = 0; j < k; j++) {
       const o = j * BLOCK;
       for (let i = 0; i < m; i++) h[start + i] += Z[o + i] * Z[o + i];
     }
-  }
+  });
   return h;
 }
 
@@ -162,40 +170,19 @@ export function hcCovariance(X: Float64Array[], qr: QrFit, type: "HC0" | "HC1" |
   return { V: sandwich(qr, M), h: lev };
 }
 
-/** Σ_{i<m} A[a+i]·B[b+i] with four partial sums. */
-function dotBlock(A: Float64Array, a: number, B: Float64Array, b: number, m: number): number {
-  let s0 = 0;
-  let s1 = 0;
-  let s2 = 0;
-  let s3 = 0;
-  let i = 0;
-  for (; i + 3 < m; i += 4) {
-    s0 += A[a + i] * B[b + i];
-    s1 += A[a + i + 1] * B[b + i + 1];
-    s2 += A[a + i + 2] * B[b + i + 2];
-    s3 += A[a + i + 3] * B[b + i + 3];
-  }
-  for (; i < m; i++) s0 += A[a + i] * B[b + i];
-  return s0 + s1 + (s2 + s3);
-}
-
 /** Newey–West HAC covariance with L lags (Bartlett weights, no prewhitening, no df factor). */
 export function hacCovariance(X: Float64Array[], qr: QrFit, L: number): Float64Array {
   const { n, k, resid } = qr;
   if (L > n - 1) fail(`lags=${L} is more than the data allow: with ${n} rows use at most lags=${n - 1} (the default is ${defaultLags(n)})`);
   const G: Float64Array[] = [];
   for (let j = 0; j < k; j++) G.push(new Float64Array(n));
-  const Z = new Float64Array(k * BLOCK);
-  const inv = Float64Array.from(qr.scale, (s) => 1 / s);
-  for (let start = 0; start < n; start += BLOCK) {
-    const m = Math.min(BLOCK, n - start);
-    qRows(X, qr, inv, start, m, Z);
+  forEachQBlock(X, qr, (start, m, Z) => {
     for (let j = 0; j < k; j++) {
       const g = G[j];
       const o = j * BLOCK;
       for (let i = 0; i < m; i++) g[start + i] = Z[o + i] * resid[start + i];
     }
-  }
+  });
   const M = new Float64Array(k * k);
   for (let a = 0; a < k; a++) {
     for (let b = a; b < k; b++) {

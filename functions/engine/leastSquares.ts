@@ -23,6 +23,7 @@
  * Cost: about 2·n·k² flops and one pass over the data (two when refinement is needed).
  */
 import { count, fail } from "./problems";
+import { axpyBlock, dotBlock } from "./blocks";
 
 /**
  * Relative length below which a column counts as a linear combination of the earlier ones. Exact
@@ -81,37 +82,6 @@ function norm2(a: Float64Array): number {
   return m * Math.sqrt(t);
 }
 
-/**
- * s0 + Σ_{i<m} C[a+i]·C[b+i], with four partial sums: it breaks the chain of dependent additions
- * that otherwise bounds the speed of a dot product.
- */
-function blockDot(C: Float64Array, a: number, b: number, m: number, s0: number): number {
-  let s1 = 0;
-  let s2 = 0;
-  let s3 = 0;
-  let i = 0;
-  for (; i + 3 < m; i += 4) {
-    s0 += C[a + i] * C[b + i];
-    s1 += C[a + i + 1] * C[b + i + 1];
-    s2 += C[a + i + 2] * C[b + i + 2];
-    s3 += C[a + i + 3] * C[b + i + 3];
-  }
-  for (; i < m; i++) s0 += C[a + i] * C[b + i];
-  return s0 + s1 + (s2 + s3);
-}
-
-/** C[b+i] −= w·C[a+i] for i < m. */
-function blockAxpy(C: Float64Array, a: number, b: number, m: number, w: number): void {
-  let i = 0;
-  for (; i + 3 < m; i += 4) {
-    C[b + i] -= w * C[a + i];
-    C[b + i + 1] -= w * C[a + i + 1];
-    C[b + i + 2] -= w * C[a + i + 2];
-    C[b + i + 3] -= w * C[a + i + 3];
-  }
-  for (; i < m; i++) C[b + i] -= w * C[a + i];
-}
-
 /** Reflectors of one block, kept only when the solution is to be refined. */
 interface BlockReflectors {
   start: number;
@@ -145,7 +115,7 @@ function blockedQr(X: Float64Array[], y: Float64Array, inv: Float64Array, keep: 
     const tau = keep ? new Float64Array(k) : null;
     for (let j = 0; j < k; j++) {
       const oj = j * B;
-      const ss = blockDot(C, oj, oj, m, 0);
+      const ss = dotBlock(C, oj, C, oj, m);
       if (ss === 0) continue; // nothing below the diagonal to annihilate: the identity, tau = 0
       const rjj = T[j * k1 + j];
       const alpha = Math.sqrt(rjj * rjj + ss);
@@ -158,9 +128,9 @@ function blockedQr(X: Float64Array[], y: Float64Array, inv: Float64Array, keep: 
       if (tau) tau[j] = t;
       for (let c = j + 1; c < k1; c++) {
         const oc = c * B;
-        const w = t * blockDot(C, oj, oc, m, T[j * k1 + c]);
+        const w = t * dotBlock(C, oj, C, oc, m, T[j * k1 + c]);
         T[j * k1 + c] -= w;
-        blockAxpy(C, oj, oc, m, w);
+        axpyBlock(C, oj, oc, m, w);
       }
     }
     if (keep && tau) {
