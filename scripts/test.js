@@ -10,10 +10,10 @@ const path = require("path");
 const root = path.resolve(__dirname, "..");
 const run = (cmd, args) => spawnSync(cmd, args, { cwd: root, stdio: "inherit", shell: false });
 
-const build = run(process.execPath, [require.resolve("webpack-cli/bin/cli.js"), "--mode", "production"]);
+const build = run(process.execPath, [path.join(root, "node_modules", "webpack-cli", "bin", "cli.js"), "--mode", "production"]);
 if (build.status !== 0) process.exit(build.status ?? 1);
 
-const jestArgs = [require.resolve("jest/bin/jest.js"), ...process.argv.slice(2)];
+const jestArgs = [path.join(root, "node_modules", "jest", "bin", "jest.js"), ...process.argv.slice(2)];
 if (process.env.ELX_JEST_JSON) jestArgs.push("--json", `--outputFile=${process.env.ELX_JEST_JSON}`);
 const jest = run(process.execPath, jestArgs);
 process.exit(jest.status ?? 1);
