@@ -16,12 +16,15 @@ class NotLoaded extends Error {
 abstract class Proxy {
   protected readonly wanted = new Set<string>();
   protected readonly data: Record<string, unknown> = {};
+  /** Set by load(); a sync resolves only proxies with something new to load (and fresh ones). */
+  dirty = true;
   constructor(protected readonly context: PreviewContext) {
     context.track(this);
   }
   load(props?: string | string[] | Record<string, boolean>): this {
     const list = props === undefined ? ["*"] : typeof props === "string" ? props.split(",") : Array.isArray(props) ? props : Object.keys(props).filter((k) => props[k]);
     for (const p of list) this.wanted.add(p.trim());
+    this.dirty = true;
     return this;
   }
   protected get<T>(name: string): T {
@@ -187,7 +190,11 @@ export class PreviewContext {
     const writes = this.writes;
     this.writes = [];
     for (const w of writes) w();
-    for (const p of this.proxies) p.resolve();
+    for (const p of this.proxies) {
+      if (!p.dirty && writes.length === 0) continue;
+      p.dirty = false;
+      p.resolve();
+    }
     await new Promise((r) => setTimeout(r, 0));
   }
 }

@@ -11,6 +11,12 @@ import { isError, key, type CellValue, type Workbook } from "./workbook";
 const ROW_HEIGHT = 21;
 const OVERSCAN = 12;
 
+/** Column classes and their widths in px (kept equal to preview.css). */
+const COLUMN_WIDTHS: Record<string, number> = { "pv-wide": 84, "pv-data": 60, "pv-gap": 36, "pv-mid": 92 };
+function columnClass(c: number): string {
+  return c === 1 ? "pv-wide" : c <= 7 ? "pv-data" : c === 8 ? "pv-gap" : "pv-mid";
+}
+
 const esc = (s: string): string => s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
 
 /** How a cell shows a value (a short general number format, like a spreadsheet's). */
@@ -80,11 +86,11 @@ export class GridView {
     this.columns = Math.max(16, (used?.right ?? 0) + 2);
     this.rows = Math.max(60, (used?.bottom ?? 0) + 20);
     const cols = ['<col class="pv-rowhead-col">'];
-    for (let c = 1; c <= this.columns; c++) cols.push(`<col class="${c === 1 ? "pv-wide" : c >= 9 ? "pv-mid" : ""}">`);
+    for (let c = 1; c <= this.columns; c++) cols.push(`<col class="${columnClass(c)}">`);
     (this.table.querySelector("colgroup") as HTMLElement).innerHTML = cols.join("");
-    // A fixed-layout table needs its width: row header 46 px, A and I onwards 96 px, B–H 78 px.
+    // A fixed-layout table needs its width (the same widths as preview.css gives the columns).
     let width = 46;
-    for (let c = 1; c <= this.columns; c++) width += c === 1 || c >= 9 ? 96 : 78;
+    for (let c = 1; c <= this.columns; c++) width += COLUMN_WIDTHS[columnClass(c)];
     this.table.style.width = `${width}px`;
     const head = ['<tr><th class="pv-corner" scope="col"><span class="pv-sr">Row</span></th>'];
     for (let c = 1; c <= this.columns; c++) head.push(`<th scope="col" data-col="${c}">${columnLetters(c)}</th>`);

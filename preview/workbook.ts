@@ -48,7 +48,13 @@ export function isError(v: unknown): v is ErrorValue {
 
 export class Sheet {
   readonly cells = new Map<number, Cell>();
+  private bounds: Address | null | undefined = undefined;
   constructor(public name: string) {}
+
+  /** Call after changing cells (the used bounds are recomputed on the next read). */
+  touch(): void {
+    this.bounds = undefined;
+  }
 
   get(row: number, column: number): Cell | undefined {
     return this.cells.get(key(row, column));
@@ -61,6 +67,11 @@ export class Sheet {
 
   /** Bounds of the cells holding something (a value, a spilled value or an input), or null. */
   usedBounds(): Address | null {
+    if (this.bounds === undefined) this.bounds = this.computeBounds();
+    return this.bounds ? { ...this.bounds } : null;
+  }
+
+  private computeBounds(): Address | null {
     let top = Infinity;
     let left = Infinity;
     let bottom = -Infinity;
@@ -203,6 +214,7 @@ export class Workbook {
       if (u.input === "") sheet.cells.delete(k);
       else sheet.cells.set(k, { input: u.input, value: u.input.startsWith("=") ? null : literal(u.input) });
     }
+    sheet.touch();
     this.recalc();
   }
 
@@ -214,6 +226,7 @@ export class Workbook {
         sheet.cells.set(key(top + i, left + j), { input: typeof v === "object" ? null : String(v), value: v });
       }),
     );
+    sheet.touch();
   }
 
   /** Values of a rectangle as the host passes them to `any[][]` parameters (blank → null). */
@@ -245,10 +258,12 @@ export class Workbook {
     const t0 = performance.now();
     for (const sheet of this.sheets) {
       for (const [k, c] of [...sheet.cells]) if (c.spillFrom !== undefined) sheet.cells.delete(k);
+      sheet.touch();
       const formulas = [...sheet.cells.entries()].filter(([, c]) => c.input !== null && c.input.startsWith("=")).sort((a, b) => a[0] - b[0]);
       for (const [k, c] of formulas) {
         const result = this.evaluate(sheet, rowOf(k), columnOf(k), c.input as string);
         this.spill(sheet, k, c, result);
+        sheet.touch();
       }
     }
     this.recalcCount++;

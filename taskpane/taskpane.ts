@@ -165,6 +165,9 @@ export class Pane {
   state: RunState | null = null;
   lastTimings: Timings | null = null;
   busy = false;
+  /** Runs finished (for tests and the benchmark to wait on). */
+  completedRuns = 0;
+  completedWrites = 0;
 
   constructor(private readonly root: HTMLElement, private readonly host: Host) {
     root.classList.add("elx-pane");
@@ -230,11 +233,8 @@ export class Pane {
     const t0 = performance.now();
     const stale = () => id !== this.runId;
     const progress = this.el["elx-progress"] as HTMLProgressElement;
-    let shown = false;
-    const timer = setTimeout(() => {
-      shown = true;
-      progress.classList.remove("elx-hidden");
-    }, 500);
+    // Progress shows only for runs longer than half a second.
+    const timer = setTimeout(() => progress.classList.remove("elx-hidden"), 500);
     const step = (label: string, fraction: number) => {
       progress.value = fraction;
       this.status(label);
@@ -289,7 +289,7 @@ export class Pane {
       this.renderAssumptions(eng);
       const tEnd = performance.now();
       this.lastTimings = { read: tRead - t0, check: tCheck - tRead, pictures: tPictures - tCheck, choices: tChoices - tPictures, assumptions: tEnd - tChoices, total: tEnd - t0 };
-      this.status(`Checked ${fmt(check.rows)} rows × ${check.columns.length} columns in ${((tEnd - t0) / 1000).toFixed(1)} s.`);
+      this.status(`Checked ${fmt(check.rows)} rows × ${check.columns.length} columns.`);
     } catch (e) {
       this.status(`Something went wrong in the pane (${e instanceof Error ? e.message : String(e)}); the workbook was not changed.`);
     } finally {
@@ -298,8 +298,8 @@ export class Pane {
         progress.classList.add("elx-hidden");
         this.busy = false;
         this.root.setAttribute("aria-busy", "false");
+        this.completedRuns++;
       }
-      void shown;
     }
   }
 
@@ -495,6 +495,7 @@ export class Pane {
       items,
     });
     const r = await this.host.writeBlock(anchor, block);
+    this.completedWrites++;
     if (r.ok) {
       show("elx-done", `Written at ${esc(r.address)}: ${items.length} formulas with room for their results. They recalculate when the data change.`);
       return;
@@ -504,6 +505,7 @@ export class Pane {
     if (there && r.suggestion) {
       const place = r.suggestion;
       there.addEventListener("click", () => void this.write(place));
+      (there as HTMLElement).focus();
     }
   }
 }

@@ -147,8 +147,10 @@ function blockedQr(X: Float64Array[], y: Float64Array, inv: Float64Array, keep: 
  * @param X columns of the design (not modified), all of length n
  * @param y the response (not modified)
  * @param onDependent called with the first dependent column; it should throw a problem
+ * @param refineWhenNeeded false for auxiliary regressions whose statistic needs only the residual
+ *   sum of squares or one t ratio to working accuracy (as R's lm.fit gives them)
  */
-export function leastSquares(X: Float64Array[], y: Float64Array, onDependent: (d: Dependency) => never): QrFit {
+export function leastSquares(X: Float64Array[], y: Float64Array, onDependent: (d: Dependency) => never, refineWhenNeeded = true): QrFit {
   const k = X.length;
   const k1 = k + 1;
   const n = y.length;
@@ -191,7 +193,7 @@ export function leastSquares(X: Float64Array[], y: Float64Array, onDependent: (d
   let resid: Float64Array;
   // Predicted digits lost in the smallest coefficient: κ·max|c|/min|c| (normwise error bounds do
   // not protect small components, as NIST Wampler's intercept shows).
-  const refined = condition * (big / small) > REFINE_ABOVE;
+  const refined = refineWhenNeeded && condition * (big / small) > REFINE_ABOVE;
   if (refined) {
     // Factor again keeping the reflectors (the same arithmetic, so the same R), then refine.
     const blocks: BlockReflectors[] = [];

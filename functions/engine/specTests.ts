@@ -59,7 +59,7 @@ export function auxiliary(v: Float64Array, W: Float64Array[]): AuxFit {
     try {
       const q = leastSquares(cols, v, (d: Dependency) => {
         throw new Dropped(d.column);
-      });
+      }, false);
       let mean = 0;
       for (let i = 0; i < n; i++) mean += v[i];
       mean /= n;
@@ -202,7 +202,7 @@ export function reset(fit: OlsFit): TestResult {
   try {
     rss1 = leastSquares(cols, fit.data.y, () => {
       throw new Dropped(-1);
-    }).rss;
+    }, false).rss;
   } catch (e) {
     if (!(e instanceof Dropped)) throw e;
     // ŷ³ may depend on ŷ² and the regressors (for example with one binary regressor)
@@ -210,7 +210,7 @@ export function reset(fit: OlsFit): TestResult {
     try {
       rss1 = leastSquares(cols.slice(0, k + 1), fit.data.y, () => {
         throw new Dropped(-1);
-      }).rss;
+      }, false).rss;
     } catch (e2) {
       if (!(e2 instanceof Dropped)) throw e2;
       unavailable("RESET is undefined here: the powers of the fitted values are combinations of the regressors");

@@ -1,0 +1,374 @@
+/**
+ * The preview page in headless Chromium (Debian's /usr/bin/chromium driven by playwright-core; no
+ * browser download): the demo sheet's formulas against the engine's own values, a formula edited
+ * live, the pane's zero warning with counts worked out here from data/demo.json, the formula writer
+ * refusing an occupied target, the PPML choice, odd selections, an accessibility check of the pane
+ * (axe-core), and the README screenshots. The page must make no request outside this test's
+ * localhost server, load no remote script or font, and log no error.
+ *
+ * The engine's values come from dist/functions.js loaded in this Jest process through the host's
+ * registration path (test/harness/loadFunctions.ts), with the same cells and parameter addresses the
+ * preview passes; the demo data are invented (scripts/make-demo-data.js), so these checks compare the
+ * page with the engine, not with a statistical reference (that is test/reference's job).
+ */
+import * as fs from "fs";
+import * as os from "os";
+import * as path from "path";
+import { chromium, type BrowserContext, type Page } from "playwright-core";
+import { call, HostError, loadFunctions, metadataIds } from "../harness/loadFunctions";
+
+// eslint-disable-next-line @typescript-eslint/no-var-requires
+const { serve } = require("../../scripts/serve.js") as { serve: (o: { root: string; port?: number }) => Promise<{ url: string; close: () => Promise<void> }> };
+
+const ROOT = path.resolve(__dirname, "../..");
+const DIST = path.join(ROOT, "dist");
+const SHOTS = path.join(ROOT, "assets", "screenshots");
+const CHROMIUM = process.env.ELX_CHROMIUM || "/usr/bin/chromium";
+const demo = JSON.parse(fs.readFileSync(path.join(ROOT, "data", "demo.json"), "utf8")) as { columns: string[]; rows: unknown[][] };
+
+// The demo sheet as the preview lays it out: A..G = Store, Week, Units, Price, Footfall, Promo, Income; row 1 headers.
+const N = demo.rows.length;
+const Y = [[demo.columns[2]], ...demo.rows.map((r) => [r[2]])];
+const X = [demo.columns.slice(3, 7), ...demo.rows.map((r) => r.slice(3, 7))];
+const INVOCATION = { parameterAddresses: [`Sales!C1:C${N + 1}`, `Sales!D1:G${N + 1}`] };
+const reg = loadFunctions();
+const engine = (id: string, ...args: unknown[]) => call(reg, id, ...args);
+
+/** What the preview's cells show for a number (preview/grid.ts display), restated here. */
+function shown(v: unknown): string {
+  if (typeof v !== "number") return String(v);
+  if (Number.isInteger(v) && Math.abs(v) < 1e11) return String(v);
+  const a = Math.abs(v);
+  if (a !== 0 && (a < 1e-4 || a >= 1e11)) return v.toExponential(4);
+  return String(Number(v.toPrecision(6)));
+}
+
+let server: { url: string; close: () => Promise<void> };
+let context: BrowserContext;
+let page: Page;
+let userDir: string;
+const outside: string[] = [];
+const problems: string[] = [];
+
+async function cell(address: string): Promise<unknown> {
+  return page.evaluate((a) => (window as any).ElxPreview.value(a), address);
+}
+
+/** The values of a rectangle of the preview sheet, as a matrix. */
+async function block(top: number, left: number, rows: number, columns: number): Promise<unknown[][]> {
+  return page.evaluate(([t, l, h, w]) => {
+    const p = (window as any).ElxPreview;
+    const out: unknown[][] = [];
+    for (let i = 0; i < h; i++) {
+      const r: unknown[] = [];
+      for (let j = 0; j < w; j++) {
+        let c = "";
+        let n = l + j;
+        while (n > 0) {
+          c = String.fromCharCode(65 + ((n - 1) % 26)) + c;
+          n = Math.floor((n - 1) / 26);
+        }
+        r.push(p.value(`${c}${t + i}`));
+      }
+      out.push(r);
+    }
+    return out;
+  }, [top, left, rows, columns]);
+}
+
+function sameTable(page: unknown[][], eng: unknown[][], what: string): void {
+  expect(page.length).toBe(eng.length);
+  eng.forEach((row, i) =>
+    row.forEach((v, j) => {
+      const got = page[i][j];
+      if (typeof v === "number") {
+        if (typeof got !== "number") throw new Error(`${what} [${i}][${j}]: expected ${v}, page shows ${JSON.stringify(got)}`);
+        expect(Math.abs(got - v)).toBeLessThanOrEqual(1e-12 * Math.max(1, Math.abs(v)));
+      } else if (v instanceof HostError) {
+        expect((got as { code?: string }).code).toBe(v.code);
+      } else expect(got).toEqual(v);
+    }),
+  );
+}
+
+/** Presses a pane's "Use selection" button and waits for the address to arrive in its field. */
+async function useSelection(field: "elx-y" | "elx-x", expected: string): Promise<void> {
+  await page.click(`#${field}-sel`);
+  await page.waitForFunction(([id, v]) => (document.getElementById(id) as HTMLInputElement).value === v, [field, expected], { timeout: 5000 }).catch(() => undefined);
+  expect(await page.inputValue(`#${field}`)).toBe(expected);
+}
+
+async function selectInGrid(address: string): Promise<void> {
+  await page.fill("#pv-name", address);
+  await page.press("#pv-name", "Enter");
+}
+
+/** Clicks the pane's check button and waits for that run to finish. */
+async function runCheck(): Promise<void> {
+  const before = await page.evaluate(() => (window as any).ElxPane.completedRuns);
+  await page.click("#elx-run");
+  await page.waitForFunction((b) => (window as any).ElxPane.completedRuns > b, before, { timeout: 30000 });
+}
+
+async function setRanges(y: string, x: string, zeros: string, estimator = "ols"): Promise<void> {
+  await page.fill("#elx-y", y);
+  await page.fill("#elx-x", x);
+  await page.selectOption("#elx-estimator", estimator);
+  await page.selectOption("#elx-zeros", zeros);
+}
+
+beforeAll(async () => {
+  if (!fs.existsSync(CHROMIUM)) throw new Error(`${CHROMIUM} is missing: install Debian's chromium (apt-get install -y chromium); .ci/run does this`);
+  server = await serve({ root: DIST });
+  userDir = fs.mkdtempSync(path.join(os.tmpdir(), "elx-chromium-"));
+  context = await chromium.launchPersistentContext(userDir, {
+    executablePath: CHROMIUM,
+    headless: true,
+    args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update", "--disable-sync", "--no-first-run"],
+    viewport: { width: 1400, height: 900 },
+  });
+  page = context.pages()[0] ?? (await context.newPage());
+  page.on("request", (r) => {
+    if (!r.url().startsWith(`${server.url}/`)) outside.push(r.url());
+  });
+  page.on("console", (m) => {
+    if (m.type() === "error" || m.type() === "warning") problems.push(`console ${m.type()}: ${m.text()}`);
+  });
+  page.on("pageerror", (e) => problems.push(`page error: ${e.message}`));
+  await page.goto(`${server.url}/preview.html`);
+  await page.waitForFunction(() => (window as any).ElxPreview && (window as any).ElxPane, null, { timeout: 20000 });
+}, 60000);
+
+afterAll(async () => {
+  if (context) await context.close();
+  if (server) await server.close();
+  if (userDir) fs.rmSync(userDir, { recursive: true, force: true });
+});
+
+describe("the preview workbook", () => {
+  it("registers every function of functions.json through CustomFunctions.associate", async () => {
+    const ids = await page.evaluate(() => [...(window as any).ElxPreviewWorkbook.registry.keys()].sort());
+    expect(ids).toEqual(metadataIds().sort());
+    await expect(page.textContent("#pv-registered")).resolves.toBe(`${ids.length} ELX functions registered by functions.js.`);
+  });
+
+  it("shows the demo data and formula results equal to the engine's values", async () => {
+    expect(await cell("A1")).toBe("Store");
+    expect(await cell("C2")).toBe(demo.rows[0][2]);
+    expect(await cell(`G${N + 1}`)).toBe(demo.rows[N - 1][6]);
+    const fit = engine("FIT", Y, X, "zeros=drop", INVOCATION) as unknown[][];
+    sameTable(await block(2, 9, fit.length, fit[0].length), fit, "FIT at I2");
+    const el = engine("ELASTICITIES", Y, X, "zeros=drop", INVOCATION) as unknown[][];
+    sameTable(await block(9, 9, el.length, el[0].length), el, "ELASTICITIES at I9");
+    const one = engine("ELASTICITY", Y, X, "Price", "zeros=drop", INVOCATION) as unknown[][];
+    sameTable([[await cell("I16")]], one, "ELASTICITY at I16");
+    const zeros = engine("ZEROS", [demo.columns.slice(2), ...demo.rows.map((r) => r.slice(2))], null) as unknown[][];
+    sameTable(await block(23, 9, zeros.length, zeros[0].length), zeros, "ZEROS at I23");
+    const summary = engine("SUMMARY", Y, X, "zeros=drop", INVOCATION) as unknown[][];
+    sameTable(await block(44, 9, summary.length, 2), summary, "SUMMARY at I44");
+    // The plain log stops at the zero weeks with the engine's own message.
+    const plain = engine("FIT", Y, X, null, INVOCATION) as HostError;
+    expect(plain).toBeInstanceOf(HostError);
+    expect(await cell("I41")).toEqual({ code: plain.code, message: plain.message });
+    // Cells show the numbers in a short general format.
+    const shownText = await page.evaluate(() => (window as any).ElxPreview.shown("K4"));
+    expect(shownText).toBe(shown(fit[2][2]));
+    expect(await page.locator('td[data-a="K4"]').textContent()).toBe(shown(fit[2][2]));
+  });
+
+  it("selects with the mouse (click, shift-click) and the keyboard (shift+arrow), as the name box shows", async () => {
+    await page.click('td[data-a="D1"]');
+    await page.click('td[data-a="G3"]', { modifiers: ["Shift"] });
+    expect(await page.inputValue("#pv-name")).toBe("D1:G3");
+    await page.keyboard.press("Shift+ArrowDown");
+    expect(await page.inputValue("#pv-name")).toBe("D1:G4");
+    expect(await page.inputValue("#pv-formula")).toBe("Price");
+    await useSelection("elx-x", "Sales!D1:G4");
+  });
+
+  it("recalculates when an analyst edits a formula's options in the formula bar", async () => {
+    await selectInGrid("I2");
+    await expect(page.inputValue("#pv-formula")).resolves.toBe('=ELX.FIT(C1:C1249, D1:G1249, "zeros=drop")');
+    const before = await cell("L4");
+    await page.fill("#pv-formula", '=ELX.FIT(C1:C1249, D1:G1249, "zeros=drop; se=HC1; level=0.9")');
+    await page.press("#pv-formula", "Enter");
+    const fit = engine("FIT", Y, X, "zeros=drop; se=HC1; level=0.9", INVOCATION) as unknown[][];
+    expect(fit[0][3]).toBe("Std. error (HC1)");
+    expect(await cell("L2")).toBe("Std. error (HC1)");
+    expect(await cell("O2")).toBe("Lower 90%");
+    sameTable(await block(2, 9, fit.length, fit[0].length), fit, "edited FIT at I2");
+    expect(await cell("L4")).not.toBe(before);
+    expect(await page.locator('td[data-a="L2"]').textContent()).toBe("Std. error (HC1)");
+    // Put the demo formula back for the tests that follow.
+    await page.fill("#pv-formula", '=ELX.FIT(C1:C1249, D1:G1249, "zeros=drop")');
+    await page.press("#pv-formula", "Enter");
+    expect(await cell("L2")).toBe("Std. error (HC3)");
+  });
+});
+
+describe("the pane on the demo data", () => {
+  // Counts worked out here from data/demo.json: usable rows have a number in Units and every x column.
+  const isNum = (v: unknown) => typeof v === "number" && Number.isFinite(v);
+  const usable = demo.rows.filter((r) => [2, 3, 4, 5, 6].every((j) => isNum(r[j])));
+  const zeroUnits = usable.filter((r) => r[2] === 0).length;
+  const zeroFootfall = usable.filter((r) => r[4] === 0).length;
+  // Promo (column 5) is binary and stays in levels; Units, Price, Footfall and Income are logged.
+  const lost = usable.filter((r) => [2, 3, 4, 6].some((j) => (r[j] as number) <= 0)).length;
+
+  it("reads ranges from the selection and warns about the zeros with the right counts", async () => {
+    await selectInGrid("C1:C1249");
+    await useSelection("elx-y", "Sales!C1:C1249");
+    await selectInGrid("D1:G1249");
+    await useSelection("elx-x", "Sales!D1:G1249");
+    await page.selectOption("#elx-zeros", "stop");
+    await runCheck();
+    expect(zeroUnits).toBeGreaterThan(0);
+    const sentences = await page.locator("#elx-sentences li").allTextContents();
+    expect(sentences).toContain(`Warning:${zeroUnits} of ${usable.length.toLocaleString("en-GB")} rows have zero Units; a plain log drops them and biases the elasticity.`);
+    expect(sentences).toContain(`Warning:${zeroFootfall} of ${usable.length.toLocaleString("en-GB")} rows have zero Footfall; a plain log drops them and biases the elasticity.`);
+    expect(sentences.some((s) => s.startsWith(`Warning:In all a plain log would lose ${lost} of ${usable.length.toLocaleString("en-GB")} rows. Choose: leave them out and say so (zeros=drop), log(v + c) (zeros=shift), inverse hyperbolic sine (zeros=ihs), or PPML (estimator=ppml)`))).toBe(true);
+    expect(sentences).toContain(`Warning:${N - usable.length} of ${N.toLocaleString("en-GB")} rows have a blank, text or error cell in y or x and are left out (rows 434, 769, 999).`);
+    // The per-column table: Units' zeros over all data rows.
+    const unitsRow = await page.locator("#elx-check-table tbody tr").first().locator("td").allTextContents();
+    expect(unitsRow).toEqual([String(demo.rows.filter((r) => isNum(r[2])).length.toLocaleString("en-GB")), "0", String(demo.rows.filter((r) => r[2] === 0).length), "0", "log"]);
+    // The zero choices side by side, "leave out" equal to the engine's zeros=drop elasticity.
+    const drop = engine("ELASTICITIES", Y, X, "form=log-log; se=HC3; zeros=drop; level=0.95", INVOCATION) as unknown[][];
+    const priceRow = await page.locator("#elx-choices-table tbody tr").first().locator("td").first().textContent();
+    expect(priceRow?.startsWith(String(Number((drop[1][2] as number).toPrecision(3))).replace("-", "−"))).toBe(true);
+    // PPML: a column when the engine fits it, else its message as a sentence.
+    const ppml = engine("ELASTICITIES", Y, X, "form=log-log; estimator=ppml; se=HC1; zeros=drop; level=0.95", INVOCATION);
+    if (ppml instanceof HostError) {
+      expect(await page.locator('[data-choice-error="ppml"]').textContent()).toContain(ppml.message);
+    } else {
+      expect(await page.locator('#elx-choices-table th[data-choice="ppml"]').textContent()).toBe("PPML (HC1)");
+      const cells = await page.locator("#elx-choices-table tbody tr").first().locator("td").allTextContents();
+      expect(cells[3].startsWith(String(Number(((ppml as unknown[][])[1][2] as number).toPrecision(3))).replace("-", "−"))).toBe(true);
+    }
+    // With zeros=stop the fits stop, and the pictures say why in a sentence.
+    expect(await page.locator("#elx-elasticity-error").textContent()).toContain("a log cannot take them");
+  });
+
+  it("draws the pictures with the tests' p-values once a zero choice is made", async () => {
+    await page.selectOption("#elx-zeros", "drop");
+    await runCheck();
+    expect(await page.locator("#elx-pictures figure svg").count()).toBe(4);
+    const bp = engine("HETEROTEST", Y, X, "bp", "form=log-log; se=HC3; zeros=drop; level=0.95", INVOCATION) as number[][];
+    const p = bp[0][0];
+    expect(await page.locator('#elx-pictures figure[data-form="log-log"] figcaption').textContent()).toContain(p < 0.0001 ? "Breusch–Pagan p < 0.0001" : `Breusch–Pagan p = ${p.toFixed(4)}`);
+    const jb = engine("NORMALTEST", Y, X, "form=log-log; se=HC3; zeros=drop; level=0.95", INVOCATION) as number[][];
+    expect(await page.locator("#elx-qq figcaption").textContent()).toContain(jb[0][0] < 0.0001 ? "Jarque–Bera p < 0.0001" : `Jarque–Bera p = ${jb[0][0].toFixed(4)}`);
+    expect(await page.locator("#elx-tests li").count()).toBe(6);
+  });
+
+  it("refuses to write the formula block over occupied cells, then writes it at the offered place", async () => {
+    await page.fill("#elx-target", "I2");
+    const before = await page.evaluate(() => (window as any).ElxPane.completedWrites);
+    await page.click("#elx-write-btn");
+    await page.waitForFunction((b) => (window as any).ElxPane.completedWrites > b, before);
+    const refusal = await page.textContent("#elx-refusal");
+    expect(refusal).toMatch(/^Nothing was written: the block needs I2:P\d+ \(\d+ rows × 8 columns\) and I2, J2, K2, L2, M2 and more are not empty\. R2 is free\.$/);
+    // The sheet is unchanged.
+    expect(await page.evaluate(() => (window as any).ElxPreview.input("I2"))).toBe('=ELX.FIT(C1:C1249, D1:G1249, "zeros=drop")');
+    expect(await page.evaluate(() => (window as any).ElxPreview.input("I1"))).toBe("Coefficients: log-log, HC3, weeks with zero sales left out");
+    // Accept the offer: the block lands at R2 and its formulas evaluate live.
+    await page.click("#elx-write-there");
+    await page.waitForFunction((b) => (window as any).ElxPane.completedWrites > b + 1, before);
+    expect(await page.locator("#elx-write-msg").textContent()).toContain("Written at Sales!R2:");
+    const opts = "form=log-log; se=HC3; zeros=drop; level=0.95";
+    expect(await page.evaluate(() => (window as any).ElxPreview.input("R5"))).toBe(`=ELX.FIT(Sales!$C$1:$C$1249, Sales!$D$1:$G$1249, "${opts}")`);
+    const fit = engine("FIT", Y, X, opts, INVOCATION) as unknown[][];
+    sameTable(await block(5, 18, fit.length, fit[0].length), fit, "written FIT at R5");
+    // Writing again at R2 is refused: the block is there now.
+    await page.fill("#elx-target", "R2");
+    await page.click("#elx-write-btn");
+    await page.waitForFunction((b) => (window as any).ElxPane.completedWrites > b + 2, before);
+    expect(await page.locator("#elx-refusal").textContent()).toContain("Nothing was written");
+  });
+
+  it("shows the PPML results when the engine fits PPML, and a sentence when it does not", async () => {
+    const ppml = engine("ELASTICITIES", Y, X, "form=log-log; estimator=ppml; se=HC1; zeros=drop; level=0.95", INVOCATION);
+    await setRanges("Sales!C1:C1249", "Sales!D1:G1249", "drop", "ppml");
+    await expect(page.inputValue("#elx-se")).resolves.toBe("HC1");
+    await runCheck();
+    if (ppml instanceof HostError) {
+      expect(await page.locator("#elx-elasticity-error").textContent()).toContain(`PPML did not run for these ranges: ${ppml.message}`);
+    } else {
+      const t = ppml as unknown[][];
+      expect(await page.locator("#elx-elasticities").count()).toBe(1);
+      const first = await page.locator("#elx-pictures table tbody tr").first().locator("td").first().textContent();
+      expect(first).toBe(String(Number((t[1][2] as number).toPrecision(3))).replace("-", "−"));
+    }
+    await page.selectOption("#elx-estimator", "ols");
+    await page.selectOption("#elx-se", "HC3");
+  });
+
+  it("answers odd selections with a sentence and changes nothing", async () => {
+    const count = await page.evaluate(() => (window as any).ElxPreviewWorkbook.activeSheet.cells.size);
+    await setRanges("C5", "D1:G1249", "drop");
+    await runCheck();
+    expect(await page.locator("#elx-sentences").textContent()).toContain("y is a single cell (Sales!C5)");
+    await setRanges("C1:C100", "D1:G50", "drop");
+    await runCheck();
+    expect(await page.locator("#elx-sentences").textContent()).toContain("y has 99 data rows and x has 49; give both ranges the same rows.");
+    await setRanges("Stock!A1:A9", "D1:G9", "drop");
+    await runCheck();
+    expect(await page.locator("#elx-status").textContent()).toContain('y: there is no sheet named "Stock" in this workbook.');
+    await setRanges("C1:C1249", "A1:A1249", "drop");
+    await runCheck();
+    expect(await page.locator("#elx-sentences").textContent()).toContain("Store holds no numbers, only text");
+    // A whole column chosen by its letter is read down to the last used row.
+    await page.click('th[data-col="3"]');
+    await useSelection("elx-y", "Sales!C:C");
+    await setRanges("Sales!C:C", "D:G", "stop");
+    await runCheck();
+    expect(await page.locator("#elx-check-body").textContent()).toContain("y Sales!C1:C1249, x Sales!D1:G1249 (cut to the sheet's used cells)");
+    expect(await page.evaluate(() => (window as any).ElxPreviewWorkbook.activeSheet.cells.size)).toBe(count);
+  });
+});
+
+describe("accessibility, screenshots and network", () => {
+  it("has no serious or critical axe-core violations in the pane", async () => {
+    await setRanges("Sales!C1:C1249", "Sales!D1:G1249", "drop");
+    await runCheck();
+    await page.addScriptTag({ path: require.resolve("axe-core/axe.min.js") });
+    const result = await page.evaluate(async () => {
+      const axe = (window as any).axe;
+      const r = await axe.run("#elx-pane", { resultTypes: ["violations"] });
+      return r.violations.map((v: any) => ({ id: v.id, impact: v.impact, nodes: v.nodes.length, help: v.help }));
+    });
+    const serious = result.filter((v: { impact: string }) => v.impact === "serious" || v.impact === "critical");
+    expect(serious).toEqual([]);
+  });
+
+  it("takes the README screenshots of the preview and of the pane", async () => {
+    fs.mkdirSync(SHOTS, { recursive: true });
+    await selectInGrid("A1");
+    await page.evaluate(() => {
+      const pane = document.getElementById("elx-pane") as HTMLElement;
+      pane.scrollTop = 0;
+    });
+    await page.screenshot({ path: path.join(SHOTS, "preview.png") });
+    // The whole pane, not only its visible part: let it grow to its full height for the picture.
+    await page.evaluate(() => {
+      document.body.style.height = "auto";
+      const main = document.querySelector(".pv-main") as HTMLElement;
+      main.style.alignItems = "flex-start";
+      const pane = document.getElementById("elx-pane") as HTMLElement;
+      pane.style.overflow = "visible";
+      pane.style.height = "auto";
+    });
+    await page.locator("#elx-pane").screenshot({ path: path.join(SHOTS, "pane.png") });
+    for (const f of ["preview.png", "pane.png"]) expect(fs.statSync(path.join(SHOTS, f)).size).toBeGreaterThan(20000);
+  });
+
+  it("made no request outside localhost, loaded no remote script or font, and logged no error", async () => {
+    const remote = await page.evaluate(() => ({
+      scripts: Array.from(document.scripts).map((s) => s.src).filter((s) => s && !s.startsWith(location.origin)),
+      fonts: [...(document as any).fonts].map((f: any) => f.family),
+      styles: Array.from(document.styleSheets).map((s) => s.href).filter((h) => h && !h.startsWith(location.origin)),
+    }));
+    expect(remote).toEqual({ scripts: [], fonts: [], styles: [] });
+    expect(outside).toEqual([]);
+    expect(problems).toEqual([]);
+  });
+});
