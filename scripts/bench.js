@@ -252,7 +252,10 @@ const now = () => Number(process.hrtime.bigint()) / 1e6; // ms
  * value. A full collection (global.gc()) runs once before the first run and, with gcEach, before
  * every run: that keeps the garbage of 10^6-row runs out of the next timing, but costs a call on
  * small inputs a few milliseconds afterwards (measured: a 10^4-row cache hit takes 0.6 ms without a
- * preceding gc and 6 ms with one), so small cases do not use it.
+ * preceding gc and 6 ms with one), so small cases do not use it. After a forced collection the
+ * collector's concurrent sweeping goes on on the other core for a few hundred milliseconds and slows
+ * the next pass over a 10^6-row range about fourfold (a cache hit: 165 ms instead of 39 ms), which no
+ * host call meets in practice; so the timing waits for the collector to settle first.
  */
 async function timeRuns(runs, prepare, body, warmup = 0, gcEach = false) {
   const times = [];
@@ -260,7 +263,10 @@ async function timeRuns(runs, prepare, body, warmup = 0, gcEach = false) {
   global.gc();
   for (let r = 0; r < warmup + runs; r++) {
     const p = prepare(r);
-    if (gcEach) global.gc();
+    if (gcEach) {
+      global.gc();
+      await new Promise((resolve) => setTimeout(resolve, 400));
+    }
     const t0 = now();
     const v = await settle(body(p));
     const t1 = now();

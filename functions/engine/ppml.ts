@@ -58,7 +58,8 @@ export class PpmlFit extends Model {
   readonly iterations: number;
   readonly devianceValue: number;
 
-  constructor(data: Dataset, intercept: boolean) {
+  /** @param maxIter iteration limit (tests lower it to reach the non-convergence message) */
+  constructor(data: Dataset, intercept: boolean, maxIter = PPML_MAX_ITER) {
     super(data, intercept);
     const y = data.y;
     const n = this.n;
@@ -78,7 +79,7 @@ export class PpmlFit extends Model {
     const z = new Float64Array(n);
     let lastQr: QrFit | null = null;
     const explain = (): never => unavailable("the weighted design lost rank during PPML iterations (a regressor separates the zeros): check regressors that are zero wherever y is above zero");
-    for (iter = 1; iter <= PPML_MAX_ITER; iter++) {
+    for (iter = 1; iter <= maxIter; iter++) {
       for (let i = 0; i < n; i++) {
         const s = Math.sqrt(mu[i]);
         z[i] = (eta[i] + (y[i] - mu[i]) / mu[i]) * s;
@@ -110,7 +111,7 @@ export class PpmlFit extends Model {
       }
     }
     if (!converged || !lastQr) {
-      unavailable(`PPML did not converge in ${PPML_MAX_ITER} iterations (deviance ${Number.isFinite(dev) ? dev.toPrecision(6) : "not finite"}): look for a regressor that separates the zero rows, or rescale very large regressors`);
+      unavailable(`PPML did not converge in ${maxIter} iterations (deviance ${Number.isFinite(dev) ? dev.toPrecision(6) : "not finite"}): look for a regressor that separates the zero rows, or rescale very large regressors`);
     }
     this.beta = beta;
     this.mu = mu;
