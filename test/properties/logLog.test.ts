@@ -22,15 +22,15 @@ function data(n: number, seed: number): { y: number[][]; x: number[][] } {
 }
 
 const o = parseOptions("");
-const fit = (y: unknown[][], x: unknown[][]) => fitUncached({ y, x, options: o, yOrigin: null, xOrigin: null });
+const fitOf = (y: unknown[][], x: unknown[][]) => fitUncached({ y, x, options: o, yOrigin: null, xOrigin: null });
 
 describe("log-log invariants", () => {
   const { y, x } = data(400, 7);
-  const base = fit(y, x);
+  const base = fitOf(y, x);
 
   it("scaling price by c changes only the intercept, by −b·log c", () => {
     const c = 100; // pence instead of pounds
-    const f2 = fit(y, x.map((r) => [r[0] * c, r[1], r[2]]));
+    const f2 = fitOf(y, x.map((r) => [r[0] * c, r[1], r[2]]));
     expect(f2.coef[1]).toBeCloseTo(base.coef[1], 11);
     expect(f2.coef[2]).toBeCloseTo(base.coef[2], 11);
     expect(f2.coef[0]).toBeCloseTo(base.coef[0] - base.coef[1] * Math.log(c), 10);
@@ -38,14 +38,14 @@ describe("log-log invariants", () => {
 
   it("scaling y by c moves the intercept by log c", () => {
     const c = 12; // dozens to loaves
-    const f2 = fit(y.map((r) => [r[0] * c]), x);
+    const f2 = fitOf(y.map((r) => [r[0] * c]), x);
     expect(f2.coef[0]).toBeCloseTo(base.coef[0] + Math.log(c), 11);
     expect(f2.coef[1]).toBeCloseTo(base.coef[1], 11);
   });
 
   it("row order does not matter", () => {
     const idx = y.map((_, i) => i).reverse();
-    const f2 = fit(idx.map((i) => y[i]), idx.map((i) => x[i]));
+    const f2 = fitOf(idx.map((i) => y[i]), idx.map((i) => x[i]));
     for (let j = 0; j < 4; j++) expect(f2.coef[j]).toBeCloseTo(base.coef[j], 12);
     expect(f2.covariance("HC3").V[5]).toBeCloseTo(base.covariance("HC3").V[5], 14);
   });
@@ -59,7 +59,7 @@ describe("log-log invariants", () => {
     const { y: y2, x: x2 } = data(50, 8);
     const ys = JSON.stringify(y2);
     const xs = JSON.stringify(x2);
-    fit(y2, x2);
+    fitOf(y2, x2);
     expect(JSON.stringify(y2)).toBe(ys);
     expect(JSON.stringify(x2)).toBe(xs);
   });
