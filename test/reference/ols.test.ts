@@ -23,6 +23,7 @@
 import * as fs from "fs";
 import * as path from "path";
 import { call, loadFunctions, HostError, type CellFn } from "../harness/loadFunctions";
+import { ReferenceChecker, expectNa, table } from "../harness/reference";
 
 type BySe = Record<string, number[]>;
 type Intervals = Record<"ci95" | "ci90", Record<string, { lower: number[]; upper: number[] }>>;
@@ -75,32 +76,8 @@ const SE_TYPES = ["classical", "HC0", "HC1", "HC2", "HC3", "HAC"] as const;
 const FORMS = ["log-log", "log-level", "level-log", "level-level"] as const;
 
 /** Worst relative error seen per quantity group, printed at the end. */
-const worst = new Map<string, { rel: number; where: string }>();
-
-function check(actual: unknown, expected: number, group: string, where: string): void {
-  if (typeof actual !== "number" || !Number.isFinite(actual)) {
-    throw new Error(`${where}: expected a finite number near ${expected} (R), got ${actual instanceof HostError ? `${actual.code} ${actual.message}` : JSON.stringify(actual)}`);
-  }
-  const err = Math.abs(actual - expected);
-  const rel = expected === 0 ? err : err / Math.abs(expected);
-  const w = worst.get(group);
-  if (!w || rel > w.rel) worst.set(group, { rel, where });
-  if (!(err <= Math.max(REL * Math.abs(expected), ABS))) {
-    throw new Error(`${where}: got ${actual}, R gives ${expected} (abs ${err.toExponential(3)}, rel ${rel.toExponential(3)}; tolerance ${REL} rel / ${ABS} abs)`);
-  }
-}
-
-function expectNa(cell: unknown, where: string): void {
-  if (!(cell instanceof HostError) || cell.code !== "#N/A") {
-    throw new Error(`${where}: expected a #N/A error cell, got ${JSON.stringify(cell)}`);
-  }
-}
-
-function table(result: unknown, where: string): unknown[][] {
-  if (result instanceof HostError) throw new Error(`${where}: the function returned ${result.code} ${result.message}`);
-  if (!Array.isArray(result)) throw new Error(`${where}: expected a 2-D array, got ${JSON.stringify(result)}`);
-  return result as unknown[][];
-}
+const checker = new ReferenceChecker(REL, ABS);
+const check = (actual: unknown, expected: number, group: string, where: string): void => checker.check(actual, expected, group, where);
 
 /** The SUMMARY row whose label is `label` (a note in parentheses after it is accepted). */
 function summaryValue(t: unknown[][], label: string): unknown {
@@ -128,9 +105,7 @@ beforeAll(() => {
 });
 
 afterAll(() => {
-  const lines = [...worst.entries()].map(([k, v]) => `${k.padEnd(34)} ${v.rel.toExponential(2)}  (${v.where})`);
-  // eslint-disable-next-line no-console
-  console.log(`worst relative error against R (${ref.r_version}) per quantity\n${lines.join("\n")}`);
+  console.log(checker.report(`worst relative error against R (${ref.r_version}) per quantity`, 34));
 });
 
 describe("reference data", () => {

@@ -29,6 +29,7 @@
 import * as fs from "fs";
 import * as path from "path";
 import { call, loadFunctions, rows, HostError, type CellFn } from "../harness/loadFunctions";
+import { ReferenceChecker, expectNa, table } from "../harness/reference";
 
 type BySe = Record<string, number[]>;
 type Intervals = Record<"ci95" | "ci90", Record<string, { lower: number[]; upper: number[] }>>;
@@ -109,30 +110,8 @@ const OLS_SE = ["classical", "HC0", "HC1", "HC2", "HC3"] as const;
 const LEVELS = [[0.95, "ci95"], [0.9, "ci90"]] as const;
 
 /** Worst relative error seen per quantity group, printed at the end. */
-const worst = new Map<string, { rel: number; where: string }>();
-
-function check(actual: unknown, expected: number, rel: number, group: string, where: string): void {
-  if (typeof actual !== "number" || !Number.isFinite(actual)) {
-    throw new Error(`${where}: expected a finite number near ${expected} (R), got ${actual instanceof HostError ? `${actual.code} ${actual.message}` : JSON.stringify(actual)}`);
-  }
-  const err = Math.abs(actual - expected);
-  const r = expected === 0 ? err : err / Math.abs(expected);
-  const w = worst.get(group);
-  if (!w || r > w.rel) worst.set(group, { rel: r, where });
-  if (!(err <= Math.max(rel * Math.abs(expected), ABS))) {
-    throw new Error(`${where}: got ${actual}, R gives ${expected} (abs ${err.toExponential(3)}, rel ${r.toExponential(3)}; tolerance ${rel} rel / ${ABS} abs)`);
-  }
-}
-
-function expectNa(cell: unknown, where: string): void {
-  if (!(cell instanceof HostError) || cell.code !== "#N/A") throw new Error(`${where}: expected a #N/A cell, got ${JSON.stringify(cell)}`);
-}
-
-function table(result: unknown, where: string): unknown[][] {
-  if (result instanceof HostError) throw new Error(`${where}: the function returned ${result.code} ${result.message}`);
-  if (!Array.isArray(result)) throw new Error(`${where}: expected a 2-D array, got ${JSON.stringify(result)}`);
-  return result as unknown[][];
-}
+const checker = new ReferenceChecker(1e-9, ABS);
+const check = (actual: unknown, expected: number, rel: number, group: string, where: string): void => checker.check(actual, expected, group, where, rel);
 
 function hostError(result: unknown, code: string, where: string): HostError {
   if (!(result instanceof HostError)) throw new Error(`${where}: expected a ${code} error, got ${JSON.stringify(result)}`);
@@ -159,9 +138,7 @@ beforeAll(() => {
 });
 
 afterAll(() => {
-  const lines = [...worst.entries()].map(([k, v]) => `${k.padEnd(40)} ${v.rel.toExponential(2)}  (${v.where})`);
-  // eslint-disable-next-line no-console
-  console.log(`worst relative error against R (${ref.r_version}) per quantity\n${lines.join("\n")}`);
+  console.log(checker.report(`worst relative error against R (${ref.r_version}) per quantity`, 40));
 });
 
 describe("reference data", () => {
