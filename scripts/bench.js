@@ -46,32 +46,8 @@ if (typeof global.gc !== "function") {
 // ---------------------------------------------------------------------------------------------
 // Host shim
 // ---------------------------------------------------------------------------------------------
-class HostError {
-  constructor(code, message) {
-    this.code = code;
-    this.message = message;
-  }
-}
-function loadFunctions() {
-  if (!fs.existsSync(BUNDLE)) {
-    process.stderr.write("dist/functions.js is missing: run npm run build first\n");
-    process.exit(1);
-  }
-  const registry = new Map();
-  globalThis.CustomFunctions = {
-    associate(a, f) {
-      if (typeof a === "string") registry.set(a, f);
-      else for (const k of Object.keys(a)) registry.set(k, a[k]);
-    },
-    Error: HostError,
-    ErrorCode: {
-      invalidValue: "#VALUE!", notAvailable: "#N/A", divisionByZero: "#DIV/0!", invalidNumber: "#NUM!",
-      nullReference: "#NULL!", invalidName: "#NAME?", invalidReference: "#REF!",
-    },
-  };
-  require(BUNDLE);
-  return registry;
-}
+const { HostError, loadFunctions: loadBundle } = require("./host-shim");
+const loadFunctions = () => loadBundle(BUNDLE);
 const registry = loadFunctions();
 const KNOWN_IDS = ["FIT", "ELASTICITY", "ELASTICITIES", "EFFECTS", "SUMMARY", "ZEROS", "SMEARING", "PREDICT",
   "HETEROTEST", "NORMALTEST", "TESTS", "FORMCHECK", "BYGROUP"];

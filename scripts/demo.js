@@ -27,41 +27,8 @@ const DATA = path.join(ROOT, "data", "demo.json");
 // ---------------------------------------------------------------------------------------------
 // Host shim: the same registration path the host uses (see test/harness/loadFunctions.ts)
 // ---------------------------------------------------------------------------------------------
-class HostError {
-  constructor(code, message) {
-    this.code = code;
-    this.message = message;
-  }
-}
-const ERROR_CODES = {
-  invalidValue: "#VALUE!",
-  notAvailable: "#N/A",
-  divisionByZero: "#DIV/0!",
-  invalidNumber: "#NUM!",
-  nullReference: "#NULL!",
-  invalidName: "#NAME?",
-  invalidReference: "#REF!",
-};
-
-function loadFunctions() {
-  if (!fs.existsSync(BUNDLE)) {
-    process.stderr.write(`${path.relative(process.cwd(), BUNDLE)} is missing: run npm run build first\n`);
-    process.exit(1);
-  }
-  const registry = new Map();
-  globalThis.CustomFunctions = {
-    associate(a, f) {
-      if (typeof a === "string") registry.set(a, f);
-      else for (const k of Object.keys(a)) registry.set(k, a[k]);
-    },
-    Error: HostError,
-    ErrorCode: ERROR_CODES,
-  };
-  const resolved = require.resolve(BUNDLE);
-  delete require.cache[resolved];
-  require(resolved);
-  return registry;
-}
+const { HostError, loadFunctions: loadBundle } = require("./host-shim");
+const loadFunctions = () => loadBundle(BUNDLE);
 
 /** Metadata per id (parameter count, whether the host passes an invocation object). */
 function loadMetadata() {
