@@ -409,8 +409,8 @@ for (const [dataset, c] of Object.entries(ref.cases)) {
             check(lr[1], bc.lr_p_lambda0, "FORMCHECK Box–Cox LR p", `${where} LR p (λ = 0)`);
             check(lr[2], bc.lr_p_lambda1, "FORMCHECK Box–Cox LR p", `${where} LR p (λ = 1)`);
             // R: lmtest::petest(lm(y ~ X), lm(log(y) ~ X), vcov. = function(m) sandwich::vcovHC(m, type = "HC3"))
-            //    (se=classical: lmtest::petest(lm(y ~ X), lm(log(y) ~ X))); row 2 (M2 + fit(M1)-exp(fit(M2)))
-            //    gives t_log, row 1 (M1 + log(fit(M1))-fit(M2)) gives t_lin
+            //    (se=classical: lmtest::petest(lm(y ~ X), lm(log(y) ~ X))); row 2 (M2 plus fitted(M1) − exp(fitted(M2)))
+            //    gives t_log, row 1 (M1 plus log(fitted(M1)) − fitted(M2)) gives t_lin
             const pe = se === "HC3" ? fc.pe_hc3 : fc.pe_classical;
             const peT = rowOf(t, "PE test t (this form, other as alternative)", where);
             check(peT[1], pe.t_log, `FORMCHECK PE t (${se})`, `${where} PE t (logs)`);
@@ -440,7 +440,7 @@ for (const [dataset, c] of Object.entries(ref.cases)) {
         it(`FORMCHECK ${dataset} ${form}: PE test rows left out (fitted level ≤ 0) = ${fc.pe_rows_left_out}, layout [0, count]`, () => {
           const where = `${dataset} ${form} FORMCHECK`;
           const t = table(invoke("FORMCHECK", y, x, opt), where);
-          // R: sum(fitted(lm(y ~ X)) <= 0) (those rows are NaN in petest's log(fit(M1)) and dropped by lm)
+          // R: sum(fitted(lm(y ~ X)) <= 0) (those rows are NaN in petest's log of the fitted values of M1 and dropped by lm)
           // layout: [0, count]: the rows belong to the level model's auxiliary regression ("y in levels")
           const left = rowOf(t, "PE test: rows left out (fitted level ≤ 0)", where);
           if (left[1] !== 0 || left[2] !== fc.pe_rows_left_out) {
