@@ -8,7 +8,7 @@
  * factor. Percent effect of a level regressor in a log-y model: 100(e^b − 1); Kennedy (1981,
  * American Economic Review 71(4), p. 801) corrects it to 100(e^(b − V/2) − 1) with V = Var(b).
  */
-import { relativeSlope } from "./transforms";
+import { relativeSlope, transformLabel } from "./transforms";
 import type { Model, Term } from "./fit";
 import type { AtPoint } from "./options";
 import type { Covariance } from "./covariance";
@@ -48,6 +48,9 @@ export function elasticityFactor(fit: Model, column: number, at: AtPoint): { fac
     den = relativeSlope(g, yc);
     parts.push(`${at} ${fit.data.yName} = ${formatNumber(yc)}`);
   }
+  // Under zeros=shift or zeros=ihs on y the elasticity depends on that transform (and on y's
+  // units, Bellemare and Wichman 2020): say which one was used.
+  if (g.kind === "shift" || g.kind === "asinh") parts.push(`${fit.data.yName} taken as ${transformLabel(g)}`);
   return { factor: num / den, at: parts.length === 0 ? "constant" : parts.join(", ") };
 }
 

@@ -129,3 +129,13 @@ describe("bad input", () => {
     expect(e.message).toMatch(/PPML estimates do not exist \(Santos Silva and Tenreyro 2010\): Closed is zero in every row where Units is above zero/);
   });
 });
+
+describe("shift and asinh on y say which transform the elasticity used", () => {
+  it("the Evaluated at column names log(v+c) or asinh for y", () => {
+    const y = rows([[0, ...units.slice(1)]], ["Units"]);
+    const sh = call(reg, "ELASTICITIES", y, X, "zeros=shift; shift=0.5") as unknown[][];
+    expect(String(sh[1][6])).toMatch(/^mean Units = [\d.]+, Units taken as log\(v\+0\.5\)$/);
+    const ih = call(reg, "ELASTICITIES", y, X, "zeros=ihs") as unknown[][];
+    expect(String(ih[1][6])).toMatch(/Units taken as asinh$/);
+  });
+});
