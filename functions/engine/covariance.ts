@@ -11,7 +11,7 @@
  *
  * Cost: one pass over the rows with O(k²) work per row (HAC: O(k²·L) per row).
  */
-import { fail, rowsPhrase } from "./problems";
+import { fail, requireFeasible, rowsPhrase } from "./problems";
 import type { QrFit } from "./leastSquares";
 import { dotBlock } from "./blocks";
 import type { SeType } from "./options";
@@ -174,6 +174,7 @@ export function hcCovariance(X: Float64Array[], qr: QrFit, type: "HC0" | "HC1" |
 export function hacCovariance(X: Float64Array[], qr: QrFit, L: number): Float64Array {
   const { n, k, resid } = qr;
   if (L > n - 1) fail(`lags=${L} is more than the data allow: with ${n} rows use at most lags=${n - 1} (the default is ${defaultLags(n)})`);
+  requireFeasible(n * k * k * (L + 1), `HAC with ${L} lags on ${n} rows and ${k} terms`, "use fewer lags (lags=), a sample of the rows, or se=HC3");
   const G: Float64Array[] = [];
   for (let j = 0; j < k; j++) G.push(new Float64Array(n));
   forEachQBlock(X, qr, (start, m, Z) => {

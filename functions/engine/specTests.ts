@@ -19,7 +19,7 @@
  */
 import { leastSquares, type Dependency } from "./leastSquares";
 import { chiSquareSf, fisherSf } from "./distributions";
-import { fail, unavailable } from "./problems";
+import { fail, requireFeasible, unavailable } from "./problems";
 import type { OlsFit } from "./fit";
 
 export interface TestResult {
@@ -136,6 +136,8 @@ export function white(fit: OlsFit): TestResult {
       W.push(Float64Array.from(ca, (v, i) => v * cb[i]));
     }
   }
+  const p = W.length + 1;
+  requireFeasible(n * p * p, `White's test with ${p} auxiliary terms on ${n} rows`, `use test "white-special", or a sample of the rows`);
   if (W.length + 1 >= n) {
     fail(`White's test needs ${W.length + 1} auxiliary terms (regressors, squares and cross-products) but the fit has only ${n} rows; use the special form, test "white-special"`);
   }

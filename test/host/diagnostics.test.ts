@@ -4,6 +4,7 @@
  * in test/reference (R's lmtest, sandwich, MASS, glm).
  */
 import { call, HostError, loadFunctions, lookup, rows } from "../harness/loadFunctions";
+import { Rng } from "../simulation/rng";
 
 const reg = loadFunctions();
 const units = [120, 95, 130, 80, 150, 110, 90, 140, 100, 125, 105, 135];
@@ -137,5 +138,24 @@ describe("shift and asinh on y say which transform the elasticity used", () => {
     expect(String(sh[1][6])).toMatch(/^mean Units = [\d.]+, Units taken as log\(v\+0\.5\)$/);
     const ih = call(reg, "ELASTICITIES", y, X, "zeros=ihs") as unknown[][];
     expect(String(ih[1][6])).toMatch(/Units taken as asinh$/);
+  });
+});
+
+describe("work that would freeze the host is refused with a way out", () => {
+  it("HAC with very many lags on many rows", () => {
+    const r = new Rng(3);
+    const n = 40000;
+    const y: unknown[][] = [["Units"]];
+    const x: unknown[][] = [["Price", "Footfall"]];
+    for (let i = 0; i < n; i++) {
+      const p = Math.exp(0.2 * r.normal());
+      y.push([Math.exp(3 - p + 0.1 * r.normal())]);
+      x.push([p, Math.exp(0.1 * r.normal())]);
+    }
+    // 40,000 rows × 3 terms² × 20,001 lags ≈ 7 billion operations
+    const e = err(call(reg, "FIT", y, x, "se=HAC; lags=20000"));
+    expect(e.message).toMatch(/HAC with 20000 lags on 40000 rows and 3 terms needs about 7\.2 billion operations.*use fewer lags/);
+    // the same data with the default lag length are fine
+    expect(Array.isArray(call(reg, "FIT", y, x, "se=HAC"))).toBe(true);
   });
 });
