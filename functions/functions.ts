@@ -9,7 +9,7 @@
  */
 import { effectsTable, elasticitiesTable, elasticityValue, fitTable, summaryTable, zerosTable } from "./cells/regression";
 import { byGroupTable } from "./cells/groups";
-import { fitView, makeCaller, cacheStats, readColumns, type CellFunction } from "./paneApi";
+import { fitView, makeCaller, cacheStats, readColumns, type CellFunction, type ElasticellApi } from "./paneApi";
 import { formCheckTable, heteroValue, normalValue, predictTable, smearingValue, testsTable } from "./cells/diagnostics";
 
 /**
@@ -174,13 +174,14 @@ const cellFunctions = {
   FIT: fit, ELASTICITY: elasticity, ELASTICITIES: elasticities, EFFECTS: effects, SUMMARY: summary, ZEROS: zeros,
   SMEARING: smearing, PREDICT: predict, HETEROTEST: heterotest, NORMALTEST: normaltest, TESTS: tests, FORMCHECK: formcheck, BYGROUP: bygroup,
 };
-(globalThis as unknown as { Elasticell: unknown }).Elasticell = {
-  functions: cellFunctions,
+const published: ElasticellApi = {
+  functions: cellFunctions as unknown as Record<string, CellFunction>,
   call: makeCaller(cellFunctions as unknown as Record<string, CellFunction>),
   fitView,
   readColumns,
   cacheStats,
 };
+(globalThis as unknown as { Elasticell: ElasticellApi }).Elasticell = published;
 
 /**
  * One row per distinct key (product, store, region): Group, Observations, then the elasticity and its standard error for each regressor, R² and the Breusch–Pagan p. A group that cannot be fitted shows why; the others still come.

@@ -90,3 +90,12 @@ export function makeCaller(functions: Record<string, CellFunction>) {
 }
 
 export { cacheStats };
+
+/** The object functions.js publishes on globalThis.Elasticell (the pane reads it by this type). */
+export interface ElasticellApi {
+  functions: Record<string, CellFunction>;
+  call(id: string, ...args: unknown[]): Outcome<unknown>;
+  fitView: typeof fitView;
+  readColumns: typeof readColumns;
+  cacheStats: typeof cacheStats;
+}

@@ -15,27 +15,11 @@ import { intervalPlot, quantilePlot, residualPlot, shortNumber, type IntervalRow
 import { CAUTIONS, formAssumptions, testReadings } from "./assumptions";
 import { buildBlock, type BlockItem } from "./formulas";
 import { formatAddress } from "./address";
+// Types only: the pane reads the functions' published object at run time, never their modules.
+import type { ElasticellApi, Outcome } from "../functions/paneApi";
+import type { Origin } from "../functions/engine/intake";
 
-type Outcome<T> = { ok: true; value: T } | { ok: false; message: string };
-
-interface FitView {
-  n: number;
-  yName: string;
-  xNames: string[];
-  yTransform: string;
-  xTransforms: string[];
-  binary: boolean[];
-  residuals: ArrayLike<number>;
-  fitted: ArrayLike<number>;
-  seLabel: string;
-  leftOutBlank: number;
-  leftOutNonPositive: number;
-}
-
-interface EngineApi {
-  call(id: string, ...args: unknown[]): Outcome<unknown>;
-  fitView(y: unknown[][], x: unknown[][], options: string | null, yOrigin?: unknown, xOrigin?: unknown): Outcome<FitView>;
-}
+type EngineApi = ElasticellApi;
 
 function engine(): EngineApi | null {
   const e = (globalThis as unknown as { Elasticell?: EngineApi }).Elasticell;
@@ -308,7 +292,8 @@ export class Pane {
     return { parameterAddresses: [s.y.address, s.x.address] };
   }
 
-  private origins(): [unknown, unknown] {
+  /** Where the ranges start (1-based), as the cells' parameter addresses give it: the same cache key. */
+  private origins(): [Origin, Origin] {
     const s = this.state as RunState;
     return [{ row: s.y.area.top, column: s.y.area.left }, { row: s.x.area.top, column: s.x.area.left }];
   }
