@@ -68,19 +68,6 @@ function forEachQBlock(X: Float64Array[], qr: QrFit, visit: (start: number, m: n
   }
 }
 
-/** Leverages h_i = |R⁻ᵀ x_i|² (squared row norms of Q). */
-export function leverages(X: Float64Array[], qr: QrFit): Float64Array {
-  const { n, k } = qr;
-  const h = new Float64Array(n);
-  forEachQBlock(X, qr, (start, m, Z) => {
-    for (let j = 0; j < k; j++) {
-      const o = j * BLOCK;
-      for (let i = 0; i < m; i++) h[start + i] += Z[o + i] * Z[o + i];
-    }
-  });
-  return h;
-}
-
 /** Rinv · M · Rinvᵀ for symmetric M (row-major k×k), then back to the columns' original units. */
 function sandwich(qr: QrFit, M: Float64Array): Float64Array {
   const { k, Rinv, scale } = qr;

@@ -199,6 +199,21 @@ export function studentTwoSided(t: number, df: number): number {
 
 /** The t with P(T ≤ t) = p on df degrees of freedom. */
 export function studentQuantile(p: number, df: number): number {
+  // Intervals ask for the same few quantiles again and again (every term, every PREDICT row, every
+  // BYGROUP group with the same df), and each costs some 100 µs of refinement: remember them.
+  const key = `${p}|${df}`;
+  const hit = QUANTILE_MEMO.get(key);
+  if (hit !== undefined) return hit;
+  const q = studentQuantileUncached(p, df);
+  if (QUANTILE_MEMO.size >= QUANTILE_MEMO_SIZE) QUANTILE_MEMO.delete(QUANTILE_MEMO.keys().next().value as string);
+  QUANTILE_MEMO.set(key, q);
+  return q;
+}
+
+const QUANTILE_MEMO = new Map<string, number>();
+const QUANTILE_MEMO_SIZE = 512;
+
+function studentQuantileUncached(p: number, df: number): number {
   if (Number.isNaN(p) || Number.isNaN(df) || !(df > 0) || p < 0 || p > 1) return NaN;
   if (df === Infinity) return normalQuantile(p);
   if (p === 0) return -Infinity;

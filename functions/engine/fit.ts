@@ -6,7 +6,7 @@
  */
 import { count, fail, unavailable } from "./problems";
 import { leastSquares, type Dependency, type QrFit } from "./leastSquares";
-import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, leverages, type Covariance } from "./covariance";
+import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, type Covariance } from "./covariance";
 import { originalMedian, transformLabel, type Dataset, type Transform } from "./transforms";
 import { fisherSf, studentQuantile, studentTwoSided } from "./distributions";
 import type { SeType } from "./options";
@@ -196,11 +196,6 @@ export class OlsFit extends Model {
   /** Residual variance s² = RSS/(n − k). */
   get s2(): number {
     return this.qr.rss / this.dfResid;
-  }
-
-  leverage(): Float64Array {
-    if (!this.leverageCache) this.leverageCache = leverages(this.design, this.qr);
-    return this.leverageCache;
   }
 
   /** The Student t quantile for a two-sided interval at `level`, on n − k df. */

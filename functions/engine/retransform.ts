@@ -75,11 +75,6 @@ export function toLevels(fit: AnyFit, m: number, how: Retransform): number {
   }
 }
 
-/** Inverse transform without retransformation (for individual intervals). */
-export function inverseOnly(fit: AnyFit, m: number): number {
-  return toLevels(fit, m, "none");
-}
-
 export interface Prediction {
   value: number;
   lower: number;
@@ -115,5 +110,6 @@ export function predictRow(fit: AnyFit, x0: Float64Array, how: Retransform, inte
   if (fit.estimator === "ppml") unavailable("interval=individual needs a distribution for single outcomes; PPML models only the mean: use interval=mean");
   const Vc = fit.covariance("classical").V;
   const se = Math.sqrt(fit.s2 + Math.max(0, quadraticForm(Vc, x0)));
-  return { value, lower: inverseOnly(fit, m - t * se), upper: inverseOnly(fit, m + t * se) };
+  // no factor: exp (or the inverse transform) is increasing, so the ends map to the ends
+  return { value, lower: toLevels(fit, m - t * se, "none"), upper: toLevels(fit, m + t * se, "none") };
 }
