@@ -24,37 +24,7 @@ if (!dir.exists(dirname(out_path))) {
   stop("run this script from the repository root: Rscript test/reference/scripts/distributions.R")
 }
 
-# ---- a JSON writer that keeps all 17 significant digits -------------------------------------
-json_num <- function(x) {
-  ifelse(is.na(x), "null",
-         ifelse(is.infinite(x), "null", sprintf("%.17g", x)))
-}
-json_str <- function(s) {
-  s <- gsub("\\\\", "\\\\\\\\", s)
-  s <- gsub("\"", "\\\\\"", s)
-  s <- gsub("\n", "\\\\n", s)
-  s <- gsub("\t", "\\\\t", s)
-  paste0("\"", s, "\"")
-}
-to_json <- function(v, indent = "") {
-  inner <- paste0(indent, "  ")
-  if (is.null(v)) return("null")
-  if (!is.list(v) && length(v) == 0) return("[]")
-  if (is.list(v)) {
-    if (length(v) == 0) return(if (is.null(names(v))) "[]" else "{}")
-    parts <- vapply(v, to_json, "", indent = inner)
-    if (!is.null(names(v))) {
-      parts <- paste0(json_str(names(v)), ": ", parts)
-      return(paste0("{\n", inner, paste(parts, collapse = paste0(",\n", inner)), "\n", indent, "}"))
-    }
-    return(paste0("[\n", inner, paste(parts, collapse = paste0(",\n", inner)), "\n", indent, "]"))
-  }
-  scalar <- inherits(v, "AsIs") || !is.null(attr(v, "scalar"))
-  enc <- if (is.character(v)) json_str(v) else if (is.logical(v)) ifelse(is.na(v), "null", ifelse(v, "true", "false")) else json_num(as.numeric(v))
-  if (length(v) == 1 && scalar) return(enc)
-  paste0("[", paste(enc, collapse = ", "), "]")
-}
-scalar <- function(x) I(x)
+source(file.path("test", "reference", "scripts", "json17.R"))  # json_num, json_str, to_json, scalar
 
 # a table (data frame) as a list of row objects with scalar fields
 rows_of <- function(df) {
