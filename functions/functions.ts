@@ -103,7 +103,7 @@ export function smearing(y: any[][], x: any[][], options?: string, invocation?: 
 }
 
 /**
- * Predicts y in its original units for new rows of x, retransformed to the mean (Duan by default); with interval=mean or individual also Lower and Upper.
+ * Predicts y in its original units for new rows of x, retransformed to the mean (Duan by default); with interval=mean or individual also the interval's Low and High ends.
  * @customfunction PREDICT
  * @param y Dependent variable: one column.
  * @param x Regressors: one or more columns, same rows as y.

@@ -12,7 +12,7 @@ import { boxCox, peTest, readEvidence } from "../engine/formCheck";
 import { OlsFit } from "../engine/fit";
 import { getOlsFit, type AnyFit } from "../engine/model";
 import { fitFor, olsFor } from "./regression";
-import { guarded, hostError, levelLabel, num, options, originsOf, table, toHostError, type Cell, type Table } from "./host";
+import { guarded, hostError, intervalHeaders, levelLabel, num, options, originsOf, table, toHostError, type Cell, type Table } from "./host";
 
 export function smearingValue(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
   return guarded(() => {
@@ -87,8 +87,7 @@ export function predictTable(y: unknown, x: unknown, newX: unknown, opts: unknow
       }
     }
     if (body.length === 0) fail("new_x has a header row but no rows to predict");
-    const lv = levelLabel(o.level);
-    const head = [`Predicted ${fit.data.yName}`, `Lower ${lv}`, `Upper ${lv}`].slice(0, width);
+    const head = [`Predicted ${fit.data.yName}`, ...intervalHeaders(o.level)].slice(0, width);
     return header && o.headers ? [head, ...body] : body;
   });
 }

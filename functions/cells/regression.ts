@@ -12,7 +12,7 @@ import { elasticity, percentEffect } from "../engine/elasticity";
 import { readRange, asMatrix, CellIssue } from "../engine/intake";
 import type { OlsFit } from "../engine/fit";
 import type { PpmlFit } from "../engine/ppml";
-import { guarded, hostError, levelLabel, num, options, originsOf, table, safe, type Cell, type Table } from "./host";
+import { guarded, hostError, intervalHeaders, num, options, originsOf, table, safe, type Cell, type Table } from "./host";
 
 /** Fit for a cell function whose first two parameters are y and x. */
 export function fitFor(y: unknown, x: unknown, o: Options, invocation: unknown): AnyFit {
@@ -33,7 +33,6 @@ export function fitTable(y: unknown, x: unknown, opts: unknown, invocation: unkn
     const cov = fit.covariance(seTypeOf(o), o.lags);
     const se = fit.standardErrors(cov);
     const crit = fit.criticalValue(o.level);
-    const lv = levelLabel(o.level);
     const body: Table = fit.terms.map((t, j) => {
       const b = fit.coef[j];
       const tstat = b / se[j];
@@ -49,7 +48,7 @@ export function fitTable(y: unknown, x: unknown, opts: unknown, invocation: unkn
         num(b + crit * se[j]),
       ];
     });
-    return table(["Term", "Transform", "Coefficient", `Std. error (${cov.label})`, fit.estimator === "ppml" ? "z" : "t", "p-value", `Lower ${lv}`, `Upper ${lv}`], body, o);
+    return table(["Term", "Transform", "Coefficient", `Std. error (${cov.label})`, fit.estimator === "ppml" ? "z" : "t", "p-value", ...intervalHeaders(o.level)], body, o);
   });
 }
 
@@ -73,7 +72,6 @@ export function elasticitiesTable(y: unknown, x: unknown, opts: unknown, invocat
     const o = options(opts);
     const fit = fitFor(y, x, o, invocation);
     const cov = fit.covariance(seTypeOf(o), o.lags);
-    const lv = levelLabel(o.level);
     const body: Table = fit.data.xNames.map((name, j) => {
       const t = fit.terms[fit.coefIndex(j)];
       if (fit.data.binary[j]) {
@@ -83,7 +81,7 @@ export function elasticitiesTable(y: unknown, x: unknown, opts: unknown, invocat
       const r = elasticity(fit, j, cov, o.level, o.at);
       return [name, fit.termLabel(t), num(r.estimate), num(r.se), num(r.lower), num(r.upper), r.at];
     });
-    return table(["Term", "Transform", "Elasticity", `Std. error (${cov.label})`, `Lower ${lv}`, `Upper ${lv}`, "Evaluated at"], body, o);
+    return table(["Term", "Transform", "Elasticity", `Std. error (${cov.label})`, ...intervalHeaders(o.level), "Evaluated at"], body, o);
   });
 }
 
@@ -97,12 +95,11 @@ export function effectsTable(y: unknown, x: unknown, opts: unknown, invocation: 
     const cols = fit.data.xTransforms.map((t, j) => (t.kind === "level" ? j : -1)).filter((j) => j >= 0);
     if (cols.length === 0) unavailable("no regressor is in levels here: under a log x side each coefficient is already an elasticity (ELX.ELASTICITIES); percent effects are for binary columns or those named in levels=");
     const cov = fit.covariance(seTypeOf(o), o.lags);
-    const lv = levelLabel(o.level);
     const body: Table = cols.map((j) => {
       const r = percentEffect(fit, j, cov, o.level);
       return [r.term.name, num(r.percent), num(r.corrected), num(r.lower), num(r.upper)];
     });
-    return table(["Term", "Percent effect", "Corrected (Kennedy 1981)", `Lower ${lv}`, `Upper ${lv}`], body, o);
+    return table(["Term", "Percent effect", "Corrected (Kennedy 1981)", ...intervalHeaders(o.level)], body, o);
   });
 }
 

@@ -195,7 +195,7 @@ describe("the preview workbook", () => {
     const fit = engine("FIT", Y, X, "zeros=drop; se=HC1; level=0.9", INVOCATION) as unknown[][];
     expect(fit[0][3]).toBe("Std. error (HC1)");
     expect(await cell("L2")).toBe("Std. error (HC1)");
-    expect(await cell("O2")).toBe("Lower 90%");
+    expect(await cell("O2")).toBe("Low (90%)");
     sameTable(await block(2, 9, fit.length, fit[0].length), fit, "edited FIT at I2");
     expect(await cell("L4")).not.toBe(before);
     expect(await page.locator('td[data-a="L2"]').textContent()).toBe("Std. error (HC1)");

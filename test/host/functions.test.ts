@@ -40,7 +40,7 @@ describe("shapes and values", () => {
   it("FIT spills a header row and one row per term, intercept first", () => {
     const t = call(reg, "FIT", Y, X, null) as unknown[][];
     expect(t.length).toBe(5);
-    expect(t[0]).toEqual(["Term", "Transform", "Coefficient", "Std. error (HC3)", "t", "p-value", "Lower 95%", "Upper 95%"]);
+    expect(t[0]).toEqual(["Term", "Transform", "Coefficient", "Std. error (HC3)", "t", "p-value", "Low (95%)", "High (95%)"]);
     expect(t.map((r) => r[0])).toEqual(["Term", "(Intercept)", "Price", "Footfall", "Promo"]);
     expect(t.map((r) => r[1])).toEqual(["Transform", "constant", "log", "log", "level"]);
     expect(t.every((r) => r.length === 8)).toBe(true);
@@ -54,7 +54,7 @@ describe("shapes and values", () => {
     expect(t.length).toBe(4);
     expect(t[0][0]).toBe("(Intercept)");
     const h = call(reg, "FIT", Y, X, "level=0.9") as unknown[][];
-    expect(h[0][6]).toBe("Lower 90%");
+    expect(h[0][6]).toBe("Low (90%)");
   });
 
   it("ELASTICITY returns one number equal to the log-log coefficient, by name or by column number", () => {

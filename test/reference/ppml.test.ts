@@ -160,7 +160,7 @@ for (const [name, c] of Object.entries(ref.ppml)) {
           const where = `${name} se=${se} level=${level}`;
           const t = table(call(reg, "FIT", y, x, `${c.options}; se=${se}; level=${level}`), `FIT ${where}`);
           const pct = Math.round(level * 100);
-          expect(t[0]).toEqual(["Term", "Transform", "Coefficient", `Std. error (${se})`, "z", "p-value", `Lower ${pct}%`, `Upper ${pct}%`]);
+          expect(t[0]).toEqual(["Term", "Transform", "Coefficient", `Std. error (${se})`, "z", "p-value", `Low (${pct}%)`, `High (${pct}%)`]);
           expect(t.length).toBe(c.k + 1);
           c.terms.forEach((term, j) => {
             const r = t[j + 1];
@@ -227,7 +227,7 @@ for (const [name, c] of Object.entries(ref.ppml)) {
           for (const retransform of ["duan", "normal", "none"]) {
             const t = table(call(reg, "PREDICT", y, x, nx, `${c.options}; se=${se}; level=${level}; interval=mean; retransform=${retransform}`), `PREDICT ${where}`);
             const pct = Math.round(level * 100);
-            expect(t[0]).toEqual([`Predicted ${c.y}`, `Lower ${pct}%`, `Upper ${pct}%`]);
+            expect(t[0]).toEqual([`Predicted ${c.y}`, `Low (${pct}%)`, `High (${pct}%)`]);
             expect(t.length).toBe(m + 1);
             for (let i = 0; i < m; i++) {
               check(t[i + 1][0], p.fit[i], COEF, "PPML prediction", `${where} row ${i + 1} retransform=${retransform}`);
