@@ -225,7 +225,8 @@ for (const [dataset, c] of Object.entries(ref.cases)) {
             expect(t[0]).toEqual(["Statistic", "Value"]);
             expect(summaryValue(t, "Observations used")).toBe(f.n);
             expect(summaryValue(t, "Rows left out: blank or non-numeric")).toBe(c.rows_with_na);
-            expect(summaryValue(t, "Rows left out: zero or negative under a log")).toBe(0);
+            expect(summaryValue(t, "Rows left out: zero or blank under a log")).toBe(0);
+            expect(summaryValue(t, "Rows left out: negative under a log")).toBe(0);
             check(summaryValue(t, "R²"), s.r_squared, "SUMMARY R²", `${where} R²`);
             check(summaryValue(t, "Adjusted R²"), s.adj_r_squared, "SUMMARY adjusted R²", `${where} adjusted R²`);
             check(summaryValue(t, "Residual std. error"), s.sigma, "SUMMARY residual std. error", `${where} sigma`);

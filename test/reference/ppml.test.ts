@@ -261,14 +261,15 @@ for (const [name, c] of Object.entries(ref.ppml)) {
         const t = table(call(reg, "SUMMARY", y, x, `${c.options}; se=${se}`), `SUMMARY ${name}`);
         expect(t.map((r) => r[0])).toEqual([
           "Statistic", "Form", "Estimator", "Std. errors", "Observations used", "Rows left out: blank or non-numeric",
-          "Rows left out: zero or negative under a log", `Zeros kept in ${c.y}`, "Deviance",
+          "Rows left out: zero or blank under a log", "Rows left out: negative under a log", `Zeros kept in ${c.y}`, "Deviance",
           "Pseudo R² (squared correlation of y and fitted)", "Pearson dispersion", "Iterations", "Caution",
         ]);
         expect(String(value(t, "Estimator"))).toContain("PPML");
         expect(value(t, "Std. errors")).toBe(se);
         expect(value(t, "Observations used")).toBe(c.n);
         expect(value(t, "Rows left out: blank or non-numeric")).toBe(0);
-        expect(value(t, "Rows left out: zero or negative under a log")).toBe(c.rows_dropped);
+        expect(value(t, "Rows left out: zero or blank under a log")).toBe(c.rows_dropped);
+        expect(value(t, "Rows left out: negative under a log")).toBe(0);
         expect(value(t, `Zeros kept in ${c.y}`)).toBe(c.zeros);
         check(value(t, "Deviance"), c.deviance, COEF, "PPML deviance", name);
         check(value(t, "Pseudo R² (squared correlation of y and fitted)"), c.pseudo_r2, COEF, "PPML pseudo R²", name);
@@ -436,8 +437,8 @@ describe("SUMMARY's PPML contrast for a log-log OLS fit that dropped zero rows (
     const { y, x } = inputs(bio, "art", ["fem", "mar", "kid5", "phd", "ment"]);
     const t = table(call(reg, "SUMMARY", y, x, k.options), "SUMMARY contrast");
     expect(value(t, "Observations used")).toBe(k.n_ols);
-    expect(value(t, "Rows left out: zero or negative under a log")).toBe(k.rows_lost);
-    expect(value(t, "Rows the log of art lost (zero or negative)")).toBe(k.rows_lost);
+    expect(value(t, "Rows left out: zero or blank under a log")).toBe(k.rows_lost);
+    expect(value(t, "Rows the log of art lost (zero or blank)")).toBe(k.rows_lost);
     const text = String(value(t, "PPML contrast"));
     const fmt = (v: number) => Number(v.toPrecision(4)).toString();
     const outside = Object.values(k.terms).filter((e) => e.outside);
