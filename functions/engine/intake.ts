@@ -293,11 +293,14 @@ function orList(choices: readonly string[]): string {
   return choices.length === 1 ? choices[0] : `${choices.slice(0, -1).join(", ")}, or ${choices[choices.length - 1]}`;
 }
 
-/** The message for a column that is text in most rows (`where` says in how many, with an example). */
-export function textColumnMessage(name: string, where: string, isY: boolean): string {
+/**
+ * The message for a column that is text in most rows: "Region holds text …: leave it out of x, or use
+ * ELX.BYGROUP with it as keys". `where` says in how many rows, with an example.
+ */
+export function textColumnMessage(name: string, where: string, isY: boolean, choices: readonly string[] = TEXT_COLUMN_CHOICES): string {
   return isY
     ? `${name} holds text${where}: y must be a column of numbers (check that the y range is the sales or quantity column)`
-    : `${name} holds text${where}: ${orList(TEXT_COLUMN_CHOICES)}`;
+    : `${name} holds text${where}: ${orList(choices)}`;
 }
 
 /** The advice for numbers stored as text, with "decimal comma" when the example has one. */

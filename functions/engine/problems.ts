@@ -139,7 +139,8 @@ export function editDistance(a: string, b: string): number {
 export function nearest(word: string, candidates: readonly string[]): string | undefined {
   let best: string | undefined;
   let bestD = Infinity;
-  const w = word.toLowerCase();
+  // A suggestion is for a slip of a few letters: a long input is compared by its start only.
+  const w = word.slice(0, 100).toLowerCase();
   for (const c of candidates) {
     const d = editDistance(w, c.toLowerCase());
     if (d < bestD) {
