@@ -3,7 +3,7 @@
  * SMEARING, PREDICT, HETEROTEST, NORMALTEST, TESTS, FORMCHECK.
  */
 import { seTypeOf, type Form } from "../engine/options";
-import { fail, nearest, quote, ElxProblem } from "../engine/problems";
+import { cut, fail, nearest, quote, ElxProblem } from "../engine/problems";
 import { asMatrix, isHeaderRow, originOf, xColumnNames } from "../engine/intake";
 import { apply, LEVEL, matchName } from "../engine/transforms";
 import { predictRow, retransformFactor } from "../engine/retransform";
@@ -61,11 +61,11 @@ export function predictTable(y: unknown, x: unknown, newX: unknown, opts: unknow
       const given = xColumnNames(fit.data.yName, cells[0]);
       map = names.map((name) => {
         const i = matchName(name, given);
-        if (i < 0) fail(`new_x has no column ${name}; its header names are ${given.join(", ")}; give new_x the same columns as x`);
+        if (i < 0) fail(`new_x has no column ${cut(name)}; its header names are ${given.map((g) => cut(g)).join(", ")}; give new_x the same columns as x`);
         return i;
       });
       given.forEach((g) => {
-        if (matchName(g, names) < 0) fail(`new_x column ${quote(g)} is not a column of x; did you mean ${nearest(g.slice(0, 200), names)}? (x has ${names.join(", ")})`);
+        if (matchName(g, names) < 0) fail(`new_x column ${quote(g)} is not a column of x; did you mean ${cut(nearest(g, names) ?? "")}? (x has ${names.map((n) => cut(n)).join(", ")})`);
       });
     } else {
       if (cells[0].length !== names.length) fail(`new_x has ${cells[0].length} columns but x has ${names.length} (${names.join(", ")}); give new_x the same columns, in the same order, or add a header row to match them by name`);
@@ -110,7 +110,7 @@ export function heteroValue(y: unknown, x: unknown, test: unknown, opts: unknown
         fail(`the test argument holds options (${quote(String(test).trim())}): options go in the last argument, after the test, as in ELX.HETEROTEST(y, x, "bp", ${quote(String(test).trim())}); the test is one of ${HETERO_TESTS.join(", ")}, or leave it empty for bp`);
       }
       const hit = HETERO_TESTS.find((h) => h === t);
-      if (!hit) fail(`test ${quote(String(test).trim())} is not known; did you mean ${nearest(t.slice(0, 200), HETERO_TESTS)}? (tests: ${HETERO_TESTS.join(", ")})`);
+      if (!hit) fail(`test ${quote(String(test).trim())} is not known; did you mean ${nearest(t, HETERO_TESTS)}? (tests: ${HETERO_TESTS.join(", ")})`);
       which = hit;
     }
     const fit = olsFor(y, x, o, invocation, "ELX.HETEROTEST");

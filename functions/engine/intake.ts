@@ -10,7 +10,7 @@
  *
  * Cost: one pass over the cells. Columns are Float64Array (column-major), compacted in place.
  */
-import { fail, count, quote, rowsPhrase, RowList } from "./problems";
+import { cut, fail, count, quote, rowsPhrase, RowList } from "./problems";
 
 /** Why a cell cannot be used. 0 = usable. */
 export const enum CellIssue {
@@ -318,7 +318,7 @@ export function numericTextAdvice(example: string): string {
 function refuseTextColumns(r: RangeRead, rows: number, isY: boolean): void {
   r.text.forEach((t, j) => {
     if (2 * t.count <= rows) return;
-    const name = r.names[j];
+    const name = cut(r.names[j]);
     const of = t.count === rows ? `in all ${count(rows, "row")}` : `in ${t.count} of ${count(rows, "row")}`;
     if (2 * t.numeric > t.count) {
       fail(`${name} holds numbers stored as text ${of} (for example ${quote(t.firstNumericText)} in row ${r.firstRow + t.firstNumeric}): ${numericTextAdvice(t.firstNumericText)}`);

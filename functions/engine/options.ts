@@ -114,7 +114,7 @@ export function parseOptions(text: unknown): Options {
     const rawValue = item.slice(eq + 1).trim();
     const value = rawKey === "levels" ? rawValue : rawValue.replace(/\s+/g, "");
     const key = (OPTION_KEYS as readonly string[]).includes(rawKey) ? rawKey : "";
-    if (key === "") fail(`unknown option ${quote(rawKey)}; did you mean ${nearest(rawKey.slice(0, 200), OPTION_KEYS)}? (options: ${OPTION_KEYS.join(", ")})`);
+    if (key === "") fail(`unknown option ${quote(rawKey)}; did you mean ${nearest(rawKey, OPTION_KEYS)}? (options: ${OPTION_KEYS.join(", ")})`);
     if (value === "") fail(`option ${key} has no value; write ${key}=${key in CHOICES ? CHOICES[key][0] : "…"}`);
     if (seen.has(key)) fail(`option ${key} is given twice; keep one`);
     seen.add(key);

@@ -11,7 +11,7 @@
  * Sources: Bellemare and Wichman (2020), "Elasticities and the inverse hyperbolic sine
  * transformation", Oxford Bulletin of Economics and Statistics 82(1), for asinh.
  */
-import { fail, count, quote, rowsPhrase, nearest, RowList } from "./problems";
+import { cut, fail, count, quote, rowsPhrase, nearest, RowList } from "./problems";
 import type { Options } from "./options";
 import type { RawData } from "./intake";
 
@@ -146,16 +146,16 @@ export function matchName(typed: string, names: readonly string[]): number {
 export function resolveColumn(term: unknown, names: readonly string[], what = "term"): number {
   if (typeof term === "number") {
     if (Number.isInteger(term) && term >= 1 && term <= names.length) return term - 1;
-    return fail(`${what} ${term} is not a column of x: give a number from 1 to ${names.length} or a header name (${names.join(", ")})`);
+    return fail(`${what} ${term} is not a column of x: give a number from 1 to ${names.length} or a header name (${names.map((n) => cut(n)).join(", ")})`);
   }
   if (typeof term === "string" && term.trim() !== "") {
     const t = term.trim();
     const i = matchName(t, names);
     if (i >= 0) return i;
     if (/^\d+$/.test(t)) return resolveColumn(Number(t), names, what);
-    return fail(`${what} ${quote(t)} is not a column of x; did you mean ${nearest(t.slice(0, 200), names)}? (columns: ${names.join(", ")})`);
+    return fail(`${what} ${quote(t)} is not a column of x; did you mean ${cut(nearest(t, names) ?? "")}? (columns: ${names.map((n) => cut(n)).join(", ")})`);
   }
-  return fail(`give the ${what} as a header name or a column number of x (${names.join(", ")})`);
+  return fail(`give the ${what} as a header name or a column number of x (${names.map((n) => cut(n)).join(", ")})`);
 }
 
 interface NonPositive {

@@ -250,5 +250,11 @@ describe("options (item 19)", () => {
     }
     expect(message(() => resolveColumn(long, ["Price"]))).toContain(quote(long));
     expect(quote(long)).toBe(`"${"a".repeat(59)}…"`);
+    // a header of 100,000 characters is cut in the list of columns too
+    const m = message(() => resolveColumn("Prise", ["Price", long]));
+    expect(m.length).toBeLessThan(400);
+    expect(m).toContain(`${"a".repeat(59)}…`);
+    const t = message(() => readYX(col("Units", [1, 2, 3]), cols(["Price", long], [[2, 3, 4], ["a", "b", "c"]]), null, null));
+    expect(t.length).toBeLessThan(400);
   });
 });
