@@ -319,7 +319,7 @@ function refuseTextColumns(r: RangeRead, rows: number, isY: boolean): void {
   r.text.forEach((t, j) => {
     if (2 * t.count <= rows) return;
     const name = cut(r.names[j]);
-    const of = t.count === rows ? `in all ${count(rows, "row")}` : `in ${t.count} of ${count(rows, "row")}`;
+    const of = t.count === rows ? (rows === 1 ? "in its only row" : `in all ${rows} rows`) : `in ${t.count} of ${rows} rows`;
     if (2 * t.numeric > t.count) {
       fail(`${name} holds numbers stored as text ${of} (for example ${quote(t.firstNumericText)} in row ${r.firstRow + t.firstNumeric}): ${numericTextAdvice(t.firstNumericText)}`);
     }

@@ -299,7 +299,7 @@ export function prepare(raw: RawData, o: Options): Dataset {
         const below = new RowList();
         for (let i = 0; i < col.length; i++) if (col[i] + c <= 0) below.add(rowNumbers[i]);
         if (below.count > 0) {
-          fail(`${name} has ${count(np.negatives, "negative value")} (${rowsPhrase(np.negativeRows)}), ${below.count === np.negatives ? "" : `${below.count} of them `}at or below −${c} (${rowsPhrase(below)}), which log(v + ${c}) cannot take; ${negativeAdvice([name], isY ? name : null, o, "use zeros=ihs")}`);
+          fail(`${name} has ${count(np.negatives, "negative value")} (${rowsPhrase(np.negativeRows)}), ${below.count === np.negatives ? `${np.negatives === 1 ? "" : "all "}at or below −${c}` : `${below.count} of them at or below −${c} (${rowsPhrase(below)})`}, which log(v + ${c}) cannot take; ${negativeAdvice([name], isY ? name : null, o, "use zeros=ihs")}`);
         }
         return { kind: "shift", c };
       };
