@@ -16,9 +16,11 @@ const fs = require("fs");
 const os = require("os");
 const path = require("path");
 const zlib = require("zlib");
+const { pipeline } = require("stream/promises");
 
 const ROOT = path.resolve(__dirname, "..");
 const SYSTEM_PATHS = ["/usr/bin/chromium"];
+const DEFAULT_CACHE = path.join(ROOT, "node_modules", ".cache", "elx-chromium");
 const ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update", "--disable-sync", "--no-first-run"];
 
 function isExecutable(file) {
@@ -100,14 +102,15 @@ function packagedInfo() {
 }
 
 /**
- * Unpacks the packaged Chromium once, into a folder of its own (never the shared temp folder the
- * package itself would use), and returns the executable and the environment it needs.
+ * Unpacks the packaged Chromium once, into a folder of its own under node_modules/.cache (never the
+ * shared temp folder), and returns the executable and the environment it needs. Several processes
+ * may unpack at once: each works in its own staging folder and the first rename wins.
  * @param {{ cacheRoot?: string }} [o]
  * @returns {Promise<{ executablePath: string, env: Record<string, string>, version: string }>}
  */
 async function unpackPackaged(o = {}) {
   const { dir, version } = packagedInfo();
-  const cacheRoot = o.cacheRoot || path.join(ROOT, "node_modules", ".cache", "elx-chromium");
+  const cacheRoot = o.cacheRoot || DEFAULT_CACHE;
   const home = path.join(cacheRoot, version);
   const ready = () => ({
     executablePath: path.join(home, "chromium"),
@@ -123,21 +126,16 @@ async function unpackPackaged(o = {}) {
   fs.mkdirSync(cacheRoot, { recursive: true });
   const staging = fs.mkdtempSync(path.join(cacheRoot, `.${version}-`));
   try {
-    const Chromium = require("@sparticuz/chromium");
-    // The package unpacks into os.tmpdir(), which it reads only before its first await: point that
-    // at the staging folder for the duration of the call, so nothing lands in the shared /tmp.
-    const saved = process.env.TMPDIR;
-    process.env.TMPDIR = staging;
-    let pending;
-    try {
-      pending = Chromium.executablePath(path.join(dir, "bin"));
-    } finally {
-      if (saved === undefined) delete process.env.TMPDIR;
-      else process.env.TMPDIR = saved;
-    }
-    const exe = await pending;
-    if (path.resolve(exe) !== path.join(staging, "chromium")) throw new Error(`@sparticuz/chromium unpacked to ${exe}, not into ${staging}`);
-    untar(zlib.brotliDecompressSync(fs.readFileSync(path.join(dir, "bin", "al2023.tar.br"))), path.join(staging, "al2023"));
+    // The package's bin folder holds the browser (brotli) and three brotli tar archives: fonts, the
+    // software GL libraries, and the NSS/NSPR/expat libraries the browser links. They are unpacked
+    // here rather than by the package's own executablePath(), which writes into the shared
+    // os.tmpdir() and reuses whatever file named chromium it finds there.
+    const bin = path.join(dir, "bin");
+    await pipeline(fs.createReadStream(path.join(bin, "chromium.br")), zlib.createBrotliDecompress(), fs.createWriteStream(path.join(staging, "chromium"), { mode: 0o755 }));
+    const tarball = (name, into) => untar(zlib.brotliDecompressSync(fs.readFileSync(path.join(bin, name))), into);
+    tarball("fonts.tar.br", path.join(staging, "fonts"));
+    tarball("swiftshader.tar.br", staging);
+    tarball("al2023.tar.br", path.join(staging, "al2023"));
     fs.writeFileSync(
       path.join(staging, "fonts.conf"),
       [
@@ -207,4 +205,9 @@ async function launchBrowser(o = {}) {
   };
 }
 
-module.exports = { chooseBrowser, launchBrowser, unpackPackaged, untar, ARGS };
+/** Where the packaged Chromium is (or will be) unpacked by default. */
+function packagedHome() {
+  return path.join(DEFAULT_CACHE, packagedInfo().version);
+}
+
+module.exports = { chooseBrowser, launchBrowser, unpackPackaged, packagedHome, untar, ARGS };

@@ -6,7 +6,7 @@
 import * as fs from "fs";
 import * as os from "os";
 import * as path from "path";
-import { chooseBrowser, launchBrowser, unpackPackaged } from "../harness/browser";
+import { chooseBrowser, launchBrowser, packagedHome, unpackPackaged } from "../harness/browser";
 
 const ROOT = path.resolve(__dirname, "../..");
 let dir: string;
@@ -68,22 +68,35 @@ describe("choosing the browser", () => {
 });
 
 describe("launching", () => {
-  it("the packaged Chromium is unpacked once into node_modules/.cache/elx-chromium/<version> and renders a page", async () => {
+  it("the packaged Chromium unpacks into its own cache folder (browser, libraries, fonts), once, and renders a page with a real font", async () => {
     const version = JSON.parse(fs.readFileSync(path.join(ROOT, "node_modules", "@sparticuz", "chromium", "package.json"), "utf8")).version as string;
-    const unpacked = await unpackPackaged();
-    expect(unpacked.executablePath).toBe(path.join(ROOT, "node_modules", ".cache", "elx-chromium", version, "chromium"));
-    expect(await unpackPackaged()).toEqual(unpacked);
-    const b = await launchBrowser({ choice: { kind: "packaged", executablePath: null, reason: "test" }, viewport: { width: 400, height: 200 } });
+    expect(packagedHome()).toBe(path.join(ROOT, "node_modules", ".cache", "elx-chromium", version));
+    // a fresh cache folder, so the unpacking itself runs in this (Jest) process every time
+    const cacheRoot = fs.mkdtempSync(path.join(os.tmpdir(), "elx-unpack-"));
     try {
-      expect(b.executablePath).toBe(unpacked.executablePath);
-      await b.page.setContent('<p id="t" style="font: 16px sans-serif">Elasticity −0.52 (95%: −0.61 to −0.43)</p>');
-      const ua = await b.page.evaluate(() => navigator.userAgent);
-      expect(ua).toContain(`HeadlessChrome/${version.split(".")[0]}.`);
-      // text is laid out with a real font (a missing font would give zero width)
-      expect(await b.page.evaluate(() => (document.getElementById("t") as HTMLElement).getBoundingClientRect().width)).toBeGreaterThan(100);
-      expect((await b.page.screenshot()).length).toBeGreaterThan(1000);
+      const unpacked = await unpackPackaged({ cacheRoot });
+      const home = path.join(cacheRoot, version);
+      expect(unpacked.executablePath).toBe(path.join(home, "chromium"));
+      for (const f of ["chromium", "al2023/lib/libnss3.so", "fonts/fonts/Open_Sans/OpenSans-Regular.ttf", "libGLESv2.so", "fonts.conf", "ready"]) expect(fs.existsSync(path.join(home, f))).toBe(true);
+      expect(fs.statSync(unpacked.executablePath).size).toBeGreaterThan(100e6);
+      expect(fs.readFileSync(path.join(home, "fonts.conf"), "utf8")).toContain(`<dir>${path.join(home, "fonts", "fonts")}</dir>`);
+      expect(unpacked.env.LD_LIBRARY_PATH.split(":")[0]).toBe(path.join(home, "al2023", "lib"));
+      expect(fs.readdirSync(cacheRoot)).toEqual([version]); // no staging folder left behind
+      expect(await unpackPackaged({ cacheRoot })).toEqual(unpacked);
+      const b = await launchBrowser({ choice: { kind: "packaged", executablePath: null, reason: "test" }, cacheRoot, viewport: { width: 400, height: 200 } });
+      try {
+        expect(b.executablePath).toBe(unpacked.executablePath);
+        await b.page.setContent('<p id="t" style="font: 16px sans-serif">Elasticity −0.52 (95%: −0.61 to −0.43)</p>');
+        const ua = await b.page.evaluate(() => navigator.userAgent);
+        expect(ua).toContain(`HeadlessChrome/${version.split(".")[0]}.`);
+        // text is laid out with a real font (a missing font would give zero width)
+        expect(await b.page.evaluate(() => (document.getElementById("t") as HTMLElement).getBoundingClientRect().width)).toBeGreaterThan(100);
+        expect((await b.page.screenshot()).length).toBeGreaterThan(1000);
+      } finally {
+        await b.close();
+      }
     } finally {
-      await b.close();
+      fs.rmSync(cacheRoot, { recursive: true, force: true });
     }
   }, 180000);
 

@@ -20,7 +20,8 @@ const browser = require("../../scripts/browser.js") as {
   chooseBrowser: (o?: { env?: Record<string, string | undefined>; systemPaths?: string[] }) => BrowserChoice;
   launchBrowser: (o?: { viewport?: { width: number; height: number }; choice?: BrowserChoice; cacheRoot?: string }) => Promise<LaunchedBrowser>;
   unpackPackaged: (o?: { cacheRoot?: string }) => Promise<{ executablePath: string; env: Record<string, string>; version: string }>;
+  packagedHome: () => string;
   untar: (buffer: Buffer, dir: string) => void;
 };
 
-export const { chooseBrowser, launchBrowser, unpackPackaged, untar } = browser;
+export const { chooseBrowser, launchBrowser, unpackPackaged, packagedHome, untar } = browser;
