@@ -517,13 +517,35 @@ export function mountPane(root: HTMLElement | null = document.getElementById("el
   return pane;
 }
 
+/** How long the pane waits for the host before it says that the host has not answered. */
+export const HOST_WAIT_MS = 5000;
+
+/** Replaces the "Loading…" text with a sentence saying what is wrong and what to do. */
+function loadingProblem(text: string): void {
+  const root = document.getElementById("elx-pane");
+  if (!root || root.classList.contains("elx-pane")) return;
+  injectStyle();
+  root.innerHTML = `<div class="elx-pane"><h1>Elasticell</h1><p class="elx-message elx-refused" id="elx-load-problem" role="alert">${esc(text)}</p></div>`;
+}
+
+export const OFFICE_MISSING =
+  "The spreadsheet host's script (office.js, loaded from appsforoffice.microsoft.com) could not load, so the pane cannot reach the workbook. This machine may be offline, or a proxy or firewall may block that address. Connect, then close and reopen the pane. Without the host, the preview page (npm start) shows the pane and the ELX functions on this machine alone.";
+export const HOST_SILENT =
+  "The spreadsheet host has not answered after several seconds, so the pane cannot reach the workbook yet. If this page was opened in a plain browser, open it from the host instead (the Elasticell tab › Elasticity check); in the host, close and reopen the pane, or reload the add-in.";
+
 // Inert outside the host: real office.js outside a host resolves onReady with host null.
-if (typeof Office !== "undefined" && typeof document !== "undefined") {
-  Office.onReady((info) => {
-    if (info && info.host) mountPane();
-    else {
-      const root = document.getElementById("elx-pane");
-      if (root) root.textContent = "Open this pane from the spreadsheet host (Data tab › Elasticell), or use the preview page (npm start).";
-    }
-  });
+if (typeof document !== "undefined") {
+  if (typeof Office === "undefined") {
+    // taskpane.js runs after office.js's script tag: when Office is missing here, that script failed to load.
+    loadingProblem(OFFICE_MISSING);
+  } else {
+    const silent = setTimeout(() => loadingProblem(HOST_SILENT), HOST_WAIT_MS);
+    Office.onReady((info) => {
+      clearTimeout(silent);
+      if (info && info.host) mountPane();
+      else {
+        loadingProblem("Open this pane from the spreadsheet host (the Elasticell tab › Elasticity check), or use the preview page (npm start) to try it on this machine.");
+      }
+    });
+  }
 }
