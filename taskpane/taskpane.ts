@@ -71,6 +71,8 @@ export interface Timings {
   total: number;
 }
 
+const WRITE_BEFORE_CHECK = "After a check that passes, writes ELX.FIT, ELX.ELASTICITIES, ELX.EFFECTS (when x has a binary column and y is logged), ELX.TESTS (least squares) and ELX.SUMMARY for the checked ranges and options, so the results live in the workbook and recalculate with the data. Only empty cells are used.";
+
 const TEMPLATE = `
 <header>
   <h1>Elasticell</h1>
@@ -95,7 +97,7 @@ const TEMPLATE = `
     <div><label for="elx-estimator">Estimator</label>
       <select id="elx-estimator"><option value="ols">least squares</option><option value="ppml">PPML (keeps zero y)</option></select></div>
     <div><label for="elx-zeros">Zeros under a log</label>
-      <select id="elx-zeros"><option value="stop">stop and tell me</option><option value="drop">leave those rows out</option><option value="shift">log(v + 1)</option><option value="ihs">inverse hyperbolic sine</option></select></div>
+      <select id="elx-zeros"><option value="stop">stop and tell me</option><option value="drop">leave them out</option><option value="shift">log(v + 1)</option><option value="ihs">inverse hyperbolic sine</option></select></div>
     <div><label for="elx-se">Standard errors</label>
       <select id="elx-se"><option>HC3</option><option>HC1</option><option>HC0</option><option>HC2</option><option value="classical">classical</option><option value="HAC">HAC (weekly series)</option></select></div>
     <div><label for="elx-level">Interval level</label>
@@ -127,7 +129,7 @@ const TEMPLATE = `
 </section>
 <section id="elx-write" aria-labelledby="elx-h-write">
   <h2 id="elx-h-write">Put the formulas in the sheet</h2>
-  <p class="elx-muted" id="elx-write-what">After a check, writes ELX.FIT, ELX.ELASTICITIES, ELX.TESTS (least squares), ELX.EFFECTS (when x has a binary column and y is logged) and ELX.SUMMARY for the checked ranges and options, so the results live in the workbook and recalculate with the data. Only empty cells are used.</p>
+  <p class="elx-muted" id="elx-write-what">${WRITE_BEFORE_CHECK}</p>
   <div class="elx-field">
     <label for="elx-target">Top left cell of the block</label>
     <div class="elx-inline"><input id="elx-target" type="text" spellcheck="false" autocomplete="off" value="I2" />
@@ -239,6 +241,7 @@ export class Pane {
       // Until this run's check passes, nothing may be written for the previous ranges.
       this.state = null;
       this.refusal = "";
+      this.el["elx-write-what"].textContent = WRITE_BEFORE_CHECK;
       const yText = this.input("elx-y").value.trim();
       const xText = this.input("elx-x").value.trim();
       if (!yText || !xText) {
