@@ -260,6 +260,8 @@ describe("the formula writer (item 7)", () => {
     const msg = await write("AH2");
     expect(msg).toBe('Nothing was written: the last check did not pass (y: there is no sheet named "Stock" in this workbook). Fix the ranges and check again; the block is written for the ranges and options of a check that passed.');
     expect(await page.evaluate(() => (window as any).ElxPreviewWorkbook.activeSheet.cells.size)).toBe(count);
+    // …and the writer no longer describes the block of the previous ranges.
+    expect(await page.textContent("#elx-write-what")).not.toContain("Sales!C1:C1249");
     await page.fill("#elx-y", "Sales!C1:C1249");
   });
 });
@@ -315,11 +317,11 @@ describe("the sheet view and the pane's tables (item 8)", () => {
     expect(written).toHaveLength(5);
   });
 
-  it("keeps each interval on one line in the zero-choices table, and the table inside the pane's width", async () => {
+  it("keeps each interval and each choice's name on one line in the zero-choices table, and the table inside the pane's width", async () => {
     const r = await page.evaluate(() => {
       const table = document.getElementById("elx-choices-table") as HTMLTableElement;
       const wrap = table.parentElement as HTMLElement;
-      const cells = Array.from(table.querySelectorAll("td"));
+      const cells = Array.from(table.querySelectorAll("td, tbody th"));
       const lineHeight = parseFloat(getComputedStyle(cells[0]).lineHeight) || 18;
       const wrapped = cells.filter((td) => {
         const range = document.createRange();
