@@ -151,6 +151,15 @@ async function paste(text: string): Promise<void> {
   }, text);
 }
 
+/** Narrows the pane to the host's usual narrowest width (320 px), or back to the preview's. */
+async function narrowPane(on: boolean): Promise<void> {
+  await page.evaluate((narrow) => {
+    const pane = document.getElementById("elx-pane") as HTMLElement;
+    pane.style.flex = narrow ? "0 0 320px" : "";
+    pane.style.width = narrow ? "320px" : "";
+  }, on);
+}
+
 /** Whether an element's box lies inside the visible part of the sheet's scroller (under its sticky headers). */
 async function inView(selector: string): Promise<boolean> {
   return page.evaluate((sel) => {
@@ -318,6 +327,7 @@ describe("the sheet view and the pane's tables (item 8)", () => {
   });
 
   it("keeps each interval and each choice's name on one line in the zero-choices table, and the table inside the pane's width", async () => {
+    await narrowPane(true);
     const r = await page.evaluate(() => {
       const table = document.getElementById("elx-choices-table") as HTMLTableElement;
       const wrap = table.parentElement as HTMLElement;
@@ -333,9 +343,11 @@ describe("the sheet view and the pane's tables (item 8)", () => {
     expect(r.wrapped).toEqual([]);
     expect(r.overflow).toBeLessThanOrEqual(0);
     expect(r.headers).toEqual(["Choice", "Elasticity", "Low (95%)", "High (95%)", "Rows used"]);
+    await narrowPane(false);
   });
 
-  it("shows every column of a wide data check inside the pane (twelve regressors)", async () => {
+  it("shows every column of the data-check table inside the pane at the host's narrow width, for twelve regressors", async () => {
+    await narrowPane(true);
     const names = Array.from({ length: 12 }, (_, j) => `Driver ${j + 1}`);
     const lines = [["Sales", ...names].join("\t")];
     for (let i = 0; i < 60; i++) lines.push([String(100 + ((i * 37) % 50)), ...names.map((_, j) => String(1 + ((i * (j + 3)) % 17) + j / 10))].join("\t"));
@@ -357,6 +369,7 @@ describe("the sheet view and the pane's tables (item 8)", () => {
     expect(r.rows).toEqual(["Sales (y)", ...names]);
     expect(r.cut).toBe(0);
     expect(r.overflow).toBeLessThanOrEqual(0);
+    await narrowPane(false);
   });
 });
 
