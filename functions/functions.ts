@@ -9,7 +9,7 @@
  */
 import { effectsTable, elasticitiesTable, elasticityValue, fitTable, summaryTable, zerosTable } from "./cells/regression";
 import { byGroupTable } from "./cells/groups";
-import { fitView, makeCaller, cacheStats, readColumns, type CellFunction, type ElasticellApi } from "./paneApi";
+import { fitView, elasticitiesView, makeCaller, cacheStats, readColumns, type CellFunction, type ElasticellApi } from "./paneApi";
 import { formCheckTable, heteroValue, normalValue, predictTable, smearingValue, testsTable } from "./cells/diagnostics";
 
 /**
@@ -178,6 +178,7 @@ const published: ElasticellApi = {
   functions: cellFunctions as unknown as Record<string, CellFunction>,
   call: makeCaller(cellFunctions as unknown as Record<string, CellFunction>),
   fitView,
+  elasticitiesView,
   readColumns,
   cacheStats,
 };

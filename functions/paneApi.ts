@@ -9,6 +9,7 @@ import { parseOptions, seTypeOf } from "./engine/options";
 import { ElxProblem } from "./engine/problems";
 import { transformLabel } from "./engine/transforms";
 import { readYX, type Origin } from "./engine/intake";
+import { elasticity } from "./engine/elasticity";
 
 export type Outcome<T> = { ok: true; value: T } | { ok: false; message: string; kind: "value" | "na" };
 
@@ -62,6 +63,41 @@ export function fitView(y: unknown[][], x: unknown[][], optionsText: string | nu
   });
 }
 
+/** One regressor's elasticity with its interval (binary columns carry no elasticity: see ELX.EFFECTS). */
+export interface ElasticityItem {
+  term: string;
+  binary: boolean;
+  estimate: number;
+  se: number;
+  lower: number;
+  upper: number;
+}
+
+/** The elasticities ELX.ELASTICITIES shows, as numbers: the pane reads these, never the table's headers or columns. */
+export interface ElasticitiesView {
+  /** Confidence level of the intervals (the level option). */
+  level: number;
+  /** The covariance type, as the table's header names it (HC3, HC1, classical, HAC with its lags). */
+  seLabel: string;
+  estimator: "ols" | "ppml";
+  items: ElasticityItem[];
+}
+
+/** The (cached) fit's elasticities under the options text. */
+export function elasticitiesView(y: unknown[][], x: unknown[][], optionsText: string | null, yOrigin: Origin | null = null, xOrigin: Origin | null = null): Outcome<ElasticitiesView> {
+  return outcome(() => {
+    const o = parseOptions(optionsText);
+    const fit = getFit({ y, x, options: o, yOrigin, xOrigin });
+    const cov = fit.covariance(seTypeOf(o), o.lags);
+    const items = fit.data.xNames.map((term, j): ElasticityItem => {
+      if (fit.data.binary[j]) return { term, binary: true, estimate: NaN, se: NaN, lower: NaN, upper: NaN };
+      const r = elasticity(fit, j, cov, o.level, o.at);
+      return { term, binary: false, estimate: r.estimate, se: r.se, lower: r.lower, upper: r.upper };
+    });
+    return { level: o.level, seLabel: cov.label, estimator: fit.estimator, items };
+  });
+}
+
 /**
  * Reads y and x into columns the way every fit does (headers, listwise deletion) and reports the
  * counts: the pane's data check, and the benchmark of the host-rows-to-columns conversion.
@@ -96,6 +132,7 @@ export interface ElasticellApi {
   functions: Record<string, CellFunction>;
   call(id: string, ...args: unknown[]): Outcome<unknown>;
   fitView: typeof fitView;
+  elasticitiesView: typeof elasticitiesView;
   readColumns: typeof readColumns;
   cacheStats: typeof cacheStats;
 }

@@ -70,6 +70,14 @@ export class RangeProxy extends Proxy {
     this.pendingFormulas = v;
     this.context.queueWrite(() => this.applyFormulas());
   }
+  /** Selects the range (applied at sync), making its sheet the active one; the sheet view scrolls to it. */
+  select(): void {
+    this.context.queueWrite(() => {
+      const a = this.rect();
+      const sheet = this.sheetRef.sheet();
+      if (a && sheet) this.context.book.select(sheet, a);
+    });
+  }
   private applyFormulas(): void {
     const a = this.rect();
     const sheet = this.sheetRef.sheet();

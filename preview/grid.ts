@@ -5,7 +5,7 @@
  * shift-click to select; click a column letter to select the whole column. Keyboard: arrows move
  * (shift extends), Enter or F2 goes to the formula bar.
  */
-import { columnLetters, formatAddress, MAX_ROWS, parseAddress } from "../taskpane/address";
+import { columnLetters, formatAddress, MAX_COLUMNS, MAX_ROWS, parseAddress } from "../taskpane/address";
 import { isError, key, type CellValue, type Workbook } from "./workbook";
 
 const ROW_HEIGHT = 21;
@@ -13,9 +13,13 @@ const OVERSCAN = 12;
 
 /** Column classes and their widths in px (kept equal to preview.css). */
 const COLUMN_WIDTHS: Record<string, number> = { "pv-wide": 84, "pv-data": 60, "pv-gap": 36, "pv-mid": 92 };
-function columnClass(c: number): string {
+/** The demo sheet's layout (data in A:G, a gap, formulas from I); other sheets get even, wide columns. */
+function columnClass(c: number, demoLayout = true): string {
+  if (!demoLayout) return "pv-wide";
   return c === 1 ? "pv-wide" : c <= 7 ? "pv-data" : c === 8 ? "pv-gap" : "pv-mid";
 }
+/** Longest run of empty cells a text may draw over, to its right. */
+const MAX_OVERFLOW_COLUMNS = 12;
 
 const esc = (s: string): string => s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
 
@@ -33,6 +37,11 @@ export function display(v: CellValue): string {
   return String(v);
 }
 
+/** A cell that shows nothing and holds nothing (text may draw over it). */
+function isEmpty(c: { input: string | null; value: CellValue } | undefined): boolean {
+  return !c || (c.input === null && (c.value === null || c.value === ""));
+}
+
 export class GridView {
   private readonly scroller: HTMLElement;
   private readonly table: HTMLTableElement;
@@ -46,17 +55,23 @@ export class GridView {
   private frame = 0;
   renderCount = 0;
 
-  constructor(root: HTMLElement, private readonly book: Workbook) {
+  constructor(private readonly root: HTMLElement, private readonly book: Workbook) {
     root.innerHTML = `
       <div class="pv-bar">
         <label for="pv-name">Cell</label><input id="pv-name" class="pv-name" type="text" spellcheck="false" autocomplete="off" aria-describedby="pv-help" />
         <label for="pv-formula">Formula</label><input id="pv-formula" class="pv-formula" type="text" spellcheck="false" autocomplete="off" aria-describedby="pv-help" />
       </div>
       <p id="pv-help" class="pv-help">Type an address in Cell and press Enter to select it; edit a formula and press Enter to see it recalculate.</p>
+      <div class="pv-import">
+        <label for="pv-file">Your own data: open a CSV file</label> <input id="pv-file" type="file" accept=".csv,.tsv,.txt,text/csv,text/plain" aria-describedby="pv-import-help" />
+        <p id="pv-import-help" class="pv-help">or paste (Ctrl+V) into the sheet a block copied from any spreadsheet, header row included. Either opens in a new sheet of this page; nothing leaves this machine.</p>
+      </div>
+      <div id="pv-import-note" class="pv-import-note" aria-live="polite"></div>
       <p id="pv-note" class="pv-note" aria-live="polite"></p>
       <div class="pv-scroll" tabindex="0" aria-label="Sheet ${esc(book.activeSheet.name)}: arrow keys move, shift extends, Enter edits">
         <table class="pv-grid" aria-label="Sheet ${esc(book.activeSheet.name)}"><colgroup></colgroup><thead></thead><tbody></tbody></table>
-      </div>`;
+      </div>
+      <nav class="pv-tabs" aria-label="Sheets"></nav>`;
     this.scroller = root.querySelector(".pv-scroll") as HTMLElement;
     this.table = root.querySelector("table") as HTMLTableElement;
     this.nameBox = root.querySelector("#pv-name") as HTMLInputElement;
@@ -77,20 +92,68 @@ export class GridView {
       if (e.key === "Escape") this.syncBars();
     });
     book.onChange(() => this.refresh());
+    book.onSelect(() => {
+      const sel = this.book.selection;
+      this.anchor = { row: sel.top, column: sel.left };
+      this.refresh();
+      this.scrollIntoView(sel);
+    });
     this.refresh();
+  }
+
+  /** Whether the active sheet uses the demo's column layout. */
+  private demoLayout(): boolean {
+    return this.book.activeSheet === this.book.sheets[0];
+  }
+
+  private columnWidth(c: number): number {
+    return COLUMN_WIDTHS[columnClass(c, this.demoLayout())];
+  }
+
+  /** Scrolls the grid so that the top left of the area is in view, across and down. */
+  scrollIntoView(a: { top: number; left: number }): void {
+    const head = 20;
+    const rowHead = 46;
+    const y = (a.top - 1) * ROW_HEIGHT;
+    if (y < this.scroller.scrollTop || y > this.scroller.scrollTop + this.scroller.clientHeight - head - 3 * ROW_HEIGHT) this.scroller.scrollTop = Math.max(0, y - ROW_HEIGHT);
+    let x = 0;
+    for (let c = 1; c < a.left; c++) x += this.columnWidth(c);
+    const w = this.columnWidth(a.left);
+    if (x < this.scroller.scrollLeft || x + w > this.scroller.scrollLeft + this.scroller.clientWidth - rowHead) this.scroller.scrollLeft = Math.max(0, x - this.columnWidth(Math.max(1, a.left - 1)));
+    this.draw();
+  }
+
+  /** Shows another sheet of the workbook, with A1 selected. */
+  showSheet(name: string): void {
+    const sheet = this.book.sheet(name);
+    if (!sheet) return;
+    this.book.select(sheet, { sheet: sheet.name, top: 1, left: 1, bottom: 1, right: 1 });
+  }
+
+  private drawTabs(): void {
+    const nav = this.root.querySelector(".pv-tabs") as HTMLElement;
+    nav.innerHTML = this.book.sheets.map((sh) => `<button type="button" data-sheet="${esc(sh.name)}"${sh === this.book.activeSheet ? ' aria-current="true" class="pv-tab-on"' : ""}>${esc(sh.name)}</button>`).join("");
+    for (const b of Array.from(nav.querySelectorAll("button"))) b.addEventListener("click", () => this.showSheet((b as HTMLElement).dataset.sheet as string));
+    const label = `Sheet ${this.book.activeSheet.name}`;
+    this.scroller.setAttribute("aria-label", `${label}: arrow keys move, shift extends, Enter edits`);
+    this.table.setAttribute("aria-label", label);
   }
 
   /** Re-measures the sheet and redraws. */
   refresh(): void {
+    this.drawTabs();
     const used = this.book.activeSheet.usedBounds();
-    this.columns = Math.max(16, (used?.right ?? 0) + 2);
-    this.rows = Math.max(60, (used?.bottom ?? 0) + 20);
+    const sel = this.book.selection;
+    // Draw as far as the used cells and the selection reach (a whole column or row does not stretch the grid).
+    this.columns = Math.max(16, (used?.right ?? 0) + 2, sel.left === 1 && sel.right >= MAX_COLUMNS ? 0 : sel.right + 2);
+    this.rows = Math.max(60, (used?.bottom ?? 0) + 20, sel.top === 1 && sel.bottom >= MAX_ROWS ? 0 : sel.bottom + 20);
     const cols = ['<col class="pv-rowhead-col">'];
-    for (let c = 1; c <= this.columns; c++) cols.push(`<col class="${columnClass(c)}">`);
+    const demo = this.demoLayout();
+    for (let c = 1; c <= this.columns; c++) cols.push(`<col class="${columnClass(c, demo)}">`);
     (this.table.querySelector("colgroup") as HTMLElement).innerHTML = cols.join("");
     // A fixed-layout table needs its width (the same widths as preview.css gives the columns).
     let width = 46;
-    for (let c = 1; c <= this.columns; c++) width += COLUMN_WIDTHS[columnClass(c)];
+    for (let c = 1; c <= this.columns; c++) width += COLUMN_WIDTHS[columnClass(c, demo)];
     this.table.style.width = `${width}px`;
     const head = ['<tr><th class="pv-corner" scope="col"><span class="pv-sr">Row</span></th>'];
     for (let c = 1; c <= this.columns; c++) head.push(`<th scope="col" data-col="${c}">${columnLetters(c)}</th>`);
@@ -128,12 +191,22 @@ export class GridView {
         if (cell?.spillFrom !== undefined) cls.push("pv-s");
         if (isError(v)) cls.push("pv-e");
         else if (typeof v === "number") cls.push("pv-n");
-        else if (typeof v === "string" && v !== "" && !sheet.get(r, c + 1)) cls.push("pv-over");
+        // Text draws over the empty cells to its right, and no further (a spreadsheet's rule).
+        let over = 0;
+        if (!isError(v) && typeof v === "string" && v !== "") {
+          let room = this.columnWidth(c) - 6;
+          for (let n = c + 1; n <= Math.min(this.columns, c + MAX_OVERFLOW_COLUMNS) && isEmpty(sheet.get(r, n)); n++) room += this.columnWidth(n);
+          if (room > this.columnWidth(c) - 6) {
+            cls.push("pv-over");
+            over = room;
+          }
+        }
         if (r >= sel.top && r <= sel.bottom && c >= sel.left && c <= sel.right) cls.push("pv-sel");
         if (r === act.row && c === act.column) cls.push("pv-act");
         const text = display(v);
         const title = isError(v) && v.message ? ` title="${esc(`${v.code} ${v.message}`)}"` : text.length > 10 ? ` title="${esc(text)}"` : "";
-        html.push(`<td data-a="${columnLetters(c)}${r}"${cls.length ? ` class="${cls.join(" ")}"` : ""}${title}>${esc(text)}</td>`);
+        const content = over ? `<span class="pv-spill" style="width:${over}px">${esc(text)}</span>` : esc(text);
+        html.push(`<td data-a="${columnLetters(c)}${r}"${cls.length ? ` class="${cls.join(" ")}"` : ""}${title}>${content}</td>`);
       }
       html.push("</tr>");
     }
@@ -216,8 +289,13 @@ export class GridView {
   select(a: { row: number; column: number }, b: { row: number; column: number }, active: { row: number; column: number }): void {
     this.book.selection = { sheet: this.book.activeSheet.name, top: Math.min(a.row, b.row), left: Math.min(a.column, b.column), bottom: Math.max(a.row, b.row), right: Math.max(a.column, b.column) };
     this.book.active = active;
-    this.draw();
-    this.syncBars();
+    const s = this.book.selection;
+    const beyond = (s.bottom < MAX_ROWS && s.bottom + 20 > this.rows) || (s.right < MAX_COLUMNS && s.right + 2 > this.columns);
+    if (beyond) this.refresh();
+    else {
+      this.draw();
+      this.syncBars();
+    }
   }
 
   /** Selects a typed address ("C1:C1249", "Sales!D1:G1249", "C:C") and scrolls it into view. */
@@ -230,8 +308,7 @@ export class GridView {
     const a = p.value;
     this.anchor = { row: a.top, column: a.left };
     this.select({ row: a.top, column: a.left }, { row: a.bottom, column: a.right }, { row: a.top, column: a.left });
-    const y = (a.top - 1) * ROW_HEIGHT;
-    if (y < this.scroller.scrollTop || y > this.scroller.scrollTop + this.scroller.clientHeight - 3 * ROW_HEIGHT) this.scroller.scrollTop = Math.max(0, y - ROW_HEIGHT);
+    this.scrollIntoView(a);
     return true;
   }
 

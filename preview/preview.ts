@@ -10,6 +10,7 @@ import css from "./preview.css";
 import demo from "../data/demo.json";
 import { GridView } from "./grid";
 import { parseAddress } from "../taskpane/address";
+import { parseDelimited, sheetName } from "./importData";
 import type { CellValue, FunctionMetadata, Workbook } from "./workbook";
 
 const g = globalThis as unknown as Record<string, unknown>;
@@ -86,6 +87,7 @@ async function start(): Promise<void> {
     book.setInputs(sheet, inputs);
   }
   const grid = new GridView(document.getElementById("pv-sheet") as HTMLElement, book);
+  wireImport(grid);
   const firstRenderMs = performance.now();
   g.ElxPreview = {
     book,
@@ -111,6 +113,52 @@ async function start(): Promise<void> {
     },
   };
   (g.ElxPreviewReady as () => void)();
+}
+
+/** Reads pasted or opened text into a new sheet and shows it; the notes say what was read and how. */
+export function importText(grid: GridView, text: string, how: { separator?: "\t"; source: string; base: string }): boolean {
+  const note = document.getElementById("pv-import-note") as HTMLElement;
+  const r = parseDelimited(text, { separator: how.separator, source: how.source });
+  if ("error" in r) {
+    note.className = "pv-import-note pv-import-bad";
+    note.textContent = `Nothing was added: ${r.error}.`;
+    return false;
+  }
+  const name = sheetName(how.base, (n) => !!book.sheet(n));
+  const sheet = book.addSheet(name);
+  book.loadValues(sheet, 1, 1, r.rows);
+  grid.showSheet(name);
+  const esc = (t: string) => t.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;");
+  note.className = "pv-import-note";
+  note.innerHTML = `<p><strong>${esc(how.source)} is in the new sheet ${esc(name)}</strong> (the tabs below the grid switch sheets). Select its y column (click the column letter) and press <em>Use selection</em> in the pane, then the x columns.</p><ul>${r.notes.map((n) => `<li>${esc(n)}</li>`).join("")}</ul>`;
+  return true;
+}
+
+function wireImport(grid: GridView): void {
+  const file = document.getElementById("pv-file") as HTMLInputElement;
+  file.addEventListener("change", () => {
+    const f = file.files?.[0];
+    if (!f) return;
+    const reader = new FileReader();
+    reader.onload = () => {
+      importText(grid, String(reader.result ?? ""), { source: `The file ${f.name}`, base: f.name });
+      file.value = "";
+    };
+    reader.onerror = () => {
+      (document.getElementById("pv-import-note") as HTMLElement).textContent = `The file ${f.name} could not be read (${reader.error?.message ?? "unknown reason"}).`;
+    };
+    reader.readAsText(f);
+  });
+  // A block pasted anywhere but in a text field (the pane's fields, the name box, the formula bar).
+  document.addEventListener("paste", (e) => {
+    const target = e.target as HTMLElement | null;
+    if (target && target.closest && target.closest("input, textarea, select, [contenteditable]")) return;
+    const text = e.clipboardData?.getData("text/plain") ?? "";
+    if (text.trim() === "") return;
+    e.preventDefault();
+    // Spreadsheets copy a block as tab-separated text.
+    importText(grid, text, { separator: "\t", source: "The pasted block", base: "Pasted" });
+  });
 }
 
 document.addEventListener("DOMContentLoaded", () => {

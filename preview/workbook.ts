@@ -199,6 +199,29 @@ export class Workbook {
     return this.sheets.find((s) => s.name.toLowerCase() === name.toLowerCase());
   }
 
+  private readonly selectListeners: (() => void)[] = [];
+
+  /** Called when the selection is set from outside the sheet view (the pane's host calls). */
+  onSelect(f: () => void): void {
+    this.selectListeners.push(f);
+  }
+
+  /** Selects a rectangle of a sheet (which becomes the active sheet); the active cell is its top left. */
+  select(sheet: Sheet, a: Address): void {
+    this.activeSheet = sheet;
+    this.selection = { sheet: sheet.name, top: a.top, left: a.left, bottom: a.bottom, right: a.right };
+    this.active = { row: a.top, column: a.left };
+    for (const f of this.selectListeners) f();
+  }
+
+  /** Adds a sheet (a name not yet taken) at the end of the workbook. */
+  addSheet(name: string): Sheet {
+    if (this.sheet(name)) throw new Error(`a sheet named ${name} exists`);
+    const s = new Sheet(name);
+    this.sheets.push(s);
+    return s;
+  }
+
   onChange(f: () => void): void {
     this.listeners.push(f);
   }

@@ -13,7 +13,7 @@ export interface BlockItem {
   id: string;
   /** Extra arguments between x and the options text, already written as formula text. */
   extra?: string[];
-  /** Rows and columns of the result when it was measured (1 × 1 when it came back as an error). */
+  /** Rows and columns to keep free for the result (the pane takes the shape the function returns for these columns and options, also when it returns an error today). */
   height: number;
   width: number;
 }

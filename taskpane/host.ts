@@ -154,6 +154,9 @@ export class Host {
         const at = offsetCell(area, cell.row, cell.column);
         sheet.getRange(formatAddress(at, { sheet: false })).formulas = [[cell.content]];
       }
+      // Select the block, so the host scrolls to it and the analyst sees where it went.
+      const written = sheet.getRange(formatAddress(area, { sheet: false }));
+      if (typeof (written as { select?: unknown }).select === "function") written.select();
       await context.sync();
       return { ok: true, address: formatAddress(area) } as WriteResult;
     }).catch((e: unknown) => ({ ok: false, message: `Nothing was written: the host refused (${message(e)}).`, occupied: [], suggestion: null }) as WriteResult);

@@ -16,7 +16,7 @@ import { CAUTIONS, formAssumptions, testReadings } from "./assumptions";
 import { buildBlock, type BlockItem } from "./formulas";
 import { formatAddress } from "./address";
 // Types only: the pane reads the functions' published object at run time, never their modules.
-import type { ElasticellApi, Outcome } from "../functions/paneApi";
+import type { ElasticellApi, ElasticitiesView, Outcome } from "../functions/paneApi";
 import type { Origin } from "../functions/engine/intake";
 
 type EngineApi = ElasticellApi;
@@ -53,6 +53,8 @@ export function ppmlSe(se: string): string {
 
 const esc = (s: unknown): string => String(s).replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
 const fmt = (n: number): string => n.toLocaleString("en-GB");
+/** A confidence level as the interval headers show it: 0.95 → "95%", 0.999 → "99.9%". */
+export const percent = (level: number): string => `${Number((level * 100).toPrecision(6))}%`;
 const pText = (p: unknown): string => (typeof p === "number" && Number.isFinite(p) ? (p < 0.0001 ? "p < 0.0001" : `p = ${p.toFixed(4)}`) : "p not available");
 const cellText = (v: unknown): string => (typeof v === "number" ? (Number.isFinite(v) ? shortNumber(v) : "–") : v && typeof v === "object" ? "n/a" : String(v ?? ""));
 
@@ -68,6 +70,8 @@ export interface Timings {
   assumptions: number;
   total: number;
 }
+
+const WRITE_BEFORE_CHECK = "After a check that passes, writes ELX.FIT, ELX.ELASTICITIES, ELX.EFFECTS (when x has a binary column and y is logged), ELX.TESTS (least squares) and ELX.SUMMARY for the checked ranges and options, so the results live in the workbook and recalculate with the data. Only empty cells are used.";
 
 const TEMPLATE = `
 <header>
@@ -93,7 +97,7 @@ const TEMPLATE = `
     <div><label for="elx-estimator">Estimator</label>
       <select id="elx-estimator"><option value="ols">least squares</option><option value="ppml">PPML (keeps zero y)</option></select></div>
     <div><label for="elx-zeros">Zeros under a log</label>
-      <select id="elx-zeros"><option value="stop">stop and tell me</option><option value="drop">leave those rows out</option><option value="shift">log(v + 1)</option><option value="ihs">inverse hyperbolic sine</option></select></div>
+      <select id="elx-zeros"><option value="stop">stop and tell me</option><option value="drop">leave them out</option><option value="shift">log(v + 1)</option><option value="ihs">inverse hyperbolic sine</option></select></div>
     <div><label for="elx-se">Standard errors</label>
       <select id="elx-se"><option>HC3</option><option>HC1</option><option>HC0</option><option>HC2</option><option value="classical">classical</option><option value="HAC">HAC (weekly series)</option></select></div>
     <div><label for="elx-level">Interval level</label>
@@ -102,6 +106,10 @@ const TEMPLATE = `
   <button type="button" id="elx-run" class="elx-primary">Check ranges and model</button>
   <div id="elx-status" class="elx-status" role="status" aria-live="polite"></div>
   <progress id="elx-progress" class="elx-hidden" max="1" value="0" aria-label="Progress of the check"></progress>
+</section>
+<section id="elx-verdict" class="elx-hidden" aria-labelledby="elx-h-verdict">
+  <h2 id="elx-h-verdict">These options refuse the data</h2>
+  <div id="elx-verdict-body"></div>
 </section>
 <section id="elx-check" class="elx-hidden" aria-labelledby="elx-h-check">
   <h2 id="elx-h-check">Data check</h2>
@@ -121,7 +129,7 @@ const TEMPLATE = `
 </section>
 <section id="elx-write" aria-labelledby="elx-h-write">
   <h2 id="elx-h-write">Put the formulas in the sheet</h2>
-  <p class="elx-muted">Writes ELX.FIT, ELX.ELASTICITIES, ELX.TESTS and ELX.SUMMARY for these ranges and options, so the results live in the workbook and recalculate with the data. Only empty cells are used.</p>
+  <p class="elx-muted" id="elx-write-what">${WRITE_BEFORE_CHECK}</p>
   <div class="elx-field">
     <label for="elx-target">Top left cell of the block</label>
     <div class="elx-inline"><input id="elx-target" type="text" spellcheck="false" autocomplete="off" value="I2" />
@@ -147,6 +155,8 @@ export class Pane {
   private readonly el: Record<string, HTMLElement>;
   private runId = 0;
   state: RunState | null = null;
+  /** Why the last run left nothing to write (empty after a check that passed). */
+  refusal = "";
   lastTimings: Timings | null = null;
   busy = false;
   /** Runs finished (for tests and the benchmark to wait on). */
@@ -158,7 +168,7 @@ export class Pane {
     root.innerHTML = TEMPLATE;
     const q = (id: string) => root.querySelector(`#${id}`) as HTMLElement;
     this.el = Object.fromEntries(
-      ["elx-y", "elx-x", "elx-form", "elx-estimator", "elx-zeros", "elx-se", "elx-level", "elx-run", "elx-status", "elx-progress", "elx-check", "elx-check-body",
+      ["elx-y", "elx-x", "elx-form", "elx-estimator", "elx-zeros", "elx-se", "elx-level", "elx-run", "elx-status", "elx-progress", "elx-check", "elx-check-body", "elx-verdict", "elx-verdict-body", "elx-write-what",
         "elx-choices", "elx-choices-body", "elx-pictures", "elx-pictures-body", "elx-assume", "elx-assume-body", "elx-target", "elx-write-btn", "elx-write-msg", "elx-y-sel", "elx-x-sel"]
         .map((id) => [id, q(id)]),
     );
@@ -226,19 +236,25 @@ export class Pane {
     this.busy = true;
     this.root.setAttribute("aria-busy", "true");
     try {
-      for (const s of ["elx-check", "elx-choices", "elx-pictures", "elx-assume"]) this.el[s].classList.add("elx-hidden");
+      for (const s of ["elx-verdict", "elx-check", "elx-choices", "elx-pictures", "elx-assume"]) this.el[s].classList.add("elx-hidden");
       this.el["elx-write-msg"].textContent = "";
+      // Until this run's check passes, nothing may be written for the previous ranges.
+      this.state = null;
+      this.refusal = "";
+      this.el["elx-write-what"].textContent = WRITE_BEFORE_CHECK;
       const yText = this.input("elx-y").value.trim();
       const xText = this.input("elx-x").value.trim();
       if (!yText || !xText) {
-        this.status(`Give ${!yText && !xText ? "the y and x ranges" : !yText ? "the y range" : "the x range"} first: type an address or select the cells and press "Use selection".`);
+        this.refusal = `Give ${!yText && !xText ? "the y and x ranges" : !yText ? "the y range" : "the x range"} first: type an address or select the cells and press "Use selection".`;
+        this.status(this.refusal);
         return;
       }
       step("Reading the ranges…", 0.02);
       const [y, x] = [await this.host.readAddress(yText), await this.host.readAddress(xText)];
       if (stale()) return;
       if (!y.ok || !x.ok) {
-        this.status(`${!y.ok ? `y: ${y.message}. ` : ""}${!x.ok ? `x: ${x.message}.` : ""}`.trim());
+        this.refusal = `${!y.ok ? `y: ${y.message}. ` : ""}${!x.ok ? `x: ${x.message}.` : ""}`.trim();
+        this.status(this.refusal);
         return;
       }
       const tRead = performance.now();
@@ -248,32 +264,46 @@ export class Pane {
       if (stale()) return;
       this.renderCheck(check, y.value, x.value);
       const tCheck = performance.now();
-      this.state = { y: y.value, x: x.value, yCells: engineValues(y.value), xCells: engineValues(x.value), choices, check };
       const eng = engine();
       if (!eng) {
-        this.status("The ELX functions are not loaded in this page, so no fit can be shown (the data check above still holds).");
+        this.refusal = "The ELX functions are not loaded in this page, so no fit can be shown (the data check above still holds).";
+        this.status(this.refusal);
         return;
       }
       if (!check.canFit) {
-        this.status("The ranges cannot be fitted as they are: see the data check.");
+        this.refusal = "The ranges cannot be fitted as they are: see the data check.";
+        this.status(this.refusal);
         return;
       }
-      step("Fitting and drawing the pictures…", 0.35);
-      await yieldToPage();
-      await this.renderPictures(eng, (f) => step("Fitting and drawing the pictures…", 0.35 + 0.35 * f), stale);
-      if (stale()) return;
-      const tPictures = performance.now();
+      this.state = { y: y.value, x: x.value, yCells: engineValues(y.value), xCells: engineValues(x.value), choices, check };
+      this.describeWrite();
+      // Does the model run at all under the chosen options? If not, say so first and offer the ways out.
+      const [yo, xo] = this.origins();
+      const main = eng.elasticitiesView(this.state.yCells, this.state.xCells, optionsText(choices), yo, xo);
+      if (!main.ok) this.renderVerdict(main.message);
+      let tPictures = performance.now();
+      if (main.ok) {
+        step("Fitting and drawing the pictures…", 0.35);
+        await yieldToPage();
+        await this.renderPictures(eng, (f) => step("Fitting and drawing the pictures…", 0.35 + 0.35 * f), stale);
+        if (stale()) return;
+        tPictures = performance.now();
+      }
       step("Comparing the zero choices…", 0.72);
       await yieldToPage();
       await this.renderChoices(eng, stale);
       if (stale()) return;
       const tChoices = performance.now();
-      step("Running the specification tests…", 0.88);
-      await yieldToPage();
-      this.renderAssumptions(eng);
+      if (main.ok) {
+        step("Running the specification tests…", 0.88);
+        await yieldToPage();
+        this.renderAssumptions(eng);
+      }
       const tEnd = performance.now();
       this.lastTimings = { read: tRead - t0, check: tCheck - tRead, pictures: tPictures - tCheck, choices: tChoices - tPictures, assumptions: tEnd - tChoices, total: tEnd - t0 };
-      this.status(`Checked ${fmt(check.rows)} rows × ${check.columns.length} columns.`);
+      // The refusal comes first: bring it into view, its first way out under the keyboard.
+      if (!main.ok) (this.el["elx-verdict-body"].querySelector("button") as HTMLElement | null)?.focus();
+      this.status(main.ok ? `Checked ${fmt(check.rows)} rows × ${check.columns.length} columns.` : `Checked ${fmt(check.rows)} rows × ${check.columns.length} columns: the chosen options do not run on these data (see below).`);
     } catch (e) {
       this.status(`Something went wrong in the pane (${e instanceof Error ? e.message : String(e)}); the workbook was not changed.`);
     } finally {
@@ -306,7 +336,7 @@ export class Pane {
   private renderCheck(c: CheckResult, y: RangeSnapshot, x: RangeSnapshot): void {
     const head = `<p class="elx-muted">y ${esc(y.address)}, x ${esc(x.address)}${y.clipped || x.clipped ? " (cut to the sheet's used cells)" : ""}: ${fmt(c.rows)} data rows, ${fmt(c.usable)} usable.</p>`;
     const rows = c.columns.map((col) => `<tr><th scope="row">${esc(col.name)}${col.role === "y" ? " (y)" : ""}</th><td>${fmt(col.values)}</td><td>${fmt(col.blank + col.text + col.errors)}</td><td>${fmt(col.zeros)}</td><td>${fmt(col.negatives)}</td><td>${col.binary ? "binary" : col.logged ? "log" : "levels"}</td></tr>`).join("");
-    const tableHtml = c.columns.length === 0 ? "" : `<div class="elx-table-wrap"><table id="elx-check-table"><caption>Per column, over the data rows</caption><thead><tr><th scope="col">Column</th><th scope="col">Values</th><th scope="col">Blank or non-numeric</th><th scope="col">Zeros</th><th scope="col">Negatives</th><th scope="col">Taken as</th></tr></thead><tbody>${rows}</tbody></table></div>`;
+    const tableHtml = c.columns.length === 0 ? "" : `<div class="elx-table-wrap"><table id="elx-check-table" class="elx-compact"><caption>Per column, over the data rows</caption><thead><tr><th scope="col">Column</th><th scope="col">Values</th><th scope="col">Blank, text or error</th><th scope="col">Zeros</th><th scope="col">Below zero</th><th scope="col">Taken as</th></tr></thead><tbody>${rows}</tbody></table></div>`;
     const label = { problem: "Problem:", warning: "Warning:", note: "Note:" };
     const sentences = `<ul class="elx-sentences" id="elx-sentences">${c.sentences.map((s) => `<li class="elx-${s.severity}"><span class="elx-tag">${label[s.severity]}</span>${esc(s.text)}</li>`).join("")}</ul>`;
     this.show("elx-check", (c.columns.length ? head : "") + tableHtml + sentences);
@@ -355,24 +385,19 @@ export class Pane {
     progress(3 / 4);
     await yieldToPage();
     if (stale()) return;
-    // Elasticities with their intervals, for the chosen options (PPML included).
-    const opts = optionsText(c);
-    const el = this.callFor(eng, "ELASTICITIES", opts);
-    const t = el.ok ? table2d(el.value) : null;
-    if (t) {
-      const rows: IntervalRow[] = [];
-      const binaries: string[] = [];
-      for (const r of t.slice(1)) {
-        if (typeof r[2] === "number" && typeof r[4] === "number" && typeof r[5] === "number") rows.push({ term: String(r[0]), estimate: r[2], lower: r[4], upper: r[5] });
-        else binaries.push(String(r[0]));
-      }
-      const lv = String(t[0][4] ?? "").replace("Lower ", "") || "95%";
-      const txt = t.slice(1).map((r) => `<tr><th scope="row">${esc(r[0])}</th><td>${esc(cellText(r[2]))}</td><td>${esc(cellText(r[4]))}</td><td>${esc(cellText(r[5]))}</td></tr>`).join("");
-      parts.push(`<h3>Elasticities (${esc(c.estimator === "ppml" ? "PPML" : c.form)}, ${esc(String(t[0][3]).replace("Std. error ", "").replace(/[()]/g, ""))} errors)</h3>` +
+    // Elasticities with their intervals, for the chosen options (PPML included), read as numbers from the engine.
+    const el = eng.elasticitiesView(s.yCells, s.xCells, optionsText(c), yo, xo);
+    if (el.ok) {
+      const v = el.value;
+      const lv = percent(v.level);
+      const rows: IntervalRow[] = v.items.filter((r) => !r.binary && [r.estimate, r.lower, r.upper].every(Number.isFinite)).map((r) => ({ term: r.term, estimate: r.estimate, lower: r.lower, upper: r.upper }));
+      const binaries = v.items.filter((r) => r.binary).map((r) => r.term);
+      const txt = v.items.filter((r) => !r.binary).map((r) => `<tr><th scope="row">${esc(r.term)}</th><td>${esc(cellText(r.estimate))}</td><td>${esc(cellText(r.lower))}</td><td>${esc(cellText(r.upper))}</td></tr>`).join("");
+      parts.push(`<h3>Elasticities (${esc(v.estimator === "ppml" ? "PPML" : c.form)}, ${esc(v.seLabel)} errors)</h3>` +
         (rows.length ? `<figure id="elx-elasticities">${intervalPlot(rows, "Elasticities with their intervals", lv)}<figcaption>Dots are elasticities, bars their ${esc(lv)} intervals; the black line is zero.</figcaption></figure>` : "") +
-        `<div class="elx-table-wrap"><table><caption>The same numbers${binaries.length ? `; ${esc(binaries.join(", "))}: binary, see ELX.EFFECTS` : ""}</caption><thead><tr><th scope="col">Term</th><th scope="col">Elasticity</th><th scope="col">Lower ${esc(lv)}</th><th scope="col">Upper ${esc(lv)}</th></tr></thead><tbody>${txt}</tbody></table></div>`);
+        `<div class="elx-table-wrap"><table><caption>The same numbers${binaries.length ? `; ${esc(binaries.join(", "))}: binary, see ELX.EFFECTS` : ""}</caption><thead><tr><th scope="col">Term</th><th scope="col">Elasticity</th><th scope="col">Low (${esc(lv)})</th><th scope="col">High (${esc(lv)})</th></tr></thead><tbody>${txt}</tbody></table></div>`);
     } else {
-      parts.push(`<h3>Elasticities</h3><p id="elx-elasticity-error">${c.estimator === "ppml" ? "PPML did not run for these ranges" : "No elasticities for these options"}: ${esc(el.ok ? "unexpected result" : el.message)}.</p>`);
+      parts.push(`<h3>Elasticities</h3><p>${c.estimator === "ppml" ? "PPML did not run for these ranges" : "No elasticities for these options"}: ${esc(el.message)}.</p>`);
     }
     progress(1);
     this.show("elx-pictures", parts.join(""));
@@ -392,28 +417,28 @@ export class Pane {
       { key: "ihs", label: "asinh", options: optionsText(c, { zeros: "ihs", estimator: "ols" }) },
       { key: "ppml", label: ppmlSe(c.se) === c.se ? "PPML" : `PPML (${ppmlSe(c.se)})`, options: optionsText(c, { zeros: "drop", estimator: "ppml", se: ppmlSe(c.se) }) },
     ];
-    const results: { key: string; label: string; table: unknown[][] | null; message: string; n: number | null }[] = [];
+    const results: { key: string; label: string; view: ElasticitiesView | null; message: string; n: number | null }[] = [];
     for (const ch of choices) {
-      const r = this.callFor(eng, "ELASTICITIES", ch.options);
+      const r = eng.elasticitiesView(s.yCells, s.xCells, ch.options, yo, xo);
       const view = r.ok ? eng.fitView(s.yCells, s.xCells, ch.options, yo, xo) : null;
-      results.push({ key: ch.key, label: ch.label, table: r.ok ? table2d(r.value) : null, message: r.ok ? "" : r.message, n: view && view.ok ? view.value.n : null });
+      results.push({ key: ch.key, label: ch.label, view: r.ok ? r.value : null, message: r.ok ? "" : r.message, n: view && view.ok ? view.value.n : null });
       await yieldToPage();
       if (stale()) return;
     }
-    const ok = results.filter((r) => r.table);
-    const failed = results.filter((r) => !r.table);
-    const terms = (ok[0]?.table ?? []).slice(1).map((r) => String(r[0]));
-    const cell = (t: unknown[][] | null, term: string) => {
-      const row = t?.find((r) => r[0] === term);
-      if (!row) return "–";
-      if (typeof row[2] !== "number") return "binary";
-      return `${shortNumber(row[2])}<br><span class="elx-muted">[${cellText(row[4])}, ${cellText(row[5])}]</span>`;
-    };
-    const head = ok.map((r) => `<th scope="col" data-choice="${r.key}">${esc(r.label)}</th>`).join("");
-    const body = terms.map((term) => `<tr><th scope="row">${esc(term)}</th>${ok.map((r) => `<td>${cell(r.table, term)}</td>`).join("")}</tr>`).join("") +
-      `<tr><th scope="row">Rows used</th>${ok.map((r) => `<td>${r.n === null ? "–" : fmt(r.n)}</td>`).join("")}</tr>`;
-    const html = (ok.length ? `<p>${fmt(s.check.lostToLog)} rows hold a zero or negative in a logged column. The elasticity under each way of handling them, with its interval:</p><div class="elx-table-wrap"><table id="elx-choices-table"><caption>Elasticity [interval] by zero choice</caption><thead><tr><th scope="col">Term</th>${head}</tr></thead><tbody>${body}</tbody></table></div>` : "") +
-      failed.map((r) => `<p data-choice-error="${r.key}">${r.key === "ppml" ? "PPML" : esc(r.label)}: not available for these ranges (${esc(r.message)}).</p>`).join("") +
+    const ok = results.filter((r) => r.view);
+    const failed = results.filter((r) => !r.view);
+    const items = ok[0]?.view?.items ?? [];
+    const terms = items.filter((r) => !r.binary).map((r) => r.term);
+    const binaries = items.filter((r) => r.binary).map((r) => r.term);
+    const lv = percent(Number(c.level));
+    // One group of rows per term, one row per choice: every number in its own column, nothing wraps.
+    const body = terms.map((term) => `<tr class="elx-group"><th scope="colgroup" colspan="5">${esc(term)}</th></tr>` + ok.map((r) => {
+      const row = r.view?.items.find((i) => i.term === term);
+      const nums = row ? [row.estimate, row.lower, row.upper].map((v) => `<td>${esc(cellText(v))}</td>`).join("") : "<td>–</td><td>–</td><td>–</td>";
+      return `<tr data-choice="${esc(r.key)}" data-term="${esc(term)}"><th scope="row">${esc(r.label)}</th>${nums}<td>${r.n === null ? "–" : esc(fmt(r.n))}</td></tr>`;
+    }).join("")).join("");
+    const html = (ok.length ? `<p>${esc(fmt(s.check.lostToLog))} rows hold a zero or negative in a logged column. The elasticity under each way of handling them, with its ${esc(lv)} interval:</p><div class="elx-table-wrap"><table id="elx-choices-table" class="elx-compact"><caption>Elasticity by zero choice${binaries.length ? `; ${esc(binaries.join(", "))}: binary, see ELX.EFFECTS` : ""}</caption><thead><tr><th scope="col">Choice</th><th scope="col">Elasticity</th><th scope="col">Low (${esc(lv)})</th><th scope="col">High (${esc(lv)})</th><th scope="col">Rows used</th></tr></thead><tbody>${body}</tbody></table></div>` : "") +
+      failed.map((r) => `<p data-choice-error="${esc(r.key)}">${r.key === "ppml" ? "PPML" : esc(r.label)}: not available for these ranges (${esc(r.message)}).</p>`).join("") +
       `<p class="elx-muted">log(v + 1) and asinh results depend on the units of the shifted column; PPML keeps zero y and leaves out only rows with a zero in a logged x. Whichever you choose, say so where the number is used.</p>`;
     this.show("elx-choices", html);
   }
@@ -438,6 +463,76 @@ export class Pane {
     this.show("elx-assume", paras.map((p) => `<h3>${esc(p.heading)}</h3><p>${esc(p.text)}</p>`).join("") + tests);
   }
 
+  /**
+   * The chosen options do not run on these data: say so before anything else and, when a log meets
+   * zeros, offer each way of handling them as one button that sets the options and checks again.
+   */
+  private renderVerdict(message: string): void {
+    const s = this.state as RunState;
+    const c = s.choices;
+    const what = c.estimator === "ppml" ? "PPML did not run for these ranges" : `With ${c.zeros === "stop" ? "zeros=stop (stop and tell me)" : `zeros=${c.zeros}`} the model does not run on these ranges`;
+    let html = `<p id="elx-elasticity-error" class="elx-message elx-refused">${esc(what)}: ${esc(message)}.</p>`;
+    const offers = s.check.lostToLog > 0 ? ZERO_OFFERS.filter((o) => !(o.zeros === c.zeros && o.estimator === c.estimator)) : [];
+    if (offers.length) {
+      html += `<p>Choose how to handle the ${esc(fmt(s.check.lostToLog))} rows with a zero or negative under a log, and the pane checks again (the table below compares the choices):</p><div class="elx-offers">` +
+        offers.map((o) => `<button type="button" data-zeros="${esc(o.zeros)}" data-estimator="${esc(o.estimator)}">${esc(o.label)}</button>`).join("") + "</div>";
+    } else {
+      html += "<p>See the data check below for what to change, then check again.</p>";
+    }
+    this.show("elx-verdict", html);
+    for (const btn of Array.from(this.el["elx-verdict-body"].querySelectorAll("button[data-zeros]"))) {
+      btn.addEventListener("click", () => void this.useZeroChoice((btn as HTMLElement).dataset.zeros as string, (btn as HTMLElement).dataset.estimator as Estimator));
+    }
+  }
+
+  /** Sets the zero policy (and estimator) and checks again. */
+  async useZeroChoice(zeros: string, estimator: Estimator): Promise<void> {
+    (this.el["elx-zeros"] as HTMLSelectElement).value = zeros;
+    const est = this.el["elx-estimator"] as HTMLSelectElement;
+    if (est.value !== estimator) {
+      est.value = estimator;
+      est.dispatchEvent(new Event("change"));
+    }
+    await this.run();
+    (this.el["elx-run"] as HTMLElement).focus();
+  }
+
+  /** The functions the writer will put in the sheet for the checked ranges and options. */
+  private plannedItems(): { id: string; label: string; optional?: boolean }[] {
+    const s = this.state as RunState;
+    const out: { id: string; label: string; optional?: boolean }[] = [
+      { id: "FIT", label: "Coefficients (ELX.FIT)" },
+      { id: "ELASTICITIES", label: "Elasticities (ELX.ELASTICITIES)" },
+    ];
+    if (s.choices.estimator === "ols" && s.check.columns.some((col) => col.role === "x" && col.binary) && s.choices.form.startsWith("log")) out.push({ id: "EFFECTS", label: "Percent effects of binary columns (ELX.EFFECTS)" });
+    if (s.choices.estimator === "ols") out.push({ id: "TESTS", label: "Specification tests (ELX.TESTS)" });
+    out.push({ id: "SUMMARY", label: "Fit summary (ELX.SUMMARY)" });
+    return out;
+  }
+
+  /** Says exactly which functions the writer will put in the sheet, for which ranges. */
+  private describeWrite(): void {
+    const s = this.state as RunState;
+    const names = this.plannedItems().map((i) => `ELX.${i.id}`);
+    const list = names.length > 1 ? `${names.slice(0, -1).join(", ")} and ${names[names.length - 1]}` : names[0];
+    this.el["elx-write-what"].textContent = `Writes ${list} for y ${s.y.address} and x ${s.x.address} with "${optionsText(s.choices)}", so the results live in the workbook and recalculate with the data. Only empty cells are used.`;
+  }
+
+  /**
+   * The room a function's result needs for these ranges and options: the largest of its shape on the
+   * data now, on the same data with the zero rows left out, and on a stand-in of the same columns (so
+   * that a formula that fails today still gets the room of the result it gives once the data are fixed).
+   */
+  private room(eng: EngineApi, id: string, opts: string, standIn: { y: unknown[][]; x: unknown[][] }): { height: number; width: number; now: Outcome<unknown> } {
+    const shape = (r: Outcome<unknown>) => {
+      const t = r.ok ? table2d(r.value) : null;
+      return t ? { height: t.length, width: Math.max(...t.map((row) => row.length)) } : null;
+    };
+    const now = this.callFor(eng, id, opts);
+    const shapes = [shape(now), shape(this.callFor(eng, id, opts.replace(/zeros=\w+/, "zeros=drop"))), shape(eng.call(id, standIn.y, standIn.x, opts, null))].filter((v): v is { height: number; width: number } => v !== null);
+    return { height: Math.max(1, ...shapes.map((v) => v.height)), width: Math.max(1, ...shapes.map((v) => v.width)), now };
+  }
+
   /** Writes the formula block at the target cell (after the whole block is checked to be empty). */
   async write(target?: string): Promise<void> {
     const msg = this.el["elx-write-msg"];
@@ -448,28 +543,23 @@ export class Pane {
     const s = this.state;
     const eng = engine();
     if (!s || !eng) {
-      show("elx-refused", "Check the ranges first (the button above); the block is written for the ranges and options checked.");
+      this.completedWrites++;
+      show("elx-refused", this.refusal
+        ? `Nothing was written: the last check did not pass (${esc(this.refusal.replace(/\.$/, ""))}). Fix the ranges and check again; the block is written for the ranges and options of a check that passed.`
+        : "Check the ranges first (the button above); the block is written for the ranges and options checked.");
       return;
     }
     const anchor = (target ?? this.input("elx-target").value).trim();
     if (target) this.input("elx-target").value = target;
     const opts = optionsText(s.choices);
-    const measure = (id: string): { height: number; width: number; ok: boolean } => {
-      const r = this.callFor(eng, id, opts);
-      const t = r.ok ? table2d(r.value) : null;
-      return t ? { height: t.length, width: t[0]?.length ?? 1, ok: true } : { height: 1, width: 1, ok: false };
-    };
+    const standIn = standInData(s.check);
     const items: BlockItem[] = [];
-    const add = (id: string, label: string, optional = false) => {
-      const m = measure(id);
-      if (optional && !m.ok) return;
-      items.push({ id, label, height: m.height, width: m.width });
-    };
-    add("FIT", "Coefficients (ELX.FIT)");
-    add("ELASTICITIES", "Elasticities (ELX.ELASTICITIES)");
-    if (s.choices.estimator === "ols" && s.check.columns.some((col) => col.role === "x" && col.binary) && s.choices.form.startsWith("log")) add("EFFECTS", "Percent effects of binary columns (ELX.EFFECTS)", true);
-    if (s.choices.estimator === "ols") add("TESTS", "Specification tests (ELX.TESTS)");
-    add("SUMMARY", "Fit summary (ELX.SUMMARY)");
+    const failing: { id: string; message: string }[] = [];
+    for (const p of this.plannedItems()) {
+      const r = this.room(eng, p.id, opts, standIn);
+      if (!r.now.ok) failing.push({ id: p.id, message: r.now.message });
+      items.push({ id: p.id, label: p.label, height: r.height, width: r.width });
+    }
     const yName = s.check.columns[0]?.name ?? "y";
     const xNames = s.check.columns.slice(1).map((col) => col.name).join(", ");
     const block = buildBlock({
@@ -482,7 +572,14 @@ export class Pane {
     const r = await this.host.writeBlock(anchor, block);
     this.completedWrites++;
     if (r.ok) {
-      show("elx-done", `Written at ${esc(r.address)}: ${items.length} formulas with room for their results. They recalculate when the data change.`);
+      const names = items.map((i) => `ELX.${i.id}`).join(", ");
+      if (failing.length === 0) {
+        show("elx-done", `Written at ${esc(r.address)}: ${items.length} formulas (${esc(names)}) with room for their results. They recalculate when the data change.`);
+      } else {
+        const which = failing.map((f) => `ELX.${f.id}`).join(", ");
+        show("elx-warned", `<p id="elx-write-errors">Written at ${esc(r.address)}: ${items.length} formulas (${esc(names)}), but ${failing.length === items.length ? "all of them" : `${failing.length} of them (${esc(which)})`} return an error for these ranges and options now: ${esc(failing[0].message)}.</p>` +
+          `<p>Room is kept for the results they give once the data or the options are fixed; change the options in the formulas, or check again with other choices and write a new block.</p>`);
+      }
       return;
     }
     show("elx-refused", `<p id="elx-refusal">${esc(r.message)}</p>` + (r.suggestion ? `<button type="button" id="elx-write-there">Write at ${esc(r.suggestion)} instead</button>` : ""));
@@ -493,6 +590,39 @@ export class Pane {
       (there as HTMLElement).focus();
     }
   }
+}
+
+/** The ways out offered when a log meets zeros under the chosen options. */
+const ZERO_OFFERS: { zeros: string; estimator: Estimator; label: string }[] = [
+  { zeros: "drop", estimator: "ols", label: "Leave those rows out (zeros=drop)" },
+  { zeros: "shift", estimator: "ols", label: "log(v + 1) (zeros=shift)" },
+  { zeros: "ihs", estimator: "ols", label: "asinh (zeros=ihs)" },
+  { zeros: "drop", estimator: "ppml", label: "PPML, zero y kept (estimator=ppml)" },
+];
+
+/**
+ * Well-behaved data with the checked ranges' header and columns (binary columns stay 0/1, the rest
+ * positive, seeded): the functions' result shapes for these columns and options, whatever the data now.
+ */
+export function standInData(check: CheckResult): { y: unknown[][]; x: unknown[][] } {
+  const xs = check.columns.filter((c) => c.role === "x");
+  const yName = check.columns.find((c) => c.role === "y")?.name ?? "y";
+  const rows = Math.max(40, 4 * (xs.length + 2));
+  let seed = 12345;
+  const u = () => {
+    seed = (Math.imul(seed, 1103515245) + 12345) >>> 0;
+    return (seed >>> 8) / 16777216;
+  };
+  const y: unknown[][] = [[yName]];
+  const x: unknown[][] = [xs.map((c) => c.name)];
+  for (let i = 0; i < rows; i++) {
+    const line = xs.map((c, j) => (c.binary ? (i + j) % 3 === 0 ? 1 : 0 : 1 + 9 * u()));
+    let eta = 1;
+    for (const v of line) eta += 0.1 * Math.log(Number(v) + 1);
+    x.push(line);
+    y.push([Math.exp(eta + 0.3 * (u() - 0.5))]);
+  }
+  return { y, x };
 }
 
 function injectStyle(): void {
@@ -517,13 +647,35 @@ export function mountPane(root: HTMLElement | null = document.getElementById("el
   return pane;
 }
 
+/** How long the pane waits for the host before it says that the host has not answered. */
+export const HOST_WAIT_MS = 5000;
+
+/** Replaces the "Loading…" text with a sentence saying what is wrong and what to do. */
+function loadingProblem(text: string): void {
+  const root = document.getElementById("elx-pane");
+  if (!root || root.classList.contains("elx-pane")) return;
+  injectStyle();
+  root.innerHTML = `<div class="elx-pane"><h1>Elasticell</h1><p class="elx-message elx-refused" id="elx-load-problem" role="alert">${esc(text)}</p></div>`;
+}
+
+export const OFFICE_MISSING =
+  "The spreadsheet host's script (office.js, loaded from appsforoffice.microsoft.com) could not load, so the pane cannot reach the workbook. This machine may be offline, or a proxy or firewall may block that address. Connect, then close and reopen the pane. Without the host, the preview page (npm start) shows the pane and the ELX functions on this machine alone.";
+export const HOST_SILENT =
+  "The spreadsheet host has not answered after several seconds, so the pane cannot reach the workbook yet. If this page was opened in a plain browser, open it from the host instead (the Elasticell tab › Elasticity check); in the host, close and reopen the pane, or reload the add-in.";
+
 // Inert outside the host: real office.js outside a host resolves onReady with host null.
-if (typeof Office !== "undefined" && typeof document !== "undefined") {
-  Office.onReady((info) => {
-    if (info && info.host) mountPane();
-    else {
-      const root = document.getElementById("elx-pane");
-      if (root) root.textContent = "Open this pane from the spreadsheet host (Data tab › Elasticell), or use the preview page (npm start).";
-    }
-  });
+if (typeof document !== "undefined") {
+  if (typeof Office === "undefined") {
+    // taskpane.js runs after office.js's script tag: when Office is missing here, that script failed to load.
+    loadingProblem(OFFICE_MISSING);
+  } else {
+    const silent = setTimeout(() => loadingProblem(HOST_SILENT), HOST_WAIT_MS);
+    Office.onReady((info) => {
+      clearTimeout(silent);
+      if (info && info.host) mountPane();
+      else {
+        loadingProblem("Open this pane from the spreadsheet host (the Elasticell tab › Elasticity check), or use the preview page (npm start) to try it on this machine.");
+      }
+    });
+  }
 }

@@ -172,9 +172,12 @@ describe("the no-overwrite rule", () => {
       valueTypes: [["Empty", "Empty"], ["Empty", "Empty"], ["Empty", "Empty"]],
       formulas: [["", ""], ["", ""], ["", ""]],
     };
-    const f = fixture({ used: "A1:G5", ranges: { "L1:M3": empty } });
+    let selected = 0;
+    const f = fixture({ used: "A1:G5", ranges: { "L1:M3": { ...empty, select: () => selected++ } } });
     const r = await new Host(f.run).writeBlock("Sales!L1", block);
     expect(r).toEqual({ ok: true, address: "Sales!L1:M3" });
+    // The written block is selected, so the host scrolls to it.
+    expect(selected).toBe(1);
     expect(f.sheet.ranges.L1.formulas).toEqual([["Elasticell: Units on Price"]]);
     expect(f.sheet.ranges.L3.formulas).toEqual([['=ELX.FIT(Sales!$C$1:$C$5, Sales!$D$1:$D$5, "zeros=drop")']]);
     expect(f.sheet.ranges.L2).toBeUndefined();
