@@ -168,7 +168,8 @@ export class OlsFit extends Model {
   constructor(data: Dataset, intercept: boolean) {
     super(data, intercept);
     const terms = this.terms;
-    this.qr = leastSquares(this.design, data.y, (d) => explainDependency(d, terms));
+    const ls = leastSquares(this.design, data.y);
+    this.qr = ls.qr ?? explainDependency(ls.dependent as Dependency, terms);
     this.covDesign = this.design;
   }
 

@@ -60,9 +60,15 @@ export function boxCoxProfile(fit: OlsFit): (lambda: number) => number {
     const norm = Math.exp(-(lambda - 1) * logGm);
     if (Math.abs(lambda) < 1e-12) for (let i = 0; i < n; i++) yt[i] = logy[i] * norm;
     else for (let i = 0; i < n; i++) yt[i] = (Math.expm1(lambda * logy[i]) / lambda) * norm;
-    const rss = qr.refined ? leastSquares(X, yt, () => unavailable("the design is singular")).rss : residualSS(X, qr, yt, r);
+    const rss = qr.refined ? solvedRss(X, yt) : residualSS(X, qr, yt, r);
     return (-n / 2) * Math.log(rss);
   };
+}
+
+/** RSS of v on a design already known to have full rank (refactored for the refined case). */
+function solvedRss(X: Float64Array[], v: Float64Array): number {
+  const ls = leastSquares(X, v);
+  return ls.qr ? ls.qr.rss : unavailable("the design is singular");
 }
 
 /**
@@ -156,7 +162,9 @@ export interface PeSide {
 /** t of the last coefficient of y on [X, z], with the given covariance type. */
 function addedVariableT(X: Float64Array[], z: Float64Array, y: Float64Array, se: SeType, lags: number | null): { t: number; df: number } {
   const cols = [...X, z];
-  const q = leastSquares(cols, y, () => unavailable("the PE test's added variable is a combination of the regressors here, so the test is undefined"), false);
+  const ls = leastSquares(cols, y, false);
+  if (!ls.qr) return unavailable("the PE test's added variable is a combination of the regressors here, so the test is undefined");
+  const q = ls.qr;
   const k = cols.length;
   let V: Float64Array;
   if (se === "classical") V = classicalCovariance(q);

@@ -85,7 +85,7 @@ export class PpmlFit extends Model {
         z[i] = (eta[i] + (y[i] - mu[i]) / mu[i]) * s;
         for (let j = 0; j < k; j++) A[j][i] = X[j][i] * s;
       }
-      lastQr = leastSquares(A, z, explain);
+      lastQr = leastSquares(A, z).qr ?? explain();
       let next: Float64Array = Float64Array.from(lastQr.coef);
       let newEta = linear(X, next);
       let newMu = Float64Array.from(newEta, Math.exp);
@@ -123,7 +123,7 @@ export class PpmlFit extends Model {
       z[i] = (eta[i] + (y[i] - mu[i]) / mu[i]) * s;
       for (let j = 0; j < k; j++) A[j][i] = X[j][i] * s;
     }
-    const q = leastSquares(A, z, explain);
+    const q = leastSquares(A, z).qr ?? explain();
     const pearson = Float64Array.from(y, (v, i) => (v - mu[i]) / Math.sqrt(mu[i]));
     let rss = 0;
     for (let i = 0; i < n; i++) rss += pearson[i] * pearson[i];
@@ -142,26 +142,16 @@ export class PpmlFit extends Model {
     // Check dependencies on the y > 0 rows one at a time, dropping each dependent column found.
     for (let guard = 0; guard < this.k; guard++) {
       if (positive <= cols.length) break;
-      let dep: { column: number; on: number[] } | null = null;
-      try {
-        leastSquares(cols.map((e) => sub(e.c)), new Float64Array(positive), (d) => {
-          dep = d;
-          throw new Error("dependent");
-        });
-      } catch (e) {
-        if (!dep) throw e;
-      }
-      if (!dep) return;
-      const d = dep as { column: number; on: number[] };
+      const d = leastSquares(cols.map((e) => sub(e.c)), new Float64Array(positive)).dependent;
+      if (!d) return;
       const target = cols[d.column];
       const basis = d.on.map((i) => cols[i]);
       // The combination z = x_target − Σ c_m x_m, exact on the y > 0 rows.
       let zAll: Float64Array;
       if (basis.length === 0) zAll = target.c;
       else {
-        const fitPos = leastSquares(basis.map((e) => sub(e.c)), sub(target.c), () => {
-          throw new Error("basis dependent");
-        });
+        const fitPos = leastSquares(basis.map((e) => sub(e.c)), sub(target.c)).qr;
+        if (!fitPos) return; // the basis is itself dependent: the fit's own rank check names it
         zAll = Float64Array.from(target.c, (v, i) => {
           let s = v;
           basis.forEach((e, m) => (s -= fitPos.coef[m] * e.c[i]));

@@ -17,7 +17,7 @@
  * Each auxiliary regression runs on the engine's QR; an auxiliary column that is an exact combination
  * of earlier ones is dropped and the degrees of freedom count only the columns kept.
  */
-import { leastSquares, type Dependency } from "./leastSquares";
+import { leastSquares } from "./leastSquares";
 import { chiSquareSf, fisherSf } from "./distributions";
 import { fail, requireFeasible, unavailable } from "./problems";
 import type { OlsFit } from "./fit";
@@ -30,12 +30,6 @@ export interface TestResult {
   pValue: number;
   /** What a rejection at 5% means, and what not rejecting means, in plain words. */
   reading: string;
-}
-
-class Dropped extends Error {
-  constructor(readonly column: number) {
-    super("dependent auxiliary column");
-  }
 }
 
 interface AuxFit {
@@ -56,20 +50,18 @@ export function auxiliary(v: Float64Array, W: Float64Array[]): AuxFit {
     if (cols.length >= n) {
       fail(`the auxiliary regression has ${cols.length} terms for ${n} rows; it needs more rows than terms`);
     }
-    try {
-      const q = leastSquares(cols, v, (d: Dependency) => {
-        throw new Dropped(d.column);
-      }, false);
+    const ls = leastSquares(cols, v, false);
+    if (ls.qr) {
       let mean = 0;
       for (let i = 0; i < n; i++) mean += v[i];
       mean /= n;
       let tss = 0;
       for (let i = 0; i < n; i++) tss += (v[i] - mean) * (v[i] - mean);
-      return { rss: q.rss, tss, kept: cols.length };
-    } catch (e) {
-      if (!(e instanceof Dropped) || e.column === 0) throw e;
-      cols = cols.filter((_, j) => j !== e.column);
+      return { rss: ls.qr.rss, tss, kept: cols.length };
     }
+    const drop = ls.dependent.column;
+    if (drop === 0) unavailable("the auxiliary regression's variable is zero in every row, so the test is undefined");
+    cols = cols.filter((_, j) => j !== drop);
   }
 }
 
@@ -199,25 +191,15 @@ export function reset(fit: OlsFit): TestResult {
   const k = fit.k;
   const cols = [...fit.design, Float64Array.from(f, (v) => v * v), Float64Array.from(f, (v) => v * v * v)];
   if (n <= k + 2) fail(`RESET needs more than ${k + 2} rows (the fit has ${n})`);
-  let rss1: number;
+  // ŷ³ may depend on ŷ² and the regressors (for example with one binary regressor): then ŷ² alone.
   let added = 2;
-  try {
-    rss1 = leastSquares(cols, fit.data.y, () => {
-      throw new Dropped(-1);
-    }, false).rss;
-  } catch (e) {
-    if (!(e instanceof Dropped)) throw e;
-    // ŷ³ may depend on ŷ² and the regressors (for example with one binary regressor)
+  let ls = leastSquares(cols, fit.data.y, false);
+  if (!ls.qr) {
     added = 1;
-    try {
-      rss1 = leastSquares(cols.slice(0, k + 1), fit.data.y, () => {
-        throw new Dropped(-1);
-      }, false).rss;
-    } catch (e2) {
-      if (!(e2 instanceof Dropped)) throw e2;
-      unavailable("RESET is undefined here: the powers of the fitted values are combinations of the regressors");
-    }
+    ls = leastSquares(cols.slice(0, k + 1), fit.data.y, false);
   }
+  if (!ls.qr) return unavailable("RESET is undefined here: the powers of the fitted values are combinations of the regressors");
+  const rss1 = ls.qr.rss;
   const df2 = n - k - added;
   const stat = ((fit.rss - rss1) / added) / (rss1 / df2);
   const p = fisherSf(stat, added, df2);
