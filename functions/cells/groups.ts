@@ -1,6 +1,6 @@
 /** ELX.BYGROUP: one row of elasticities per segment. */
 import { getGroups } from "../engine/byGroup";
-import { seTypeOf } from "../engine/options";
+import { estimatorOf, seTypeOf } from "../engine/estimators";
 import { ElxProblem } from "../engine/problems";
 import { elasticity } from "../engine/elasticity";
 import { breuschPaganKoenker } from "../engine/specTests";
@@ -12,7 +12,7 @@ export function byGroupTable(keys: unknown, y: unknown, x: unknown, opts: unknow
     const o = options(opts);
     const origins = originsOf(invocation);
     const g = getGroups(keys, y, x, o, origins[1] ?? null, origins[2] ?? null);
-    const ppml = o.estimator === "ppml";
+    const ppml = !estimatorOf(o).residualVariance;
     const se = seTypeOf(o);
     const header = ["Group", "Observations"];
     g.xNames.forEach((n) => header.push(`Elasticity: ${n}`, `Std. error: ${n}`));
@@ -46,7 +46,7 @@ export function byGroupTable(keys: unknown, y: unknown, x: unknown, opts: unknow
           row.push(num(r.estimate), num(r.se));
         }
       });
-      if (fit.estimator === "ppml") row.push(num(fit.statistics().pseudoRSquared));
+      if (fit.estimator === "ppml") row.push(num(fit.statistics().pseudoRSquared)); // narrows the fit's type
       else {
         row.push(num(fit.statistics().rSquared, "R² is undefined: y does not vary in this group"));
         row.push(safe(() => num(fit.memo("test:bp", () => breuschPaganKoenker(fit as OlsFit)).pValue)));

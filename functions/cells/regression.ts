@@ -49,7 +49,7 @@ export function fitTable(y: unknown, x: unknown, opts: unknown, invocation: unkn
         num(b + crit * se[j]),
       ];
     });
-    return table(["Term", "Transform", "Coefficient", `Std. error (${cov.label})`, fit.estimator === "ppml" ? "z" : "t", "p-value", `Lower ${lv}`, `Upper ${lv}`], body, o);
+    return table(["Term", "Transform", "Coefficient", `Std. error (${cov.label})`, fit.info.statistic, "p-value", `Lower ${lv}`, `Upper ${lv}`], body, o);
   });
 }
 

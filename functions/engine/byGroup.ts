@@ -8,8 +8,7 @@
  */
 import { readYX, asMatrix, type Origin, type RawData } from "./intake";
 import { prepare } from "./transforms";
-import { OlsFit } from "./fit";
-import { PpmlFit } from "./ppml";
+import { estimatorOf } from "./estimators";
 import { ElxProblem, fail } from "./problems";
 import { modelKey, type Options } from "./options";
 import { BoundedCache, hashCells, type Sized } from "./cache";
@@ -93,7 +92,7 @@ export function fitGroups(keys: unknown, y: unknown, x: unknown, o: Options, yOr
     try {
       if (idx.length === 0) fail("no usable row: every row of this group has a blank, text or error cell");
       const data = prepare(sub, o);
-      const fit = o.estimator === "ppml" ? new PpmlFit(data, o.intercept) : new OlsFit(data, o.intercept);
+      const fit = estimatorOf(o).build(data, o) as AnyFit;
       return { key, rows: idx.length, fit, problem: null };
     } catch (e) {
       if (!(e instanceof ElxProblem)) throw e;

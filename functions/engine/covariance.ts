@@ -16,6 +16,28 @@ import type { QrFit } from "./leastSquares";
 import { dotBlock } from "./blocks";
 import type { SeType } from "./options";
 
+/**
+ * What a covariance of the coefficients needs, made explicit so that every estimator supplies its
+ * own: the columns the sandwich is computed on and their QR factor (the bread B = R⁻¹R⁻ᵀ in the
+ * factor's scaled units), the score residuals u_i (the meat is Σ u_i² z_i z_iᵀ with z_i the rows of
+ * Q), the residual sum of squares and degrees of freedom for the classical form, and the sheet rows.
+ * OLS: the design and its residuals. PPML: the weighted design √μ̂·X and the Pearson residuals
+ * (y − μ̂)/√μ̂. Estimators that absorb parameters give dfResid = n − k − absorbed.
+ */
+export interface CovarianceInput {
+  columns: Float64Array[];
+  factor: QrFit;
+  scores: Float64Array;
+  ssr: number;
+  dfResid: number;
+  rowNumbers: Int32Array;
+}
+
+/** The covariance input of a plain least-squares fit of y on X with factor qr. */
+export function leastSquaresInput(X: Float64Array[], qr: QrFit, rowNumbers: Int32Array, dfResid = qr.n - qr.k): CovarianceInput {
+  return { columns: X, factor: qr, scores: qr.resid, ssr: qr.rss, dfResid, rowNumbers };
+}
+
 /** Leverage at or above 1 − LEVERAGE_TOL counts as 1: HC2/HC3 are then undefined. */
 export const LEVERAGE_TOL = 1e-10;
 
@@ -92,10 +114,11 @@ function sandwich(qr: QrFit, M: Float64Array): Float64Array {
   return V;
 }
 
-/** Classical covariance s²(XᵀX)⁻¹ = s² R⁻¹R⁻ᵀ. */
-export function classicalCovariance(qr: QrFit): Float64Array {
-  const { k, n } = qr;
-  const s2 = qr.rss / (n - k);
+/** Classical covariance s²(XᵀX)⁻¹ = s² R⁻¹R⁻ᵀ, s² = SSR/df. */
+export function classicalCovariance(c: CovarianceInput): Float64Array {
+  const qr = c.factor;
+  const k = qr.k;
+  const s2 = c.ssr / c.dfResid;
   const I = new Float64Array(k * k);
   for (let j = 0; j < k; j++) I[j * k + j] = s2;
   return sandwich(qr, I);
@@ -103,12 +126,12 @@ export function classicalCovariance(qr: QrFit): Float64Array {
 
 /**
  * Heteroskedasticity-consistent covariance HC0–HC3, in one blocked pass over the rows.
- * @param X design columns; qr their factorisation; h leverages when known (HC2 and HC3 compute
- *   them in the same pass otherwise, and return them)
- * @param rowNumbers sheet rows, to name a row whose leverage is 1
+ * HC1 scales HC0 by n/df. @param h leverages when known (HC2 and HC3 compute them in the same pass
+ * otherwise, and return them)
  */
-export function hcCovariance(X: Float64Array[], qr: QrFit, type: "HC0" | "HC1" | "HC2" | "HC3", h: Float64Array | null, rowNumbers: Int32Array): { V: Float64Array; h: Float64Array | null } {
-  const { n, k, resid } = qr;
+export function hcCovariance(c: CovarianceInput, type: "HC0" | "HC1" | "HC2" | "HC3", h: Float64Array | null): { V: Float64Array; h: Float64Array | null } {
+  const { columns: X, factor: qr, scores: resid, rowNumbers } = c;
+  const { n, k } = qr;
   const needH = type === "HC2" || type === "HC3";
   // Leverages are computed in the same pass when they are needed and not known yet.
   const lev = needH ? h ?? new Float64Array(n) : null;
@@ -118,7 +141,7 @@ export function hcCovariance(X: Float64Array[], qr: QrFit, type: "HC0" | "HC1" |
   const W = new Float64Array(k * BLOCK);
   const w = new Float64Array(BLOCK);
   const inv = Float64Array.from(qr.scale, (s) => 1 / s);
-  const hc1 = n / (n - k);
+  const hc1 = n / c.dfResid;
   const ones: number[] = [];
   for (let start = 0; start < n; start += BLOCK) {
     const m = Math.min(BLOCK, n - start);
@@ -158,8 +181,9 @@ export function hcCovariance(X: Float64Array[], qr: QrFit, type: "HC0" | "HC1" |
 }
 
 /** Newey–West HAC covariance with L lags (Bartlett weights, no prewhitening, no df factor). */
-export function hacCovariance(X: Float64Array[], qr: QrFit, L: number): Float64Array {
-  const { n, k, resid } = qr;
+export function hacCovariance(c: CovarianceInput, L: number): Float64Array {
+  const { columns: X, factor: qr, scores: resid } = c;
+  const { n, k } = qr;
   if (L > n - 1) fail(`lags=${L} is more than the data allow: with ${n} rows use at most lags=${n - 1} (the default is ${defaultLags(n)})`);
   requireFeasible(n * k * k * (L + 1), `HAC with ${L} lags on ${n} rows and ${k} terms`, "use fewer lags (lags=), a sample of the rows, or se=HC3");
   const G: Float64Array[] = [];

@@ -6,10 +6,11 @@
  */
 import { count, fail, unavailable } from "./problems";
 import { leastSquares, type Dependency, type QrFit } from "./leastSquares";
-import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, type Covariance } from "./covariance";
+import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, leastSquaresInput, type Covariance, type CovarianceInput } from "./covariance";
 import { originalMedian, transformLabel, type Dataset, type Transform } from "./transforms";
 import { fisherSf, studentQuantile, studentTwoSided } from "./distributions";
 import type { SeType } from "./options";
+import { requireSeType, type EstimatorInfo } from "./estimators";
 
 export const INTERCEPT = "(Intercept)";
 
@@ -38,21 +39,28 @@ export interface FitStatistics {
 }
 
 /**
- * What every estimator's fit shares: the terms and design built from the dataset, and readers of a
- * covariance computed on a QR factor (the design's for OLS, the weighted design's for PPML).
+ * What every estimator's fit shares: the terms and design built from the dataset, its degrees of
+ * freedom, and readers of a covariance computed from the estimator's explicit covariance input.
  */
 export abstract class Model {
-  abstract readonly estimator: "ols" | "ppml";
+  abstract readonly estimator: EstimatorInfo["id"];
+  /** What the engine may ask of this estimator (see estimators.ts). */
+  abstract readonly info: EstimatorInfo;
   readonly data: Dataset;
   readonly intercept: boolean;
   readonly terms: Term[];
+  /**
+   * The regressors as the estimator uses them. The columns are the dataset's own (no copy) as long
+   * as the estimator does not change them; an estimator that demeans or weights works on copies, so
+   * that means and medians of the data stay those of the rows used.
+   */
   readonly design: Float64Array[];
   readonly n: number;
   readonly k: number;
-  readonly dfResid: number;
-  /** The factor and columns the covariances are computed on, and their residuals (qr.resid). */
+  /** Parameters estimated besides the k coefficients shown (absorbed fixed effects). */
+  readonly absorbed: number = 0;
+  /** The factor of the columns the covariances are computed on. */
   abstract readonly qr: QrFit;
-  protected abstract readonly covDesign: Float64Array[];
   protected leverageCache: Float64Array | null = null;
   private readonly covCache = new Map<string, Covariance>();
   private medianCache = new Map<number, number>();
@@ -75,7 +83,6 @@ export abstract class Model {
     this.design = design;
     this.n = data.n;
     this.k = design.length;
-    this.dfResid = this.n - this.k;
     checkShape(data, this.k, intercept);
   }
 
@@ -85,23 +92,27 @@ export abstract class Model {
   /** How y enters the mean: the elasticity's g (OLS: y's transform; PPML: log, as E[y|x] = exp(x'b)). */
   abstract readonly meanTransform: Transform;
 
-  /** Refuses a covariance type the estimator does not offer. */
-  protected checkSeType(type: SeType): void {
-    void type;
+  /** Residual degrees of freedom: n − k − absorbed parameters. */
+  get dfResid(): number {
+    return this.n - this.k - this.absorbed;
   }
+
+  /** The explicit input of every covariance of this fit (computed once). */
+  abstract covarianceInput(): CovarianceInput;
 
   /** The covariance of the coefficients of the given type (memoised). */
   covariance(type: SeType, lags: number | null = null): Covariance {
-    this.checkSeType(type);
+    requireSeType(this.info, type);
     const L = type === "HAC" ? lags ?? defaultLags(this.n) : 0;
     const key = type === "HAC" ? `HAC${L}` : type;
     let c = this.covCache.get(key);
     if (!c) {
       let V: Float64Array;
-      if (type === "classical") V = classicalCovariance(this.qr);
-      else if (type === "HAC") V = hacCovariance(this.covDesign, this.qr, L);
+      const input = this.covarianceInput();
+      if (type === "classical") V = classicalCovariance(input);
+      else if (type === "HAC") V = hacCovariance(input, L);
       else {
-        const r = hcCovariance(this.covDesign, this.qr, type, this.leverageCache, this.data.rowNumbers);
+        const r = hcCovariance(input, type, this.leverageCache);
         if (r.h) this.leverageCache = r.h;
         V = r.V;
       }
@@ -155,10 +166,24 @@ export abstract class Model {
   }
 }
 
+/** Ordinary least squares on the transformed columns. */
+export const OLS_INFO: EstimatorInfo = Object.freeze({
+  id: "ols",
+  title: "least squares",
+  seTypes: ["HC3", "HC0", "HC1", "HC2", "classical", "HAC"],
+  defaultSe: "HC3",
+  logsY: true,
+  negativeY: true,
+  residualVariance: true,
+  exponentialMean: false,
+  statistic: "t",
+  noResidualVariance: "",
+} as const);
+
 export class OlsFit extends Model {
   readonly estimator = "ols" as const;
+  readonly info = OLS_INFO;
   readonly qr: QrFit;
-  protected readonly covDesign: Float64Array[];
   private statsCache: FitStatistics | null = null;
 
   get meanTransform(): Transform {
@@ -170,7 +195,10 @@ export class OlsFit extends Model {
     const terms = this.terms;
     const ls = leastSquares(this.design, data.y);
     this.qr = ls.qr ?? explainDependency(ls.dependent as Dependency, terms);
-    this.covDesign = this.design;
+  }
+
+  covarianceInput(): CovarianceInput {
+    return this.memo("covarianceInput", () => leastSquaresInput(this.design, this.qr, this.data.rowNumbers, this.dfResid));
   }
 
   get coef(): Float64Array {

@@ -17,7 +17,7 @@
  */
 import { leastSquares, forwardSolveRt, type QrFit } from "./leastSquares";
 import { chiSquareQuantile, chiSquareSf, studentTwoSided } from "./distributions";
-import { classicalCovariance, defaultLags, hacCovariance, hcCovariance } from "./covariance";
+import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, leastSquaresInput } from "./covariance";
 import { fail, unavailable } from "./problems";
 import type { OlsFit } from "./fit";
 import type { SeType } from "./options";
@@ -167,9 +167,10 @@ function addedVariableT(X: Float64Array[], z: Float64Array, y: Float64Array, se:
   const q = ls.qr;
   const k = cols.length;
   let V: Float64Array;
-  if (se === "classical") V = classicalCovariance(q);
-  else if (se === "HAC") V = hacCovariance(cols, q, lags ?? defaultLags(q.n));
-  else V = hcCovariance(cols, q, se, null, new Int32Array(q.n).map((_, i) => i + 1)).V;
+  const input = leastSquaresInput(cols, q, new Int32Array(q.n).map((_, i) => i + 1));
+  if (se === "classical") V = classicalCovariance(input);
+  else if (se === "HAC") V = hacCovariance(input, lags ?? defaultLags(q.n));
+  else V = hcCovariance(input, se, null).V;
   const j = k - 1;
   return { t: q.coef[j] / Math.sqrt(V[j * k + j]), df: q.n - k };
 }

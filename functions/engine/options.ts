@@ -143,10 +143,7 @@ export function parseOptions(text: unknown): Options {
   return o;
 }
 
-/** The covariance type in force: the one asked for, else the estimator's default. */
-export function seTypeOf(o: Options): SeType {
-  return o.se ?? (o.estimator === "ppml" ? "HC1" : "HC3");
-}
+export { seTypeOf } from "./estimators";
 
 /** The options that change the fitted model (not how it is read): part of the fit cache key. */
 export function modelKey(o: Options): string {

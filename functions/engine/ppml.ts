@@ -23,7 +23,8 @@ import { normalQuantile, normalTwoSided } from "./distributions";
 import { fail, unavailable, rowsPhrase } from "./problems";
 import { Model } from "./fit";
 import { LOG, type Dataset, type Transform } from "./transforms";
-import type { SeType } from "./options";
+import type { CovarianceInput } from "./covariance";
+import type { EstimatorInfo } from "./estimators";
 
 /** Convergence tolerance on the relative change of the deviance and of the coefficients. */
 export const PPML_TOL = 1e-12;
@@ -47,10 +48,26 @@ export interface PpmlStatistics {
   dispersion: number;
 }
 
+/** Poisson pseudo-maximum likelihood: y in levels, zeros kept, an exponential mean. */
+export const PPML_INFO: EstimatorInfo = Object.freeze({
+  id: "ppml",
+  title: "PPML",
+  seTypes: ["HC1", "HC0", "classical"],
+  defaultSe: "HC1",
+  logsY: false,
+  negativeY: false,
+  residualVariance: false,
+  exponentialMean: true,
+  statistic: "z",
+  noResidualVariance: "drop estimator=ppml (PPML has no residual variance to test or retransform)",
+} as const);
+
 export class PpmlFit extends Model {
   readonly estimator = "ppml" as const;
+  readonly info = PPML_INFO;
+  /** The factor of the weighted design √μ̂·X at the converged estimate. */
   readonly qr: QrFit;
-  protected readonly covDesign: Float64Array[];
+  private readonly covInput: CovarianceInput;
   readonly meanTransform: Transform = LOG;
   private readonly beta: Float64Array;
   /** μ̂, the fitted mean of y. */
@@ -125,10 +142,14 @@ export class PpmlFit extends Model {
     }
     const q = leastSquares(A, z).qr ?? explain();
     const pearson = Float64Array.from(y, (v, i) => (v - mu[i]) / Math.sqrt(mu[i]));
-    let rss = 0;
-    for (let i = 0; i < n; i++) rss += pearson[i] * pearson[i];
-    this.qr = { ...q, resid: pearson, rss };
-    this.covDesign = A;
+    let ssr = 0;
+    for (let i = 0; i < n; i++) ssr += pearson[i] * pearson[i];
+    this.qr = q;
+    this.covInput = { columns: A, factor: q, scores: pearson, ssr, dfResid: this.dfResid, rowNumbers: data.rowNumbers };
+  }
+
+  covarianceInput(): CovarianceInput {
+    return this.covInput;
   }
 
   /** Santos Silva and Tenreyro (2010): a combination zero where y > 0 and one-signed where y = 0. */
@@ -196,12 +217,6 @@ export class PpmlFit extends Model {
     return this.mu;
   }
 
-  protected checkSeType(type: SeType): void {
-    if (type !== "HC0" && type !== "HC1" && type !== "classical") {
-      fail(`se=${type} is not offered with estimator=ppml: use se=HC1 (the default), se=HC0 or se=classical`);
-    }
-  }
-
   criticalValue(level: number): number {
     return normalQuantile(0.5 + level / 2);
   }
@@ -238,7 +253,7 @@ export class PpmlFit extends Model {
         pseudoRSquared: (sxy * sxy) / (sxx * syy),
         iterations: this.iterations,
         zerosKept: this.data.yZerosUsed,
-        dispersion: this.qr.rss / this.dfResid,
+        dispersion: this.covInput.ssr / this.dfResid,
       };
     });
   }

@@ -53,8 +53,9 @@ export function retransformFactor(fit: OlsFit, how: Retransform): number {
 }
 
 /** Back to y's units from a value m on the fitted scale, with retransformation. */
-export function toLevels(fit: AnyFit, m: number, how: Retransform): number {
-  if (fit.estimator === "ppml") return Math.exp(m); // PPML fits the mean itself: no factor
+export function toLevels(model: AnyFit, m: number, how: Retransform): number {
+  if (model.info.exponentialMean) return Math.exp(m); // the fit is the mean itself: no factor
+  const fit = model as OlsFit; // every other estimator fits y's transform with a residual variance
   const g = fit.data.yTransform;
   switch (g.kind) {
     case "level":
@@ -107,9 +108,9 @@ export function predictRow(fit: AnyFit, x0: Float64Array, how: Retransform, inte
     const se = Math.sqrt(Math.max(0, quadraticForm(cov.V, x0)));
     return { value, lower: toLevels(fit, m - t * se, how), upper: toLevels(fit, m + t * se, how) };
   }
-  if (fit.estimator === "ppml") unavailable("interval=individual needs a distribution for single outcomes; PPML models only the mean: use interval=mean");
+  if (!fit.info.residualVariance) unavailable(`interval=individual needs a distribution for single outcomes; ${fit.info.title} models only the mean: use interval=mean`);
   const Vc = fit.covariance("classical").V;
-  const se = Math.sqrt(fit.s2 + Math.max(0, quadraticForm(Vc, x0)));
+  const se = Math.sqrt((fit as OlsFit).s2 + Math.max(0, quadraticForm(Vc, x0)));
   // no factor: exp (or the inverse transform) is increasing, so the ends map to the ends
   return { value, lower: toLevels(fit, m - t * se, "none"), upper: toLevels(fit, m + t * se, "none") };
 }

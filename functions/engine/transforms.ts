@@ -14,6 +14,7 @@
 import { fail, count, rowsPhrase, nearest } from "./problems";
 import type { Options } from "./options";
 import type { RawData } from "./intake";
+import { estimatorOf } from "./estimators";
 
 export type Transform =
   | { kind: "level" }
@@ -166,8 +167,8 @@ function describeNonPositive(name: string, np: NonPositive): string {
  */
 export function prepare(raw: RawData, o: Options): Dataset {
   const k = raw.x.length;
-  const ppml = o.estimator === "ppml";
-  const logY = !ppml && o.form.startsWith("log-");
+  const info = estimatorOf(o);
+  const logY = info.logsY && o.form.startsWith("log-");
   const logX = o.form.endsWith("-log");
   const binary = raw.x.map(isBinary);
   const keepLevel = new Array<boolean>(k).fill(false);
@@ -176,12 +177,12 @@ export function prepare(raw: RawData, o: Options): Dataset {
 
   // Counts of values ≤ 0 in each column that a log would take.
   const yNp = nonPositive(raw.y, raw.rowNumbers);
-  if (ppml && yNp.negatives > 0) {
+  if (!info.negativeY && yNp.negatives > 0) {
     const rows: number[] = [];
     raw.y.forEach((v, i) => {
       if (v < 0 && rows.length < 200) rows.push(raw.rowNumbers[i]);
     });
-    fail(`${raw.yName} has ${count(yNp.negatives, "negative value")} (${rowsPhrase(rows)}); PPML models a mean that cannot be negative: check the data`);
+    fail(`${raw.yName} has ${count(yNp.negatives, "negative value")} (${rowsPhrase(rows)}); ${info.title} models a mean that cannot be negative: check the data`);
   }
   const npx = raw.x.map((c, j) => (logged[j] ? nonPositive(c, raw.rowNumbers) : null));
   const offenders: string[] = [];
