@@ -6,7 +6,7 @@
  * group's numbers equal ELX.ELASTICITIES on its rows. A group that cannot be fitted keeps its reason
  * and the others still come. Rows with a blank key are left out and counted.
  */
-import { readYX, asMatrix, type Origin, type RawData } from "./intake";
+import { readYX, asMatrix, keyText, subsetRoles, type Origin, type RawData } from "./intake";
 import { prepare } from "./transforms";
 import { estimatorOf } from "./estimators";
 import { ElxProblem, fail } from "./problems";
@@ -29,18 +29,6 @@ export interface Groups {
   yName: string;
 }
 
-function keyText(v: unknown): string | null {
-  if (v === null || v === undefined) return null;
-  if (typeof v === "string") return v.trim() === "" ? null : v.trim();
-  if (typeof v === "number") return Number.isFinite(v) ? String(v) : null;
-  if (typeof v === "boolean") return v ? "TRUE" : "FALSE";
-  if (typeof v === "object") {
-    const basic = (v as { basicValue?: unknown }).basicValue;
-    if (basic !== undefined && typeof basic !== "object") return keyText(basic);
-  }
-  return null; // error cells and anything else: no key
-}
-
 /**
  * Splits the rows by key and fits each group.
  * @param keys one column, same height as y (with a header row when y has one)
@@ -48,7 +36,7 @@ function keyText(v: unknown): string | null {
 export function fitGroups(keys: unknown, y: unknown, x: unknown, o: Options, yOrigin: Origin | null, xOrigin: Origin | null): Groups {
   const km = asMatrix(keys, "keys");
   if (km[0].length !== 1) fail(`keys must be one column (it has ${km[0].length}); give the column of product, store or region names`);
-  const raw = readYX(y, x, yOrigin, xOrigin);
+  const raw = readYX(y, x, yOrigin, xOrigin, o);
   const start = raw.yHeader ? 1 : 0;
   const keyRows = km.length - start;
   if (keyRows < raw.dataRows || keyRows > raw.dataRows + raw.trailingBlank) {
@@ -86,6 +74,7 @@ export function fitGroups(keys: unknown, y: unknown, x: unknown, o: Options, yOr
       y: pick(raw.y),
       x: raw.x.map(pick),
       rowNumbers: Int32Array.from(idx, (w) => raw.rowNumbers[w]),
+      roles: subsetRoles(raw.roles, idx),
       leftOutBlank: leftOut.get(key) as number,
       leftOutBlankRows: [],
     };

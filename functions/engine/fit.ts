@@ -111,6 +111,7 @@ export abstract class Model {
       const input = this.covarianceInput();
       if (type === "classical") V = classicalCovariance(input);
       else if (type === "HAC") V = hacCovariance(input, L);
+      else if (type === "cluster" || type === "DK") V = this.groupedCovariance(type, input);
       else {
         const r = hcCovariance(input, type, this.leverageCache);
         if (r.h) this.leverageCache = r.h;
@@ -120,6 +121,12 @@ export abstract class Model {
       this.covCache.set(key, c);
     }
     return c;
+  }
+
+  /** Cluster-robust and Driscoll–Kraay covariances need the fit's role columns (panel fits). */
+  protected groupedCovariance(type: "cluster" | "DK", input: CovarianceInput): Float64Array {
+    void input;
+    return fail(type === "cluster" ? "se=cluster needs cluster= naming the column of clusters (for example cluster=Store)" : "se=DK needs time= naming the column of periods (for example time=Week)");
   }
 
   /** Standard errors under a covariance. */

@@ -170,6 +170,7 @@ function addedVariableT(X: Float64Array[], z: Float64Array, y: Float64Array, se:
   const input = leastSquaresInput(cols, q, new Int32Array(q.n).map((_, i) => i + 1));
   if (se === "classical") V = classicalCovariance(input);
   else if (se === "HAC") V = hacCovariance(input, lags ?? defaultLags(q.n));
+  else if (se === "cluster" || se === "DK") return unavailable(`the PE test with se=${se} is not computed here: use se=HC1 or se=HC3 for FORMCHECK`);
   else V = hcCovariance(input, se, null).V;
   const j = k - 1;
   return { t: q.coef[j] / Math.sqrt(V[j * k + j]), df: q.n - k };

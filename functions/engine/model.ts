@@ -36,7 +36,7 @@ function keyOf(input: ModelInput): string {
 
 /** Fits without the cache (for tests and for callers that build their own data). */
 export function fitUncached(input: ModelInput): AnyFit {
-  const raw = readYX(input.y, input.x, input.yOrigin, input.xOrigin);
+  const raw = readYX(input.y, input.x, input.yOrigin, input.xOrigin, input.options);
   const data = prepare(raw, input.options);
   return estimatorOf(input.options).build(data, input.options) as AnyFit;
 }

@@ -13,7 +13,7 @@
  */
 import { fail, count, rowsPhrase, nearest } from "./problems";
 import type { Options } from "./options";
-import type { RawData } from "./intake";
+import { subsetRoles, type RawData, type RoleColumns } from "./intake";
 import { estimatorOf } from "./estimators";
 
 export type Transform =
@@ -114,6 +114,41 @@ export interface Dataset {
   yNonPositive: number;
   /** Zeros in y among the rows used (zeros=shift/ihs keep them; PPML keeps them). */
   yZerosUsed: number;
+  /** The role columns over the rows used; instruments transformed as the x side. */
+  roles: RoleColumns;
+  instrumentTransforms: Transform[];
+  /** Every column of the x range by name, and the index in x of each (−1: a role column). */
+  columnNames: string[];
+  regressorOf: Int32Array;
+  /** Rows left out because their weight was zero or negative. */
+  leftOutWeight: number;
+  leftOutWeightRows: number[];
+  /** For each column of x, the factor column whose indicator it is (null for regressors). */
+  factorOf: (string | null)[];
+}
+
+/**
+ * Resolves a term of a fit: a name in x (regressors and factor indicators such as "Region: North"),
+ * or a 1-based column number of the x range; a role column is named as such.
+ */
+export function resolveTerm(term: unknown, data: Pick<Dataset, "xNames" | "columnNames" | "regressorOf" | "roles">, what = "term"): number {
+  if (typeof term === "string" && term.trim() !== "") {
+    const t = term.trim().toLowerCase();
+    const i = data.xNames.findIndex((n) => n.toLowerCase() === t);
+    if (i >= 0) return i;
+  }
+  if (data.columnNames.length === data.xNames.length && data.regressorOf.every((r, j) => r === j)) return resolveColumn(term, data.xNames, what);
+  const c = resolveColumn(term, data.columnNames, what);
+  const r = data.regressorOf[c];
+  if (r >= 0) return r;
+  const name = data.columnNames[c];
+  const roles = data.roles;
+  const isFactor = roles.factors.some((f) => f.name === name);
+  if (isFactor) {
+    const terms = data.xNames.filter((n) => n.startsWith(`${name}: `));
+    return fail(`${name} is a factors= column: its terms are ${terms.join(", ")}; name one of them`);
+  }
+  return fail(`${name} is a role column (keys, weights or instruments), not a regressor; name a regressor (${data.xNames.join(", ")})`);
 }
 
 /** Resolves a term given by header name or 1-based column number; suggests the nearest name. */
@@ -166,14 +201,25 @@ function describeNonPositive(name: string, np: NonPositive): string {
  * @param o parsed options (form, levels, zeros, shift, estimator)
  */
 export function prepare(raw: RawData, o: Options): Dataset {
-  const k = raw.x.length;
   const info = estimatorOf(o);
   const logY = info.logsY && o.form.startsWith("log-");
   const logX = o.form.endsWith("-log");
-  const binary = raw.x.map(isBinary);
+  // Instruments take the x side's transform, so they join the regressors until the end.
+  const kx = raw.x.length;
+  const allX = [...raw.x, ...raw.roles.instruments];
+  const allNames = [...raw.xNames, ...raw.roles.instrumentNames];
+  const k = allX.length;
+  const binary = allX.map(isBinary);
   const keepLevel = new Array<boolean>(k).fill(false);
-  for (const t of o.levels) keepLevel[resolveColumn(t, raw.xNames, "levels= column")] = true;
-  const logged = raw.x.map((_, j) => logX && !binary[j] && !keepLevel[j]);
+  for (const t of o.levels) {
+    const c = resolveColumn(t, raw.columnNames, "levels= column");
+    const r = raw.regressorOf[c];
+    const z = raw.roles.instrumentNames.indexOf(raw.columnNames[c]);
+    if (r >= 0) keepLevel[r] = true;
+    else if (z >= 0) keepLevel[kx + z] = true;
+    else fail(`levels=${t}: ${raw.columnNames[c]} is a key or weights column, which is never logged; name a regressor or an instrument`);
+  }
+  const logged = allX.map((_, j) => logX && !binary[j] && !keepLevel[j]);
 
   // Counts of values ≤ 0 in each column that a log would take.
   const yNp = nonPositive(raw.y, raw.rowNumbers);
@@ -184,16 +230,17 @@ export function prepare(raw: RawData, o: Options): Dataset {
     });
     fail(`${raw.yName} has ${count(yNp.negatives, "negative value")} (${rowsPhrase(rows)}); ${info.title} models a mean that cannot be negative: check the data`);
   }
-  const npx = raw.x.map((c, j) => (logged[j] ? nonPositive(c, raw.rowNumbers) : null));
+  const npx = allX.map((c, j) => (logged[j] ? nonPositive(c, raw.rowNumbers) : null));
   const offenders: string[] = [];
   if (logY && yNp.rows.length > 0) offenders.push(describeNonPositive(raw.yName, yNp));
   npx.forEach((np, j) => {
-    if (np && np.rows.length > 0) offenders.push(describeNonPositive(raw.xNames[j], np));
+    if (np && np.rows.length > 0) offenders.push(describeNonPositive(allNames[j], np));
   });
 
   let y = raw.y;
-  let x = raw.x;
+  let x = allX;
   let rowNumbers = raw.rowNumbers;
+  let roles = raw.roles;
   let dropped = 0;
   const droppedRows: number[] = [];
   const yT: Transform = logY ? LOG : LEVEL;
@@ -209,6 +256,7 @@ export function prepare(raw: RawData, o: Options): Dataset {
     }
     if (o.zeros === "drop") {
       const n0 = y.length;
+      const kept = new Int32Array(n0);
       let w = 0;
       for (let i = 0; i < n0; i++) {
         let bad = logY && y[i] <= 0;
@@ -223,12 +271,14 @@ export function prepare(raw: RawData, o: Options): Dataset {
           for (let j = 0; j < k; j++) x[j][w] = x[j][i];
           rowNumbers[w] = rowNumbers[i];
         }
+        kept[w] = i;
         w++;
       }
       y = y.subarray(0, w);
       x = x.map((c) => c.subarray(0, w));
       rowNumbers = rowNumbers.subarray(0, w);
       if (w === 0) fail(`every row has a zero, blank or negative value in a column to be logged (${offenders.join("; ")}); nothing is left to fit: use zeros=shift, zeros=ihs or estimator=ppml`);
+      roles = { ...subsetRoles({ ...roles, instruments: [] }, kept.subarray(0, w)), instruments: x.slice(kx), instrumentNames: roles.instrumentNames };
     } else {
       // shift or ihs: only in the logged columns that contain a value ≤ 0.
       const replace = (name: string, col: Float64Array): Transform => {
@@ -241,28 +291,45 @@ export function prepare(raw: RawData, o: Options): Dataset {
       };
       if (logY && yNp.rows.length > 0) yTransform = replace(raw.yName, y);
       npx.forEach((np, j) => {
-        if (np && np.rows.length > 0) xT[j] = replace(raw.xNames[j], x[j]);
+        if (np && np.rows.length > 0) xT[j] = replace(allNames[j], x[j]);
       });
     }
   }
 
   const n = y.length;
-  const yMean = stableSum(y) / n;
-  const xMeans = x.map((c) => stableSum(c) / n);
+  const wts = roles.weights;
+  const mean = (c: Float64Array) => (wts ? weightedMean(c, wts) : stableSum(c) / n);
+  const yMean = mean(y);
+  const xMeans = x.slice(0, kx).map(mean);
   let yZerosUsed = 0;
   for (let i = 0; i < n; i++) if (y[i] === 0) yZerosUsed++;
   if (yTransform.kind !== "level") transformInPlace(y, yTransform);
   x.forEach((c, j) => {
     if (xT[j].kind !== "level") transformInPlace(c, xT[j]);
   });
+  const regressors = x.slice(0, kx);
+  const xNames = raw.xNames.slice();
+  const xTransforms = xT.slice(0, kx);
+  const xBinary = binary.slice(0, kx);
+  const factorOf: (string | null)[] = xNames.map(() => null);
+  for (const f of roles.factors) {
+    for (const ind of indicators(f.codes, f.labels, f.name)) {
+      regressors.push(ind.column);
+      xNames.push(ind.name);
+      xTransforms.push(LEVEL);
+      xBinary.push(true);
+      factorOf.push(f.name);
+    }
+  }
+  for (let j = kx; j < regressors.length; j++) xMeans.push(mean(regressors[j]));
   return {
     yName: raw.yName,
-    xNames: raw.xNames,
+    xNames,
     y,
-    x,
+    x: regressors,
     yTransform,
-    xTransforms: xT,
-    binary,
+    xTransforms,
+    binary: xBinary,
     n,
     rowNumbers,
     leftOutBlank: raw.leftOutBlank,
@@ -273,7 +340,39 @@ export function prepare(raw: RawData, o: Options): Dataset {
     xMeans,
     yNonPositive: yNp.zeros + yNp.negatives,
     yZerosUsed,
+    roles: { ...roles, instruments: x.slice(kx) },
+    instrumentTransforms: xT.slice(kx),
+    columnNames: raw.columnNames,
+    regressorOf: raw.regressorOf,
+    leftOutWeight: raw.leftOutWeight,
+    leftOutWeightRows: raw.leftOutWeightRows,
+    factorOf,
   };
+}
+
+/** Σ w v / Σ w with compensated sums. */
+export function weightedMean(v: Float64Array, w: Float64Array): number {
+  const p = new Float64Array(v.length);
+  for (let i = 0; i < v.length; i++) p[i] = w[i] * v[i];
+  return stableSum(p) / stableSum(w);
+}
+
+/**
+ * One 0/1 column per value of a factor except the first in sheet order (the reference level),
+ * named "Column: value", in order of first appearance.
+ */
+function indicators(codes: Int32Array, labels: string[], name: string): { name: string; column: Float64Array }[] {
+  const order: number[] = [];
+  const seen = new Uint8Array(labels.length);
+  for (let i = 0; i < codes.length; i++) {
+    const c = codes[i];
+    if (!seen[c]) {
+      seen[c] = 1;
+      order.push(c);
+    }
+  }
+  if (order.length < 2) fail(`${name} has one value (${labels[order[0]]}) in the rows used, so factors= makes no indicator term: remove it from factors=`);
+  return order.slice(1).map((c) => ({ name: `${name}: ${labels[c]}`, column: Float64Array.from(codes, (v) => (v === c ? 1 : 0)) }));
 }
 
 function transformInPlace(col: Float64Array, t: Transform): void {
