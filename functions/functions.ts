@@ -103,7 +103,7 @@ export function smearing(y: any[][], x: any[][], options?: string, invocation?: 
 }
 
 /**
- * Predicts y in its original units for new rows of x, retransformed to the mean (Duan by default); with interval=mean or individual also Lower and Upper.
+ * Predicts y in its original units for new rows of x, retransformed to the mean (Duan by default); with interval=mean or individual also the interval's Low and High ends.
  * @customfunction PREDICT
  * @param y Dependent variable: one column.
  * @param x Regressors: one or more columns, same rows as y.
@@ -186,7 +186,7 @@ const published: ElasticellApi = {
 /**
  * One row per distinct key (product, store, region): Group, Observations, then the elasticity and its standard error for each regressor, R² and the Breusch–Pagan p. A group that cannot be fitted shows why; the others still come.
  * @customfunction BYGROUP
- * @param keys The segment of each row: one column, same rows as y (blank keys are left out and counted).
+ * @param keys The segment of each row: one column, same rows as y (keys compare by their text; blank or error keys are left out and counted).
  * @param y Dependent variable: one column.
  * @param x Regressors: one or more columns, same rows as y.
  * @param [options] Text like "se=HC3; zeros=drop" or "estimator=ppml". All model options apply to every group.

@@ -282,14 +282,14 @@ async function main() {
     typeof lo === "number" && typeof hi === "number" ? (t >= lo && t <= hi ? "yes" : "no") : "";
   for (const [term, t] of [["Price", truth.price], ["Footfall", truth.footfall], ["Income", truth.income]]) {
     const b = valueOf(el, term, "Elasticity");
-    const lo = valueOf(el, term, "Lower");
-    const hi = valueOf(el, term, "Upper");
+    const lo = valueOf(el, term, "Low (");
+    const hi = valueOf(el, term, "High (");
     if (typeof b === "number") rowsTruth.push([`${term} elasticity`, b, t, b - t, inInterval(b, lo, hi, t)]);
   }
   const pe = valueOf(eff, "Promo", "Corrected");
   if (typeof pe === "number") {
     rowsTruth.push(["Promo % effect (corrected)", pe, truth.promoPercent, pe - truth.promoPercent,
-      inInterval(pe, valueOf(eff, "Promo", "Lower"), valueOf(eff, "Promo", "Upper"), truth.promoPercent)]);
+      inInterval(pe, valueOf(eff, "Promo", "Low ("), valueOf(eff, "Promo", "High ("), truth.promoPercent)]);
   }
   if (rowsTruth.length) truthTable(rowsTruth);
   const bPrice = valueOf(el, "Price", "Elasticity");

@@ -3,16 +3,16 @@
  * SMEARING, PREDICT, HETEROTEST, NORMALTEST, TESTS, FORMCHECK.
  */
 import { seTypeOf, type Form } from "../engine/options";
-import { fail, nearest, ElxProblem } from "../engine/problems";
-import { asMatrix, originOf } from "../engine/intake";
-import { apply, LEVEL } from "../engine/transforms";
+import { cut, fail, nearest, quote, ElxProblem } from "../engine/problems";
+import { asMatrix, isHeaderRow, originOf, xColumnNames } from "../engine/intake";
+import { apply, LEVEL, matchName } from "../engine/transforms";
 import { predictRow, retransformFactor } from "../engine/retransform";
 import { heteroTest, jarqueBera, moments, reset, breuschPaganKoenker, breuschPaganOriginal, white, whiteSpecial, type HeteroTest, type TestResult } from "../engine/specTests";
 import { boxCox, peTest, readEvidence } from "../engine/formCheck";
 import { OlsFit } from "../engine/fit";
 import { getOlsFit, type AnyFit } from "../engine/model";
 import { fitFor, olsFor } from "./regression";
-import { guarded, hostError, levelLabel, num, options, originsOf, table, toHostError, type Cell, type Table } from "./host";
+import { guarded, hostError, intervalHeaders, levelLabel, num, options, originsOf, table, toHostError, type Cell, type Table } from "./host";
 
 export function smearingValue(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
   return guarded(() => {
@@ -54,17 +54,18 @@ export function predictTable(y: unknown, x: unknown, newX: unknown, opts: unknow
     const addrs = (invocation as { parameterAddresses?: unknown[] } | undefined)?.parameterAddresses;
     const origin = Array.isArray(addrs) ? originOf(addrs[2]) : null;
     const names = fit.data.xNames;
-    const header = cells[0].every((v) => typeof v === "string" && v.trim() !== "");
+    // The header rule and the names are those of x (readYX), so a new_x with x's header matches it.
+    const header = isHeaderRow(cells[0]);
     let map: number[];
     if (header) {
-      const given = cells[0].map((v) => String(v).trim());
+      const given = xColumnNames(fit.data.yName, cells[0]);
       map = names.map((name) => {
-        const i = given.findIndex((g) => g.toLowerCase() === name.toLowerCase());
-        if (i < 0) fail(`new_x has no column ${name}; its header names are ${given.join(", ")}; give new_x the same columns as x`);
+        const i = matchName(name, given);
+        if (i < 0) fail(`new_x has no column ${cut(name)}; its header names are ${given.map((g) => cut(g)).join(", ")}; give new_x the same columns as x`);
         return i;
       });
       given.forEach((g) => {
-        if (!names.some((n) => n.toLowerCase() === g.toLowerCase())) fail(`new_x column "${g}" is not a column of x; did you mean ${nearest(g, names)}? (x has ${names.join(", ")})`);
+        if (matchName(g, names) < 0) fail(`new_x column ${quote(g)} is not a column of x; did you mean ${cut(nearest(g, names) ?? "")}? (x has ${names.map((n) => cut(n)).join(", ")})`);
       });
     } else {
       if (cells[0].length !== names.length) fail(`new_x has ${cells[0].length} columns but x has ${names.length} (${names.join(", ")}); give new_x the same columns, in the same order, or add a header row to match them by name`);
@@ -87,8 +88,7 @@ export function predictTable(y: unknown, x: unknown, newX: unknown, opts: unknow
       }
     }
     if (body.length === 0) fail("new_x has a header row but no rows to predict");
-    const lv = levelLabel(o.level);
-    const head = [`Predicted ${fit.data.yName}`, `Lower ${lv}`, `Upper ${lv}`].slice(0, width);
+    const head = [`Predicted ${fit.data.yName}`, ...intervalHeaders(o.level)].slice(0, width);
     return header && o.headers ? [head, ...body] : body;
   });
 }
@@ -105,8 +105,12 @@ export function heteroValue(y: unknown, x: unknown, test: unknown, opts: unknown
     let which: HeteroTest = "bp";
     if (test !== null && test !== undefined && test !== "") {
       const t = String(test).trim().toLowerCase();
+      if (t.includes("=")) {
+        // Options typed into the test argument: ELX.HETEROTEST(y, x, "zeros=drop").
+        fail(`the test argument holds options (${quote(String(test).trim())}): options go in the last argument, after the test, as in ELX.HETEROTEST(y, x, "bp", ${quote(String(test).trim())}); the test is one of ${HETERO_TESTS.join(", ")}, or leave it empty for bp`);
+      }
       const hit = HETERO_TESTS.find((h) => h === t);
-      if (!hit) fail(`test "${test}" is not known; did you mean ${nearest(t, HETERO_TESTS)}? (tests: ${HETERO_TESTS.join(", ")})`);
+      if (!hit) fail(`test ${quote(String(test).trim())} is not known; did you mean ${nearest(t, HETERO_TESTS)}? (tests: ${HETERO_TESTS.join(", ")})`);
       which = hit;
     }
     const fit = olsFor(y, x, o, invocation, "ELX.HETEROTEST");

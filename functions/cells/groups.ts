@@ -54,7 +54,7 @@ export function byGroupTable(keys: unknown, y: unknown, x: unknown, opts: unknow
       return row;
     });
     if (g.blankKeys > 0) {
-      const row: Cell[] = ["(blank key)", g.blankKeys, "rows with a blank key are left out"];
+      const row: Cell[] = ["(blank key)", g.blankKeys, "rows whose key is blank or an error are left out"];
       while (row.length < width) row.push("");
       body.push(row);
     }

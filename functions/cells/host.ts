@@ -61,6 +61,12 @@ export function levelLabel(level: number): string {
   return `${Number((level * 100).toPrecision(6))}%`;
 }
 
+/** The headers of an interval's two ends, naming the level: "Low (95%)", "High (95%)". */
+export function intervalHeaders(level: number): [string, string] {
+  const lv = levelLabel(level);
+  return [`Low (${lv})`, `High (${lv})`];
+}
+
 /** A cell from a computation that may meet a data problem: the value, or the problem's error value. */
 export function safe(compute: () => Cell): Cell {
   try {

@@ -4,15 +4,15 @@
  */
 import { getFit, getOlsFit, type AnyFit } from "../engine/model";
 import { seTypeOf, type Options } from "../engine/options";
-import { ElxProblem, fail, unavailable } from "../engine/problems";
+import { ElxProblem, fail, quote, rowsPhrase, unavailable } from "../engine/problems";
 import { retransformFactor } from "../engine/retransform";
 import { conditionNumber, varianceInflation } from "../engine/collinearity";
-import { resolveColumn } from "../engine/transforms";
+import { resolveColumn, type Dataset } from "../engine/transforms";
 import { elasticity, percentEffect } from "../engine/elasticity";
-import { readRange, asMatrix, CellIssue } from "../engine/intake";
+import { readRange, asMatrix, CellIssue, numericTextAdvice, uniqueNames } from "../engine/intake";
 import type { OlsFit } from "../engine/fit";
 import type { PpmlFit } from "../engine/ppml";
-import { guarded, hostError, levelLabel, num, options, originsOf, table, safe, type Cell, type Table } from "./host";
+import { guarded, hostError, intervalHeaders, num, options, originsOf, table, safe, type Cell, type Table } from "./host";
 
 /** Fit for a cell function whose first two parameters are y and x. */
 export function fitFor(y: unknown, x: unknown, o: Options, invocation: unknown): AnyFit {
@@ -33,7 +33,6 @@ export function fitTable(y: unknown, x: unknown, opts: unknown, invocation: unkn
     const cov = fit.covariance(seTypeOf(o), o.lags);
     const se = fit.standardErrors(cov);
     const crit = fit.criticalValue(o.level);
-    const lv = levelLabel(o.level);
     const body: Table = fit.terms.map((t, j) => {
       const b = fit.coef[j];
       const tstat = b / se[j];
@@ -49,7 +48,7 @@ export function fitTable(y: unknown, x: unknown, opts: unknown, invocation: unkn
         num(b + crit * se[j]),
       ];
     });
-    return table(["Term", "Transform", "Coefficient", `Std. error (${cov.label})`, fit.info.statistic, "p-value", `Lower ${lv}`, `Upper ${lv}`], body, o);
+    return table(["Term", "Transform", "Coefficient", `Std. error (${cov.label})`, fit.info.statistic, "p-value", ...intervalHeaders(o.level)], body, o);
   });
 }
 
@@ -73,7 +72,6 @@ export function elasticitiesTable(y: unknown, x: unknown, opts: unknown, invocat
     const o = options(opts);
     const fit = fitFor(y, x, o, invocation);
     const cov = fit.covariance(seTypeOf(o), o.lags);
-    const lv = levelLabel(o.level);
     const body: Table = fit.data.xNames.map((name, j) => {
       const t = fit.terms[fit.coefIndex(j)];
       if (fit.data.binary[j]) {
@@ -83,7 +81,7 @@ export function elasticitiesTable(y: unknown, x: unknown, opts: unknown, invocat
       const r = elasticity(fit, j, cov, o.level, o.at);
       return [name, fit.termLabel(t), num(r.estimate), num(r.se), num(r.lower), num(r.upper), r.at];
     });
-    return table(["Term", "Transform", "Elasticity", `Std. error (${cov.label})`, `Lower ${lv}`, `Upper ${lv}`, "Evaluated at"], body, o);
+    return table(["Term", "Transform", "Elasticity", `Std. error (${cov.label})`, ...intervalHeaders(o.level), "Evaluated at"], body, o);
   });
 }
 
@@ -97,12 +95,11 @@ export function effectsTable(y: unknown, x: unknown, opts: unknown, invocation: 
     const cols = fit.data.xTransforms.map((t, j) => (t.kind === "level" ? j : -1)).filter((j) => j >= 0);
     if (cols.length === 0) unavailable("no regressor is in levels here: under a log x side each coefficient is already an elasticity (ELX.ELASTICITIES); percent effects are for binary columns or those named in levels=");
     const cov = fit.covariance(seTypeOf(o), o.lags);
-    const lv = levelLabel(o.level);
     const body: Table = cols.map((j) => {
       const r = percentEffect(fit, j, cov, o.level);
       return [r.term.name, num(r.percent), num(r.corrected), num(r.lower), num(r.upper)];
     });
-    return table(["Term", "Percent effect", "Corrected (Kennedy 1981)", `Lower ${lv}`, `Upper ${lv}`], body, o);
+    return table(["Term", "Percent effect", "Corrected (Kennedy 1981)", ...intervalHeaders(o.level)], body, o);
   });
 }
 
@@ -136,7 +133,9 @@ function collinearityRows(fit: OlsFit): [string, Cell][] {
  */
 function ppmlContrastRows(fit: OlsFit, o: Options, y: unknown, x: unknown, invocation: unknown): [string, Cell][] {
   if (o.zeros !== "drop" || fit.data.yTransform.kind !== "log" || fit.data.yNonPositive === 0) return [];
-  const rows: [string, Cell][] = [[`Rows the log of ${fit.data.yName} lost (zero or negative)`, fit.data.yNonPositive]];
+  const zeros = fit.data.yNonPositive - fit.data.yNegative;
+  const rows: [string, Cell][] = [[`Rows the log of ${fit.data.yName} lost (zero or blank)`, zeros]];
+  if (fit.data.yNegative > 0) rows.push([`Rows the log of ${fit.data.yName} lost (negative)`, fit.data.yNegative]);
   let text: string;
   try {
     const p = fitFor(y, x, { ...o, estimator: "ppml", se: null }, invocation);
@@ -151,13 +150,32 @@ function ppmlContrastRows(fit: OlsFit, o: Options, y: unknown, x: unknown, invoc
       if (b.estimate < a.lower || b.estimate > a.upper) differ.push(`${name} ${fmt(b.estimate)} against ${fmt(a.estimate)} [${fmt(a.lower)}, ${fmt(a.upper)}]`);
     });
     text = differ.length > 0
-      ? `PPML, which keeps the ${fit.data.yNonPositive} zero rows, gives a materially different elasticity (outside the OLS interval): ${differ.join("; ")}; the dropped zeros or heteroskedasticity may bias the log fit: compare with estimator=ppml`
-      : `PPML, which keeps the ${fit.data.yNonPositive} zero rows, gives elasticities inside the OLS intervals`;
+      ? `PPML, which keeps the ${zeros} zero rows, gives a materially different elasticity (outside the OLS interval): ${differ.join("; ")}; the dropped zeros or heteroskedasticity may bias the log fit: compare with estimator=ppml`
+      : `PPML, which keeps the ${zeros} zero rows, gives elasticities inside the OLS intervals`;
   } catch (e) {
     if (!(e instanceof ElxProblem)) throw e;
     text = `PPML on the same rows could not be fitted: ${e.message}`;
   }
   rows.push(["PPML contrast", text]);
+  return rows;
+}
+
+/**
+ * The rows SUMMARY gives for what the intake and the log left out: blank or non-numeric (with the
+ * rows holding numbers stored as text named, when there are any), zero and negative apart, and the
+ * columns whose header cell was empty.
+ */
+function leftOutRows(d: Dataset): [string, Cell][] {
+  const rows: [string, Cell][] = [["Rows left out: blank or non-numeric", d.leftOutBlank]];
+  const e = d.numericTextExample;
+  if (d.numericTextRows.count > 0 && e !== null) {
+    rows.push(["Of these, numbers stored as text", `${rowsPhrase(d.numericTextRows)} (for example ${quote(e.text)} in ${e.column}, row ${e.row}): ${numericTextAdvice(e.text)}`]);
+  }
+  rows.push(["Rows left out: zero or blank under a log", d.leftOutNonPositive - d.leftOutNegative]);
+  rows.push(["Rows left out: negative under a log", d.leftOutNegative]);
+  if (d.unnamed.length > 0) {
+    rows.push(["Columns without a header", `${d.unnamed.join(", ")}: ${d.unnamed.length === 1 ? "its header cell is" : "their header cells are"} empty, so ${d.unnamed.length === 1 ? "it is" : "they are"} named by ${d.unnamed.length === 1 ? "its" : "their"} place`]);
+  }
   return rows;
 }
 
@@ -169,8 +187,7 @@ function ppmlSummaryRows(fit: PpmlFit, o: Options): [string, Cell][] {
     ["Estimator", "PPML (Poisson pseudo-maximum likelihood, mean exp(x'b), y in levels)"],
     ["Std. errors", cov.label],
     ["Observations used", fit.n],
-    ["Rows left out: blank or non-numeric", fit.data.leftOutBlank],
-    ["Rows left out: zero or negative under a log", fit.data.leftOutNonPositive],
+    ...leftOutRows(fit.data),
     [`Zeros kept in ${fit.data.yName}`, s.zerosKept],
     ["Deviance", num(s.deviance)],
     ["Pseudo R² (squared correlation of y and fitted)", num(s.pseudoRSquared, "pseudo R² is undefined: the fitted values do not vary")],
@@ -197,8 +214,7 @@ export function summaryTable(y: unknown, x: unknown, opts: unknown, invocation: 
       ["Std. errors", cov.label],
       ["Fit statistics on the scale of", scale],
       ["Observations used", fit.n],
-      ["Rows left out: blank or non-numeric", fit.data.leftOutBlank],
-      ["Rows left out: zero or negative under a log", fit.data.leftOutNonPositive],
+      ...leftOutRows(fit.data),
       ["R²", num(s.rSquared, "R² is undefined: y does not vary")],
       ["Adjusted R²", num(s.adjRSquared, "adjusted R² is undefined: y does not vary")],
       ["Residual std. error", num(s.sigma)],
@@ -221,6 +237,7 @@ export function zerosTable(range: unknown, opts: unknown): Table {
     const o = options(opts);
     const m = asMatrix(range, "range");
     const r = readRange(m, (j) => (m[0].length === 1 ? "y" : `column ${j + 1}`), 1);
+    r.names = uniqueNames(r.names);
     if (r.rows === 0) fail("the range has a header row but no data rows below it");
     const k = r.columns.length;
     const anyLost = new Uint8Array(r.rows);

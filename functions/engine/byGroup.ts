@@ -4,12 +4,12 @@
  * The cells are read once; rows are bucketed by key in one pass (first-appearance order), and each
  * bucket goes through the same transforms and estimator as a fit of that segment's rows alone, so a
  * group's numbers equal ELX.ELASTICITIES on its rows. A group that cannot be fitted keeps its reason
- * and the others still come. Rows with a blank key are left out and counted.
+ * and the others still come. Rows with a blank or error key are left out and counted (groupKey).
  */
 import { readYX, asMatrix, keyText, subsetRoles, type Origin, type RawData } from "./intake";
 import { prepare } from "./transforms";
 import { estimatorOf } from "./estimators";
-import { ElxProblem, fail } from "./problems";
+import { ElxProblem, fail, RowList } from "./problems";
 import { modelKey, type Options } from "./options";
 import { BoundedCache, hashCells, type Sized } from "./cache";
 import type { AnyFit } from "./model";
@@ -28,6 +28,15 @@ export interface Groups {
   xNames: string[];
   yName: string;
 }
+
+/**
+ * The key of one cell, the one rule by which keys compare (here and for role columns): see keyText
+ * in intake.ts. A number is its shortest text, so 1 and "1" are one key (1.5 and "1.50" are not);
+ * text is trimmed of spaces at both ends and keeps its case ("North" and "north" are two keys);
+ * TRUE/FALSE are "TRUE"/"FALSE". A blank cell, white space only, and an error cell have no key (null):
+ * their rows are left out and counted.
+ */
+export const groupKey = keyText;
 
 /**
  * Splits the rows by key and fits each group.
@@ -52,7 +61,7 @@ export function fitGroups(keys: unknown, y: unknown, x: unknown, o: Options, yOr
   for (let w = 0; w < raw.rowNumbers.length; w++) usedPos[raw.rowNumbers[w] - raw.firstRow] = w;
   let blankKeys = 0;
   for (let i = 0; i < raw.dataRows; i++) {
-    const key = keyText(km[i + start][0]);
+    const key = groupKey(km[i + start][0]);
     if (key === null) {
       blankKeys++;
       continue;
@@ -65,7 +74,7 @@ export function fitGroups(keys: unknown, y: unknown, x: unknown, o: Options, yOr
     if (used[i]) (members.get(key) as number[]).push(usedPos[i]);
     else leftOut.set(key, (leftOut.get(key) as number) + 1);
   }
-  if (order.length === 0) fail("every key is blank: give keys the product, store or region of each row");
+  if (order.length === 0) fail("every key is blank or an error: give keys the product, store or region of each row");
   const groups = order.map((key): GroupFit => {
     const idx = members.get(key) as number[];
     const pick = (c: Float64Array) => Float64Array.from(idx, (w) => c[w]);
@@ -76,7 +85,9 @@ export function fitGroups(keys: unknown, y: unknown, x: unknown, o: Options, yOr
       rowNumbers: Int32Array.from(idx, (w) => raw.rowNumbers[w]),
       roles: subsetRoles(raw.roles, idx),
       leftOutBlank: leftOut.get(key) as number,
-      leftOutBlankRows: [],
+      leftOutBlankRows: new RowList(),
+      numericTextRows: new RowList(),
+      numericTextExample: null,
     };
     try {
       if (idx.length === 0) fail("no usable row: every row of this group has a blank, text or error cell");

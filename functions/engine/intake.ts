@@ -10,7 +10,7 @@
  *
  * Cost: one pass over the cells. Columns are Float64Array (column-major), compacted in place.
  */
-import { fail, count, rowsPhrase, nearest } from "./problems";
+import { cut, fail, count, quote, rowsPhrase, nearest, RowList } from "./problems";
 
 /** Why a cell cannot be used. 0 = usable. */
 export const enum CellIssue {
@@ -28,24 +28,45 @@ export interface Origin {
 }
 
 export interface RangeRead {
+  /** The header's names as typed (empty cells by their default names), or the default names; not yet unique. */
   names: string[];
   header: boolean;
+  /** Columns whose header cell was empty (0-based): they carry their default name. */
+  unnamed: number[];
   /** One array per column, NaN where the cell is unusable (empty for key columns). */
   columns: Float64Array[];
   /** Key columns only (others null): each cell's key text, null when blank or an error. */
-  keys: (string | null)[][] | null[];
-  /** Per column, how many data rows hold text that is not a number (numeric columns only). */
-  textCells: Int32Array;
+  keys: ((string | null)[] | null)[];
   /** Per data row, the first issue found in that row (CellIssue.None when usable). */
   issues: Uint8Array;
   rows: number;
   /** Sheet row (or range row when the origin is unknown) of the first data row. */
   firstRow: number;
+  /** Per column, the text cells among the data rows and the first one (data row index, its text). */
+  text: TextCells[];
+  /** Per data row, 1 when a cell of it is text that reads as a number ("7,49"); null when none is. */
+  numericText: Uint8Array | null;
+}
+
+/** Text cells of one column. */
+export interface TextCells {
+  count: number;
+  /** Of these, cells whose text reads as a number. */
+  numeric: number;
+  /** Data row index and text of the first text cell, and of the first that reads as a number (-1, "" when none). */
+  first: number;
+  firstText: string;
+  firstNumeric: number;
+  firstNumericText: string;
 }
 
 function isErrorCell(v: object): boolean {
   const code = (v as { code?: unknown }).code;
   return typeof code === "string" && code.startsWith("#");
+}
+
+function isBlankCell(v: unknown): boolean {
+  return v === null || v === undefined || (typeof v === "string" && v.trim() === "");
 }
 
 /** Turns one cell into a number, or NaN with the issue stored in ISSUE[0]. */
@@ -78,12 +99,80 @@ function cellNumber(v: unknown): number {
   return NaN;
 }
 
-function isBlankCell(v: unknown): boolean {
-  return v === null || v === undefined || (typeof v === "string" && v.trim() === "");
-}
-
 function isHeaderCell(v: unknown): boolean {
   return typeof v === "string" && v.trim() !== "";
+}
+
+/**
+ * The header rule: a first row whose non-empty cells are all text, with at least one, is a header row.
+ * An empty cell in it does not make it data; that column gets its default name (x3, y).
+ */
+export function isHeaderRow(row: readonly unknown[]): boolean {
+  let text = false;
+  for (const v of row) {
+    if (isHeaderCell(v)) text = true;
+    else if (!isBlankCell(v)) return false;
+  }
+  return text;
+}
+
+/**
+ * Makes names unique whatever the input: the first of equal names (case-insensitive) keeps it, each
+ * later one gets the smallest " (2)", " (3)", … that no other column has, so "p (2)", "p", "p" become
+ * "p (2)", "p", "p (3)".
+ */
+export function uniqueNames(names: readonly string[]): string[] {
+  const taken = new Set<string>();
+  const out: (string | null)[] = names.map((n) => {
+    const k = n.toLowerCase();
+    if (taken.has(k)) return null;
+    taken.add(k);
+    return n;
+  });
+  return out.map((n, j) => {
+    if (n !== null) return n;
+    let c = 2;
+    while (taken.has(`${names[j]} (${c})`.toLowerCase())) c++;
+    const name = `${names[j]} (${c})`;
+    taken.add(name.toLowerCase());
+    return name;
+  });
+}
+
+/**
+ * The column names of a header row as typed: each cell's text trimmed, an empty cell its default name
+ * (listed in `unnamed`). Not yet unique: see uniqueNames and xColumnNames.
+ */
+export function headerNames(row: readonly unknown[], defaultNames: (j: number) => string): { names: string[]; unnamed: number[] } {
+  const unnamed: number[] = [];
+  const names = row.map((v, j) => {
+    if (isHeaderCell(v)) return String(v).trim();
+    unnamed.push(j);
+    return defaultNames(j);
+  });
+  return { names, unnamed };
+}
+
+/** The default name of column j of x: x1, x2, … */
+export function defaultXName(j: number): string {
+  return `x${j + 1}`;
+}
+
+/**
+ * The names readYX gives the columns of x under this header row and y's name: unique across y and x.
+ * PREDICT matches new_x's header through it, so a new_x with x's header finds x's columns.
+ */
+export function xColumnNames(yName: string, xHeader: readonly unknown[]): string[] {
+  return uniqueNames([yName, ...headerNames(xHeader, defaultXName).names]).slice(1);
+}
+
+/**
+ * Text that reads as a number: "7,49", "1.234,5", "12 500", "€3.20", "15%". Such a cell is still
+ * text (left out, counted) but the messages name it, since it is usually a number imported with the
+ * wrong decimal separator or stored as text.
+ */
+export function looksNumeric(text: string): boolean {
+  return /^[-+]?[$€£¥]?\s?[-+]?(\d{1,3}([ .,'\u00a0\u202f]\d{3})+|\d+)?([.,]\d+)?([eE][-+]?\d+)?\s?[%$€£¥]?$/.test(text.trim()) && /\d/.test(text);
 }
 
 /** Checks that a range argument is a non-empty rectangular 2-D array. */
@@ -140,21 +229,24 @@ export function keyText(v: unknown): string | null {
  * @param originRow sheet row of the range's first row (1 when unknown: rows are then range rows)
  * @param keyColumns columns read as keys: text is a value there, blank and error cells are issues
  */
-export function readRange(cells: unknown[][], defaultNames: (j: number) => string, originRow: number, keyColumns: ReadonlySet<number> = NO_KEYS): RangeRead {
+export function readRange(cells: unknown[][], defaultNames: (j: number) => string, originRow: number, header = isHeaderRow(cells[0]), keyColumns: ReadonlySet<number> = NO_KEYS): RangeRead {
   const width = cells[0].length;
-  const header = cells[0].every(isHeaderCell);
   const start = header ? 1 : 0;
   const rows = cells.length - start;
-  const names: string[] = [];
-  for (let j = 0; j < width; j++) names.push(header ? String(cells[0][j]).trim() : defaultNames(j));
+  let names: string[] = [];
+  let unnamed: number[] = [];
+  if (header) ({ names, unnamed } = headerNames(cells[0], defaultNames));
+  else for (let j = 0; j < width; j++) names.push(defaultNames(j));
   const columns: Float64Array[] = [];
-  const keys: (string | null)[][] | null[] = [];
+  const keys: ((string | null)[] | null)[] = [];
   for (let j = 0; j < width; j++) {
     const isKey = keyColumns.has(j);
     columns.push(new Float64Array(isKey ? 0 : rows));
-    (keys as ((string | null)[] | null)[]).push(isKey ? new Array<string | null>(rows) : null);
+    keys.push(isKey ? new Array<string | null>(rows) : null);
   }
-  const textCells = new Int32Array(width);
+  const text: TextCells[] = [];
+  for (let j = 0; j < width; j++) text.push({ count: 0, numeric: 0, first: -1, firstText: "", firstNumeric: -1, firstNumericText: "" });
+  let numericText: Uint8Array | null = null;
   const issues = new Uint8Array(rows);
   for (let i = 0; i < rows; i++) {
     const row = cells[i + start];
@@ -173,14 +265,28 @@ export function readRange(cells: unknown[][], defaultNames: (j: number) => strin
       else {
         ISSUE[0] = 0;
         x = cellNumber(v);
-        if (ISSUE[0] === CellIssue.Text) textCells[j]++;
         if (issue === 0 && ISSUE[0] !== 0) issue = ISSUE[0];
+        if (ISSUE[0] === CellIssue.Text) {
+          const t = text[j];
+          const shown = typeof v === "string" ? v.trim() : String(v);
+          if (t.count++ === 0) {
+            t.first = i;
+            t.firstText = shown;
+          }
+          if (typeof v === "string" && looksNumeric(v)) {
+            if (t.numeric++ === 0) {
+              t.firstNumeric = i;
+              t.firstNumericText = shown;
+            }
+            (numericText ??= new Uint8Array(rows))[i] = 1;
+          }
+        }
       }
       columns[j][i] = x;
     }
     issues[i] = issue;
   }
-  return { names, header, columns, keys, textCells, issues, rows, firstRow: originRow + start };
+  return { names, header, unnamed, columns, keys, issues, rows, firstRow: originRow + start, text, numericText };
 }
 
 const NO_KEYS: ReadonlySet<number> = new Set();
@@ -230,7 +336,7 @@ export interface RawData {
   roles: RoleColumns;
   /** Rows left out because their weight was zero or negative. */
   leftOutWeight: number;
-  leftOutWeightRows: number[];
+  leftOutWeightRows: RowList;
   /** y then x columns, compacted to the usable rows. */
   y: Float64Array;
   x: Float64Array[];
@@ -238,7 +344,12 @@ export interface RawData {
   rowNumbers: Int32Array;
   /** Rows left out because a cell was blank, text, an error or not finite. */
   leftOutBlank: number;
-  leftOutBlankRows: number[];
+  leftOutBlankRows: RowList;
+  /** Of those, the rows with a cell that is text reading as a number ("7,49"), and the first such cell. */
+  numericTextRows: RowList;
+  numericTextExample: { column: string; row: number; text: string } | null;
+  /** Names given to columns whose header cell was empty ("x3", "y"). */
+  unnamed: string[];
   /** Rows at the bottom blank in every column, trimmed and not counted (whole-column references). */
   trailingBlank: number;
   /** Sheet (or range) row of the first data row, and the number of data rows read (after trimming). */
@@ -246,6 +357,53 @@ export interface RawData {
   dataRows: number;
   /** Whether y had a header row (a keys range beside it then has one too). */
   yHeader: boolean;
+}
+
+/**
+ * What to do with a column of x that holds text. Options that give text columns a role join this
+ * list at the front (for example "name it in factors=").
+ */
+export const TEXT_COLUMN_CHOICES: readonly string[] = [
+  "name it in factors= (indicator terms), absorb= (fixed effects) or cluster=", "leave it out of x", "use ELX.BYGROUP with it as keys",
+];
+
+/** "a, b, or c" (the last choice after ", or"; two choices: "a, or b"). */
+function orList(choices: readonly string[]): string {
+  return choices.length === 1 ? choices[0] : `${choices.slice(0, -1).join(", ")}, or ${choices[choices.length - 1]}`;
+}
+
+/**
+ * The message for a column that is text in most rows: "Region holds text …: leave it out of x, or use
+ * ELX.BYGROUP with it as keys". `where` says in how many rows, with an example.
+ */
+export function textColumnMessage(name: string, where: string, isY: boolean, choices: readonly string[] = TEXT_COLUMN_CHOICES): string {
+  return isY
+    ? `${name} holds text${where}: y must be a column of numbers (check that the y range is the sales or quantity column)`
+    : `${name} holds text${where}: ${orList(choices)}`;
+}
+
+/** The advice for numbers stored as text, with "decimal comma" when the example has one. */
+export function numericTextAdvice(example: string): string {
+  const comma = /\d,\d/.test(example);
+  return comma
+    ? "these look like numbers with a decimal comma, stored as text: convert them to numbers (replace the comma by the decimal separator the sheet uses, or import the file again with the right separator)"
+    : "these look like numbers stored as text: convert them to numbers (for example with the sheet's text-to-number conversion, or by importing the file again)";
+}
+
+/**
+ * Refuses a column that is text in more than half of the data rows: it is not a regressor (a region,
+ * a product name) or its numbers are stored as text, and listwise deletion would drop most rows.
+ */
+function refuseTextColumns(r: RangeRead, rows: number, isY: boolean): void {
+  r.text.forEach((t, j) => {
+    if (2 * t.count <= rows) return;
+    const name = cut(r.names[j]);
+    const of = t.count === rows ? (rows === 1 ? "in its only row" : `in all ${rows} rows`) : `in ${t.count} of ${rows} rows`;
+    if (2 * t.numeric > t.count) {
+      fail(`${name} holds numbers stored as text ${of} (for example ${quote(t.firstNumericText)} in row ${r.firstRow + t.firstNumeric}): ${numericTextAdvice(t.firstNumericText)}`);
+    }
+    fail(textColumnMessage(name, ` ${of} (for example ${quote(t.firstText)} in row ${r.firstRow + t.first})`, isY));
+  });
 }
 
 /** Resolves a role option's column (header name, case-insensitive, or 1-based number) in the x range. */
@@ -322,24 +480,13 @@ export function subsetRoles(r: RoleColumns, kept: ArrayLike<number>): RoleColumn
   };
 }
 
-/** Makes names unique by adding " (2)", " (3)" to repeats. */
-function uniqueNames(names: string[]): string[] {
-  const seen = new Map<string, number>();
-  return names.map((n) => {
-    const k = n.toLowerCase();
-    const c = (seen.get(k) ?? 0) + 1;
-    seen.set(k, c);
-    return c === 1 ? n : `${n} (${c})`;
-  });
-}
-
-const KEEP_ROW_NUMBERS = 200;
-
 /**
  * Reads y and x together: headers, shapes, listwise deletion with counts and row numbers.
  * @param yCells the y range (one column, or one row for data laid out across)
  * @param xCells the x range (one or more columns, same height as y)
  * @param yOrigin, xOrigin where the ranges start on the sheet, when the host said
+ * @param roles the columns of x named in role options: keys (absorb, factors, cluster, panel, time)
+ *   are read as text, weights and instruments as numbers; the rest are the regressors
  */
 export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null, xOrigin: Origin | null, roles: RoleSpec = NO_ROLES): RawData {
   let ym = asMatrix(yCells, "y");
@@ -358,9 +505,17 @@ export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null,
   } else if (ym[0].length !== 1) {
     fail(`y must be one column (it has ${ym[0].length} columns); put the regressors in x`);
   }
+  // Ranges of the same height share the header row: when one starts with a header, a first row of
+  // the other that is blank in every cell is its header too (its columns keep their default names).
+  let yHead = isHeaderRow(ym[0]);
+  let xHead = isHeaderRow(xm[0]);
+  if (ym.length === xm.length && yHead !== xHead) {
+    if (!yHead && ym[0].every(isBlankCell)) yHead = true;
+    if (!xHead && xm[0].every(isBlankCell)) xHead = true;
+  }
   // Which columns of x have a role: keys are read as text, weights and instruments as numbers.
-  const xHeader = xm[0].every(isHeaderCell);
-  const rangeNames = uniqueNames(xm[0].map((v, j) => (xHeader ? String(v).trim() : `x${j + 1}`)));
+  const yFirst = yHead ? headerNames(ym[0], () => "y").names[0] : "y";
+  const rangeNames = xColumnNames(yFirst, xHead ? xm[0] : xm[0].map(() => null));
   const role = new Array<string | null>(rangeNames.length).fill(null);
   const keyCols = new Set<number>();
   const claim = (ref: string, key: string, isKey: boolean): number => {
@@ -370,10 +525,10 @@ export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null,
       const keyRoles = ["absorb", "cluster", "panel", "time"];
       // A key may be absorbed, clustered on, a panel unit and a period at once; nothing else doubles up.
       if (!(keyRoles.includes(had) && keyRoles.includes(key))) {
-        fail(`${rangeNames[j]} is named in both ${had}= and ${key}=; a column can take only one of these roles (factors= makes indicator terms, absorb= fixed effects, weights= and instruments= are numbers)`);
+        fail(`${cut(rangeNames[j])} is named in both ${had}= and ${key}=; a column can take only one of these roles (factors= makes indicator terms, absorb= fixed effects, weights= and instruments= are numbers)`);
       }
     }
-    if (had === null || key === "factors") role[j] = key;
+    if (had === null) role[j] = key;
     if (isKey) keyCols.add(j);
     return j;
   };
@@ -384,27 +539,19 @@ export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null,
   const timeCol = roles.time === null ? -1 : claim(roles.time, "time", true);
   const weightCol = roles.weights === null ? -1 : claim(roles.weights, "weights", false);
   const instrumentCols = roles.instruments.map((r) => claim(r, "instruments", false));
+  const regressorCols: number[] = [];
+  for (let j = 0; j < rangeNames.length; j++) if (role[j] === null) regressorCols.push(j);
+  if (regressorCols.length === 0 && factorCols.length === 0 && absorbCols.length === 0) {
+    fail("every column of x has a role (keys, weights or instruments): x needs at least one regressor");
+  }
 
-  const yr = readRange(ym, () => "y", yRow);
-  const xr = readRange(xm, (j) => `x${j + 1}`, xRow, keyCols);
+  const yr = readRange(ym, () => "y", yRow, yHead);
+  const xr = readRange(xm, defaultXName, xRow, xHead, keyCols);
   if (yr.rows !== xr.rows) {
     fail(`y has ${count(yr.rows, "row")} of data and x has ${xr.rows}${yr.header || xr.header ? " (after the header row)" : ""}; give both ranges the same rows`);
   }
   if (yr.rows === 0) fail("y and x have a header row but no data rows below it");
-  const regressorCols: number[] = [];
-  for (let j = 0; j < rangeNames.length; j++) if (role[j] === null) regressorCols.push(j);
-  if (regressorCols.length === 0 && factorCols.length === 0 && roles.absorb.length === 0) {
-    fail("every column of x has a role (keys, weights or instruments): x needs at least one regressor");
-  }
   let rows = yr.rows;
-  // A regressor column of text is a key column nobody named: say what to do with it.
-  const textual = (j: number) => xr.textCells[j] > 0 && xr.textCells[j] * 2 >= rows;
-  for (const j of [...regressorCols, weightCol, ...instrumentCols]) {
-    if (j < 0 || !textual(j)) continue;
-    const name = rangeNames[j];
-    if (role[j] === "weights" || role[j] === "instruments") fail(`${name} holds text, but ${role[j]}= needs numbers: check the column`);
-    fail(`${name} holds text: name it in factors= (indicator terms), absorb= (fixed effects) or cluster=, or leave it out of x`);
-  }
   // Trim trailing rows that are blank in every column: not observations.
   let trailing = 0;
   const yStart = yr.header ? 1 : 0;
@@ -416,27 +563,40 @@ export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null,
     rows--;
     trailing++;
   }
+  if (rows === 0) fail("y and x are blank in every row: check that the ranges hold the data");
+  // Names unique across y and x (a y header equal to an x header would make two terms alike).
+  const names = uniqueNames([yr.names[0], ...xr.names]);
+  yr.names = [names[0]];
+  xr.names = names.slice(1);
+  refuseTextColumns(yr, rows, true);
+  for (const j of [weightCol, ...instrumentCols]) {
+    if (j >= 0 && 2 * xr.text[j].count > rows) fail(`${cut(xr.names[j])} holds text, but ${role[j]}= needs numbers: check the column, or name it in absorb=, factors= or cluster= if it is a key`);
+  }
+  refuseTextColumns(xr, rows, false);
   const y = yr.columns[0];
   const x = regressorCols.map((j) => xr.columns[j]);
+  const k = x.length;
   const wCol = weightCol >= 0 ? xr.columns[weightCol] : null;
   const zCols = instrumentCols.map((j) => xr.columns[j]);
-  const k = x.length;
   const used = new Int32Array(rows);
-  const rowNumbers = new Int32Array(rows);
-  const blankRows: number[] = [];
-  const weightRows: number[] = [];
-  let leftOut = 0;
+  const weightRows = new RowList();
   let leftOutWeight = 0;
+  const rowNumbers = new Int32Array(rows);
+  const blankRows = new RowList();
+  const numericRows = new RowList();
+  const numericText = yr.numericText || xr.numericText;
+  let leftOut = 0;
   let w = 0;
   for (let i = 0; i < rows; i++) {
     if (yr.issues[i] !== 0 || xr.issues[i] !== 0) {
       leftOut++;
-      if (blankRows.length < KEEP_ROW_NUMBERS) blankRows.push(yr.firstRow + i);
+      blankRows.add(yr.firstRow + i);
+      if (numericText && (yr.numericText?.[i] || xr.numericText?.[i])) numericRows.add(yr.firstRow + i);
       continue;
     }
     if (wCol && !(wCol[i] > 0)) {
       leftOutWeight++;
-      if (weightRows.length < KEEP_ROW_NUMBERS) weightRows.push(yr.firstRow + i);
+      weightRows.add(yr.firstRow + i);
       continue;
     }
     if (w !== i) {
@@ -449,13 +609,28 @@ export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null,
     rowNumbers[w] = yr.firstRow + i;
     w++;
   }
-  if (w === 0) {
-    const all = rows <= 8 ? "" : ` (${rowsPhrase(blankRows, 5)})`;
-    if (leftOutWeight > 0 && leftOut === 0) fail(`every row's weight in ${rangeNames[weightCol]} is zero or negative; weights= needs positive weights`);
-    fail(`no row has a number in y and in every x column: all ${count(rows, "row")} have a blank, text or error cell${all}; check that the ranges hold the data`);
+  if (w === 0 && leftOutWeight > 0 && leftOut === 0) {
+    fail(`every row's weight in ${cut(rangeNames[weightCol])} is zero or negative; weights= needs positive weights`);
   }
+  if (w === 0) {
+    // Name the columns that are unusable most often, so the analyst knows where to look.
+    const cols = [...yr.names, ...xr.names].map((name, j) => {
+      let bad = 0;
+      const kc = j === 0 ? null : xr.keys[j - 1];
+      if (kc) for (let i = 0; i < rows; i++) bad += kc[i] === null ? 1 : 0;
+      else {
+        const c = j === 0 ? yr.columns[0] : xr.columns[j - 1];
+        for (let i = 0; i < rows; i++) if (c[i] !== c[i]) bad++;
+      }
+      return { name, bad };
+    }).filter((c) => c.bad > 0).sort((a, b) => b.bad - a.bad).slice(0, 3);
+    const worst = cols.map((c) => `${c.name} in ${c.bad === rows ? "every row" : count(c.bad, "row")}`).join(", ");
+    fail(`no row has a number in y and in every x column: ${rowsPhrase(blankRows, 5, rows)} ${rows === 1 ? "has" : "have"} a blank, text or error cell (${worst}); check that the ranges hold the data`);
+  }
+  const example = numericRows.count > 0 ? firstNumericText(yr, xr) : null;
+  const unnamed = [...yr.unnamed.map(() => yr.names[0]), ...xr.unnamed.map((j) => xr.names[j])];
   const usedRows = used.subarray(0, w);
-  const keyOf = (j: number) => keyColumn(rangeNames[j], xr.keys[j] as (string | null)[], usedRows);
+  const keyOf = (j: number) => keyColumn(xr.names[j], xr.keys[j] as (string | null)[], usedRows);
   const roleColumns: RoleColumns = {
     absorb: absorbCols.map(keyOf),
     factors: factorCols.map(keyOf),
@@ -463,16 +638,16 @@ export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null,
     panel: panelCol >= 0 ? keyOf(panelCol) : null,
     time: timeCol >= 0 ? keyOf(timeCol) : null,
     weights: wCol ? wCol.subarray(0, w) : null,
-    weightsName: weightCol >= 0 ? rangeNames[weightCol] : null,
+    weightsName: weightCol >= 0 ? xr.names[weightCol] : null,
     instruments: zCols.map((c) => c.subarray(0, w)),
-    instrumentNames: instrumentCols.map((j) => rangeNames[j]),
+    instrumentNames: instrumentCols.map((j) => xr.names[j]),
   };
-  const regressorOf = new Int32Array(rangeNames.length).fill(-1);
+  const regressorOf = new Int32Array(xr.names.length).fill(-1);
   regressorCols.forEach((j, r) => (regressorOf[j] = r));
   return {
     yName: yr.names[0],
-    xNames: regressorCols.map((j) => rangeNames[j]),
-    columnNames: rangeNames,
+    xNames: regressorCols.map((j) => xr.names[j]),
+    columnNames: xr.names,
     regressorOf,
     roles: roleColumns,
     leftOutWeight,
@@ -482,11 +657,27 @@ export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null,
     rowNumbers: rowNumbers.subarray(0, w),
     leftOutBlank: leftOut,
     leftOutBlankRows: blankRows,
+    numericTextRows: numericRows,
+    numericTextExample: example,
+    unnamed,
     trailingBlank: trailing,
     firstRow: yr.firstRow,
     dataRows: rows,
     yHeader: yr.header,
   };
+}
+
+/** The first cell (in sheet order) holding text that reads as a number, in y or x. */
+function firstNumericText(yr: RangeRead, xr: RangeRead): { column: string; row: number; text: string } | null {
+  let best: { column: string; row: number; text: string } | null = null;
+  for (const r of [yr, xr]) {
+    r.text.forEach((t, j) => {
+      if (t.numeric > 0 && (best === null || r.firstRow + t.firstNumeric < best.row)) {
+        best = { column: r.names[j], row: r.firstRow + t.firstNumeric, text: t.firstNumericText };
+      }
+    });
+  }
+  return best;
 }
 
 /** Parses the start of an address such as "Sheet1!$B$3:$D$40", "'My sheet'!B3" or "A:A" into its origin. */

@@ -1,11 +1,12 @@
 /**
- * Options text: "key=value; key=value", keys and values case-insensitive, spaces ignored.
+ * Options text: "key=value; key=value", keys and values case-insensitive, spaces ignored (except
+ * inside the column names of levels=, which are matched as headers are: see resolveColumn).
  *
  * One parser for every function, so a formula can change from ELX.FIT to ELX.SUMMARY by its name
  * alone. Unknown keys and values are a #VALUE! problem naming the nearest valid one. Options that a
  * function does not use are accepted and ignored (they matter to its neighbours).
  */
-import { fail, nearest } from "./problems";
+import { cut, fail, nearest, quote } from "./problems";
 
 export type Form = "log-log" | "log-level" | "level-log" | "level-level";
 export type Estimator = "ols" | "ppml";
@@ -138,12 +139,12 @@ function choose(key: string, raw: string): string {
   const hit = list.find((c) => c.toLowerCase() === raw.toLowerCase());
   if (hit !== undefined) return hit;
   const hint = nearest(raw, list);
-  return fail(`${key}=${raw} is not a valid choice; did you mean ${key}=${hint}? (valid: ${list.join(", ")})`);
+  return fail(`${key}=${cut(raw)} is not a valid choice; did you mean ${key}=${hint}? (valid: ${list.join(", ")})`);
 }
 
 function number(key: string, raw: string): number {
   // Number("") is 0 and Number("0x10") is 16: accept plain decimal notation only.
-  if (!/^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i.test(raw)) fail(`${key}=${raw} is not a number; write it like ${key}=${key === "lags" ? "4" : key === "level" ? "0.95" : "1"}`);
+  if (!/^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i.test(raw)) fail(`${key}=${cut(raw)} is not a number; write it like ${key}=${key === "lags" ? "4" : key === "level" ? "0.95" : "1"}`);
   return Number(raw);
 }
 
@@ -161,14 +162,22 @@ export function parseOptions(text: unknown): Options {
   }
   const seen = new Set<string>();
   for (const part of text.split(";")) {
-    const item = part.replace(/\s+/g, "");
+    const item = part.trim();
     if (item === "") continue;
+    const eqs = item.split("=").length - 1;
+    if (eqs > 1) {
+      // Two options in one part: typed with a comma or a space between them instead of ";".
+      const fixed = item.replace(/\s*[,\s]\s*(?=[A-Za-z]+\s*=)/g, "; ");
+      fail(`${quote(item)} holds ${eqs} options: separate options with ";", not "," or a space (write ${quote(fixed, 80)})`);
+    }
     const eq = item.indexOf("=");
-    if (eq <= 0) fail(`"${part.trim()}" in the options is not of the form key=value (for example se=HC3)`);
-    const rawKey = item.slice(0, eq).toLowerCase();
-    const value = item.slice(eq + 1);
+    if (eq <= 0) fail(`${quote(item)} in the options is not of the form key=value (for example se=HC3)`);
+    const rawKey = item.slice(0, eq).replace(/\s+/g, "").toLowerCase();
+    // Spaces inside a value are ignored, except in levels=, whose column names may hold them.
+    const rawValue = item.slice(eq + 1).trim();
+    const value = rawKey === "levels" ? rawValue : rawValue.replace(/\s+/g, "");
     const key = (OPTION_KEYS as readonly string[]).includes(rawKey) ? rawKey : "";
-    if (key === "") fail(`unknown option "${rawKey}"; did you mean ${nearest(rawKey, OPTION_KEYS)}? (options: ${OPTION_KEYS.join(", ")})`);
+    if (key === "") fail(`unknown option ${quote(rawKey)}; did you mean ${nearest(rawKey, OPTION_KEYS)}? (options: ${OPTION_KEYS.join(", ")})`);
     if (value === "") fail(`option ${key} has no value; write ${key}=${key in CHOICES ? CHOICES[key][0] : "…"}`);
     if (seen.has(key)) fail(`option ${key} is given twice; keep one`);
     seen.add(key);
@@ -182,16 +191,16 @@ export function parseOptions(text: unknown): Options {
       case "interval": o.interval = choose(key, value) as IntervalKind; break;
       case "intercept": o.intercept = choose(key, value) === "true"; break;
       case "headers": o.headers = choose(key, value) === "true"; break;
-      case "levels": o.levels = value.split(",").filter((s) => s !== ""); break;
+      case "levels": o.levels = value.split(",").map((s) => s.trim()).filter((s) => s !== ""); break;
       case "lags": {
         const v = number(key, value);
-        if (!Number.isInteger(v) || v < 0) fail(`lags=${value} must be a whole number 0 or more (for example lags=4)`);
+        if (!Number.isInteger(v) || v < 0) fail(`lags=${cut(value)} must be a whole number 0 or more (for example lags=4)`);
         o.lags = v;
         break;
       }
       case "level": {
         const v = number(key, value);
-        if (!(v >= 0.5 && v <= 0.999)) fail(`level=${value} must lie between 0.5 and 0.999 (for example level=0.95; write 0.9, not 90)`);
+        if (!(v >= 0.5 && v <= 0.999)) fail(`level=${cut(value)} must lie between 0.5 and 0.999 (for example level=0.95; write 0.9, not 90)`);
         o.level = v;
         break;
       }
@@ -212,7 +221,7 @@ export function parseOptions(text: unknown): Options {
       }
       case "shift": {
         const v = number(key, value);
-        if (!(v > 0) || !Number.isFinite(v)) fail(`shift=${value} must be a number above 0 (for example shift=1)`);
+        if (!(v > 0) || !Number.isFinite(v)) fail(`shift=${cut(value)} must be a number above 0 (for example shift=1)`);
         o.shift = v;
         break;
       }

@@ -20,7 +20,7 @@
  */
 import { leastSquares, type QrFit } from "./leastSquares";
 import { normalQuantile, normalTwoSided } from "./distributions";
-import { fail, unavailable, rowsPhrase } from "./problems";
+import { fail, unavailable, rowsPhrase, RowList } from "./problems";
 import { Model } from "./fit";
 import { LOG, type Dataset, type Transform } from "./transforms";
 import type { CovarianceInput } from "./covariance";
@@ -184,22 +184,22 @@ export class PpmlFit extends Model {
       const tol = 1e-9 * Math.max(scale, 1e-300);
       let pos = false;
       let neg = false;
-      const where: number[] = [];
+      const where = new RowList();
       for (let i = 0; i < n; i++) {
         if (y[i] > 0) continue;
         if (zAll[i] > tol) pos = true;
         else if (zAll[i] < -tol) neg = true;
-        if (Math.abs(zAll[i]) > tol && where.length < 50) where.push(this.data.rowNumbers[i]);
+        if (Math.abs(zAll[i]) > tol) where.add(this.data.rowNumbers[i]);
       }
       const name = this.terms[target.j].name;
-      if (!(pos && neg) && where.length > 0) {
+      if (!(pos && neg) && where.count > 0) {
         const on = basis.map((e) => this.terms[e.j].name);
         const what = on.length === 0
           ? `${name} is zero in every row where ${this.data.yName} is above zero`
           : `${name} is a fixed combination of ${on.join(", ")} in every row where ${this.data.yName} is above zero`;
         fail(`the PPML estimates do not exist (Santos Silva and Tenreyro 2010): ${what}, and departs from it only in zero rows (${rowsPhrase(where, 5)}); remove ${name} from x, or leave out those rows`);
       }
-      if (where.length === 0) return; // exactly collinear in all rows: the rank check of the fit names it
+      if (where.count === 0) return; // exactly collinear in all rows: the rank check of the fit names it
       cols = cols.filter((_, i) => i !== d.column);
     }
   }

@@ -32,10 +32,89 @@ export function unavailable(message: string): never {
   throw new ElxProblem(message, "na");
 }
 
-/** Lists at most `max` row numbers, then "and N more". */
-export function listRows(rows: readonly number[], max = 8): string {
-  if (rows.length <= max) return rows.join(", ");
-  return `${rows.slice(0, max).join(", ")} and ${rows.length - max} more`;
+/** How many runs of consecutive rows a RowList keeps; its count stays exact beyond them. */
+const KEEP_RUNS = 1000;
+
+/**
+ * Sheet rows in ascending order, kept as runs of consecutive rows (2–469 is one run), with an exact
+ * count. At most KEEP_RUNS runs are stored, so a list over a million scattered rows stays small; the
+ * count and the phrase ("and 450 more rows") stay exact.
+ */
+export class RowList {
+  private readonly starts: number[] = [];
+  private readonly ends: number[] = [];
+  private total = 0;
+
+  /** Adds a row; rows must come in ascending order. */
+  add(row: number): void {
+    const n = this.ends.length;
+    if (n > 0 && this.ends[n - 1] === row - 1) this.ends[n - 1] = row;
+    else if (n < KEEP_RUNS) {
+      this.starts.push(row);
+      this.ends.push(row);
+    }
+    this.total++;
+  }
+
+  /** How many rows were added (exact). */
+  get count(): number {
+    return this.total;
+  }
+
+  /** The first row, or null when empty. */
+  get first(): number | null {
+    return this.starts.length > 0 ? this.starts[0] : null;
+  }
+
+  /** The first `max` rows (fewer when the list is shorter), in order. */
+  firstRows(max: number): number[] {
+    const out: number[] = [];
+    for (let r = 0; r < this.starts.length && out.length < max; r++) {
+      for (let v = this.starts[r]; v <= this.ends[r] && out.length < max; v++) out.push(v);
+    }
+    return out;
+  }
+
+  /** A list of rows given in any order (duplicates counted once). */
+  static of(rows: readonly number[]): RowList {
+    const l = new RowList();
+    const sorted = Float64Array.from(rows).sort();
+    for (let i = 0; i < sorted.length; i++) if (i === 0 || sorted[i] !== sorted[i - 1]) l.add(sorted[i]);
+    return l;
+  }
+
+  /**
+   * The rows as words: "row 6", "rows 3, 4 and 9", "rows 2–5, 9 and 12–20", "rows 2–5, 9, 12–20 and
+   * 450 more rows" (at most `max` runs shown, the rest counted exactly), or, when `outOf` (the number
+   * of rows there are) equals the count, "all 468 rows" with their range when they are consecutive.
+   */
+  phrase(max = 8, outOf?: number): string {
+    const n = this.total;
+    if (n === 0) return "no row";
+    if (outOf !== undefined && n === outOf && n > 1) {
+      return this.starts.length === 1 ? `all ${n} rows (${this.starts[0]}–${this.ends[0]})` : `all ${n} rows`;
+    }
+    const parts: string[] = [];
+    let shown = 0;
+    for (let r = 0; r < this.starts.length && parts.length < max; r++) {
+      const a = this.starts[r];
+      const b = this.ends[r];
+      if (b === a) parts.push(String(a));
+      else if (b === a + 1) parts.push(`${a}, ${b}`);
+      else parts.push(`${a}–${b}`);
+      shown += b - a + 1;
+    }
+    const rest = n - shown;
+    const list = rest > 0
+      ? `${parts.join(", ")} and ${count(rest, "more row")}`
+      : parts.length === 1 ? parts[0] : `${parts.slice(0, -1).join(", ")} and ${parts[parts.length - 1]}`;
+    return `${n === 1 ? "row" : "rows"} ${list}`;
+  }
+}
+
+/** Lists the rows as words (see RowList.phrase), without the leading "row"/"rows". */
+export function listRows(rows: readonly number[] | RowList, max = 8): string {
+  return rowsPhrase(rows, max).replace(/^rows? /, "");
 }
 
 /** Levenshtein distance, for "did you mean" suggestions. */
@@ -60,7 +139,8 @@ export function editDistance(a: string, b: string): number {
 export function nearest(word: string, candidates: readonly string[]): string | undefined {
   let best: string | undefined;
   let bestD = Infinity;
-  const w = word.toLowerCase();
+  // A suggestion is for a slip of a few letters: a long input is compared by its start only.
+  const w = word.slice(0, 100).toLowerCase();
   for (const c of candidates) {
     const d = editDistance(w, c.toLowerCase());
     if (d < bestD) {
@@ -71,9 +151,20 @@ export function nearest(word: string, candidates: readonly string[]): string | u
   return best;
 }
 
-/** "row 6" or "rows 6, 7 and 3 more". */
-export function rowsPhrase(rows: readonly number[], max = 8): string {
-  return `${rows.length === 1 ? "row" : "rows"} ${listRows(rows, max)}`;
+/** "row 6", "rows 6, 7 and 12–20", "rows 2–9, 14 and 3 more rows", "all 468 rows (2–469)": see RowList.phrase. */
+export function rowsPhrase(rows: readonly number[] | RowList, max = 8, outOf?: number): string {
+  return (rows instanceof RowList ? rows : RowList.of(rows)).phrase(max, outOf);
+}
+
+/** Quotes text typed by the analyst for a message, cut to `max` characters with "…". */
+export function quote(text: string, max = 60): string {
+  const t = text.length > max ? `${text.slice(0, max - 1)}…` : text;
+  return `"${t}"`;
+}
+
+/** Text typed by the analyst, cut to `max` characters with "…" (no quotes). */
+export function cut(text: string, max = 60): string {
+  return text.length > max ? `${text.slice(0, max - 1)}…` : text;
 }
 
 /** Plural helper: "1 row", "3 rows". */

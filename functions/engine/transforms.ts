@@ -11,7 +11,7 @@
  * Sources: Bellemare and Wichman (2020), "Elasticities and the inverse hyperbolic sine
  * transformation", Oxford Bulletin of Economics and Statistics 82(1), for asinh.
  */
-import { fail, count, rowsPhrase, nearest } from "./problems";
+import { cut, fail, count, quote, rowsPhrase, nearest, RowList } from "./problems";
 import type { Options } from "./options";
 import { subsetRoles, type RawData, type RoleColumns } from "./intake";
 import { estimatorOf } from "./estimators";
@@ -103,15 +103,23 @@ export interface Dataset {
   n: number;
   rowNumbers: Int32Array;
   leftOutBlank: number;
-  leftOutBlankRows: number[];
-  /** Rows left out under zeros=drop because a logged column was ≤ 0. */
+  leftOutBlankRows: RowList;
+  /** Of the rows left out, those with text that reads as a number ("7,49"), and the first such cell. */
+  numericTextRows: RowList;
+  numericTextExample: RawData["numericTextExample"];
+  /** Names given to columns whose header cell was empty. */
+  unnamed: string[];
+  /** Rows left out under zeros=drop because a logged column was ≤ 0 (all of them). */
   leftOutNonPositive: number;
-  leftOutNonPositiveRows: number[];
+  leftOutNonPositiveRows: RowList;
+  /** Of those, the rows with a negative value in a logged column (the rest had a zero or blank). */
+  leftOutNegative: number;
   /** Means in original units, of the rows used. */
   yMean: number;
   xMeans: number[];
-  /** How many values ≤ 0 the y column had among the rows read (before any drop). */
+  /** How many values ≤ 0 the y column had among the rows read (before any drop), and of them how many < 0. */
   yNonPositive: number;
+  yNegative: number;
   /** Zeros in y among the rows used (zeros=shift/ihs keep them; PPML keeps them). */
   yZerosUsed: number;
   /** The role columns over the rows used; instruments transformed as the x side. */
@@ -122,9 +130,29 @@ export interface Dataset {
   regressorOf: Int32Array;
   /** Rows left out because their weight was zero or negative. */
   leftOutWeight: number;
-  leftOutWeightRows: number[];
+  leftOutWeightRows: RowList;
   /** For each column of x, the factor column whose indicator it is (null for regressors). */
   factorOf: (string | null)[];
+}
+
+
+/** A name as compared: ends trimmed, inner runs of white space as one space, any case. */
+function nameKey(s: string): string {
+  return s.trim().replace(/\s+/g, " ").toLowerCase();
+}
+
+/**
+ * The column of `names` that `typed` names: equal after trimming and ignoring case and repeated
+ * spaces ("Promo week" finds "Promo  Week"), else the one column equal with every space removed
+ * ("Promoweek"), else -1.
+ */
+export function matchName(typed: string, names: readonly string[]): number {
+  const t = nameKey(typed);
+  const i = names.findIndex((n) => nameKey(n) === t);
+  if (i >= 0) return i;
+  const squash = (s: string) => s.replace(/\s+/g, "").toLowerCase();
+  const hits = names.map((n, j) => (squash(n) === squash(typed) ? j : -1)).filter((j) => j >= 0);
+  return hits.length === 1 ? hits[0] : -1;
 }
 
 /**
@@ -155,44 +183,60 @@ export function resolveTerm(term: unknown, data: Pick<Dataset, "xNames" | "colum
 export function resolveColumn(term: unknown, names: readonly string[], what = "term"): number {
   if (typeof term === "number") {
     if (Number.isInteger(term) && term >= 1 && term <= names.length) return term - 1;
-    return fail(`${what} ${term} is not a column of x: give a number from 1 to ${names.length} or a header name (${names.join(", ")})`);
+    return fail(`${what} ${term} is not a column of x: give a number from 1 to ${names.length} or a header name (${names.map((n) => cut(n)).join(", ")})`);
   }
   if (typeof term === "string" && term.trim() !== "") {
     const t = term.trim();
-    const i = names.findIndex((n) => n.toLowerCase() === t.toLowerCase());
+    const i = matchName(t, names);
     if (i >= 0) return i;
     if (/^\d+$/.test(t)) return resolveColumn(Number(t), names, what);
-    return fail(`${what} "${t}" is not a column of x; did you mean ${nearest(t, names)}? (columns: ${names.join(", ")})`);
+    return fail(`${what} ${quote(t)} is not a column of x; did you mean ${cut(nearest(t, names) ?? "")}? (columns: ${names.map((n) => cut(n)).join(", ")})`);
   }
-  return fail(`give the ${what} as a header name or a column number of x (${names.join(", ")})`);
+  return fail(`give the ${what} as a header name or a column number of x (${names.map((n) => cut(n)).join(", ")})`);
 }
 
 interface NonPositive {
   zeros: number;
   negatives: number;
-  rows: number[];
+  zeroRows: RowList;
+  negativeRows: RowList;
 }
 
 function nonPositive(col: Float64Array, rowNumbers: Int32Array): NonPositive {
-  let zeros = 0;
-  let negatives = 0;
-  const rows: number[] = [];
+  const np: NonPositive = { zeros: 0, negatives: 0, zeroRows: new RowList(), negativeRows: new RowList() };
   for (let i = 0; i < col.length; i++) {
     const v = col[i];
-    if (v <= 0) {
-      if (v === 0) zeros++;
-      else negatives++;
-      if (rows.length < 200) rows.push(rowNumbers[i]);
+    if (v === 0) {
+      np.zeros++;
+      np.zeroRows.add(rowNumbers[i]);
+    } else if (v < 0) {
+      np.negatives++;
+      np.negativeRows.add(rowNumbers[i]);
     }
   }
-  return { zeros, negatives, rows };
+  return np;
 }
 
+/** "Price has 2 values that are zero or blank (rows 3, 4) and 1 negative value (row 7)". */
 function describeNonPositive(name: string, np: NonPositive): string {
   const parts: string[] = [];
-  if (np.zeros > 0) parts.push(`${np.zeros} ${np.zeros === 1 ? "value that is zero or blank" : "values that are zero or blank"}`);
-  if (np.negatives > 0) parts.push(`${count(np.negatives, "negative value")}`);
-  return `${name} has ${parts.join(" and ")} (${rowsPhrase(np.rows)})`;
+  if (np.zeros > 0) parts.push(`${np.zeros === 1 ? "1 value that is zero or blank" : `${np.zeros} values that are zero or blank`} (${rowsPhrase(np.zeroRows)})`);
+  if (np.negatives > 0) parts.push(`${count(np.negatives, "negative value")} (${rowsPhrase(np.negativeRows)})`);
+  return `${name} has ${parts.join(" and ")}`;
+}
+
+/**
+ * The advice for negative values under a log: a data error to check, not a case for zeros=shift.
+ * @param yName y's name when y is among them (null otherwise)
+ * @param also a choice to offer beside levels and zeros=drop when the values are real
+ */
+function negativeAdvice(names: string[], yName: string | null, o: Options, also = ""): string {
+  const real: string[] = [];
+  const xs = names.filter((n) => n !== yName);
+  if (yName !== null) real.push(`model ${yName} in levels (form=level-${o.form.endsWith("-log") ? "log" : "level"})`);
+  if (xs.length > 0) real.push(`keep ${xs.join(" and ")} in levels (levels=${xs.join(",")})`);
+  if (also !== "") real.push(also);
+  return `a negative ${names.join(" or ")} is usually a data error (a price, quantity or income below zero): check and correct those rows (zeros=shift is meant for zeros, not for them); if the negative values are real, ${real.join(", ")} or leave those rows out with zeros=drop (counted)`;
 }
 
 /**
@@ -217,24 +261,31 @@ export function prepare(raw: RawData, o: Options): Dataset {
     const z = raw.roles.instrumentNames.indexOf(raw.columnNames[c]);
     if (r >= 0) keepLevel[r] = true;
     else if (z >= 0) keepLevel[kx + z] = true;
-    else fail(`levels=${t}: ${raw.columnNames[c]} is a key or weights column, which is never logged; name a regressor or an instrument`);
+    else fail(`levels=${cut(String(t))}: ${cut(raw.columnNames[c])} is a key or weights column, which is never logged; name a regressor or an instrument`);
   }
   const logged = allX.map((_, j) => logX && !binary[j] && !keepLevel[j]);
 
-  // Counts of values ≤ 0 in each column that a log would take.
+  // Counts of values ≤ 0 in each column that a log would take, zeros and negatives apart.
   const yNp = nonPositive(raw.y, raw.rowNumbers);
   if (!info.negativeY && yNp.negatives > 0) {
-    const rows: number[] = [];
-    raw.y.forEach((v, i) => {
-      if (v < 0 && rows.length < 200) rows.push(raw.rowNumbers[i]);
-    });
-    fail(`${raw.yName} has ${count(yNp.negatives, "negative value")} (${rowsPhrase(rows)}); ${info.title} models a mean that cannot be negative: check the data`);
+    fail(`${raw.yName} has ${count(yNp.negatives, "negative value")} (${rowsPhrase(yNp.negativeRows)}); ${info.title} models a mean that cannot be negative, and a negative quantity is usually a data error: check and correct those rows`);
   }
   const npx = allX.map((c, j) => (logged[j] ? nonPositive(c, raw.rowNumbers) : null));
+  const hit = (np: NonPositive | null) => np !== null && np.zeros + np.negatives > 0;
   const offenders: string[] = [];
-  if (logY && yNp.rows.length > 0) offenders.push(describeNonPositive(raw.yName, yNp));
+  const zeroNames: string[] = [];
+  const negativeNames: string[] = [];
+  const yHit = logY && hit(yNp);
+  if (yHit) {
+    offenders.push(describeNonPositive(raw.yName, yNp));
+    if (yNp.zeros > 0) zeroNames.push(raw.yName);
+    if (yNp.negatives > 0) negativeNames.push(raw.yName);
+  }
   npx.forEach((np, j) => {
-    if (np && np.rows.length > 0) offenders.push(describeNonPositive(allNames[j], np));
+    if (np === null || !hit(np)) return;
+    offenders.push(describeNonPositive(allNames[j], np));
+    if (np.zeros > 0) zeroNames.push(allNames[j]);
+    if (np.negatives > 0) negativeNames.push(allNames[j]);
   });
 
   let y = raw.y;
@@ -242,17 +293,23 @@ export function prepare(raw: RawData, o: Options): Dataset {
   let rowNumbers = raw.rowNumbers;
   let roles = raw.roles;
   let dropped = 0;
-  const droppedRows: number[] = [];
+  let droppedNegative = 0;
+  const droppedRows = new RowList();
   const yT: Transform = logY ? LOG : LEVEL;
   const xT: Transform[] = logged.map((l) => (l ? LOG : LEVEL));
   let yTransform = yT;
 
   if (offenders.length > 0) {
     if (o.zeros === "stop") {
-      const yHit = logY && yNp.rows.length > 0;
-      const fixes = ["zeros=drop", "zeros=shift", "zeros=ihs"];
-      if (yHit) fixes.push("estimator=ppml");
-      fail(`${offenders.join("; ")}; a log cannot take them: use ${fixes.slice(0, -1).join(", ")} or ${fixes[fixes.length - 1]}${yHit ? "" : ", or keep the column in levels with levels="}`);
+      const advice: string[] = [];
+      if (zeroNames.length > 0) {
+        const fixes = ["zeros=drop", "zeros=shift", "zeros=ihs"];
+        const yZero = zeroNames.includes(raw.yName) && yHit;
+        if (yZero) fixes.push("estimator=ppml");
+        advice.push(`a log cannot take zero: use ${fixes.slice(0, -1).join(", ")} or ${fixes[fixes.length - 1]}${yZero ? "" : ", or keep the column in levels with levels="}`);
+      }
+      if (negativeNames.length > 0) advice.push(negativeAdvice(negativeNames, yHit && yNp.negatives > 0 ? raw.yName : null, o));
+      fail(`${offenders.join("; ")}; ${advice.join("; ")}`);
     }
     if (o.zeros === "drop") {
       const n0 = y.length;
@@ -260,10 +317,17 @@ export function prepare(raw: RawData, o: Options): Dataset {
       let w = 0;
       for (let i = 0; i < n0; i++) {
         let bad = logY && y[i] <= 0;
-        for (let j = 0; j < k && !bad; j++) if (logged[j] && x[j][i] <= 0) bad = true;
+        let negative = logY && y[i] < 0;
+        for (let j = 0; j < k; j++) {
+          if (logged[j] && x[j][i] <= 0) {
+            bad = true;
+            if (x[j][i] < 0) negative = true;
+          }
+        }
         if (bad) {
           dropped++;
-          if (droppedRows.length < 200) droppedRows.push(rowNumbers[i]);
+          if (negative) droppedNegative++;
+          droppedRows.add(rowNumbers[i]);
           continue;
         }
         if (w !== i) {
@@ -281,17 +345,19 @@ export function prepare(raw: RawData, o: Options): Dataset {
       roles = { ...subsetRoles({ ...roles, instruments: [] }, kept.subarray(0, w)), instruments: x.slice(kx), instrumentNames: roles.instrumentNames };
     } else {
       // shift or ihs: only in the logged columns that contain a value ≤ 0.
-      const replace = (name: string, col: Float64Array): Transform => {
+      const replace = (name: string, col: Float64Array, np: NonPositive, isY: boolean): Transform => {
         if (o.zeros === "ihs") return { kind: "asinh" };
         const c = o.shift;
-        for (let i = 0; i < col.length; i++) {
-          if (col[i] + c <= 0) fail(`${name} has values at or below −${c} (row ${rowNumbers[i]}), so log(v + ${c}) cannot take them: use a larger shift= or zeros=ihs`);
+        const below = new RowList();
+        for (let i = 0; i < col.length; i++) if (col[i] + c <= 0) below.add(rowNumbers[i]);
+        if (below.count > 0) {
+          fail(`${name} has ${count(np.negatives, "negative value")} (${rowsPhrase(np.negativeRows)}), ${below.count === np.negatives ? `${np.negatives === 1 ? "" : "all "}at or below −${c}` : `${below.count} of them at or below −${c} (${rowsPhrase(below)})`}, which log(v + ${c}) cannot take; ${negativeAdvice([name], isY ? name : null, o, "use zeros=ihs")}`);
         }
         return { kind: "shift", c };
       };
-      if (logY && yNp.rows.length > 0) yTransform = replace(raw.yName, y);
+      if (yHit) yTransform = replace(raw.yName, y, yNp, true);
       npx.forEach((np, j) => {
-        if (np && np.rows.length > 0) xT[j] = replace(allNames[j], x[j]);
+        if (np !== null && hit(np)) xT[j] = replace(allNames[j], x[j], np, false);
       });
     }
   }
@@ -318,10 +384,10 @@ export function prepare(raw: RawData, o: Options): Dataset {
       xNames.push(ind.name);
       xTransforms.push(LEVEL);
       xBinary.push(true);
+      xMeans.push(mean(ind.column));
       factorOf.push(f.name);
     }
   }
-  for (let j = kx; j < regressors.length; j++) xMeans.push(mean(regressors[j]));
   return {
     yName: raw.yName,
     xNames,
@@ -334,11 +400,16 @@ export function prepare(raw: RawData, o: Options): Dataset {
     rowNumbers,
     leftOutBlank: raw.leftOutBlank,
     leftOutBlankRows: raw.leftOutBlankRows,
+    numericTextRows: raw.numericTextRows,
+    numericTextExample: raw.numericTextExample,
+    unnamed: raw.unnamed,
     leftOutNonPositive: dropped,
     leftOutNonPositiveRows: droppedRows,
+    leftOutNegative: droppedNegative,
     yMean,
     xMeans,
     yNonPositive: yNp.zeros + yNp.negatives,
+    yNegative: yNp.negatives,
     yZerosUsed,
     roles: { ...roles, instruments: x.slice(kx) },
     instrumentTransforms: xT.slice(kx),

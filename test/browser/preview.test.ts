@@ -195,7 +195,7 @@ describe("the preview workbook", () => {
     const fit = engine("FIT", Y, X, "zeros=drop; se=HC1; level=0.9", INVOCATION) as unknown[][];
     expect(fit[0][3]).toBe("Std. error (HC1)");
     expect(await cell("L2")).toBe("Std. error (HC1)");
-    expect(await cell("O2")).toBe("Lower 90%");
+    expect(await cell("O2")).toBe("Low (90%)");
     sameTable(await block(2, 9, fit.length, fit[0].length), fit, "edited FIT at I2");
     expect(await cell("L4")).not.toBe(before);
     expect(await page.locator('td[data-a="L2"]').textContent()).toBe("Std. error (HC1)");
@@ -245,7 +245,7 @@ describe("the pane on the demo data", () => {
       expect(cells[3].startsWith(String(Number(((ppml as unknown[][])[1][2] as number).toPrecision(3))).replace("-", "−"))).toBe(true);
     }
     // With zeros=stop the fits stop, and the pictures say why in a sentence.
-    expect(await page.locator("#elx-elasticity-error").textContent()).toContain("a log cannot take them");
+    expect(await page.locator("#elx-elasticity-error").textContent()).toContain("a log cannot take zero");
   });
 
   it("draws the pictures with the tests' p-values once a zero choice is made", async () => {

@@ -94,7 +94,8 @@ describe("hand-checked log-log fit with one regressor (six rows, powers of 2)", 
     const t = rowsOf(call(reg, "SUMMARY", y, x, null));
     expect(summaryValue(t, "Observations used")).toBe(6);
     expect(summaryValue(t, "Rows left out: blank or non-numeric")).toBe(0);
-    expect(summaryValue(t, "Rows left out: zero or negative under a log")).toBe(0);
+    expect(summaryValue(t, "Rows left out: zero or blank under a log")).toBe(0);
+    expect(summaryValue(t, "Rows left out: negative under a log")).toBe(0);
     close(summaryValue(t, "Residual std. error"), L, "residual std. error s");
     close(summaryValue(t, "R²"), 35 / 43, "R²");
     close(summaryValue(t, "Adjusted R²"), 33 / 43, "adjusted R²");

@@ -40,7 +40,7 @@ describe("shapes", () => {
     expect(plain.length).toBe(2);
     expect(plain[0].length).toBe(1);
     const named = call(reg, "PREDICT", Y, X, [["Promo", "Price", "Footfall"], [0, 2, 100], [1, 1.8, 104]], "interval=mean") as unknown[][];
-    expect(named[0]).toEqual(["Predicted Units", "Lower 95%", "Upper 95%"]);
+    expect(named[0]).toEqual(["Predicted Units", "Low (95%)", "High (95%)"]);
     expect(named[1][0]).toBeCloseTo(plain[0][0] as number, 12);
     expect((named[1][1] as number) < (named[1][0] as number) && (named[1][0] as number) < (named[1][2] as number)).toBe(true);
   });

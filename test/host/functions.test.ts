@@ -40,7 +40,7 @@ describe("shapes and values", () => {
   it("FIT spills a header row and one row per term, intercept first", () => {
     const t = call(reg, "FIT", Y, X, null) as unknown[][];
     expect(t.length).toBe(5);
-    expect(t[0]).toEqual(["Term", "Transform", "Coefficient", "Std. error (HC3)", "t", "p-value", "Lower 95%", "Upper 95%"]);
+    expect(t[0]).toEqual(["Term", "Transform", "Coefficient", "Std. error (HC3)", "t", "p-value", "Low (95%)", "High (95%)"]);
     expect(t.map((r) => r[0])).toEqual(["Term", "(Intercept)", "Price", "Footfall", "Promo"]);
     expect(t.map((r) => r[1])).toEqual(["Transform", "constant", "log", "log", "level"]);
     expect(t.every((r) => r.length === 8)).toBe(true);
@@ -54,7 +54,7 @@ describe("shapes and values", () => {
     expect(t.length).toBe(4);
     expect(t[0][0]).toBe("(Intercept)");
     const h = call(reg, "FIT", Y, X, "level=0.9") as unknown[][];
-    expect(h[0][6]).toBe("Lower 90%");
+    expect(h[0][6]).toBe("Low (90%)");
   });
 
   it("ELASTICITY returns one number equal to the log-log coefficient, by name or by column number", () => {
@@ -174,7 +174,7 @@ describe("bad input: an error value with a message that says what to do", () => 
     ["a constant column", () => call(reg, "FIT", Y, rows([price, foot.map(() => 100)], ["Price", "Footfall"]), null), /Footfall has the same value in every row/],
     ["exactly collinear columns", () => call(reg, "FIT", Y, rows([price, foot, price.map((p, i) => p * p * foot[i] ** 3)], ["Price", "Footfall", "Mix"]), null), /Mix is an exact linear combination of (the intercept, )?Price and Footfall|Mix is an exact linear combination of .*Price.*Footfall/],
     ["an all-blank range", () => call(reg, "FIT", units.map(() => [null]), X.slice(1), null), /no row has a number in y and in every x column/],
-    ["zeros in y under zeros=stop", () => call(reg, "FIT", rows([[0, ...units.slice(1)]], ["Units"]), X, null), /Units has 1 value that is zero or blank \(row 2\); a log cannot take them: use zeros=drop, zeros=shift, zeros=ihs or estimator=ppml/],
+    ["zeros in y under zeros=stop", () => call(reg, "FIT", rows([[0, ...units.slice(1)]], ["Units"]), X, null), /Units has 1 value that is zero or blank \(row 2\); a log cannot take zero: use zeros=drop, zeros=shift, zeros=ihs or estimator=ppml/],
     ["a negative x under zeros=stop", () => call(reg, "FIT", Y, rows([[-1, ...price.slice(1)], foot], ["Price", "Footfall"]), null), /Price has 1 negative value \(row 2\).*levels=/],
     ["a term that does not exist", () => call(reg, "ELASTICITY", Y, X, "Prise", null), /"Prise" is not a column of x; did you mean Price\?/],
     ["a column number out of range", () => call(reg, "ELASTICITY", Y, X, 7, null), /term 7 is not a column of x/],
@@ -199,7 +199,7 @@ describe("bad input: an error value with a message that says what to do", () => 
     const y = rows([[0, 0, ...units.slice(2)]], ["Units"]);
     const s = call(reg, "SUMMARY", y, X, "zeros=drop") as unknown[][];
     expect(lookup(s, "Observations used")).toBe(8);
-    expect(lookup(s, "Rows left out: zero or negative under a log")).toBe(2);
+    expect(lookup(s, "Rows left out: zero or blank under a log")).toBe(2);
   });
 
   it("zeros=shift and zeros=ihs transform only the column with zeros and say so", () => {
@@ -211,7 +211,8 @@ describe("bad input: an error value with a message that says what to do", () => 
     const ih = call(reg, "FIT", Y, rows([[0, ...price.slice(1)], foot, promo], ["Price", "Footfall", "Promo"]), "zeros=ihs") as unknown[][];
     expect(ih.map((r) => r[1])).toEqual(["Transform", "constant", "asinh", "log", "level"]);
     const neg = err(call(reg, "FIT", rows([[-2, ...units.slice(1)]], ["Units"]), X, "zeros=shift; shift=1"));
-    expect(neg.message).toMatch(/at or below −1.*larger shift= or zeros=ihs/);
+    expect(neg.message).toMatch(/negative value \(row 2\).*at or below −1.*data error.*zeros=ihs/);
+    expect(neg.message).not.toMatch(/larger shift/);
   });
 
   it("never returns NaN or Infinity as a number, even for an exact fit", () => {

@@ -170,7 +170,7 @@ function checkAgainstSingleGroups(p: Panel, options: string | null, label: strin
   });
   if (blanks > 0) {
     const last = t[t.length - 1];
-    expect(last.slice(0, 3)).toEqual(["(blank key)", blanks, "rows with a blank key are left out"]);
+    expect(last.slice(0, 3)).toEqual(["(blank key)", blanks, "rows whose key is blank or an error are left out"]);
     expect(last.slice(3).every((c) => c === "")).toBe(true);
   }
   return { t, failed };

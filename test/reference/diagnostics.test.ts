@@ -329,7 +329,7 @@ for (const [dataset, c] of Object.entries(ref.cases)) {
             it(`PREDICT ${dataset} ${form} retransform=${retransform} level=${level} interval=mean se=classical: point and mean interval`, () => {
               const where = `${dataset} ${form} PREDICT retransform=${retransform} level=${level} interval=mean se=classical`;
               const t = table(invoke("PREDICT", y, x, newRows(c, c.x, true), `${base}; interval=mean; se=classical`), where);
-              expect(t[0]).toEqual([`Predicted ${c.y}`, `Lower ${pct}%`, `Upper ${pct}%`]);
+              expect(t[0]).toEqual([`Predicted ${c.y}`, `Low (${pct}%)`, `High (${pct}%)`]);
               expect(t.length).toBe(p.log_fit.length + 1);
               p.log_fit.forEach((m, i) => {
                 // R: exp(predict(m, new_x)) * factor (factor: 1, mean(exp(resid(m))) or exp(sigma^2/2))
@@ -343,7 +343,7 @@ for (const [dataset, c] of Object.entries(ref.cases)) {
             it(`PREDICT ${dataset} ${form} retransform=${retransform} level=${level} interval=mean (default HC3): mean interval`, () => {
               const where = `${dataset} ${form} PREDICT retransform=${retransform} level=${level} interval=mean se=HC3 (default)`;
               const t = table(invoke("PREDICT", y, x, newRows(c, c.x, true), `${base}; interval=mean`), where);
-              expect(t[0]).toEqual([`Predicted ${c.y}`, `Lower ${pct}%`, `Upper ${pct}%`]);
+              expect(t[0]).toEqual([`Predicted ${c.y}`, `Low (${pct}%)`, `High (${pct}%)`]);
               p.log_fit.forEach((m, i) => {
                 check(t[i + 1][0], Math.exp(m) * factor, "PREDICT point", `${where} row ${i + 1} predicted`);
                 // R: exp(fit -/+ qt((1 + level)/2, df.residual(m)) * sqrt(x0' sandwich::vcovHC(m, type = "HC3") x0)) * factor
@@ -355,7 +355,7 @@ for (const [dataset, c] of Object.entries(ref.cases)) {
             it(`PREDICT ${dataset} ${form} retransform=${retransform} level=${level} interval=individual: prediction interval`, () => {
               const where = `${dataset} ${form} PREDICT retransform=${retransform} level=${level} interval=individual`;
               const t = table(invoke("PREDICT", y, x, newRows(c, c.x, true), `${base}; interval=individual`), where);
-              expect(t[0]).toEqual([`Predicted ${c.y}`, `Lower ${pct}%`, `Upper ${pct}%`]);
+              expect(t[0]).toEqual([`Predicted ${c.y}`, `Low (${pct}%)`, `High (${pct}%)`]);
               p.log_fit.forEach((m, i) => {
                 check(t[i + 1][0], Math.exp(m) * factor, "PREDICT point", `${where} row ${i + 1} predicted`);
                 // R: exp(predict(m, new_x, interval = "prediction", level = level)[, c("lwr", "upr")]), no factor

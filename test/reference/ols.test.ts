@@ -206,10 +206,10 @@ for (const [dataset, c] of Object.entries(ref.cases)) {
         it(`FIT ${dataset} ${form}: header row names the std. error type and the level`, () => {
           for (const se of SE_TYPES) {
             const t95 = table(call(reg, "FIT", y, x, `form=${form}; se=${se}`), "FIT");
-            expect(t95[0]).toEqual(["Term", "Transform", "Coefficient", `Std. error (${seLabel(se, f)})`, "t", "p-value", "Lower 95%", "Upper 95%"]);
+            expect(t95[0]).toEqual(["Term", "Transform", "Coefficient", `Std. error (${seLabel(se, f)})`, "t", "p-value", "Low (95%)", "High (95%)"]);
           }
           const t90 = table(call(reg, "FIT", y, x, `form=${form}; level=0.9`), "FIT");
-          expect(t90[0]).toEqual(["Term", "Transform", "Coefficient", "Std. error (HC3)", "t", "p-value", "Lower 90%", "Upper 90%"]);
+          expect(t90[0]).toEqual(["Term", "Transform", "Coefficient", "Std. error (HC3)", "t", "p-value", "Low (90%)", "High (90%)"]);
           const tDefault = table(call(reg, "FIT", y, x, form === "log-log" ? null : `form=${form}`), "FIT");
           expect(tDefault[0][3]).toBe("Std. error (HC3)");
         });
@@ -225,7 +225,8 @@ for (const [dataset, c] of Object.entries(ref.cases)) {
             expect(t[0]).toEqual(["Statistic", "Value"]);
             expect(summaryValue(t, "Observations used")).toBe(f.n);
             expect(summaryValue(t, "Rows left out: blank or non-numeric")).toBe(c.rows_with_na);
-            expect(summaryValue(t, "Rows left out: zero or negative under a log")).toBe(0);
+            expect(summaryValue(t, "Rows left out: zero or blank under a log")).toBe(0);
+            expect(summaryValue(t, "Rows left out: negative under a log")).toBe(0);
             check(summaryValue(t, "R²"), s.r_squared, "SUMMARY R²", `${where} R²`);
             check(summaryValue(t, "Adjusted R²"), s.adj_r_squared, "SUMMARY adjusted R²", `${where} adjusted R²`);
             check(summaryValue(t, "Residual std. error"), s.sigma, "SUMMARY residual std. error", `${where} sigma`);

@@ -160,7 +160,7 @@ for (const [name, c] of Object.entries(ref.ppml)) {
           const where = `${name} se=${se} level=${level}`;
           const t = table(call(reg, "FIT", y, x, `${c.options}; se=${se}; level=${level}`), `FIT ${where}`);
           const pct = Math.round(level * 100);
-          expect(t[0]).toEqual(["Term", "Transform", "Coefficient", `Std. error (${se})`, "z", "p-value", `Lower ${pct}%`, `Upper ${pct}%`]);
+          expect(t[0]).toEqual(["Term", "Transform", "Coefficient", `Std. error (${se})`, "z", "p-value", `Low (${pct}%)`, `High (${pct}%)`]);
           expect(t.length).toBe(c.k + 1);
           c.terms.forEach((term, j) => {
             const r = t[j + 1];
@@ -227,7 +227,7 @@ for (const [name, c] of Object.entries(ref.ppml)) {
           for (const retransform of ["duan", "normal", "none"]) {
             const t = table(call(reg, "PREDICT", y, x, nx, `${c.options}; se=${se}; level=${level}; interval=mean; retransform=${retransform}`), `PREDICT ${where}`);
             const pct = Math.round(level * 100);
-            expect(t[0]).toEqual([`Predicted ${c.y}`, `Lower ${pct}%`, `Upper ${pct}%`]);
+            expect(t[0]).toEqual([`Predicted ${c.y}`, `Low (${pct}%)`, `High (${pct}%)`]);
             expect(t.length).toBe(m + 1);
             for (let i = 0; i < m; i++) {
               check(t[i + 1][0], p.fit[i], COEF, "PPML prediction", `${where} row ${i + 1} retransform=${retransform}`);
@@ -261,14 +261,15 @@ for (const [name, c] of Object.entries(ref.ppml)) {
         const t = table(call(reg, "SUMMARY", y, x, `${c.options}; se=${se}`), `SUMMARY ${name}`);
         expect(t.map((r) => r[0])).toEqual([
           "Statistic", "Form", "Estimator", "Std. errors", "Observations used", "Rows left out: blank or non-numeric",
-          "Rows left out: zero or negative under a log", `Zeros kept in ${c.y}`, "Deviance",
+          "Rows left out: zero or blank under a log", "Rows left out: negative under a log", `Zeros kept in ${c.y}`, "Deviance",
           "Pseudo R² (squared correlation of y and fitted)", "Pearson dispersion", "Iterations", "Caution",
         ]);
         expect(String(value(t, "Estimator"))).toContain("PPML");
         expect(value(t, "Std. errors")).toBe(se);
         expect(value(t, "Observations used")).toBe(c.n);
         expect(value(t, "Rows left out: blank or non-numeric")).toBe(0);
-        expect(value(t, "Rows left out: zero or negative under a log")).toBe(c.rows_dropped);
+        expect(value(t, "Rows left out: zero or blank under a log")).toBe(c.rows_dropped);
+        expect(value(t, "Rows left out: negative under a log")).toBe(0);
         expect(value(t, `Zeros kept in ${c.y}`)).toBe(c.zeros);
         check(value(t, "Deviance"), c.deviance, COEF, "PPML deviance", name);
         check(value(t, "Pseudo R² (squared correlation of y and fitted)"), c.pseudo_r2, COEF, "PPML pseudo R²", name);
@@ -436,8 +437,8 @@ describe("SUMMARY's PPML contrast for a log-log OLS fit that dropped zero rows (
     const { y, x } = inputs(bio, "art", ["fem", "mar", "kid5", "phd", "ment"]);
     const t = table(call(reg, "SUMMARY", y, x, k.options), "SUMMARY contrast");
     expect(value(t, "Observations used")).toBe(k.n_ols);
-    expect(value(t, "Rows left out: zero or negative under a log")).toBe(k.rows_lost);
-    expect(value(t, "Rows the log of art lost (zero or negative)")).toBe(k.rows_lost);
+    expect(value(t, "Rows left out: zero or blank under a log")).toBe(k.rows_lost);
+    expect(value(t, "Rows the log of art lost (zero or blank)")).toBe(k.rows_lost);
     const text = String(value(t, "PPML contrast"));
     const fmt = (v: number) => Number(v.toPrecision(4)).toString();
     const outside = Object.values(k.terms).filter((e) => e.outside);
