@@ -6,7 +6,7 @@ module.exports = {
   transform: { "^.+\\.ts$": ["ts-jest", { diagnostics: { warnOnly: false } }] },
   moduleNameMapper: {
     // office-addin-mock imports office-addin-manifest, whose dependencies are ESM-only; the mock
-    // needs only this self-contained enum file (see ../shared platform notes, section 7.3).
+    // needs only this self-contained enum file.
     "^office-addin-manifest$": require.resolve("office-addin-manifest/lib/officeApp.js"),
   },
   testTimeout: 60000,

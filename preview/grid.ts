@@ -169,8 +169,23 @@ export class GridView {
 
   private mouseOver(e: MouseEvent): void {
     if (!this.dragging) return;
+    // A drag ends when the button is up, even if the mouseup was not delivered (it is not, in some
+    // Chromium versions, when the redraw replaced the cell it was pressed on).
+    if ((e.buttons & 1) === 0) {
+      this.dragging = false;
+      return;
+    }
     const at = this.cellAt(e);
-    if (at && at.row > 0) this.select(this.anchor, at, this.book.active);
+    if (!at || at.row === 0) return;
+    // Redrawing replaces the cell under the pointer, and some browsers answer with another
+    // mouseover on the same cell: redraw only when the corner moves.
+    const sel = this.book.selection;
+    const top = Math.min(this.anchor.row, at.row);
+    const left = Math.min(this.anchor.column, at.column);
+    const bottom = Math.max(this.anchor.row, at.row);
+    const right = Math.max(this.anchor.column, at.column);
+    if (sel.top === top && sel.left === left && sel.bottom === bottom && sel.right === right) return;
+    this.select(this.anchor, at, this.book.active);
   }
 
   private key(e: KeyboardEvent): void {

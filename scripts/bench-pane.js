@@ -3,7 +3,7 @@
  * Pane and preview benchmark (run by hand; no test asserts timings):
  *   npm run build && node scripts/bench-pane.js            (add --runs 7 for more repetitions)
  *
- * In headless Chromium (Debian's /usr/bin/chromium, or ELX_CHROMIUM), over the local server:
+ * In headless Chromium (chosen by scripts/browser.js: ELX_CHROMIUM, the system's, or the packaged one), over the local server:
  *   1. the preview's first render: from navigation start to the sheet drawn with every demo formula
  *      evaluated (median of fresh page loads);
  *   2. the pane on a synthetic sheet of 100,000 rows × 5 columns (preview.html?rows=100000): one run
@@ -15,13 +15,11 @@
 "use strict";
 
 const fs = require("fs");
-const os = require("os");
 const path = require("path");
-const { chromium } = require("playwright-core");
+const { launchBrowser } = require("./browser");
 const { serve } = require("./serve");
 
 const ROOT = path.resolve(__dirname, "..");
-const CHROMIUM = process.env.ELX_CHROMIUM || "/usr/bin/chromium";
 const RUNS = process.argv.includes("--runs") ? Number(process.argv[process.argv.indexOf("--runs") + 1]) : 5;
 const ROWS = 100000;
 
@@ -34,15 +32,10 @@ const ms = (v) => `${Math.round(v)} ms`;
 async function main() {
   if (!fs.existsSync(path.join(ROOT, "dist", "preview.html"))) throw new Error("dist/preview.html is missing: run npm run build first");
   const server = await serve({ root: path.join(ROOT, "dist") });
-  const userDir = fs.mkdtempSync(path.join(os.tmpdir(), "elx-bench-"));
-  const context = await chromium.launchPersistentContext(userDir, {
-    executablePath: CHROMIUM,
-    headless: true,
-    args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update", "--disable-sync", "--no-first-run"],
-    viewport: { width: 1400, height: 900 },
-  });
+  const browser = await launchBrowser({ viewport: { width: 1400, height: 900 } });
+  console.log(`Chromium: ${browser.choice.kind} (${browser.executablePath})`);
   try {
-    const page = context.pages()[0] || (await context.newPage());
+    const page = browser.page;
     // 1. First render of the demo preview.
     const first = [];
     for (let i = 0; i < RUNS; i++) {
@@ -90,9 +83,8 @@ async function main() {
     row("longest main-thread task", (r) => r.longest);
     console.log(`  last status: ${warm[warm.length - 1].status}`);
   } finally {
-    await context.close();
+    await browser.close();
     await server.close();
-    fs.rmSync(userDir, { recursive: true, force: true });
   }
 }
 

@@ -2,12 +2,15 @@
 /*
  * `npm start`: builds the add-in (webpack, production), then serves dist/ on this machine only:
  *   - the preview page over plain http on http://127.0.0.1:3001/preview.html (demo data, live ELX
- *     formulas, the real pane; works in any browser, no spreadsheet host needed);
- *   - the add-in over https on https://localhost:3000 (the URLs in manifest/manifest.xml), when
- *     development certificates exist in ~/.office-addin-dev-certs or can be made there by the
- *     office-addin-dev-certs tool. The files are read directly; trusting the certificate authority
- *     is the tool's job and may need administrator rights (see the README's sideloading steps).
- * Prints both addresses and the manifest path to sideload. Ctrl+C stops.
+ *     formulas, the real pane; works in any browser, no spreadsheet host and no certificate needed).
+ *     ELX_PREVIEW_PORT chooses another port; when the port is taken, the next free one of the
+ *     following ten is used and printed;
+ *   - the add-in over https on https://localhost:3000 (the URLs in manifest/manifest.xml), when the
+ *     three development certificate files ca.crt, localhost.crt and localhost.key are in
+ *     ~/.office-addin-dev-certs. Nothing here makes or trusts certificates (that needs
+ *     administrator rights, see the README's sideloading steps): without the files it says how to
+ *     make them, and serves the preview alone.
+ * Prints the addresses and the manifest path to sideload. Ctrl+C stops.
  *   npm start -- --no-build      serve the existing dist/ without building
  */
 "use strict";
@@ -20,33 +23,70 @@ const { serve } = require("./serve");
 
 const ROOT = path.resolve(__dirname, "..");
 const DIST = path.join(ROOT, "dist");
-const CERT_DIR = path.join(os.homedir(), ".office-addin-dev-certs");
 const FILES = { ca: "ca.crt", cert: "localhost.crt", key: "localhost.key" };
-const PREVIEW_PORT = Number(process.env.ELX_PREVIEW_PORT || 3001);
+/** The host loads the add-in from this port: it is written in manifest/manifest.xml. */
 const ADDIN_PORT = 3000;
+const PREVIEW_TRY_NEXT = 10;
 
-function haveCerts() {
-  return Object.values(FILES).every((f) => fs.existsSync(path.join(CERT_DIR, f)));
+/** The certificate files, or null with the names of the missing ones. */
+function certificates(certDir) {
+  const missing = Object.values(FILES).filter((f) => !fs.existsSync(path.join(certDir, f)));
+  if (missing.length) return { tls: null, missing };
+  const read = (f) => fs.readFileSync(path.join(certDir, f));
+  return { tls: { ca: read(FILES.ca), cert: read(FILES.cert), key: read(FILES.key) }, missing: [] };
 }
 
-/** Reads the three certificate files, making them first with office-addin-dev-certs when missing. */
-function certificates() {
-  if (!haveCerts()) {
-    let cli = null;
+/**
+ * Starts both servers and returns the lines to print (no process exit here, so tests can call it).
+ * @param {{ dist?: string, previewPort?: number, addinPort?: number, certDir?: string }} [o]
+ */
+async function startServers(o = {}) {
+  const dist = o.dist || DIST;
+  const previewPort = o.previewPort ?? Number(process.env.ELX_PREVIEW_PORT || 3001);
+  const addinPort = o.addinPort ?? ADDIN_PORT;
+  const certDir = o.certDir || path.join(os.homedir(), ".office-addin-dev-certs");
+  const lines = [];
+  let preview;
+  try {
+    preview = await serve({ root: dist, port: previewPort, tryNext: PREVIEW_TRY_NEXT });
+  } catch (e) {
+    if (e.code !== "EADDRINUSE") throw e;
+    const err = new Error(`Preview not started: ${e.message}. Choose another port, for example ELX_PREVIEW_PORT=4001 npm start.`);
+    err.plain = true;
+    throw err;
+  }
+  if (previewPort !== 0 && preview.port !== previewPort) lines.push(`Port ${previewPort} is in use by another program: the preview is on port ${preview.port} instead (ELX_PREVIEW_PORT chooses one).`);
+  lines.push(`Preview (demo data, live formulas, the pane):  ${preview.url}/preview.html`);
+
+  let addin = null;
+  const { tls, missing } = certificates(certDir);
+  if (!tls) {
+    lines.push(
+      `Add-in over https: not started, it needs ${missing.join(", ")} in ${certDir}; make them once with ` +
+        "`npx office-addin-dev-certs install` (trusting them needs administrator rights). The preview works without them.",
+    );
+  } else {
     try {
-      cli = require.resolve("office-addin-dev-certs/cli.js");
-    } catch {
-      cli = null;
-    }
-    if (cli) {
-      console.log("Making development certificates with office-addin-dev-certs (its trust step may ask for, or lack, administrator rights)…");
-      // The tool's exit code says nothing about whether the files were made: check the files.
-      spawnSync(process.execPath, [cli, "install"], { stdio: "inherit", timeout: 120000 });
+      addin = await serve({ root: dist, port: addinPort, tls });
+      lines.push(`Add-in for the spreadsheet host:               ${addin.url}/taskpane.html`);
+    } catch (e) {
+      if (e.code === "EADDRINUSE") {
+        lines.push(`Add-in over https: not started, port ${addinPort} is in use by another program, and the manifest tells the host to load the add-in from https://localhost:${addinPort}: stop that program and run npm start again. The preview works without it.`);
+      } else {
+        lines.push(`Add-in over https: not started, the files in ${certDir} could not be used as a certificate and key (${e.message}); make them again with \`npx office-addin-dev-certs install\`. The preview works without them.`);
+      }
     }
   }
-  if (!haveCerts()) return null;
-  const read = (f) => fs.readFileSync(path.join(CERT_DIR, f));
-  return { ca: read(FILES.ca), cert: read(FILES.cert), key: read(FILES.key) };
+  lines.push(`Manifest to sideload:                          ${path.join(dist, "manifest.xml")}`);
+  return {
+    lines,
+    preview,
+    addin,
+    close: async () => {
+      await preview.close();
+      if (addin) await addin.close();
+    },
+  };
 }
 
 async function main() {
@@ -58,35 +98,30 @@ async function main() {
     console.error("dist/preview.html is missing: run npm run build");
     process.exit(1);
   }
-  const preview = await serve({ root: DIST, port: PREVIEW_PORT });
-  let addin = null;
-  const tls = certificates();
-  if (tls) {
-    try {
-      addin = await serve({ root: DIST, port: ADDIN_PORT, tls });
-    } catch (e) {
-      console.error(`Could not serve https on port ${ADDIN_PORT}: ${e.message}`);
-    }
+  let servers;
+  try {
+    servers = await startServers();
+  } catch (e) {
+    if (!e.plain) throw e;
+    console.error(e.message);
+    process.exit(1);
   }
   console.log("");
-  console.log(`Preview (demo data, live formulas, the pane):  ${preview.url}/preview.html`);
-  if (addin) {
-    console.log(`Add-in for the spreadsheet host:               ${addin.url}/taskpane.html`);
-  } else {
-    console.log(`Add-in over https: not started (no certificates in ${CERT_DIR}); the preview needs none.`);
-  }
-  console.log(`Manifest to sideload:                          ${path.join(DIST, "manifest.xml")}`);
+  for (const line of servers.lines) console.log(line);
   console.log("Press Ctrl+C to stop.");
   const stop = async () => {
-    await preview.close();
-    if (addin) await addin.close();
+    await servers.close();
     process.exit(0);
   };
   process.on("SIGINT", stop);
   process.on("SIGTERM", stop);
 }
 
-main().catch((e) => {
-  console.error(e);
-  process.exit(1);
-});
+if (require.main === module) {
+  main().catch((e) => {
+    console.error(e);
+    process.exit(1);
+  });
+}
+
+module.exports = { startServers, ADDIN_PORT };

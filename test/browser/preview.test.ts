@@ -1,9 +1,9 @@
 /**
- * The preview page in headless Chromium (Debian's /usr/bin/chromium driven by playwright-core; no
- * browser download): the demo sheet's formulas against the engine's own values, a formula edited
+ * The preview page in headless Chromium (the system's or the packaged one, chosen by
+ * scripts/browser.js and driven by playwright-core; no browser download): the demo sheet's formulas against the engine's own values, a formula edited
  * live, the pane's zero warning with counts worked out here from data/demo.json, the formula writer
  * refusing an occupied target, the PPML choice, odd selections, an accessibility check of the pane
- * (axe-core), and the README screenshots. The page must make no request outside this test's
+ * (axe-core), and the README's screenshots taken into the ignored test-output/screenshots. The page must make no request outside this test's
  * localhost server, load no remote script or font, and log no error.
  *
  * The engine's values come from dist/functions.js loaded in this Jest process through the host's
@@ -12,9 +12,9 @@
  * page with the engine, not with a statistical reference (that is test/reference's job).
  */
 import * as fs from "fs";
-import * as os from "os";
 import * as path from "path";
-import { chromium, type BrowserContext, type Page } from "playwright-core";
+import type { Page } from "playwright-core";
+import { launchBrowser, type LaunchedBrowser } from "../harness/browser";
 import { call, HostError, loadFunctions, metadataIds } from "../harness/loadFunctions";
 
 // eslint-disable-next-line @typescript-eslint/no-var-requires
@@ -22,8 +22,9 @@ const { serve } = require("../../scripts/serve.js") as { serve: (o: { root: stri
 
 const ROOT = path.resolve(__dirname, "../..");
 const DIST = path.join(ROOT, "dist");
-const SHOTS = path.join(ROOT, "assets", "screenshots");
-const CHROMIUM = process.env.ELX_CHROMIUM || "/usr/bin/chromium";
+const SHOTS = path.join(ROOT, "test-output", "screenshots");
+// eslint-disable-next-line @typescript-eslint/no-var-requires
+const { takeScreenshots } = require("../../scripts/screenshots.js") as { takeScreenshots: (page: Page, dir: string) => Promise<string[]> };
 const demo = JSON.parse(fs.readFileSync(path.join(ROOT, "data", "demo.json"), "utf8")) as { columns: string[]; rows: unknown[][] };
 
 // The demo sheet as the preview lays it out: A..G = Store, Week, Units, Price, Footfall, Promo, Income; row 1 headers.
@@ -44,9 +45,8 @@ function shown(v: unknown): string {
 }
 
 let server: { url: string; close: () => Promise<void> };
-let context: BrowserContext;
+let browser: LaunchedBrowser;
 let page: Page;
-let userDir: string;
 const outside: string[] = [];
 const problems: string[] = [];
 
@@ -118,16 +118,9 @@ async function setRanges(y: string, x: string, zeros: string, estimator = "ols")
 }
 
 beforeAll(async () => {
-  if (!fs.existsSync(CHROMIUM)) throw new Error(`${CHROMIUM} is missing: install Debian's chromium (apt-get install -y chromium); .ci/run does this`);
   server = await serve({ root: DIST });
-  userDir = fs.mkdtempSync(path.join(os.tmpdir(), "elx-chromium-"));
-  context = await chromium.launchPersistentContext(userDir, {
-    executablePath: CHROMIUM,
-    headless: true,
-    args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update", "--disable-sync", "--no-first-run"],
-    viewport: { width: 1400, height: 900 },
-  });
-  page = context.pages()[0] ?? (await context.newPage());
+  browser = await launchBrowser({ viewport: { width: 1400, height: 900 } });
+  page = browser.page;
   page.on("request", (r) => {
     if (!r.url().startsWith(`${server.url}/`)) outside.push(r.url());
   });
@@ -140,9 +133,8 @@ beforeAll(async () => {
 }, 60000);
 
 afterAll(async () => {
-  if (context) await context.close();
+  if (browser) await browser.close();
   if (server) await server.close();
-  if (userDir) fs.rmSync(userDir, { recursive: true, force: true });
 });
 
 describe("the preview workbook", () => {
@@ -340,25 +332,11 @@ describe("accessibility, screenshots and network", () => {
     expect(serious).toEqual([]);
   });
 
-  it("takes the README screenshots of the preview and of the pane", async () => {
-    fs.mkdirSync(SHOTS, { recursive: true });
-    await selectInGrid("A1");
-    await page.evaluate(() => {
-      const pane = document.getElementById("elx-pane") as HTMLElement;
-      pane.scrollTop = 0;
-    });
-    await page.screenshot({ path: path.join(SHOTS, "preview.png") });
-    // The whole pane, not only its visible part: let it grow to its full height for the picture.
-    await page.evaluate(() => {
-      document.body.style.height = "auto";
-      const main = document.querySelector(".pv-main") as HTMLElement;
-      main.style.alignItems = "flex-start";
-      const pane = document.getElementById("elx-pane") as HTMLElement;
-      pane.style.overflow = "visible";
-      pane.style.height = "auto";
-    });
-    await page.locator("#elx-pane").screenshot({ path: path.join(SHOTS, "pane.png") });
-    for (const f of ["preview.png", "pane.png"]) expect(fs.statSync(path.join(SHOTS, f)).size).toBeGreaterThan(20000);
+  it("takes the README's pictures of the preview and of the pane (the steps of npm run screenshots) into test-output/screenshots", async () => {
+    for (const f of ["preview.png", "pane.png"]) fs.rmSync(path.join(SHOTS, f), { force: true });
+    const files = await takeScreenshots(page, SHOTS);
+    expect(files).toEqual([path.join(SHOTS, "preview.png"), path.join(SHOTS, "pane.png")]);
+    for (const f of files) expect(fs.statSync(f).size).toBeGreaterThan(20000);
   });
 
   it("made no request outside localhost, loaded no remote script or font, and logged no error", async () => {

@@ -3,6 +3,7 @@
  * options parser. No statistics here.
  */
 import { getFit, clearCache, cacheStats } from "../../functions/engine/model";
+import { hashCells } from "../../functions/engine/cache";
 import { parseOptions, seTypeOf, modelKey } from "../../functions/engine/options";
 import { ElxProblem } from "../../functions/engine/problems";
 
@@ -28,10 +29,23 @@ describe("fit cache keyed by content", () => {
     expect(getFit({ y: y2, x: xRows(), options: o, yOrigin: null, xOrigin: null })).not.toBe(a);
     expect(getFit({ y: yRows(), x: xRows(), options: parseOptions("form=log-level"), yOrigin: null, xOrigin: null })).not.toBe(a);
     expect(getFit({ y: yRows(), x: xRows(), options: o, yOrigin: { row: 3, column: 2 }, xOrigin: null })).not.toBe(a);
-    // 0 and blank and "" are different content
-    const y3 = yRows();
-    y3[2][0] = "" as unknown as number;
-    expect(() => getFit({ y: y3, x: xRows(), options: o, yOrigin: null, xOrigin: null })).not.toThrow();
+  });
+
+  it("0, blank (null), \"\" and FALSE in the same cell are different content: four fits, none reused", () => {
+    // level-level, so that a 0 is a valid observation rather than a refusal under a log
+    const o = parseOptions("form=level-level");
+    const fits = [0, null, "", false].map((cell) => {
+      const y = yRows() as unknown[][];
+      y[2][0] = cell;
+      return getFit({ y, x: xRows(), options: o, yOrigin: null, xOrigin: null });
+    });
+    expect(new Set(fits).size).toBe(4);
+    expect(cacheStats()).toMatchObject({ hits: 0, misses: 4, entries: 4 });
+    // the 0 and FALSE (read as 0) are observations; the blank and "" leave their row out
+    expect(fits.map((f) => f.n)).toEqual([7, 6, 6, 7]);
+    expect(hashCells([[0]])).not.toBe(hashCells([[null]]));
+    expect(hashCells([[null]])).not.toBe(hashCells([[""]]));
+    expect(hashCells([[0]])).not.toBe(hashCells([[false]]));
   });
 
   it("a problem is cached too and thrown again for the same input", () => {
@@ -51,6 +65,7 @@ describe("options text", () => {
   });
 
   it("defaults: log-log, HC3 for OLS and HC1 for PPML, 95%", () => {
+    expect(parseOptions("").form).toBe("log-log");
     expect(seTypeOf(parseOptions(""))).toBe("HC3");
     expect(seTypeOf(parseOptions("estimator=ppml"))).toBe("HC1");
     expect(parseOptions(null).level).toBe(0.95);

@@ -1,5 +1,5 @@
 /**
- * Through the host's door, the issue-3 and issue-4 functions: registration, shapes and the messages an
+ * Through the host's door, the diagnostic, prediction and group functions: registration, shapes and the messages an
  * analyst reads on bad input. Data invented for shapes and messages; the statistical references are
  * in test/reference (R's lmtest, sandwich, MASS, glm).
  */

@@ -2,7 +2,7 @@
  * The add-in manifest (manifest/manifest.xml) agrees with the build: namespace ELX, one shared runtime
  * whose resid is used by the Runtime, the functions Page, the FunctionFile and the pane button (the
  * platform's rule for a shared runtime), resids within 32 characters, and every URL on the served
- * origin. Schema validation needs the network; this is the offline check the platform notes suggest.
+ * origin. Schema validation needs the network; this is the offline check.
  */
 import * as fs from "fs";
 import * as path from "path";

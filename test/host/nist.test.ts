@@ -1,10 +1,11 @@
 /**
- * NIST StRD linear least squares (../shared/data/nist-strd/strd.json, public domain, certified values
+ * NIST StRD linear least squares (test/data/nist-strd/strd.json, public domain, certified values
  * to 15 digits): all eleven problems through ELX.FIT and ELX.SUMMARY in level-level form, classical
  * standard errors (NIST certifies the usual OLS standard deviations), polynomial columns built from x,
  * NoInt1 and NoInt2 without intercept. Scored by the log relative error (LRE) as the StRD README
  * defines it, capped at the printed digits.
  */
+import * as crypto from "crypto";
 import * as fs from "fs";
 import * as path from "path";
 import { call, HostError, loadFunctions, lookup } from "../harness/loadFunctions";
@@ -12,12 +13,15 @@ import { call, HostError, loadFunctions, lookup } from "../harness/loadFunctions
 interface Coef { estimate: number; estimateText: string; standardDeviation: number; standardDeviationText: string }
 interface StrdSet {
   name: string;
+  file: string;
+  sha256: string;
+  bytes: number;
   design: { intercept: boolean; terms: { variable?: string; power: number }[] };
   certified: { coefficients: Coef[]; residualStandardDeviation: number; residualStandardDeviationText: string; rSquared: number; rSquaredText: string };
   data: { y: number[]; x: Record<string, number[]> };
 }
 
-const strdPath = path.resolve(__dirname, "../../../shared/data/nist-strd/strd.json");
+const strdPath = path.resolve(__dirname, "../data/nist-strd/strd.json");
 const strd: { datasets: StrdSet[] } = JSON.parse(fs.readFileSync(strdPath, "utf8"));
 
 /** Significant digits printed; a certified zero such as 0.00000000000000E+00 counts every digit shown. */
@@ -34,6 +38,16 @@ function lre(q: number, c: number, text: string): number {
   if (err === 0) return cap;
   return Math.min(cap, -Math.log10(err));
 }
+
+describe("fixture guard: the committed NIST files", () => {
+  it("each of the eleven .dat files has the sha256 and size strd.json records (byte copies of the NIST originals)", () => {
+    expect(strd.datasets.map((d) => d.name)).toEqual(["Norris", "Pontius", "NoInt1", "NoInt2", "Filip", "Longley", "Wampler1", "Wampler2", "Wampler3", "Wampler4", "Wampler5"]);
+    for (const set of strd.datasets) {
+      const bytes = fs.readFileSync(path.join(path.dirname(strdPath), set.file));
+      expect({ file: set.file, bytes: bytes.length, sha256: crypto.createHash("sha256").update(bytes).digest("hex") }).toEqual({ file: set.file, bytes: set.bytes, sha256: set.sha256 });
+    }
+  });
+});
 
 const reg = loadFunctions();
 const table: Record<string, { coef: number; sd: number; resSd: number; r2: number }> = {};

@@ -108,8 +108,11 @@ afterAll(() => {
   console.log(checker.report(`worst relative error against R (${ref.r_version}) per quantity`, 34));
 });
 
-describe("reference data", () => {
-  it("has four datasets in four forms, with the rows R left out", () => {
+// Fixture guard: asserts on the JSON only. The engine is checked on each quantity named here by the
+// tests below: the rows left out and used (SUMMARY "Rows left out: blank or non-numeric" = 42 and
+// "Observations used" = 111 for airquality) and the transforms (FIT's Transform column).
+describe("fixture guard: reference data", () => {
+  it("fixture guard: four datasets in four forms, with the rows R left out", () => {
     expect(Object.keys(ref.cases).sort()).toEqual(["LifeCycleSavings", "airquality", "mtcars", "trees"]);
     for (const c of Object.values(ref.cases)) expect(Object.keys(c.forms).sort()).toEqual([...FORMS].sort());
     // airquality: 37 NA in Ozone, 7 in Solar.R, 2 rows with both (R: sum(!complete.cases(...)))

@@ -1,5 +1,6 @@
 /**
- * Simulation checks for issue 3 (seeded, invented data, as the rules allow for simulations).
+ * Simulation checks of retransformation and of the Breusch–Pagan test (seeded, invented data, as
+ * simulations may use).
  *
  * 1. Retransformation (Duan 1983, JASA 78): with skewed, non-normal log-scale errors
  *    ε = σ(χ²₃ − 3)/√6, the mean of y at x0 is exp(x0'b)·E[e^ε], where E[e^ε] = e^(−3t)(1 − 2t)^(−3/2)
