@@ -102,7 +102,6 @@ ols_case <- function(name, source, d, y, x, fe, clusters, unit, time, w = NULL, 
     part <- function(g) { G <- length(unique(g)); S <- rowsum(ef, g); G / (G - 1) * crossprod(S) }
     meat <- if (length(cl) == 1) part(d[[cl]]) else part(d[[cl[1]]]) + part(d[[cl[2]]]) - part(paste(d[[cl[1]]], d[[cl[2]]]))
     Vh <- Bf %*% meat %*% Bf * (n - 1) / (n - p)
-    if (!close_to(diag(Vh)[x], diag(V)[x], 1e-8)) { print(cl); print(diag(Vh)[x] / diag(V)[x] - 1) }
     check(close_to(diag(Vh)[x], diag(V)[x], 1e-8), paste(name, "cluster by hand"))
     G <- vapply(cl, function(cc) length(unique(d[[cc]])), 1)
     cl_out[[paste(cl, collapse = "+")]] <- list(clusters = cl, codes = lapply(setNames(cl, cl), function(v) codes0(d[[v]])),
