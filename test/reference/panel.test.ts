@@ -78,6 +78,7 @@ interface PpmlCase {
   y: number[];
   x: Record<string, number[]>;
   keys: Record<string, number[]>;
+  weights: number[] | null;
   coefficients: number[];
   deviance: number;
   se: Record<string, number[]>;
@@ -178,7 +179,8 @@ describe.each(ref.ols.map((c) => [c.name, c] as const))("OLS with fixed effects:
 describe.each(ref.ppml.map((c) => [c.name, c] as const))("PPML with fixed effects: %s (R glm quasipoisson with factor() terms, sandwich)", (_name, c) => {
   const names = Object.keys(c.x);
   const keys: FixedEffectKey[] = Object.entries(c.keys).map(([name, codes]) => ({ name, codes: Int32Array.from(codes) }));
-  const fit = ppmlAbsorbed({ y: Float64Array.from(c.y), X: names.map((v) => Float64Array.from(c.x[v])), names, yName: "y", keys });
+  const weights = c.weights ? Float64Array.from(c.weights) : null;
+  const fit = ppmlAbsorbed({ y: Float64Array.from(c.y), X: names.map((v) => Float64Array.from(c.x[v])), names, yName: "y", keys, weights });
 
   test("values with y = 0 in every row are left out and counted", () => {
     expect(fit.allZeroRows).toBe(c.all_zero_rows);

@@ -42,8 +42,8 @@
 #   absorbed values with y = 0 in every row are left out before fitting; coef(m)[x];
 #   HC0 sqrt(diag(vcovHC(m, "HC0"))), HC1 sqrt(diag(vcovHC(m, "HC1"))) (= HC0 n/(n - rank));
 #   cluster vcovCL(m, ~c, type = "HC0", cadjust = TRUE) * (n-1)/(n-p), p as above; the HC0 slope block
-#   is also checked against (X~'WX~)^-1 X~' diag((y-mu)^2) X~ (X~'WX~)^-1 with X~ the mu-weighted
-#   within-transformed regressors.
+#   is also checked against (X~'WX~)^-1 X~' diag((w(y-mu))^2) X~ (X~'WX~)^-1 with W = diag(w mu) and
+#   X~ the W-weighted within-transformed regressors; one case with prior weights (glm(weights = w)).
 
 suppressPackageStartupMessages({
   library(sandwich)
@@ -177,7 +177,7 @@ grun <- local({ data("Grunfeld", package = "plm"); g <- Grunfeld; g <- g[order(g
              inv = g$inv, value = g$value) })
 prod_d <- local({ data("Produc", package = "plm"); p <- Produc; p <- p[order(p$state, p$year), ]
   data.frame(state = as.character(p$state), year = p$year, region = as.integer(as.character(p$region)),
-             ly = log(p$gsp), lpcap = log(p$pcap), lpc = log(p$pc), lemp = log(p$emp), unemp = p$unemp, emp = p$emp) })
+             gsp = p$gsp, ly = log(p$gsp), lpcap = log(p$pcap), lpc = log(p$pc), lemp = log(p$emp), unemp = p$unemp, emp = p$emp) })
 empl <- local({ data("EmplUK", package = "plm"); e <- EmplUK; e <- e[order(e$firm, e$year), ]
   data.frame(firm = e$firm, year = e$year, ly = log(e$emp), lwage = log(e$wage), lcapital = log(e$capital), loutput = log(e$output)) })
 
@@ -202,8 +202,9 @@ cases <- list(
 
 # ---- PPML with fixed effects ----------------------------------------------------------------------
 ctl <- glm.control(epsilon = 1e-14, maxit = 200)
-ppml_case <- function(name, source, d, y, x, fe, clusters) {
+ppml_case <- function(name, source, d, y, x, fe, clusters, w = NULL) {
   n_all <- nrow(d)
+  d$.w <- if (is.null(w)) rep(1, n_all) else d[[w]]
   keep <- rep(TRUE, n_all)
   zero_values <- 0
   for (f in fe) {
@@ -216,8 +217,8 @@ ppml_case <- function(name, source, d, y, x, fe, clusters) {
   n <- nrow(used)
   k <- length(x)
   f <- as.formula(paste(y, "~", paste(c(x, paste0("factor(", fe, ")")), collapse = " + ")))
-  m0 <- glm(f, family = quasipoisson, data = used, control = ctl)
-  m <- glm(f, family = quasipoisson, data = used, control = ctl, start = coef(m0))
+  m0 <- glm(f, family = quasipoisson, data = used, control = ctl, weights = .w)
+  m <- glm(f, family = quasipoisson, data = used, control = ctl, start = coef(m0), weights = .w)
   check(m$converged, paste(name, "glm did not converge"))
   a <- m$rank - k
   b <- coef(m)[x]
@@ -225,9 +226,10 @@ ppml_case <- function(name, source, d, y, x, fe, clusters) {
   # HC0 by the within formula
   Xf <- model.matrix(m)
   D <- Xf[, !(colnames(Xf) %in% x), drop = FALSE]
-  Xt <- sapply(x, function(v) { r <- lm.wfit(D, used[[v]], mu); r$residuals })
-  Bm <- solve(crossprod(Xt * sqrt(mu)))
-  V0 <- Bm %*% crossprod(Xt * (used[[y]] - mu)) %*% Bm
+  om <- used$.w * mu
+  Xt <- sapply(x, function(v) { r <- lm.wfit(D, used[[v]], om); r$residuals })
+  Bm <- solve(crossprod(Xt * sqrt(om)))
+  V0 <- Bm %*% crossprod(Xt * (used$.w * (used[[y]] - mu))) %*% Bm
   check(close_to(diag(V0), diag(vcovHC(m, type = "HC0"))[x], 1e-8), paste(name, "PPML HC0 by hand"))
   cl_out <- list()
   for (cl in clusters) {
@@ -244,6 +246,7 @@ ppml_case <- function(name, source, d, y, x, fe, clusters) {
        absorbed = scalar(a), all_zero_rows = scalar(n_all - n), all_zero_values = scalar(zero_values),
        y = d[[y]], x = lapply(setNames(x, x), function(v) d[[v]]),
        keys = lapply(setNames(fe, fe), function(v) codes0(d[[v]])),
+       weights = if (is.null(w)) NULL else d[[w]],
        coefficients = unname(b), deviance = scalar(deviance(m)),
        se = list(HC0 = unname(sqrt(diag(vcovHC(m, type = "HC0"))[x])), HC1 = unname(sqrt(diag(vcovHC(m, type = "HC1"))[x]))),
        cluster = cl_out, glm_iterations = scalar(m$iter))
@@ -252,7 +255,9 @@ epil_d <- local({ e <- MASS::epil; data.frame(subject = e$subject, period = e$pe
 ppml_cases <- list(
   ppml_case("grunfeld_ppml_twoway", "plm::Grunfeld", grun, "inv", c("lvalue", "lcapital"), c("firm", "year"), list("firm", "year", c("firm", "year"))),
   ppml_case("grunfeld_ppml_oneway", "plm::Grunfeld", grun, "inv", c("lvalue", "lcapital"), "firm", list("firm", "year")),
-  ppml_case("epil_ppml_oneway", "MASS::epil", epil_d, "y", c("V4"), "subject", list("subject"))
+  ppml_case("epil_ppml_oneway", "MASS::epil", epil_d, "y", c("V4"), "subject", list("subject")),
+  ppml_case("produc_ppml_weighted_twoway", "plm::Produc, weights emp", prod_d, "gsp", c("lpcap", "lpc", "unemp"), c("state", "year"),
+            list("state", "region", c("state", "year")), w = "emp")
 )
 
 out <- list(
