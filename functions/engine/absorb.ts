@@ -276,14 +276,17 @@ export class Absorber {
    * steps it took (0 for one key).
    */
   demean(x: Float64Array, out: Float64Array = new Float64Array(this.n)): Float64Array {
-    this.lastIterations = this.solve(x, out);
+    this.lastIterations = this.solve(x, out, this.iterationLimit);
     return out;
   }
+
+  /** Conjugate-gradient steps allowed per column (tests lower it to reach the refusal). */
+  iterationLimit = ABSORB_MAX_ITER;
 
   /** Conjugate-gradient steps of the last demean. */
   lastIterations = 0;
 
-  private solve(x: Float64Array, out: Float64Array): number {
+  private solve(x: Float64Array, out: Float64Array, maxIter: number): number {
     if (x.length !== this.n) throw new Error("column length");
     if (this.keys.length === 1) {
       this.demeanA(x, out);
@@ -327,8 +330,8 @@ export class Absorber {
     let iter = 0;
     let off = worst();
     while (off > limit) {
-      if (iter >= ABSORB_MAX_ITER) {
-        fail(`the fixed effects ${this.keys[0].name} and ${B.name} could not be separated to full accuracy in ${ABSORB_MAX_ITER} rounds (means within ${B.name} still off by ${(off / scale).toExponential(1)} of the spread): they are nearly nested or barely connected; absorb only one of them and give the other as indicator terms`);
+      if (iter >= maxIter) {
+        fail(`the fixed effects ${this.keys[0].name} and ${B.name} could not be separated to full accuracy in ${maxIter} rounds (means within ${B.name} still off by ${(off / scale).toExponential(1)} of the spread): they are nearly nested or barely connected; absorb only one of them and give the other as indicator terms`);
       }
       iter++;
       // v = M_A D_B p ; q = D_Bᵀ W v

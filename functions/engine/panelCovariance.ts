@@ -42,6 +42,8 @@ export interface ScoreModel {
   leverageOffset: Float64Array | null;
   /** Sheet row of each row, for messages (default: 1-based position). */
   rowNumbers?: Int32Array;
+  /** Why HC2/HC3 are refused when leverageOffset is null (default: the two-key reason). */
+  noLeverage?: string;
 }
 
 export interface PanelCovariance {
@@ -93,7 +95,7 @@ export function panelHc(m: ScoreModel, type: "HC0" | "HC1" | "HC2" | "HC3"): Pan
   const { n, k } = m.qr;
   const needH = type === "HC2" || type === "HC3";
   if (needH && !m.leverageOffset) {
-    fail(`se=${type} needs each row's leverage, which two absorbed fixed effects do not give exactly: use se=cluster (errors that allow for correlation within a key) or se=HC1`);
+    fail(m.noLeverage ?? `se=${type} needs each row's leverage, which two absorbed fixed effects do not give exactly: use se=cluster (errors that allow for correlation within a key) or se=HC1`);
   }
   const df = dfResid(m);
   const hc1 = n / df;

@@ -200,7 +200,14 @@ export function ppmlAbsorbed(input: PpmlAbsorbedInput): PpmlAbsorbedFit {
   // The factor at the converged μ̂ carries the covariances.
   const fin = step();
   const u = Float64Array.from(y, (v, i) => (w ? Math.sqrt(w[i]) : 1) * (v - mu[i]) / Math.sqrt(mu[i]));
-  const scores: ScoreModel = { X: fin.Xs, qr: fin.qr, u, absorbed: a, leverageOffset: null };
+  const scores: ScoreModel = {
+    X: fin.Xs,
+    qr: fin.qr,
+    u,
+    absorbed: a,
+    leverageOffset: null,
+    noLeverage: "se=HC2 and se=HC3 are not offered with estimator=ppml and fixed effects: use se=HC1 or se=cluster",
+  };
   return {
     coef: beta,
     mu,

@@ -107,6 +107,24 @@ describe("absorbing a key equals adding its indicator columns (Frisch–Waugh–
     expect(fit.absorber.maxIterations).toBeGreaterThan(1); // unbalanced: conjugate gradients needed several steps
   });
 
+  test("two keys on a graph with two components (Grunfeld firms 0–4 in years 0–9, 5–9 in 10–19): a = 10 + 20 − 2, slopes and HC1 as the indicator fit", () => {
+    const c = byName("grunfeld_twoway");
+    const rows = c.y.map((_, i) => i).filter((i) => (c.keys.firm[i] < 5) === (c.keys.year[i] < 10));
+    const { fit, model, names } = absorbedModel(c, ["firm", "year"], rows);
+    expect(fit.absorber.components).toBe(2);
+    expect(fit.absorbed).toBe(28);
+    expect(fit.dfResid).toBe(100 - 2 - 28);
+    const pick = (v: number[]) => rows.map((i) => v[i]);
+    const yearCols = indicators(pick(c.keys.year), false).filter((_, t) => t !== 0 && t !== 10); // one year per component is redundant
+    const full = [...names.map((v) => Float64Array.from(pick(c.x[v]))), ...indicators(pick(c.keys.firm), false), ...yearCols];
+    const qr = leastSquares(full, Float64Array.from(pick(c.y)), noDep);
+    const K = full.length;
+    expect(K - 2).toBe(28);
+    relClose(fit.coef, qr.coef.slice(0, 2), 1e-10, "slopes");
+    const r = Int32Array.from({ length: qr.n }, (_, i) => i + 1);
+    relClose(diag(panelHc(model, "HC1").V, 2), diag(hcCovariance(full, qr, "HC1", null, r).V, K, 0, 2), 1e-10, "HC1");
+  });
+
   test("a balanced two-way panel separates in one conjugate-gradient step", () => {
     const { fit } = absorbedModel(byName("grunfeld_twoway"), ["firm", "year"]);
     expect(fit.absorber.maxIterations).toBe(1);
@@ -253,6 +271,16 @@ describe("problems in the analyst's words", () => {
     const units = Int32Array.from(c.keys.firm);
     units[25] = 0; // firm 0 again inside firm 1's rows (row 26)
     expectProblem(() => panelHac(model, units, 2, "store"), /row 26 returns to a store seen before; sort the data by store and then by time/);
+  });
+  test("two keys that do not separate within the step limit are refused, not returned half-done", () => {
+    const e = byName("empluk_twoway");
+    const prep = prepareAbsorption(["firm", "year"].map((k) => ({ name: k === "firm" ? "Store" : "Week", codes: Int32Array.from(e.keys[k]) })), null);
+    prep.absorber.iterationLimit = 1;
+    expectProblem(() => prep.absorber.demean(Float64Array.from(e.x.lwage)), /the fixed effects Store and Week could not be separated to full accuracy in 1 rounds .* absorb only one of them/);
+  });
+  test("PPML with fixed effects refuses HC3 with the estimator's reason", () => {
+    const fit = ppmlAbsorbed({ y: Float64Array.from(c.y, Math.exp), X, names, yName: "Units", keys: [firm] });
+    expectProblem(() => panelHc(fit.scores, "HC3"), /se=HC2 and se=HC3 are not offered with estimator=ppml and fixed effects: use se=HC1 or se=cluster/);
   });
   test("one cluster", () => {
     const { model } = absorbedModel(c, ["firm"]);
