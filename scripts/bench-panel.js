@@ -6,6 +6,8 @@
  *   node scripts/bench-panel.js --r-lm       also R lm() with indicator columns (about 1 GB and a minute or more)
  *   node scripts/bench-panel.js --no-r       engine only
  *   node scripts/bench-panel.js --runs 5     medians over 5 runs (default 3)
+ *   node scripts/bench-panel.js --unbalanced each store misses a random 30% of its weeks (the
+ *                                            conjugate gradients then need several steps)
  *
  * No build is needed: scripts/ts-require.js transpiles the engine's TypeScript on load with the
  * compiler in devDependencies. From scripts/bench.js: `require("./bench-panel").benchPanel({ runs })`
@@ -38,10 +40,11 @@ function mulberry32(seed) {
 }
 
 /** The benchmark panel: stores × weeks rows, k regressors, sorted by store then week. */
-function makePanel(stores = 1000, weeks = 100, k = 5, seed = 7) {
+function makePanel(stores = 1000, weeks = 100, k = 5, seed = 7, missing = 0) {
   const u = mulberry32(seed);
   const normal = () => Math.sqrt(-2 * Math.log(1 - u())) * Math.cos(2 * Math.PI * u());
-  const n = stores * weeks;
+  const present = Uint8Array.from({ length: stores * weeks }, () => (u() >= missing ? 1 : 0));
+  const n = present.reduce((p, q) => p + q, 0);
   const store = new Int32Array(n);
   const week = new Int32Array(n);
   const X = Array.from({ length: k }, () => new Float64Array(n));
@@ -49,9 +52,10 @@ function makePanel(stores = 1000, weeks = 100, k = 5, seed = 7) {
   const a = Float64Array.from({ length: stores }, normal);
   const g = Float64Array.from({ length: weeks }, normal);
   const b = Float64Array.from({ length: k }, (_, j) => -1.5 + 0.5 * j);
+  let i = 0;
   for (let s = 0; s < stores; s++) {
     for (let t = 0; t < weeks; t++) {
-      const i = s * weeks + t;
+      if (!present[s * weeks + t]) continue;
       store[i] = s;
       week[i] = t;
       let v = a[s] + 0.5 * g[t] + 0.3 * normal();
@@ -61,6 +65,7 @@ function makePanel(stores = 1000, weeks = 100, k = 5, seed = 7) {
         v += b[j] * x;
       }
       y[i] = v;
+      i++;
     }
   }
   return { n, k, store, week, X, y };
@@ -158,7 +163,7 @@ function maxRel(a, b) {
 if (require.main === module) {
   const argv = process.argv.slice(2);
   const runs = argv.includes("--runs") ? Number(argv[argv.indexOf("--runs") + 1]) : 3;
-  const data = makePanel();
+  const data = makePanel(1000, 100, 5, 7, argv.includes("--unbalanced") ? 0.3 : 0);
   const e = benchPanel({ runs, data });
   console.log(`engine, ${e.rows} rows × ${e.regressors} regressors, absorb store + week (a = ${e.result.absorbed}, ${e.result.iterations} CG step${e.result.iterations === 1 ? "" : "s"}), cluster by store`);
   console.log(`  median ms: prepare ${e.medianMs.prepare.toFixed(0)}, demean + fit ${e.medianMs.fit.toFixed(0)}, cluster ${e.medianMs.cluster.toFixed(0)}, total ${e.medianMs.total.toFixed(0)}`);
