@@ -245,13 +245,13 @@ export class Absorber {
     return new Absorber(this.keys.map((k) => ({ name: k.name, codes: k.codes, levels: k.levels })), weights, this.components);
   }
 
-  /** x − (weighted) group means of key A, into out (may be x). */
-  private demeanA(x: Float64Array, out: Float64Array): void {
+  /** x − (weighted) group means of key A, into out (may be x); the second pass removes what rounding left. */
+  private demeanA(x: Float64Array, out: Float64Array, passes = 2): void {
     const { codes, total } = this.keys[0];
     const w = this.weights;
     const s = this.sumA;
     const n = this.n;
-    for (let pass = 0; pass < 2; pass++) {
+    for (let pass = 0; pass < passes; pass++) {
       const src = pass === 0 ? x : out;
       s.fill(0);
       if (w) for (let i = 0; i < n; i++) s[codes[i]] += w[i] * src[i];
@@ -336,7 +336,7 @@ export class Absorber {
       iter++;
       // v = M_A D_B p ; q = D_Bᵀ W v
       for (let i = 0; i < n; i++) v[i] = p[bc[i]];
-      this.demeanA(v, v);
+      this.demeanA(v, v, 1); // a search direction: one pass is accurate enough (r's B-sums are recomputed)
       this.sumsB(v, q);
       let pq = 0;
       for (let t = 0; t < GB; t++) pq += p[t] * q[t];
