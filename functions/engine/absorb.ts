@@ -55,6 +55,39 @@ export function codesOf(values: ArrayLike<string | number>): { codes: Int32Array
   return { codes, levels: map.size };
 }
 
+/**
+ * Period codes 0..T−1 in time order: numbers ascending, text in order of first appearance (so that
+ * Driscoll–Kraay lags run over periods in time order).
+ */
+export function timeCodes(values: ArrayLike<string | number>): { codes: Int32Array; levels: number } {
+  const distinct: (string | number)[] = [];
+  const seen = new Set<string | number>();
+  let numeric = true;
+  for (let i = 0; i < values.length; i++) {
+    const v = values[i];
+    if (!seen.has(v)) {
+      seen.add(v);
+      distinct.push(v);
+      if (typeof v !== "number") numeric = false;
+    }
+  }
+  if (numeric) distinct.sort((a, b) => (a as number) - (b as number));
+  const map = new Map<string | number, number>(distinct.map((v, t) => [v, t]));
+  return { codes: Int32Array.from({ length: values.length }, (_, i) => map.get(values[i]) as number), levels: distinct.length };
+}
+
+/** Whether a column after absorbing is too short (relative to before) to be anything but rounding. */
+export function collinearWithEffects(before: Float64Array, after: Float64Array, w: ArrayLike<number> | null): boolean {
+  let b = 0;
+  let a = 0;
+  for (let i = 0; i < before.length; i++) {
+    const wi = w ? w[i] : 1;
+    b += wi * before[i] * before[i];
+    a += wi * after[i] * after[i];
+  }
+  return !(a > ABSORBED_COLLINEAR * ABSORBED_COLLINEAR * b);
+}
+
 /** Renumbers codes 0..G−1 in order of first appearance over the rows where keep is set. */
 export function recode(codes: Int32Array, keep: Uint8Array | null = null): { codes: Int32Array; levels: number } {
   let maxCode = 0;
@@ -309,6 +342,10 @@ export class Absorber {
     }
     const scale = Math.sqrt(ss / sw);
     if (scale === 0) return 0;
+    // M_A x already at rounding level: the full residual is no longer (the caller names the column).
+    let xx = 0;
+    for (let i = 0; i < n; i++) xx += (w ? w[i] : 1) * x[i] * x[i];
+    if (scale <= 1e-3 * ABSORBED_COLLINEAR * Math.sqrt(xx / sw)) return 0;
     const limit = ABSORB_TOL * scale;
     const g = this.gB; // residual of the reduced equations: B-sums of r
     const zv = new Float64Array(GB);
@@ -383,9 +420,15 @@ export class Absorber {
     return this.absorbed;
   }
 
-  /** Rows and weight total of each value of each key, in the order the keys were given to prepare. */
+  /** The keys' names (the key with more values first). */
   get keyNames(): string[] {
     return this.keys.map((k) => k.name);
+  }
+
+  /** "does not vary within Store" / "is a sum of a Store part and a Week part", for messages. */
+  explainedPhrase(): string {
+    const [a, b] = this.keyNames;
+    return b === undefined ? `does not vary within ${a}` : `is a sum of a ${a} part and a ${b} part`;
   }
 }
 
@@ -414,8 +457,8 @@ export function prepareAbsorption(keys: FixedEffectKey[], weights: Float64Array 
   });
   let usable = 0;
   for (let i = 0; i < n; i++) if (!keep || keep[i]) usable++;
-  if (weights && keep) {
-    for (let i = 0; i < n; i++) if (keep[i] && !(weights[i] > 0)) throw new Error("weights must be positive on the rows kept");
+  if (weights) {
+    for (let i = 0; i < n; i++) if ((!keep || keep[i]) && !(weights[i] > 0 && Number.isFinite(weights[i]))) throw new Error("weights must be positive on the rows kept (leave the others out with usableWeights)");
   }
   keys.forEach((k) => {
     const r = recode(k.codes, keep);
@@ -479,15 +522,8 @@ export function fitAbsorbed(absorber: Absorber, y: Float64Array, X: Float64Array
   const Xt = X.map((c, j) => {
     const d = new Float64Array(n);
     absorber.demean(c, d);
-    let before = 0;
-    let after = 0;
-    for (let i = 0; i < n; i++) {
-      const wi = w ? w[i] : 1;
-      before += wi * c[i] * c[i];
-      after += wi * d[i] * d[i];
-    }
-    if (!(after > ABSORBED_COLLINEAR * ABSORBED_COLLINEAR * before)) {
-      fail(`${names[j]} does not vary within ${absorber.keyNames.join(" and ")} (collinear with the fixed effects): its effect cannot be told apart from them; remove it from x or absorb fewer keys`);
+    if (collinearWithEffects(c, d, w)) {
+      fail(`${names[j]} ${absorber.explainedPhrase()} (collinear with the fixed effects): its effect cannot be told apart from them; remove it from x or absorb fewer keys`);
     }
     if (sw) for (let i = 0; i < n; i++) d[i] *= sw[i];
     return d;
@@ -495,7 +531,7 @@ export function fitAbsorbed(absorber: Absorber, y: Float64Array, X: Float64Array
   if (sw) for (let i = 0; i < n; i++) yt[i] *= sw[i];
   const qr = leastSquares(Xt, yt, (d) => {
     const name = names[d.column];
-    if (d.on.length === 0) return fail(`${name} does not vary within ${absorber.keyNames.join(" and ")} (collinear with the fixed effects): remove it from x`);
+    if (d.on.length === 0) return fail(`${name} ${absorber.explainedPhrase()} (collinear with the fixed effects): remove it from x`);
     return fail(`${name} is, after absorbing ${absorber.keyNames.join(" and ")}, an exact linear combination of ${d.on.map((i) => names[i]).join(", ")} (collinear): remove one of these columns`);
   });
   const u = qr.resid;

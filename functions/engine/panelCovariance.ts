@@ -333,7 +333,12 @@ export function driscollKraay(m: ScoreModel, periods: Int32Array | null, lags: n
   return { V: sandwich(m.qr, M), df: dfResid(m), label: `Driscoll–Kraay, ${L} lag${L === 1 ? "" : "s"}`, negative: [], lags: L, groups: [T] };
 }
 
-/** Standard errors; a negative variance gives NaN, which the cell layer must turn into #N/A with a reason. */
+/** The reason to show (as #N/A) for a term whose two-way cluster variance came out negative. */
+export function negativeVarianceReason(term: string): string {
+  return `the two-way clustered variance of ${term} came out negative (V₁ + V₂ − V₁₂ is not repaired), so it has no standard error: cluster by one key only, or use se=DK`;
+}
+
+/** Standard errors; a negative variance gives NaN, which the cell layer must turn into #N/A with negativeVarianceReason. */
 export function panelStandardErrors(c: PanelCovariance, k: number): Float64Array {
   return Float64Array.from({ length: k }, (_, j) => (c.V[j * k + j] >= 0 ? Math.sqrt(c.V[j * k + j]) : NaN));
 }

@@ -21,7 +21,7 @@
  */
 import { leastSquares, type QrFit } from "./leastSquares";
 import { count, fail, unavailable } from "./problems";
-import { Absorber, dropSingletons, keepRows, recode, type FixedEffectKey } from "./absorb";
+import { Absorber, collinearWithEffects, dropSingletons, keepRows, recode, type FixedEffectKey } from "./absorb";
 import type { ScoreModel } from "./panelCovariance";
 
 /** Convergence tolerance (as for PPML without fixed effects) and the iteration limit. */
@@ -115,7 +115,9 @@ export function ppmlAbsorbed(input: PpmlAbsorbedInput): PpmlAbsorbedFit {
   const maxIter = input.maxIter ?? PPML_MAX_ITER;
   const k = input.X.length;
   for (let i = 0; i < input.y.length; i++) {
-    if ((!input.keep || input.keep[i]) && !(input.y[i] >= 0)) fail(`${yName} has a negative value: PPML needs y at or above zero`);
+    if (input.keep && !input.keep[i]) continue;
+    if (!(input.y[i] >= 0)) fail(`${yName} has a negative value: PPML needs y at or above zero`);
+    if (input.weights && !(input.weights[i] > 0 && Number.isFinite(input.weights[i]))) throw new Error("weights must be positive on the rows kept (leave the others out with usableWeights)");
   }
   const lo = leaveOut(input.y, input.keys.map((c) => c.codes), input.keep ?? null);
   const keep = lo.keep;
@@ -145,7 +147,7 @@ export function ppmlAbsorbed(input: PpmlAbsorbedInput): PpmlAbsorbedFit {
   const omega = new Float64Array(n);
   const collinear = (d: { column: number; on: number[] }): never =>
     d.on.length === 0
-      ? fail(`${names[d.column]} does not vary within ${base.keyNames.join(" and ")} in the rows PPML can use (collinear with the fixed effects): remove it from x`)
+      ? fail(`${names[d.column]} ${base.explainedPhrase()} in the rows PPML can use (collinear with the fixed effects): remove it from x`)
       : fail(`${names[d.column]} is, after absorbing ${base.keyNames.join(" and ")}, an exact linear combination of ${d.on.map((j) => names[j]).join(", ")} (collinear): remove one of these columns`);
   const step = (): { coef: Float64Array; etaNew: Float64Array; qr: QrFit; Xs: Float64Array[]; ab: Absorber } => {
     for (let i = 0; i < n; i++) {
@@ -155,9 +157,10 @@ export function ppmlAbsorbed(input: PpmlAbsorbedInput): PpmlAbsorbedFit {
     const ab = base.reweighted(Float64Array.from(omega));
     const zt = new Float64Array(n);
     ab.demean(z, zt);
-    const Xs = X.map((c) => {
+    const Xs = X.map((c, j) => {
       const d = new Float64Array(n);
       ab.demean(c, d);
+      if (collinearWithEffects(c, d, omega)) collinear({ column: j, on: [] });
       return d;
     });
     for (let i = 0; i < n; i++) {

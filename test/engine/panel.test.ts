@@ -16,8 +16,8 @@
  */
 import * as fs from "fs";
 import * as path from "path";
-import { connectedComponents, dropSingletons, fitAbsorbed, keepRows, prepareAbsorption, usableWeights, Absorber, type FixedEffectKey } from "../../functions/engine/absorb";
-import { clusterCovariance, driscollKraay, panelClassical, panelHac, panelHc, type ScoreModel } from "../../functions/engine/panelCovariance";
+import { connectedComponents, dropSingletons, fitAbsorbed, keepRows, timeCodes, prepareAbsorption, usableWeights, Absorber, type FixedEffectKey } from "../../functions/engine/absorb";
+import { clusterCovariance, driscollKraay, negativeVarianceReason, panelClassical, panelHac, panelHc, panelStandardErrors, type ScoreModel } from "../../functions/engine/panelCovariance";
 import { classicalCovariance, hacCovariance, hcCovariance } from "../../functions/engine/covariance";
 import { leastSquares } from "../../functions/engine/leastSquares";
 import { ppmlAbsorbed } from "../../functions/engine/ppmlAbsorbed";
@@ -207,6 +207,11 @@ describe("singletons and the graph of two keys", () => {
   });
 });
 
+test("time codes: numbers ascending, text in order of first appearance", () => {
+  expect(Array.from(timeCodes([2019, 2017, 2018, 2017]).codes)).toEqual([2, 0, 1, 0]);
+  expect(Array.from(timeCodes(["Q3", "Q1", "Q3", "Q2"]).codes)).toEqual([0, 1, 0, 2]);
+});
+
 describe("a negative two-way cluster variance is reported, not repaired", () => {
   test("hand example: V = −1/3", () => {
     // x = 1 in 4 rows, y = 3, 1, 1, 3: b = 2, e = 1, −1, −1, 1, so the scores x·e are 1, −1, −1, 1.
@@ -220,6 +225,8 @@ describe("a negative two-way cluster variance is reported, not repaired", () => 
     expect(r.V[0]).toBeCloseTo(-1 / 3, 14);
     expect(r.negative).toEqual([0]);
     expect(r.df).toBe(1);
+    expect(Number.isNaN(panelStandardErrors(r, 1)[0])).toBe(true);
+    expect(negativeVarianceReason("Price")).toMatch(/two-way clustered variance of Price came out negative/);
   });
 });
 
@@ -252,6 +259,12 @@ describe("problems in the analyst's words", () => {
     const prep = prepareAbsorption([firm], null);
     expectProblem(() => fitAbsorbed(prep.absorber, y, [X[0], firmLevel], ["Price", "Store size"]), /Store size does not vary within Store \(collinear with the fixed effects\)/);
   });
+  test("two keys: a regressor that is a store part plus a week part is named as collinear with the fixed effects", () => {
+    const g = byName("grunfeld_twoway");
+    const sum = Float64Array.from(g.keys.firm, (f, i) => 0.1 * f + Math.sin(g.keys.year[i]));
+    const prep = prepareAbsorption([{ name: "Store", codes: Int32Array.from(g.keys.firm) }, { name: "Week", codes: Int32Array.from(g.keys.year) }], null);
+    expectProblem(() => fitAbsorbed(prep.absorber, Float64Array.from(g.y), [Float64Array.from(g.x.lvalue), sum], ["Price", "Promo"]), /Promo is a sum of a Week part and a Store part \(collinear with the fixed effects\)/);
+  });
   test("HC2/HC3 with two keys point to cluster or HC1", () => {
     const { model } = absorbedModel(byName("grunfeld_twoway"), ["firm", "year"]);
     expectProblem(() => panelHc(model, "HC2"), /se=HC2 needs each row's leverage, which two absorbed fixed effects do not give exactly: use se=cluster .* or se=HC1/);
@@ -277,6 +290,12 @@ describe("problems in the analyst's words", () => {
     const prep = prepareAbsorption(["firm", "year"].map((k) => ({ name: k === "firm" ? "Store" : "Week", codes: Int32Array.from(e.keys[k]) })), null);
     prep.absorber.iterationLimit = 1;
     expectProblem(() => prep.absorber.demean(Float64Array.from(e.x.lwage)), /the fixed effects Store and Week could not be separated to full accuracy in 1 rounds .* absorb only one of them/);
+  });
+  test("PPML: a regressor constant within every store is named as collinear with the fixed effects", () => {
+    const means = new Float64Array(10);
+    c.keys.firm.forEach((g, i) => (means[g] += X[0][i] / 20));
+    const firmLevel = Float64Array.from(c.keys.firm, (g) => means[g]);
+    expectProblem(() => ppmlAbsorbed({ y: Float64Array.from(c.y, Math.exp), X: [X[0], firmLevel], names: ["Price", "Store size"], yName: "Units", keys: [firm] }), /Store size does not vary within Store in the rows PPML can use \(collinear with the fixed effects\)/);
   });
   test("PPML with fixed effects refuses HC3 with the estimator's reason", () => {
     const fit = ppmlAbsorbed({ y: Float64Array.from(c.y, Math.exp), X, names, yName: "Units", keys: [firm] });
