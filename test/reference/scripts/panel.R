@@ -152,7 +152,7 @@ ols_case <- function(name, source, d, y, x, fe, clusters, unit, time, w = NULL, 
       for (L in names(dk)) check(close_to(sqrt_diag(vcovSCC(pm, type = "HC0", maxlag = as.numeric(L)), x), dk[[L]], 1e-9), paste(name, "vcovSCC"))
       out$plm_within_r_squared <- scalar(unname(summary(pm)$r.squared["rsq"]))
       # plm::vcovNW is not the within-unit HAC of this file (recorded for the report)
-      out$plm_vcovNW_matches_hac_within <- scalar(close_to(sqrt_diag(vcovNW(pm, maxlag = default_lags(Tunit)), x), hac[[as.character(default_lags(Tunit))]], 1e-6))
+      out$plm_vcovNW_matches_hac_within <- scalar(close_to(sqrt_diag(vcovNW(pm, maxlag = default_lags(Tunit)), x), hac[[as.character(default_lags(Tunit))]], 1e-9))
     }
     if (length(fe) == 2) {
       pm <- plm(pf, data = pd, model = "within", effect = "twoways")
