@@ -331,6 +331,8 @@ export class Absorber {
     const bc = B.codes;
     const WB = B.total;
     const GB = B.levels;
+    let xx = 0; // before r overwrites x (out may be x)
+    for (let i = 0; i < n; i++) xx += (w ? w[i] : 1) * x[i] * x[i];
     const r = out;
     this.demeanA(x, r); // r = M_A x, γ = 0
     let ss = 0;
@@ -343,8 +345,6 @@ export class Absorber {
     const scale = Math.sqrt(ss / sw);
     if (scale === 0) return 0;
     // M_A x already at rounding level: the full residual is no longer (the caller names the column).
-    let xx = 0;
-    for (let i = 0; i < n; i++) xx += (w ? w[i] : 1) * x[i] * x[i];
     if (scale <= 1e-3 * ABSORBED_COLLINEAR * Math.sqrt(xx / sw)) return 0;
     const limit = ABSORB_TOL * scale;
     const g = this.gB; // residual of the reduced equations: B-sums of r

@@ -125,6 +125,15 @@ describe("absorbing a key equals adding its indicator columns (Frisch–Waugh–
     relClose(diag(panelHc(model, "HC1").V, 2), diag(hcCovariance(full, qr, "HC1", null, r).V, K, 0, 2), 1e-10, "HC1");
   });
 
+  test("demeaning in place gives the same column as into a new array (two keys, unbalanced)", () => {
+    const e = byName("empluk_twoway");
+    const prep = prepareAbsorption(["firm", "year"].map((k) => ({ name: k, codes: Int32Array.from(e.keys[k]) })), null);
+    const x = Float64Array.from(e.x.lwage);
+    const copy = prep.absorber.demean(x);
+    expect(prep.absorber.demean(x, x)).toBe(x);
+    expect(Array.from(x)).toEqual(Array.from(copy));
+  });
+
   test("a balanced two-way panel separates in one conjugate-gradient step", () => {
     const { fit } = absorbedModel(byName("grunfeld_twoway"), ["firm", "year"]);
     expect(fit.absorber.maxIterations).toBe(1);
