@@ -47,7 +47,7 @@ export function defaultLags(n: number): number {
 }
 
 /** Rows per block in the passes below (k·BLOCK doubles stay in cache). */
-const BLOCK = 256;
+export const BLOCK = 256;
 
 /**
  * Rows start … start+m−1 of Q = X_s R⁻¹ into Z (column-major, column j at j·BLOCK): for each j,
@@ -80,7 +80,7 @@ function qRows(X: Float64Array[], qr: QrFit, inv: Float64Array, start: number, m
 }
 
 /** Visits the rows of Q block by block: visit(start, m, Z) with Z as qRows fills it. */
-function forEachQBlock(X: Float64Array[], qr: QrFit, visit: (start: number, m: number, Z: Float64Array) => void): void {
+export function forEachQBlock(X: Float64Array[], qr: QrFit, visit: (start: number, m: number, Z: Float64Array) => void): void {
   const Z = new Float64Array(qr.k * BLOCK);
   const inv = Float64Array.from(qr.scale, (s) => 1 / s);
   for (let start = 0; start < qr.n; start += BLOCK) {
@@ -91,7 +91,7 @@ function forEachQBlock(X: Float64Array[], qr: QrFit, visit: (start: number, m: n
 }
 
 /** Rinv · M · Rinvᵀ for symmetric M (row-major k×k), then back to the columns' original units. */
-function sandwich(qr: QrFit, M: Float64Array): Float64Array {
+export function sandwich(qr: QrFit, M: Float64Array): Float64Array {
   const { k, Rinv, scale } = qr;
   const T = new Float64Array(k * k); // T = Rinv · M
   for (let i = 0; i < k; i++) {
