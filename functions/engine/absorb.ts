@@ -529,11 +529,14 @@ export function fitAbsorbed(absorber: Absorber, y: Float64Array, X: Float64Array
     return d;
   });
   if (sw) for (let i = 0; i < n; i++) yt[i] *= sw[i];
-  const qr = leastSquares(Xt, yt, (d) => {
+  const ls = leastSquares(Xt, yt);
+  if (!ls.qr) {
+    const d = ls.dependent;
     const name = names[d.column];
     if (d.on.length === 0) return fail(`${name} ${absorber.explainedPhrase()} (collinear with the fixed effects): remove it from x`);
     return fail(`${name} is, after absorbing ${absorber.keyNames.join(" and ")}, an exact linear combination of ${d.on.map((i) => names[i]).join(", ")} (collinear): remove one of these columns`);
-  });
+  }
+  const qr = ls.qr;
   const u = qr.resid;
   const resid = sw ? Float64Array.from(u, (v, i) => v / sw[i]) : u;
   const ybar = weightedMean(y, w);

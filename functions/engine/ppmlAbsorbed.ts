@@ -168,7 +168,8 @@ export function ppmlAbsorbed(input: PpmlAbsorbedInput): PpmlAbsorbedFit {
       zt[i] *= s;
       for (let j = 0; j < k; j++) Xs[j][i] *= s;
     }
-    const qr = leastSquares(Xs, zt, collinear);
+    const ls = leastSquares(Xs, zt);
+    const qr = ls.qr ?? collinear(ls.dependent as { column: number; on: number[] });
     const etaNew = Float64Array.from(z, (v, i) => v - qr.resid[i] / Math.sqrt(omega[i]));
     return { coef: Float64Array.from(qr.coef), etaNew, qr, Xs, ab };
   };

@@ -18,7 +18,7 @@ import * as fs from "fs";
 import * as path from "path";
 import { connectedComponents, dropSingletons, fitAbsorbed, keepRows, timeCodes, prepareAbsorption, usableWeights, Absorber, type FixedEffectKey } from "../../functions/engine/absorb";
 import { clusterCovariance, driscollKraay, negativeVarianceReason, panelClassical, panelHac, panelHc, panelStandardErrors, type ScoreModel } from "../../functions/engine/panelCovariance";
-import { classicalCovariance, hacCovariance, hcCovariance } from "../../functions/engine/covariance";
+import { classicalCovariance, hacCovariance, hcCovariance, leastSquaresInput } from "../../functions/engine/covariance";
 import { leastSquares } from "../../functions/engine/leastSquares";
 import { ppmlAbsorbed } from "../../functions/engine/ppmlAbsorbed";
 import { ElxProblem } from "../../functions/engine/problems";
@@ -72,19 +72,19 @@ describe("absorbing a key equals adding its indicator columns (Frisch–Waugh–
     const { fit, model, names } = absorbedModel(c, ["firm"]);
     const k = names.length;
     const full = [...names.map((v) => Float64Array.from(c.x[v])), ...indicators(c.keys.firm, false)];
-    const qr = leastSquares(full, Float64Array.from(c.y), noDep);
+    const qr = leastSquares(full, Float64Array.from(c.y)).qr ?? noDep();
     const K = full.length;
     relClose(fit.coef, qr.coef.slice(0, k), 1e-10, "slopes");
-    relClose(diag(panelClassical(model).V, k), diag(classicalCovariance(qr), K, 0, k), 1e-10, "classical");
+    relClose(diag(panelClassical(model).V, k), diag(classicalCovariance(leastSquaresInput(full, qr, Int32Array.from({ length: qr.n }, (_, i) => i + 1))), K, 0, k), 1e-10, "classical");
     const rows = Int32Array.from({ length: qr.n }, (_, i) => i + 1);
     for (const type of ["HC1", "HC3"] as const) {
-      relClose(diag(panelHc(model, type).V, k), diag(hcCovariance(full, qr, type, null, rows).V, K, 0, k), 1e-10, type);
+      relClose(diag(panelHc(model, type).V, k), diag(hcCovariance(leastSquaresInput(full, qr, rows), type, null).V, K, 0, k), 1e-10, type);
     }
     const year = { name: "year", codes: Int32Array.from(c.cluster.year.codes.year) };
     const fullModel: ScoreModel = { X: full, qr, u: qr.resid, absorbed: 0, leverageOffset: new Float64Array(qr.n) };
     relClose(diag(clusterCovariance(model, [year], 0).V, k), diag(clusterCovariance(fullModel, [year], 0).V, K, 0, k), 1e-10, "cluster by year");
     // HAC within one unit spanning all rows is the ordinary Newey–West of covariance.ts
-    relClose(diag(panelHac(fullModel, new Int32Array(qr.n), 3).V, K, 0, k), diag(hacCovariance(full, qr, 3), K, 0, k), 1e-12, "HAC one unit");
+    relClose(diag(panelHac(fullModel, new Int32Array(qr.n), 3).V, K, 0, k), diag(hacCovariance(leastSquaresInput(full, qr, Int32Array.from({ length: qr.n }, (_, i) => i + 1)), 3), K, 0, k), 1e-12, "HAC one unit");
   });
 
   test("two keys, unbalanced (EmplUK, firm and year): slopes, HC1, two-way cluster, DK, 1e-10; a = G₁ + G₂ − 1", () => {
@@ -92,13 +92,13 @@ describe("absorbing a key equals adding its indicator columns (Frisch–Waugh–
     const { fit, model, names, periods } = absorbedModel(c, ["firm", "year"]);
     const k = names.length;
     const full = [...names.map((v) => Float64Array.from(c.x[v])), ...indicators(c.keys.firm, false), ...indicators(c.keys.year, true)];
-    const qr = leastSquares(full, Float64Array.from(c.y), noDep);
+    const qr = leastSquares(full, Float64Array.from(c.y)).qr ?? noDep();
     const K = full.length;
     expect(fit.absorbed).toBe(K - k);
     expect(fit.absorber.components).toBe(1);
     relClose(fit.coef, qr.coef.slice(0, k), 1e-10, "slopes");
     const rows = Int32Array.from({ length: qr.n }, (_, i) => i + 1);
-    relClose(diag(panelHc(model, "HC1").V, k), diag(hcCovariance(full, qr, "HC1", null, rows).V, K, 0, k), 1e-10, "HC1");
+    relClose(diag(panelHc(model, "HC1").V, k), diag(hcCovariance(leastSquaresInput(full, qr, rows), "HC1", null).V, K, 0, k), 1e-10, "HC1");
     const fullModel: ScoreModel = { X: full, qr, u: qr.resid, absorbed: 0, leverageOffset: null };
     const cl = [{ name: "firm", codes: Int32Array.from(c.keys.firm) }, { name: "year", codes: Int32Array.from(c.keys.year) }];
     // the indicator regression has no nested count of its own: compare with a_n = 0 on both sides
@@ -117,12 +117,12 @@ describe("absorbing a key equals adding its indicator columns (Frisch–Waugh–
     const pick = (v: number[]) => rows.map((i) => v[i]);
     const yearCols = indicators(pick(c.keys.year), false).filter((_, t) => t !== 0 && t !== 10); // one year per component is redundant
     const full = [...names.map((v) => Float64Array.from(pick(c.x[v]))), ...indicators(pick(c.keys.firm), false), ...yearCols];
-    const qr = leastSquares(full, Float64Array.from(pick(c.y)), noDep);
+    const qr = leastSquares(full, Float64Array.from(pick(c.y))).qr ?? noDep();
     const K = full.length;
     expect(K - 2).toBe(28);
     relClose(fit.coef, qr.coef.slice(0, 2), 1e-10, "slopes");
     const r = Int32Array.from({ length: qr.n }, (_, i) => i + 1);
-    relClose(diag(panelHc(model, "HC1").V, 2), diag(hcCovariance(full, qr, "HC1", null, r).V, K, 0, 2), 1e-10, "HC1");
+    relClose(diag(panelHc(model, "HC1").V, 2), diag(hcCovariance(leastSquaresInput(full, qr, r), "HC1", null).V, K, 0, 2), 1e-10, "HC1");
   });
 
   test("demeaning in place gives the same column as into a new array (two keys, unbalanced)", () => {
@@ -148,13 +148,13 @@ describe("absorbing a key equals adding its indicator columns (Frisch–Waugh–
     const fit = fitAbsorbed(prep.absorber, y, X, names);
     const model: ScoreModel = { X: fit.X, qr: fit.qr, u: fit.u, absorbed: fit.absorbed, leverageOffset: prep.absorber.leverageOffset() };
     const full = [new Float64Array(y.length).fill(1), ...X];
-    const qr = leastSquares(full, y, noDep);
+    const qr = leastSquares(full, y).qr ?? noDep();
     relClose(fit.coef, qr.coef.slice(1), 1e-10, "slopes");
     const rows = Int32Array.from({ length: qr.n }, (_, i) => i + 1);
     for (const type of ["HC1", "HC2", "HC3"] as const) {
-      relClose(diag(panelHc(model, type).V, 2), diag(hcCovariance(full, qr, type, null, rows).V, 3, 1, 2), 1e-10, type);
+      relClose(diag(panelHc(model, type).V, 2), diag(hcCovariance(leastSquaresInput(full, qr, rows), type, null).V, 3, 1, 2), 1e-10, type);
     }
-    relClose(diag(panelClassical(model).V, 2), diag(classicalCovariance(qr), 3, 1, 2), 1e-10, "classical");
+    relClose(diag(panelClassical(model).V, 2), diag(classicalCovariance(leastSquaresInput(full, qr, Int32Array.from({ length: qr.n }, (_, i) => i + 1))), 3, 1, 2), 1e-10, "classical");
   });
 });
 
@@ -255,7 +255,7 @@ describe("a negative two-way cluster variance is reported, not repaired", () => 
     // rows, Σ s² = 4 with factor 4/3. B = (XᵀX)⁻¹ = 1/4, p = 1, (n−1)/(n−p) = 1:
     // V = (1/4)·(0 + 0 − (4/3)·4)·(1/4) = −1/3.
     const x = new Float64Array(4).fill(1);
-    const qr = leastSquares([x], Float64Array.from([3, 1, 1, 3]), noDep);
+    const qr = leastSquares([x], Float64Array.from([3, 1, 1, 3])).qr ?? noDep();
     const m: ScoreModel = { X: [x], qr, u: qr.resid, absorbed: 0, leverageOffset: new Float64Array(4) };
     const r = clusterCovariance(m, [{ name: "A", codes: Int32Array.from([0, 0, 1, 1]) }, { name: "B", codes: Int32Array.from([0, 1, 0, 1]) }]);
     expect(r.V[0]).toBeCloseTo(-1 / 3, 14);
