@@ -228,6 +228,10 @@ export interface Covariance {
   type: SeType;
   /** Row-major k×k. */
   V: Float64Array;
+  /** Degrees of freedom of t, p and intervals when they are not the fit's residual df (clusters: G − 1). */
+  df?: number;
+  /** Terms whose variance came out negative (two-way clusters, not repaired): shown as not available. */
+  negative?: number[];
   /** Lag length used, for HAC. */
   lags?: number;
   /** Label for output headers: "HC3", "HAC, 4 lags". */

@@ -53,9 +53,9 @@ export function estimatorOf(o: Options): EstimatorEntry {
   return ESTIMATORS[o.estimator];
 }
 
-/** The covariance type in force: the one asked for, else the estimator's default. */
+/** The covariance type in force: the one asked for, else cluster when cluster= is given, else the estimator's default. */
 export function seTypeOf(o: Options): SeType {
-  return o.se ?? ESTIMATORS[o.estimator].defaultSe;
+  return o.se ?? (o.cluster.length > 0 ? "cluster" : ESTIMATORS[o.estimator].defaultSe);
 }
 
 /** Refuses a covariance type the estimator does not offer, listing the ones it does. */

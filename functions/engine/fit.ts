@@ -11,6 +11,8 @@ import { originalMedian, transformLabel, type Dataset, type Transform } from "./
 import { fisherSf, studentQuantile, studentTwoSided } from "./distributions";
 import type { SeType } from "./options";
 import { requireSeType, type EstimatorInfo } from "./estimators";
+import { clusterCovariance, driscollKraay, panelClassical, panelHac, panelHc, type PanelCovariance, type ScoreModel } from "./panelCovariance";
+import { fitAbsorbed, prepareAbsorption, type Absorber } from "./absorb";
 
 export const INTERCEPT = "(Intercept)";
 
@@ -36,6 +38,8 @@ export interface FitStatistics {
   logLik: number;
   aic: number;
   bic: number;
+  /** R² of the data after absorbing the fixed effects (null without fixed effects). */
+  withinRSquared?: number | null;
 }
 
 /**
@@ -58,7 +62,9 @@ export abstract class Model {
   readonly n: number;
   readonly k: number;
   /** Parameters estimated besides the k coefficients shown (absorbed fixed effects). */
-  readonly absorbed: number = 0;
+  absorbed = 0;
+  /** The fixed effects absorbed (null without absorb=). */
+  absorber: Absorber | null = null;
   /** The factor of the columns the covariances are computed on. */
   abstract readonly qr: QrFit;
   protected leverageCache: Float64Array | null = null;
@@ -109,9 +115,15 @@ export abstract class Model {
     if (!c) {
       let V: Float64Array;
       const input = this.covarianceInput();
+      const panel = this.panelCovariance(type, lags);
+      if (panel) {
+        c = { type, V: panel.V, df: panel.df === this.dfResid ? undefined : panel.df, negative: panel.negative, lags: panel.lags, label: panel.label };
+        this.covCache.set(key, c);
+        return c;
+      }
       if (type === "classical") V = classicalCovariance(input);
       else if (type === "HAC") V = hacCovariance(input, L);
-      else if (type === "cluster" || type === "DK") V = this.groupedCovariance(type, input);
+      else if (type === "cluster" || type === "DK") return fail("unreachable covariance type");
       else {
         const r = hcCovariance(input, type, this.leverageCache);
         if (r.h) this.leverageCache = r.h;
@@ -123,10 +135,45 @@ export abstract class Model {
     return c;
   }
 
-  /** Cluster-robust and Driscoll–Kraay covariances need the fit's role columns (panel fits). */
-  protected groupedCovariance(type: "cluster" | "DK", input: CovarianceInput): Float64Array {
-    void input;
-    return fail(type === "cluster" ? "se=cluster needs cluster= naming the column of clusters (for example cluster=Store)" : "se=DK needs time= naming the column of periods (for example time=Week)");
+  /** The covariance input as the panel covariances read it (scores x_i·u_i in the factor's space). */
+  protected scoreModel(): ScoreModel {
+    return this.memo("scoreModel", () => {
+      const c = this.covarianceInput();
+      const offset = this.absorber ? this.absorber.leverageOffset() : new Float64Array(this.n);
+      return { X: c.columns, qr: c.factor, u: c.scores, absorbed: this.absorbed, leverageOffset: offset, rowNumbers: c.rowNumbers };
+    });
+  }
+
+  /**
+   * Covariances that need the role columns or absorbed parameters: cluster-robust (cluster=), Driscoll–
+   * Kraay (time=), HAC within panel units (panel=), and every type of a fit with fixed effects; null
+   * for the plain types of a fit without them (computed by covariance.ts).
+   */
+  private panelCovariance(type: SeType, lags: number | null): PanelCovariance | null {
+    const roles = this.data.roles;
+    if (type === "cluster") {
+      if (roles.cluster.length === 0) fail("se=cluster needs cluster= naming the column of clusters (for example cluster=Store)");
+      const keys = roles.cluster.map((c) => ({ name: c.name, codes: c.codes }));
+      const nested = this.absorber ? this.absorber.nestedAbsorbed(keys.map((k) => k.codes)) : 0;
+      return clusterCovariance(this.scoreModel(), keys, nested);
+    }
+    if (type === "DK") {
+      if (!roles.time) fail("se=DK needs time= naming the column of periods (for example time=Week)");
+      return driscollKraay(this.scoreModel(), roles.time.codes, lags);
+    }
+    if (type === "HAC" && roles.panel) return panelHac(this.scoreModel(), roles.panel.codes, lags, roles.panel.name);
+    if (this.absorbed === 0) return null;
+    if (type === "classical") return panelClassical(this.scoreModel());
+    if (type === "HAC") return null;
+    return panelHc(this.scoreModel(), type);
+  }
+
+  /** A column with the fixed effects absorbed and scaled by √w, as the covariance columns are (itself without either). */
+  within(col: Float64Array): Float64Array {
+    let out = this.absorber ? this.absorber.demean(col) : col;
+    const w = this.data.roles.weights;
+    if (w) out = Float64Array.from(out, (v, i) => v * Math.sqrt(w[i]));
+    return out;
   }
 
   /** Standard errors under a covariance. */
@@ -136,11 +183,11 @@ export abstract class Model {
     return se;
   }
 
-  /** The quantile for a two-sided interval at `level` (Student t for OLS, normal for PPML). */
-  abstract criticalValue(level: number): number;
+  /** The quantile for a two-sided interval at `level` (Student t for OLS, normal for PPML), under `cov`'s df. */
+  abstract criticalValue(level: number, cov?: Covariance): number;
 
-  /** Two-sided p-value of a t (or z) statistic. */
-  abstract pValue(t: number): number;
+  /** Two-sided p-value of a t (or z) statistic under `cov`'s df. */
+  abstract pValue(t: number, cov?: Covariance): number;
 
   /** Mean or median, in original units, of x column j (−1: y) over the rows used. */
   centre(column: number, at: "mean" | "median"): number {
@@ -177,7 +224,7 @@ export abstract class Model {
 export const OLS_INFO: EstimatorInfo = Object.freeze({
   id: "ols",
   title: "least squares",
-  seTypes: ["HC3", "HC0", "HC1", "HC2", "classical", "HAC"],
+  seTypes: ["HC3", "HC0", "HC1", "HC2", "classical", "HAC", "cluster", "DK"],
   defaultSe: "HC3",
   logsY: true,
   negativeY: true,
@@ -197,15 +244,50 @@ export class OlsFit extends Model {
     return this.data.yTransform;
   }
 
+  /** y − ŷ on the fitted scale (fixed effects included), unweighted. */
+  private readonly residuals: Float64Array;
+  private readonly covInput: CovarianceInput;
+  /** R² of the full model and of the absorbed (within) data, for fits with fixed effects. */
+  private readonly absorbedR2: { full: number; within: number } | null = null;
+
+  /**
+   * Least squares of the transformed y on the design: plain; weighted (every column and y scaled by
+   * √w, so every covariance is that of the scaled regression, as R's lm(weights =)); or with fixed
+   * effects absorbed (the slopes of the regression with one 0/1 column per absorbed value, without an
+   * intercept of their own: Frisch–Waugh–Lovell, through the absorber's exact demeaning).
+   */
   constructor(data: Dataset, intercept: boolean) {
-    super(data, intercept);
+    const keys = data.roles.absorb;
+    super(data, intercept && keys.length === 0);
     const terms = this.terms;
-    const ls = leastSquares(this.design, data.y);
-    this.qr = ls.qr ?? explainDependency(ls.dependent as Dependency, terms);
+    const w = data.roles.weights;
+    if (keys.length > 0) {
+      const prep = prepareAbsorption(keys.map((k) => ({ name: k.name, codes: k.codes })), w);
+      const fe = fitAbsorbed(prep.absorber, data.y, this.design, terms.map((t) => t.name));
+      this.absorber = prep.absorber;
+      this.absorbed = fe.absorbed;
+      this.qr = fe.qr;
+      this.residuals = fe.resid;
+      this.absorbedR2 = { full: fe.rSquared, within: fe.withinRSquared };
+      this.covInput = { columns: fe.X, factor: fe.qr, scores: fe.u, ssr: fe.qr.rss, dfResid: this.dfResid, rowNumbers: data.rowNumbers };
+    } else if (w) {
+      const sw = Float64Array.from(w, Math.sqrt);
+      const Xs = this.design.map((c) => Float64Array.from(c, (v, i) => v * sw[i]));
+      const ls = leastSquares(Xs, Float64Array.from(data.y, (v, i) => v * sw[i]));
+      this.qr = ls.qr ?? explainDependency(ls.dependent as Dependency, terms);
+      const u = this.qr.resid;
+      this.residuals = Float64Array.from(u, (v, i) => v / sw[i]);
+      this.covInput = { columns: Xs, factor: this.qr, scores: u, ssr: this.qr.rss, dfResid: this.dfResid, rowNumbers: data.rowNumbers };
+    } else {
+      const ls = leastSquares(this.design, data.y);
+      this.qr = ls.qr ?? explainDependency(ls.dependent as Dependency, terms);
+      this.residuals = this.qr.resid;
+      this.covInput = leastSquaresInput(this.design, this.qr, data.rowNumbers, this.dfResid);
+    }
   }
 
   covarianceInput(): CovarianceInput {
-    return this.memo("covarianceInput", () => leastSquaresInput(this.design, this.qr, this.data.rowNumbers, this.dfResid));
+    return this.covInput;
   }
 
   get coef(): Float64Array {
@@ -213,16 +295,21 @@ export class OlsFit extends Model {
   }
 
   get resid(): Float64Array {
-    return this.qr.resid;
+    return this.residuals;
   }
 
   /** Fitted values ŷ = y − e on the fitted scale (computed on first use). */
   get fitted(): Float64Array {
     return this.memo("fitted", () => {
       const y = this.data.y;
-      const e = this.qr.resid;
+      const e = this.residuals;
       return Float64Array.from(y, (v, i) => v - e[i]);
     });
+  }
+
+  /** Whether the fit is plain least squares (no weights, no fixed effects): what the residual tests assume. */
+  get plain(): boolean {
+    return this.absorbed === 0 && this.data.roles.weights === null;
   }
 
   get rss(): number {
@@ -234,19 +321,24 @@ export class OlsFit extends Model {
     return this.qr.rss / this.dfResid;
   }
 
-  /** The Student t quantile for a two-sided interval at `level`, on n − k df. */
-  criticalValue(level: number): number {
-    return studentQuantile(0.5 + level / 2, this.dfResid);
+  /** The Student t quantile for a two-sided interval at `level`, on n − k − a df (clusters: G − 1). */
+  criticalValue(level: number, cov?: Covariance): number {
+    return studentQuantile(0.5 + level / 2, cov?.df ?? this.dfResid);
   }
 
-  pValue(t: number): number {
-    return studentTwoSided(t, this.dfResid);
+  pValue(t: number, cov?: Covariance): number {
+    return studentTwoSided(t, cov?.df ?? this.dfResid);
   }
 
   statistics(): FitStatistics {
     if (this.statsCache) return this.statsCache;
     const { n, k } = this;
     const y = this.data.y;
+    const w = this.data.roles.weights;
+    if (this.absorbedR2 || w) {
+      this.statsCache = this.weightedOrAbsorbedStatistics();
+      return this.statsCache;
+    }
     let tss = 0;
     if (this.intercept) {
       let mean = 0;
@@ -276,6 +368,61 @@ export class OlsFit extends Model {
     const bic = -2 * logLik + (k + 1) * Math.log(n);
     this.statsCache = { rSquared, adjRSquared, sigma, fStatistic, fDf1: dfModel, fDf2: this.dfResid, fPValue, logLik, aic, bic };
     return this.statsCache;
+  }
+
+  /**
+   * Statistics of a weighted or fixed-effects fit, as R's summary.lm and logLik.lm give them for
+   * lm(weights =) with one 0/1 column per absorbed value: R² about the weighted mean (the full model's
+   * with fixed effects), F of the slopes (within, with fixed effects), ℓ = ½Σlog w − n/2·(log 2π + 1 −
+   * log n + log Σwe²), AIC and BIC counting every absorbed parameter and the error variance.
+   */
+  private weightedOrAbsorbedStatistics(): FitStatistics {
+    const { n, k } = this;
+    const y = this.data.y;
+    const w = this.data.roles.weights;
+    const rss = this.rss;
+    const df = this.dfResid;
+    let rSquared: number;
+    let fStatistic: number | null = null;
+    let fPValue: number | null = null;
+    let dfModel: number;
+    let within: number | null = null;
+    if (this.absorbedR2) {
+      rSquared = this.absorbedR2.full;
+      within = this.absorbedR2.within;
+      dfModel = k;
+      const withinTss = rss / (1 - within);
+      if (k > 0 && rss > 0) {
+        fStatistic = ((withinTss - rss) / k) / (rss / df);
+        fPValue = fisherSf(fStatistic, k, df);
+      }
+    } else {
+      let sw = 0;
+      let swy = 0;
+      for (let i = 0; i < n; i++) {
+        const wi = w ? w[i] : 1;
+        sw += wi;
+        swy += wi * y[i];
+      }
+      const m = this.intercept ? swy / sw : 0;
+      let tss = 0;
+      for (let i = 0; i < n; i++) tss += (w ? w[i] : 1) * (y[i] - m) * (y[i] - m);
+      rSquared = tss > 0 ? 1 - rss / tss : NaN;
+      dfModel = k - (this.intercept ? 1 : 0);
+      if (dfModel > 0 && rss > 0) {
+        fStatistic = ((tss - rss) / dfModel) / (rss / df);
+        fPValue = fisherSf(fStatistic, dfModel, df);
+      }
+    }
+    const p = k + this.absorbed;
+    const adjRSquared = 1 - (1 - rSquared) * ((n - (this.intercept || this.absorbed > 0 ? 1 : 0)) / df);
+    let sumLogW = 0;
+    if (w) for (let i = 0; i < n; i++) sumLogW += Math.log(w[i]);
+    const logLik = 0.5 * sumLogW - 0.5 * n * (Math.log(2 * Math.PI) + 1 - Math.log(n) + Math.log(rss));
+    return {
+      rSquared, adjRSquared, sigma: Math.sqrt(rss / df), fStatistic, fDf1: dfModel, fDf2: df, fPValue,
+      logLik, aic: -2 * logLik + 2 * (p + 1), bic: -2 * logLik + (p + 1) * Math.log(n), withinRSquared: within,
+    };
   }
 
   /** Refuses a perfect fit where a quantity needs residual variation. */

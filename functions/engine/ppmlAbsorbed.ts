@@ -72,7 +72,7 @@ function deviance(y: Float64Array, mu: Float64Array, w: Float64Array | null): nu
 }
 
 /** Leaves out absorbed values with y = 0 in every row and singletons, until nothing changes. */
-function leaveOut(y: Float64Array, keys: Int32Array[], keep0: Uint8Array | null): { keep: Uint8Array; zeroRows: number; zeroValues: number; singletons: number } {
+export function leaveOut(y: Float64Array, keys: Int32Array[], keep0: Uint8Array | null): { keep: Uint8Array; zeroRows: number; zeroValues: number; singletons: number } {
   const n = y.length;
   let keep: Uint8Array = keep0 ? Uint8Array.from(keep0) : new Uint8Array(n).fill(1);
   let zeroRows = 0;

@@ -15,6 +15,8 @@ import { cut, fail, count, quote, rowsPhrase, nearest, RowList } from "./problem
 import type { Options } from "./options";
 import { subsetRoles, type RawData, type RoleColumns } from "./intake";
 import { estimatorOf } from "./estimators";
+import { dropSingletons } from "./absorb";
+import { leaveOut } from "./ppmlAbsorbed";
 
 export type Transform =
   | { kind: "level" }
@@ -133,6 +135,11 @@ export interface Dataset {
   leftOutWeightRows: RowList;
   /** For each column of x, the factor column whose indicator it is (null for regressors). */
   factorOf: (string | null)[];
+  /** Rows left out by absorb=: singletons, and (PPML) values whose y is zero in every row; those rows. */
+  leftOutSingleton: number;
+  leftOutAllZero: number;
+  allZeroValues: number;
+  leftOutAbsorbedRows: RowList;
 }
 
 
@@ -362,6 +369,37 @@ export function prepare(raw: RawData, o: Options): Dataset {
     }
   }
 
+  // Fixed effects: values seen in one row only (singletons) carry no information on the slopes, and
+  // under PPML a value whose y is zero in every row has no finite effect: such rows are left out.
+  let singletons = 0;
+  let allZeroRows = 0;
+  let allZeroValues = 0;
+  const singletonRows = new RowList();
+  if (roles.absorb.length > 0) {
+    const codes = roles.absorb.map((c) => c.codes);
+    const d = info.exponentialMean ? null : dropSingletons(codes);
+    const r = d ? { keep: d.keep, zeroRows: 0, zeroValues: 0, singletons: d.dropped } : leaveOut(y, codes, null);
+    const keep = r.keep;
+    singletons = r.singletons;
+    allZeroRows = r.zeroRows;
+    allZeroValues = r.zeroValues;
+    if (singletons + allZeroRows > 0) {
+      const kept: number[] = [];
+      for (let i = 0; i < keep.length; i++) {
+        if (keep[i]) kept.push(i);
+        else singletonRows.add(rowNumbers[i]);
+      }
+      if (kept.length === 0) {
+        fail(`every value of ${roles.absorb.map((c) => c.name).join(" and ")} occurs in only one row${info.exponentialMean ? " or has y = 0 in every row" : ""}, so fixed effects leave nothing to estimate from: absorb a coarser column, or leave absorb= out`);
+      }
+      const pick = (c: Float64Array) => Float64Array.from(kept, (i) => c[i]);
+      y = pick(y);
+      x = x.map(pick);
+      rowNumbers = Int32Array.from(kept, (i) => rowNumbers[i]);
+      roles = { ...subsetRoles({ ...roles, instruments: [] }, kept), instruments: x.slice(kx), instrumentNames: roles.instrumentNames };
+    }
+  }
+
   const n = y.length;
   const wts = roles.weights;
   const mean = (c: Float64Array) => (wts ? weightedMean(c, wts) : stableSum(c) / n);
@@ -418,6 +456,10 @@ export function prepare(raw: RawData, o: Options): Dataset {
     leftOutWeight: raw.leftOutWeight,
     leftOutWeightRows: raw.leftOutWeightRows,
     factorOf,
+    leftOutSingleton: singletons,
+    leftOutAllZero: allZeroRows,
+    allZeroValues,
+    leftOutAbsorbedRows: singletonRows,
   };
 }
 
