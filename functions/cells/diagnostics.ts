@@ -3,7 +3,7 @@
  * SMEARING, PREDICT, HETEROTEST, NORMALTEST, TESTS, FORMCHECK.
  */
 import { seTypeOf, type Form } from "../engine/options";
-import { fail, nearest, ElxProblem } from "../engine/problems";
+import { count, fail, nearest, ElxProblem } from "../engine/problems";
 import { asMatrix, originOf } from "../engine/intake";
 import { apply, LEVEL } from "../engine/transforms";
 import { predictRow, retransformFactor } from "../engine/retransform";
@@ -67,7 +67,7 @@ export function predictTable(y: unknown, x: unknown, newX: unknown, opts: unknow
         if (!names.some((n) => n.toLowerCase() === g.toLowerCase())) fail(`new_x column "${g}" is not a column of x; did you mean ${nearest(g, names)}? (x has ${names.join(", ")})`);
       });
     } else {
-      if (cells[0].length !== names.length) fail(`new_x has ${cells[0].length} columns but x has ${names.length} (${names.join(", ")}); give new_x the same columns, in the same order, or add a header row to match them by name`);
+      if (cells[0].length !== names.length) fail(`new_x has ${count(cells[0].length, "column")} but x has ${names.length} (${names.join(", ")}); give new_x the same columns, in the same order, or add a header row to match them by name`);
       map = names.map((_, j) => j);
     }
     const cov = fit.covariance(seTypeOf(o), o.lags);

@@ -10,7 +10,7 @@ import { readYX, asMatrix, type Origin, type RawData } from "./intake";
 import { prepare } from "./transforms";
 import { OlsFit } from "./fit";
 import { PpmlFit } from "./ppml";
-import { ElxProblem, fail } from "./problems";
+import { ElxProblem, count, fail } from "./problems";
 import { modelKey, type Options } from "./options";
 import { BoundedCache, hashCells, type Sized } from "./cache";
 import type { AnyFit } from "./model";
@@ -53,7 +53,7 @@ export function fitGroups(keys: unknown, y: unknown, x: unknown, o: Options, yOr
   const start = raw.yHeader ? 1 : 0;
   const keyRows = km.length - start;
   if (keyRows < raw.dataRows || keyRows > raw.dataRows + raw.trailingBlank) {
-    fail(`keys has ${km.length} rows but y has ${raw.dataRows + raw.trailingBlank + start}; give keys the same rows as y`);
+    fail(`keys has ${count(km.length, "row")} but y has ${raw.dataRows + raw.trailingBlank + start}; give keys the same rows as y`);
   }
   // Bucket the usable rows by key, in first-appearance order over all rows.
   const order: string[] = [];

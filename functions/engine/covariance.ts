@@ -11,7 +11,7 @@
  *
  * Cost: one pass over the rows with O(k²) work per row (HAC: O(k²·L) per row).
  */
-import { fail, requireFeasible, rowsPhrase } from "./problems";
+import { count, fail, requireFeasible, rowsPhrase } from "./problems";
 import type { QrFit } from "./leastSquares";
 import { dotBlock } from "./blocks";
 import type { SeType } from "./options";
@@ -22,6 +22,18 @@ export const LEVERAGE_TOL = 1e-10;
 /** Default HAC lag length floor(4 (n/100)^(2/9)) (Newey and West 1994, common practice). */
 export function defaultLags(n: number): number {
   return Math.floor(4 * Math.pow(n / 100, 2 / 9));
+}
+
+/**
+ * The most lags accepted on n rows: a tenth of the rows, or the default when that is larger (common
+ * practice). Why a bound at all: the scores g_t = x_t e_t of a least-squares fit sum to zero
+ * (Xᵀe = 0), so the sample autocovariances over all lags cancel Γ_0 exactly; as L approaches n the
+ * Bartlett weights approach 1 and the estimate is pulled toward zero, giving errors smaller than
+ * HC3's (false precision). Even well below that, the usual t and normal critical values hold only
+ * while L/n is small (Kiefer and Vogelsang 2005, Econometric Theory 21, fixed-b asymptotics).
+ */
+export function maxLags(n: number): number {
+  return Math.max(defaultLags(n), Math.floor(n / 10));
 }
 
 /** Rows per block in the passes below (k·BLOCK doubles stay in cache). */
@@ -160,8 +172,11 @@ export function hcCovariance(X: Float64Array[], qr: QrFit, type: "HC0" | "HC1" |
 /** Newey–West HAC covariance with L lags (Bartlett weights, no prewhitening, no df factor). */
 export function hacCovariance(X: Float64Array[], qr: QrFit, L: number): Float64Array {
   const { n, k, resid } = qr;
-  if (L > n - 1) fail(`lags=${L} is more than the data allow: with ${n} rows use at most lags=${n - 1} (the default is ${defaultLags(n)})`);
-  requireFeasible(n * k * k * (L + 1), `HAC with ${L} lags on ${n} rows and ${k} terms`, "use fewer lags (lags=), a sample of the rows, or se=HC3");
+  const most = maxLags(n);
+  if (L > most) {
+    fail(`lags=${L} is too many for ${n} rows: use at most lags=${most} (a tenth of the rows, common practice; the default is ${defaultLags(n)}); with more lags the HAC errors shrink toward zero and look more precise than they are`);
+  }
+  requireFeasible(n * k * k * (L + 1), `HAC with ${count(L, "lag")} on ${n} rows and ${count(k, "term")}`, "use fewer lags (lags=), a sample of the rows, or se=HC3");
   const G: Float64Array[] = [];
   for (let j = 0; j < k; j++) G.push(new Float64Array(n));
   forEachQBlock(X, qr, (start, m, Z) => {

@@ -20,7 +20,7 @@ export interface ElasticityRow {
   lower: number;
   upper: number;
   factor: number;
-  /** Where it was evaluated, in words ("constant", "mean Price = 2.31"). */
+  /** Where it was evaluated, in words (EVERYWHERE, "mean Price = 2.31"). */
   at: string;
 }
 
@@ -30,6 +30,9 @@ function formatNumber(v: number): string {
   if (a >= 1e-3 && a < 1e7) return String(Number(v.toPrecision(6)));
   return v.toExponential(4);
 }
+
+/** Where a constant elasticity (log x and log y, or a logged x under PPML) is evaluated: nowhere in particular. */
+export const EVERYWHERE = "everywhere (constant elasticity)";
 
 /** The factor that turns coefficient b of x column j into an elasticity, and its description. */
 export function elasticityFactor(fit: Model, column: number, at: AtPoint): { factor: number; at: string } {
@@ -51,7 +54,7 @@ export function elasticityFactor(fit: Model, column: number, at: AtPoint): { fac
   // Under zeros=shift or zeros=ihs on y the elasticity depends on that transform (and on y's
   // units, Bellemare and Wichman 2020): say which one was used.
   if (g.kind === "shift" || g.kind === "asinh") parts.push(`${fit.data.yName} taken as ${transformLabel(g)}`);
-  return { factor: num / den, at: parts.length === 0 ? "constant" : parts.join(", ") };
+  return { factor: num / den, at: parts.length === 0 ? EVERYWHERE : parts.join(", ") };
 }
 
 /** Elasticity of y with respect to x column j, with its delta-method error and interval. */

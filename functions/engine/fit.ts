@@ -10,6 +10,7 @@ import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, type Cov
 import { originalMedian, transformLabel, type Dataset, type Transform } from "./transforms";
 import { fisherSf, studentQuantile, studentTwoSided } from "./distributions";
 import type { SeType } from "./options";
+import { normalised } from "./scaling";
 
 export const INTERCEPT = "(Intercept)";
 
@@ -231,11 +232,13 @@ export class OlsFit extends Model {
     const sigma = Math.sqrt(rss / this.dfResid);
     let fStatistic: number | null = null;
     let fPValue: number | null = null;
-    if (dfModel > 0 && rss > 0) {
+    const exact = this.isExact();
+    if (dfModel > 0 && rss > 0 && !exact) {
       fStatistic = ((tss - rss) / dfModel) / (rss / this.dfResid);
       fPValue = fisherSf(fStatistic, dfModel, this.dfResid);
     }
-    const logLik = -0.5 * n * (Math.log(2 * Math.PI) + Math.log(rss / n) + 1);
+    // unbounded for an exact fit (RSS is rounding noise): NaN, shown as #N/A with the reason
+    const logLik = exact ? NaN : -0.5 * n * (Math.log(2 * Math.PI) + Math.log(rss / n) + 1);
     const aic = -2 * logLik + 2 * (k + 1);
     const bic = -2 * logLik + (k + 1) * Math.log(n);
     this.statsCache = { rSquared, adjRSquared, sigma, fStatistic, fDf1: dfModel, fDf2: this.dfResid, fPValue, logLik, aic, bic };
@@ -244,7 +247,24 @@ export class OlsFit extends Model {
 
   /** Refuses a perfect fit where a quantity needs residual variation. */
   requireResidualVariation(what: string): void {
-    if (this.isExact()) unavailable(`the fit is exact (every residual is zero up to rounding), so ${what} is undefined`);
+    if (this.isExact()) unavailable(`${this.exactReason()}; that leaves ${what} undefined`);
+  }
+
+  /**
+   * What an exact fit usually means, in the analyst's words: an x column that alone is a linear
+   * function of y (y in other units, or y itself) is named; otherwise y was computed from the regressors.
+   */
+  exactReason(): string {
+    return this.memo("exactReason", () => {
+      const head = "the fit is exact (every residual is zero up to rounding)";
+      const y = this.data.y;
+      for (let j = 0; j < this.data.x.length; j++) {
+        if (squaredCorrelation(this.data.x[j], y) > 1 - 1e-10) {
+          return `${head}: ${this.data.xNames[j]} is an exact linear function of ${this.data.yName} (y itself, or y in other units): remove it from x`;
+        }
+      }
+      return `${head}: ${this.data.yName} is an exact linear combination of the regressors, which usually means it was computed from them (a formula, a total, a share) or that y sits among them in another form: fit y as it was measured`;
+    });
   }
 
   /**
@@ -261,11 +281,37 @@ export class OlsFit extends Model {
   }
 }
 
+/** Squared correlation of two columns (two-pass means, scaled against overflow); 0 when either is constant. */
+function squaredCorrelation(a0: Float64Array, b0: Float64Array): number {
+  const a = normalised(a0);
+  const b = normalised(b0);
+  const n = a.length;
+  let ma = 0;
+  let mb = 0;
+  for (let i = 0; i < n; i++) {
+    ma += a[i];
+    mb += b[i];
+  }
+  ma /= n;
+  mb /= n;
+  let saa = 0;
+  let sbb = 0;
+  let sab = 0;
+  for (let i = 0; i < n; i++) {
+    const da = a[i] - ma;
+    const db = b[i] - mb;
+    saa += da * da;
+    sbb += db * db;
+    sab += da * db;
+  }
+  return saa > 0 && sbb > 0 ? (sab / saa) * (sab / sbb) : 0;
+}
+
 function checkShape(data: Dataset, k: number, intercept: boolean): void {
   const n = data.n;
   if (n <= k) {
     const left = data.leftOutBlank + data.leftOutNonPositive;
-    fail(`${count(n, "usable row")} ${n === 1 ? "is" : "are"} too few for ${k} coefficients${intercept ? " (the intercept counts)" : ""}: need at least ${k + 1}${left > 0 ? `; ${left} rows were left out` : ""}`);
+    fail(`${count(n, "usable row")} ${n === 1 ? "is" : "are"} too few for ${count(k, "coefficient")}${intercept ? " (the intercept counts)" : ""}: need at least ${k + 1}${left > 0 ? `; ${count(left, "row was", "rows were")} left out` : ""}`);
   }
   // Constant regressors: a clearer message than the rank check's.
   data.x.forEach((c, j) => {

@@ -19,7 +19,7 @@
  */
 import { leastSquares, type Dependency } from "./leastSquares";
 import { chiSquareSf, fisherSf } from "./distributions";
-import { fail, requireFeasible, unavailable } from "./problems";
+import { count, fail, requireFeasible, unavailable } from "./problems";
 import type { OlsFit } from "./fit";
 
 export interface TestResult {
@@ -54,7 +54,7 @@ export function auxiliary(v: Float64Array, W: Float64Array[]): AuxFit {
   let cols = [new Float64Array(n).fill(1), ...W];
   for (;;) {
     if (cols.length >= n) {
-      fail(`the auxiliary regression has ${cols.length} terms for ${n} rows; it needs more rows than terms`);
+      fail(`the auxiliary regression has ${count(cols.length, "term")} for ${count(n, "row")}; it needs more rows than terms`);
     }
     try {
       const q = leastSquares(cols, v, (d: Dependency) => {

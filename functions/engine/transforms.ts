@@ -69,6 +69,13 @@ export function isLogLike(t: Transform): boolean {
   return t.kind !== "level";
 }
 
+/** Whether two columns hold the same values in every row (y included among the regressors). */
+function sameValues(a: Float64Array, b: Float64Array): boolean {
+  if (a.length < 2) return false;
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
+}
+
 function isBinary(col: Float64Array): boolean {
   for (let i = 0; i < col.length; i++) {
     const v = col[i];
@@ -169,6 +176,11 @@ export function prepare(raw: RawData, o: Options): Dataset {
   const ppml = o.estimator === "ppml";
   const logY = !ppml && o.form.startsWith("log-");
   const logX = o.form.endsWith("-log");
+  raw.x.forEach((c, j) => {
+    if (sameValues(c, raw.y)) {
+      fail(`${raw.xNames[j]} (column ${j + 1} of x) holds the same values as y (${raw.yName}) in every row used: y cannot explain itself (the fit would be exact and its t-values meaningless); take the y column out of the x range`);
+    }
+  });
   const binary = raw.x.map(isBinary);
   const keepLevel = new Array<boolean>(k).fill(false);
   for (const t of o.levels) keepLevel[resolveColumn(t, raw.xNames, "levels= column")] = true;
