@@ -10,6 +10,12 @@
  * sandwich::NeweyWest(m, lag = L, prewhite = FALSE, adjust = FALSE).
  *
  * Cost: one pass over the rows with O(k²) work per row (HAC: O(k²·L) per row).
+ *
+ * Units: the functions below return W = R⁻¹(Σ ω z zᵀ)R⁻ᵀ, the covariance of the coefficients of the
+ * unit-length columns (c_j = b_j·‖x_j‖), in the units of the y that was factorised. The covariance of
+ * b is V_ij = W_ij/(‖x_i‖‖x_j‖); standard errors are read from W (standardError), so that a column or
+ * a y of extreme magnitude (1e155, 1e−150) cannot push V_jj out of the range of doubles while the
+ * standard error itself is an ordinary number.
  */
 import { count, fail, requireFeasible, rowsPhrase } from "./problems";
 import type { QrFit } from "./leastSquares";
@@ -80,9 +86,9 @@ function forEachQBlock(X: Float64Array[], qr: QrFit, visit: (start: number, m: n
   }
 }
 
-/** Rinv · M · Rinvᵀ for symmetric M (row-major k×k), then back to the columns' original units. */
+/** Rinv · M · Rinvᵀ for symmetric M (row-major k×k), in the space of the unit-length columns. */
 function sandwich(qr: QrFit, M: Float64Array): Float64Array {
-  const { k, Rinv, scale } = qr;
+  const { k, Rinv } = qr;
   const T = new Float64Array(k * k); // T = Rinv · M
   for (let i = 0; i < k; i++) {
     for (let j = 0; j < k; j++) {
@@ -96,15 +102,14 @@ function sandwich(qr: QrFit, M: Float64Array): Float64Array {
     for (let j = i; j < k; j++) {
       let s = 0;
       for (let m = j; m < k; m++) s += T[i * k + m] * Rinv[j * k + m];
-      const v = s / (scale[i] * scale[j]);
-      V[i * k + j] = v;
-      V[j * k + i] = v;
+      V[i * k + j] = s;
+      V[j * k + i] = s;
     }
   }
   return V;
 }
 
-/** Classical covariance s²(XᵀX)⁻¹ = s² R⁻¹R⁻ᵀ. */
+/** Classical covariance s²(XᵀX)⁻¹ = s² R⁻¹R⁻ᵀ (as W, see Units above). */
 export function classicalCovariance(qr: QrFit): Float64Array {
   const { k, n } = qr;
   const s2 = qr.rss / (n - k);
@@ -217,10 +222,43 @@ export function hacCovariance(X: Float64Array[], qr: QrFit, L: number): Float64A
 
 export interface Covariance {
   type: SeType;
-  /** Row-major k×k. */
+  /** Row-major k×k covariance of the coefficients of the unit-length columns, in units of `unit`². */
+  W: Float64Array;
+  /** The column lengths ‖x_j‖ of the factorised design. */
+  scale: Float64Array;
+  /** The power of two y was divided by before the factorisation (OLS: yUnit; PPML: 1). */
+  unit: number;
+  /** Row-major k×k covariance of the coefficients in their own units (entries may under- or overflow at extreme magnitudes: read errors through standardError). */
   V: Float64Array;
   /** Lag length used, for HAC. */
   lags?: number;
   /** Label for output headers: "HC3", "HAC, 4 lags". */
   label: string;
+}
+
+/** V_ij = W_ij·unit²/(‖x_i‖‖x_j‖): the covariance in the coefficients' own units. */
+export function originalUnits(W: Float64Array, scale: Float64Array, unit: number): Float64Array {
+  const k = scale.length;
+  const V = new Float64Array(k * k);
+  for (let i = 0; i < k; i++) for (let j = 0; j < k; j++) V[i * k + j] = ((W[i * k + j] * unit) / scale[i]) * (unit / scale[j]);
+  return V;
+}
+
+/** The standard error of coefficient j: √W_jj·unit/‖x_j‖. */
+export function standardError(c: Covariance, j: number): number {
+  const k = c.scale.length;
+  return (Math.sqrt(Math.max(0, c.W[j * k + j])) / c.scale[j]) * c.unit;
+}
+
+/** The standard error of the combination x0ᵀb: √(Σ (x0_i/‖x_i‖) W_ij (x0_j/‖x_j‖))·unit. */
+export function combinationError(c: Covariance, x0: Float64Array): number {
+  const k = c.scale.length;
+  const u = Float64Array.from(x0, (v, i) => v / c.scale[i]);
+  let s = 0;
+  for (let a = 0; a < k; a++) {
+    let r = 0;
+    for (let b = 0; b < k; b++) r += c.W[a * k + b] * u[b];
+    s += u[a] * r;
+  }
+  return Math.sqrt(Math.max(0, s)) * c.unit;
 }

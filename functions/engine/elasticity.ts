@@ -11,7 +11,7 @@
 import { relativeSlope, transformLabel } from "./transforms";
 import type { Model, Term } from "./fit";
 import type { AtPoint } from "./options";
-import type { Covariance } from "./covariance";
+import { standardError, type Covariance } from "./covariance";
 
 export interface ElasticityRow {
   term: Term;
@@ -61,7 +61,7 @@ export function elasticityFactor(fit: Model, column: number, at: AtPoint): { fac
 export function elasticity(fit: Model, column: number, cov: Covariance, level: number, at: AtPoint): ElasticityRow {
   const idx = fit.coefIndex(column);
   const b = fit.coef[idx];
-  const se = Math.sqrt(Math.max(0, cov.V[idx * fit.k + idx]));
+  const se = standardError(cov, idx);
   const crit = fit.criticalValue(level);
   const { factor, at: where } = elasticityFactor(fit, column, at);
   const lo = (b - crit * se) * factor;
@@ -89,8 +89,8 @@ export interface EffectRow {
 export function percentEffect(fit: Model, column: number, cov: Covariance, level: number): EffectRow {
   const idx = fit.coefIndex(column);
   const b = fit.coef[idx];
-  const V = cov.V[idx * fit.k + idx];
-  const se = Math.sqrt(Math.max(0, V));
+  const se = standardError(cov, idx);
+  const V = se * se;
   const crit = fit.criticalValue(level);
   // expm1 keeps digits for small coefficients
   return {

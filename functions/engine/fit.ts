@@ -6,11 +6,11 @@
  */
 import { count, fail, unavailable } from "./problems";
 import { leastSquares, type Dependency, type QrFit } from "./leastSquares";
-import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, type Covariance } from "./covariance";
+import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, originalUnits, standardError, type Covariance } from "./covariance";
 import { originalMedian, transformLabel, type Dataset, type Transform } from "./transforms";
 import { fisherSf, studentQuantile, studentTwoSided } from "./distributions";
 import type { SeType } from "./options";
-import { normalised } from "./scaling";
+import { normalised, scaled, workingUnit } from "./scaling";
 
 export const INTERCEPT = "(Intercept)";
 
@@ -91,6 +91,11 @@ export abstract class Model {
     void type;
   }
 
+  /** The unit of the covariances computed on `qr`: standard errors are √V times it (OLS: y's scale). */
+  protected get covUnit(): number {
+    return 1;
+  }
+
   /** The covariance of the coefficients of the given type (memoised). */
   covariance(type: SeType, lags: number | null = null): Covariance {
     this.checkSeType(type);
@@ -98,15 +103,16 @@ export abstract class Model {
     const key = type === "HAC" ? `HAC${L}` : type;
     let c = this.covCache.get(key);
     if (!c) {
-      let V: Float64Array;
-      if (type === "classical") V = classicalCovariance(this.qr);
-      else if (type === "HAC") V = hacCovariance(this.covDesign, this.qr, L);
+      let W: Float64Array;
+      if (type === "classical") W = classicalCovariance(this.qr);
+      else if (type === "HAC") W = hacCovariance(this.covDesign, this.qr, L);
       else {
         const r = hcCovariance(this.covDesign, this.qr, type, this.leverageCache, this.data.rowNumbers);
         if (r.h) this.leverageCache = r.h;
-        V = r.V;
+        W = r.V;
       }
-      c = { type, V, lags: type === "HAC" ? L : undefined, label: type === "HAC" ? `HAC, ${L} lag${L === 1 ? "" : "s"}` : type };
+      const unit = this.covUnit;
+      c = { type, W, scale: this.qr.scale, unit, V: originalUnits(W, this.qr.scale, unit), lags: type === "HAC" ? L : undefined, label: type === "HAC" ? `HAC, ${L} lag${L === 1 ? "" : "s"}` : type };
       this.covCache.set(key, c);
     }
     return c;
@@ -115,7 +121,7 @@ export abstract class Model {
   /** Standard errors under a covariance. */
   standardErrors(c: Covariance): Float64Array {
     const se = new Float64Array(this.k);
-    for (let j = 0; j < this.k; j++) se[j] = Math.sqrt(Math.max(0, c.V[j * this.k + j]));
+    for (let j = 0; j < this.k; j++) se[j] = standardError(c, j);
     return se;
   }
 
@@ -158,7 +164,14 @@ export abstract class Model {
 
 export class OlsFit extends Model {
   readonly estimator = "ols" as const;
+  /**
+   * The factorisation of the design with y divided by `yUnit`: 1 for ordinary data, a power of two
+   * near max|y| when |y| leaves [2^−100, 2^100] (scaling.ts). Its coefficients, residuals, RSS and
+   * covariances are in units of yUnit; dividing by a power of two is exact, and it keeps squares
+   * finite for y as large as 1e155 or as small as 1e−150. Read coef, resid and rss for y's own units.
+   */
   readonly qr: QrFit;
+  readonly yUnit: number;
   protected readonly covDesign: Float64Array[];
   private statsCache: FitStatistics | null = null;
 
@@ -169,34 +182,46 @@ export class OlsFit extends Model {
   constructor(data: Dataset, intercept: boolean) {
     super(data, intercept);
     const terms = this.terms;
-    this.qr = leastSquares(this.design, data.y, (d) => explainDependency(d, terms));
+    this.yUnit = workingUnit(data.y);
+    this.qr = leastSquares(this.design, scaled(data.y, this.yUnit), (d) => explainDependency(d, terms));
     this.covDesign = this.design;
   }
 
-  get coef(): Float64Array {
-    return this.qr.coef;
+  protected get covUnit(): number {
+    return this.yUnit;
   }
 
+  /** y divided by yUnit (max magnitude in [0.5, 1)): for sums of squares that must not overflow. */
+  get scaledY(): Float64Array {
+    return this.yUnit === 1 ? this.data.y : this.memo("scaledY", () => scaled(this.data.y, this.yUnit));
+  }
+
+  get coef(): Float64Array {
+    return this.yUnit === 1 ? this.qr.coef : this.memo("coef", () => Float64Array.from(this.qr.coef, (v) => v * this.yUnit));
+  }
+
+  /** Residuals in y's units (qr.resid: in units of yUnit). */
   get resid(): Float64Array {
-    return this.qr.resid;
+    return this.yUnit === 1 ? this.qr.resid : this.memo("resid", () => Float64Array.from(this.qr.resid, (v) => v * this.yUnit));
   }
 
   /** Fitted values ŷ = y − e on the fitted scale (computed on first use). */
   get fitted(): Float64Array {
     return this.memo("fitted", () => {
       const y = this.data.y;
-      const e = this.qr.resid;
+      const e = this.resid;
       return Float64Array.from(y, (v, i) => v - e[i]);
     });
   }
 
+  /** RSS in y's units (Infinity when that overflows: statistics use qr.rss, in units of yUnit). */
   get rss(): number {
-    return this.qr.rss;
+    return this.qr.rss * this.yUnit * this.yUnit;
   }
 
   /** Residual variance s² = RSS/(n − k). */
   get s2(): number {
-    return this.qr.rss / this.dfResid;
+    return this.rss / this.dfResid;
   }
 
   /** The Student t quantile for a two-sided interval at `level`, on n − k df. */
@@ -211,7 +236,8 @@ export class OlsFit extends Model {
   statistics(): FitStatistics {
     if (this.statsCache) return this.statsCache;
     const { n, k } = this;
-    const y = this.data.y;
+    // in units of yUnit: R², F and the likelihood's RSS term do not overflow for extreme y
+    const y = this.scaledY;
     let tss = 0;
     if (this.intercept) {
       let mean = 0;
@@ -225,11 +251,11 @@ export class OlsFit extends Model {
     } else {
       for (let i = 0; i < n; i++) tss += y[i] * y[i];
     }
-    const rss = this.rss;
+    const rss = this.qr.rss;
     const dfModel = k - (this.intercept ? 1 : 0);
     const rSquared = tss > 0 ? 1 - rss / tss : NaN;
     const adjRSquared = 1 - (1 - rSquared) * ((n - (this.intercept ? 1 : 0)) / this.dfResid);
-    const sigma = Math.sqrt(rss / this.dfResid);
+    const sigma = Math.sqrt(rss / this.dfResid) * this.yUnit;
     let fStatistic: number | null = null;
     let fPValue: number | null = null;
     const exact = this.isExact();
@@ -238,7 +264,7 @@ export class OlsFit extends Model {
       fPValue = fisherSf(fStatistic, dfModel, this.dfResid);
     }
     // unbounded for an exact fit (RSS is rounding noise): NaN, shown as #N/A with the reason
-    const logLik = exact ? NaN : -0.5 * n * (Math.log(2 * Math.PI) + Math.log(rss / n) + 1);
+    const logLik = exact ? NaN : -0.5 * n * (Math.log(2 * Math.PI) + Math.log(rss / n) + 2 * Math.log(this.yUnit) + 1);
     const aic = -2 * logLik + 2 * (k + 1);
     const bic = -2 * logLik + (k + 1) * Math.log(n);
     this.statsCache = { rSquared, adjRSquared, sigma, fStatistic, fDf1: dfModel, fDf2: this.dfResid, fPValue, logLik, aic, bic };
@@ -274,9 +300,9 @@ export class OlsFit extends Model {
   isExact(): boolean {
     return this.memo("exact", () => {
       let yy = 0;
-      const y = this.data.y;
+      const y = this.scaledY;
       for (let i = 0; i < y.length; i++) yy += y[i] * y[i];
-      return !(this.rss > EXACT_FIT * yy);
+      return !(this.qr.rss > EXACT_FIT * yy);
     });
   }
 }

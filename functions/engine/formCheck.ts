@@ -31,6 +31,7 @@ import type { OlsFit } from "./fit";
 import type { SeType } from "./options";
 import { brentMax, brentRoot } from "./optimize";
 import { stableSum } from "./transforms";
+import { working } from "./scaling";
 
 export const LAMBDA_MIN = -2;
 export const LAMBDA_MAX = 2;
@@ -168,7 +169,10 @@ export interface PeSide {
 }
 
 /** t of the last coefficient of y on [X, z], with the given covariance type. */
-function addedVariableT(X: Float64Array[], z: Float64Array, y: Float64Array, se: SeType, lags: number | null): { t: number; df: number } {
+function addedVariableT(X: Float64Array[], z0: Float64Array, y0: Float64Array, se: SeType, lags: number | null): { t: number; df: number } {
+  // t does not depend on the units of y or z: extreme ones are scaled so that no square overflows
+  const z = working(z0);
+  const y = working(y0);
   const cols = [...X, z];
   const q = leastSquares(cols, y, () => unavailable("the PE test's added variable is a combination of the regressors here, so the test is undefined"), false);
   const k = cols.length;
@@ -177,7 +181,8 @@ function addedVariableT(X: Float64Array[], z: Float64Array, y: Float64Array, se:
   else if (se === "HAC") V = hacCovariance(cols, q, lags ?? defaultLags(q.n));
   else V = hcCovariance(cols, q, se, null, new Int32Array(q.n).map((_, i) => i + 1)).V;
   const j = k - 1;
-  return { t: q.coef[j] / Math.sqrt(V[j * k + j]), df: q.n - k };
+  // V is the covariance of the unit-length columns' coefficients c_j = b_j·‖x_j‖ (covariance.ts)
+  return { t: (q.coef[j] * q.scale[j]) / Math.sqrt(V[j * k + j]), df: q.n - k };
 }
 
 /** The PE test both ways, from the log-y and the level-y fits on the same x side. */

@@ -7,17 +7,39 @@
  * not overflow or underflow. Squares (residual sums of squares, e², e⁴ in the tests) are what
  * overflow first: 1e155² is beyond the largest double, and (1e-150)² is below the smallest normal.
  * Every statistic that is invariant to the units of a column (t, p, R², F, the tests, λ̂ of Box–Cox)
- * is therefore computed on columns scaled to a maximum magnitude in [0.5, 1).
+ * is therefore computed on columns scaled to a maximum magnitude in [0.5, 1) when their magnitude
+ * leaves [2^−100, 2^100] (about 1e−30 to 1e30); inside that window fourth powers stay far from
+ * overflow and underflow, and columns are used as they are (no copy, the same bits as before).
  */
 
-/** The power of two 2^e with max|v|·2^−e in [0.5, 1) (1 for an all-zero or non-finite column). */
-export function unitOf(v: ArrayLike<number>): number {
+/** Below and above these magnitudes a column is rescaled before squares are taken. */
+export const WINDOW_LOW = Math.pow(2, -100);
+export const WINDOW_HIGH = Math.pow(2, 100);
+
+function maxAbs(v: ArrayLike<number>): number {
   let m = 0;
   for (let i = 0; i < v.length; i++) {
     const a = Math.abs(v[i]);
     if (a > m) m = a;
   }
-  return powerOfTwoAbove(m);
+  return m;
+}
+
+/** 1 when max|v| lies in [2^−100, 2^100] (or v is all zero), else unitOf(v). */
+export function workingUnit(v: ArrayLike<number>): number {
+  const m = maxAbs(v);
+  return m === 0 || (m >= WINDOW_LOW && m <= WINDOW_HIGH) ? 1 : powerOfTwoAbove(m);
+}
+
+/** v itself when its magnitude is inside the window, else a copy scaled by a power of two. */
+export function working(v: Float64Array): Float64Array {
+  const u = workingUnit(v);
+  return u === 1 ? v : scaled(v, u);
+}
+
+/** The power of two 2^e with max|v|·2^−e in [0.5, 1) (1 for an all-zero or non-finite column). */
+export function unitOf(v: ArrayLike<number>): number {
+  return powerOfTwoAbove(maxAbs(v));
 }
 
 /** The power of two 2^e with m·2^−e in [0.5, 1); 1 for 0 or a non-finite m. */
