@@ -206,9 +206,13 @@ export function peTest(logFit: OlsFit, levelFit: OlsFit, se: SeType, lags: numbe
 
 /** One line that reads the evidence at 5% without overclaiming. */
 export function readEvidence(bc: BoxCox, pe: { levels: PeSide; logs: PeSide }): { verdict: string; why: string } {
+  const known = [bc.lambda, bc.pLog, bc.pLevels, pe.logs.p, pe.levels.p].every(Number.isFinite);
+  if (!known) {
+    return { verdict: "no reading", why: "some of the Box–Cox or PE results cannot be computed for these data (see the rows above), so no choice between logs and levels is read from them" };
+  }
   const logsOk = pe.logs.p >= 0.05 && bc.pLog >= 0.05;
   const levelsOk = pe.levels.p >= 0.05 && bc.pLevels >= 0.05;
-  const fmt = (v: number) => (v < 0.001 ? "< 0.001" : v.toFixed(3));
+  const fmt = (v: number) => (!Number.isFinite(v) ? "not computable here" : v < 0.001 ? "< 0.001" : v.toFixed(3));
   const why = `Box–Cox λ̂ = ${bc.lambda.toFixed(3)} (p of logs ${fmt(bc.pLog)}, of levels ${fmt(bc.pLevels)}); PE test p against logs ${fmt(pe.logs.p)}, against levels ${fmt(pe.levels.p)}`;
   if (logsOk && !levelsOk) return { verdict: "logs preferred", why };
   if (levelsOk && !logsOk) return { verdict: "levels preferred", why };

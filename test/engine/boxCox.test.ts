@@ -7,7 +7,7 @@ import * as fs from "fs";
 import * as path from "path";
 import { fitUncached } from "../../functions/engine/model";
 import { parseOptions } from "../../functions/engine/options";
-import { boxCox } from "../../functions/engine/formCheck";
+import { boxCox, readEvidence } from "../../functions/engine/formCheck";
 import type { OlsFit } from "../../functions/engine/fit";
 
 const ref = JSON.parse(fs.readFileSync(path.resolve(__dirname, "../reference/diagnostics.json"), "utf8"));
@@ -51,5 +51,20 @@ describe("Box–Cox profile", () => {
     expect(Number.isFinite(bc.lambda)).toBe(true);
     const other = boxCox(levelFit(1e3, "form=level-log; intercept=false"), 0.95);
     expect(Math.abs(other.lambda - bc.lambda)).toBeGreaterThan(1e-3);
+  });
+});
+
+describe("FORMCHECK's reading", () => {
+  const pe = (pl: number, pv: number) => ({ logs: { t: 1, p: pl, leftOut: 0 }, levels: { t: 1, p: pv, leftOut: 0 } });
+  const bc = (pLog: number) => ({ lambda: 0.1, lower: -0.2, upper: 0.4, pLog, pLevels: 1e-9, onBoundary: false, logLik: () => 0 });
+
+  it("never shows NaN: a result that cannot be computed gives no reading, and says why", () => {
+    const r = readEvidence(bc(NaN), pe(0.3, 0.01));
+    expect(r.verdict).toBe("no reading");
+    expect(`${r.verdict} ${r.why}`).not.toMatch(/NaN|Infinity/);
+  });
+
+  it("reads the evidence at 5% when every number is there (logs kept, levels rejected)", () => {
+    expect(readEvidence(bc(0.4), pe(0.3, 0.01)).verdict).toBe("logs preferred");
   });
 });

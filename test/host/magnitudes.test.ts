@@ -137,3 +137,23 @@ describe("extreme magnitudes give the numbers of ordinary units", () => {
     }
   }
 });
+
+describe("PPML at extreme magnitudes of y (y·s moves only the intercept, by log s)", () => {
+  const base = run("FIT", 1, 1, "log-log; estimator=ppml");
+  const baseEl = run("ELASTICITIES", 1, 1, "log-log; estimator=ppml");
+  const baseSm = run("SUMMARY", 1, 1, "log-log; estimator=ppml");
+  for (const s of SCALES) {
+    it(`y × ${s}: slopes, z, p, elasticities and pseudo R² agree; the intercept moves by log s`, () => {
+      const where = `ppml y×${s}`;
+      const fit = run("FIT", s, 1, "log-log; estimator=ppml");
+      honest(fit, where);
+      same(fit[1][2] as number, (base[1][2] as number) + Math.log(s), `${where} intercept`, 1e-9);
+      fit.slice(2).forEach((r, j) => [2, 3, 4, 5].forEach((c) => same(r[c], base[j + 2][c], `${where} ${r[0]} col ${c}`)));
+      const el = run("ELASTICITIES", s, 1, "log-log; estimator=ppml");
+      el.slice(1).forEach((r, j) => [2, 3, 4, 5].forEach((c) => same(r[c], baseEl[j + 1][c], `${where} elasticity ${r[0]} col ${c}`)));
+      const label = "Pseudo R² (squared correlation of y and fitted)";
+      same(run("SUMMARY", s, 1, "log-log; estimator=ppml").find((r) => r[0] === label)?.[1], baseSm.find((r) => r[0] === label)?.[1], `${where} pseudo R²`);
+    });
+  }
+});
+
