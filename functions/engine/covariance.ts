@@ -179,7 +179,8 @@ export function hacCovariance(X: Float64Array[], qr: QrFit, L: number): Float64A
   const { n, k, resid } = qr;
   const most = maxLags(n);
   if (L > most) {
-    fail(`lags=${L} is too many for ${n} rows: use at most lags=${most} (a tenth of the rows, common practice; the default is ${defaultLags(n)}); with more lags the HAC errors shrink toward zero and look more precise than they are`);
+    const why = most > Math.floor(n / 10) ? "the default lag length, more than a tenth of these rows" : `a tenth of the rows, common practice; the default is ${defaultLags(n)}`;
+    fail(`lags=${L} is too many for ${n} rows: use at most lags=${most} (${why}); with more lags the HAC errors shrink toward zero and look more precise than they are`);
   }
   requireFeasible(n * k * k * (L + 1), `HAC with ${count(L, "lag")} on ${n} rows and ${count(k, "term")}`, "use fewer lags (lags=), a sample of the rows, or se=HC3");
   const G: Float64Array[] = [];

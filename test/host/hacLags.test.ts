@@ -60,7 +60,7 @@ describe("the largest lag length", () => {
     expect(Array.isArray(call(reg, "FIT", few[0], few[1], "se=HAC"))).toBe(true);
     // 10 rows: default ⌊4·(0.1)^(2/9)⌋ = 2 and a tenth of the rows is 1: the bound is 2
     expect(Array.isArray(call(reg, "FIT", few[0], few[1], "se=HAC; lags=2"))).toBe(true);
-    expect(err(call(reg, "FIT", few[0], few[1], "se=HAC; lags=3")).message).toMatch(/use at most lags=2/);
+    expect(err(call(reg, "FIT", few[0], few[1], "se=HAC; lags=3")).message).toMatch(/use at most lags=2 \(the default lag length, more than a tenth of these rows\)/);
   });
 });
 
