@@ -11,7 +11,7 @@
  */
 import { SingularValueDecomposition, Matrix } from "ml-matrix";
 import type { OlsFit } from "./fit";
-import { normalised } from "./scaling";
+import { working } from "./scaling";
 
 /** VIFs of the x columns, in order; null without an intercept (the centred definition needs one). */
 export function varianceInflation(fit: OlsFit): number[] | null {
@@ -22,9 +22,9 @@ export function varianceInflation(fit: OlsFit): number[] | null {
       const idx = fit.coefIndex(j);
       let d = 0;
       for (let m = idx; m < k; m++) d += qr.Rinv[idx * k + m] * qr.Rinv[idx * k + m];
-      // d·Σ(x − x̄)²/Σx², with the column scaled by a power of two so that no square overflows
+      // d·Σ(x − x̄)²/Σx², with an extreme column scaled by a power of two so that no square overflows
       // (the ratio does not depend on the column's units; qr.scale[idx]² = Σx²)
-      const c = normalised(c0);
+      const c = working(c0);
       let mean = 0;
       for (let i = 0; i < c.length; i++) mean += c[i];
       mean /= c.length;

@@ -4,7 +4,7 @@
  * - Box–Cox (1964, JRSS B 26): the profile log-likelihood of λ in (y^λ − 1)/λ (log y at λ = 0),
  *   with the Jacobian taken in by dividing by the geometric mean ẏ of y to the power λ − 1, as R's
  *   MASS::boxcox does: ℓ(λ) = −n/2·log RSS(λ). That transform is ẏ·w(λ) plus a constant, with
- *   w(λ) = ((y/ẏ)^λ − 1)/λ = expm1(λ·log(y/ẏ))/λ (the geometric-mean scaling of Box and Cox 1964, §3),
+ *   w(λ) = ((y/ẏ)^λ − 1)/λ = expm1(λ·log(y/ẏ))/λ (the geometric-mean scaling of Box and Cox 1964),
  *   so with an intercept ℓ(λ) = −n/2·log RSS(w(λ)) up to a constant that does not depend on λ: λ̂, its
  *   interval and the LR p-values are those of MASS::boxcox, and they do not depend on the units of y.
  *   Computing w directly matters: (y^λ − 1)/λ at y = 10^8 and λ = −2 is −1/λ plus 10^−16, which the

@@ -1,6 +1,6 @@
 /**
  * The Box–Cox profile of the engine (functions/engine/formCheck.ts) directly: invariant to the units
- * of y with an intercept (Box and Cox 1964, JRSS B 26, §3), equal to R's MASS::boxcox λ̂ on
+ * of y with an intercept (Box and Cox 1964, JRSS B 26), equal to R's MASS::boxcox λ̂ on
  * datasets::trees (test/reference/diagnostics.json, MASS 7.3), and still defined without an intercept.
  */
 import * as fs from "fs";

@@ -1,7 +1,7 @@
 /**
  * Through the host's door: FORMCHECK's Box–Cox does not depend on the units of y. With an intercept
  * the profile likelihood of the geometric-mean-scaled transform changes only by a constant when y is
- * multiplied by c (Box and Cox 1964, JRSS B 26, §3: the Jacobian-scaled likelihood is unit-free), so
+ * multiplied by c (Box and Cox 1964, JRSS B 26: the Jacobian-scaled likelihood is unit-free), so
  * λ̂, its interval, both LR p-values, the PE test and the reading must agree for y, y·10^−8, y·10^8
  * and y·3·10^8. Datasets: R's trees, mtcars, LifeCycleSavings and airquality as stored in
  * test/reference/diagnostics.json (both log-y forms), and the twelve stores of the seeded demo data.

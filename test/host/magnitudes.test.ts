@@ -4,8 +4,10 @@
  * exact") and never NaN. The reference is scaling invariance, a property of least squares: with y
  * multiplied by s_y and an x column by s_x, t, p, R², F, elasticities and their intervals, every
  * residual test, Duan's factor and the Box–Cox / PE results do not change, and level-y coefficients
- * and standard errors scale by s_y (Greene, Econometric Analysis, on the units of measurement; the
- * test statistics' invariance follows from their definitions). Data: 300 rows of the seeded demo data.
+ * and standard errors scale by s_y (the textbook result on units of measurement, e.g. Greene,
+ * Econometric Analysis, cited from memory; each test statistic's invariance follows from its
+ * definition: n·R², F and moment ratios do not change when a column is multiplied by a constant).
+ * Data: 300 rows of the seeded demo data.
  */
 import * as fs from "fs";
 import * as path from "path";
