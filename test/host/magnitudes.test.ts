@@ -140,6 +140,25 @@ describe("extreme magnitudes give the numbers of ordinary units", () => {
   }
 });
 
+describe("PREDICT at extreme magnitudes of y: predictions and their intervals scale with y", () => {
+  const newX = [NAMES, [3, 90, 0, 100], [2.5, 110, 1, 95]];
+  for (const form of ["level-level", "log-log"]) {
+    for (const interval of ["mean", "individual"]) {
+      const opts = `form=${form}; interval=${interval}`;
+      const [y0, x0] = ranges(1, 1);
+      const base = call(reg, "PREDICT", y0, x0, newX, opts) as unknown[][];
+      for (const s of SCALES) {
+        it(`${form}, interval=${interval}, y × ${s}`, () => {
+          const [y, x] = ranges(s, 1);
+          const t = call(reg, "PREDICT", y, x, newX, opts) as unknown[][];
+          honest(t, `PREDICT ${form} ${interval} y×${s}`);
+          t.slice(1).forEach((r, i) => [0, 1, 2].forEach((c) => same((r[c] as number) / s, base[i + 1][c], `PREDICT ${form} ${interval} y×${s} row ${i + 1} col ${c}`)));
+        });
+      }
+    }
+  }
+});
+
 describe("PPML at extreme magnitudes of y (y·s moves only the intercept, by log s)", () => {
   const base = run("FIT", 1, 1, "log-log; estimator=ppml");
   const baseEl = run("ELASTICITIES", 1, 1, "log-log; estimator=ppml");
