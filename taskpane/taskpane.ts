@@ -12,7 +12,7 @@ import css from "./pane.css";
 import { engineValues, Host, hostRunner, type RangeSnapshot } from "./host";
 import { checkData, yieldToPage, type CheckResult, type Estimator, type Form } from "./check";
 import { intervalPlot, quantilePlot, residualPlot, shortNumber, type IntervalRow } from "./charts";
-import { CAUTIONS, formAssumptions, testReadings } from "./assumptions";
+import { CAUTIONS, formAssumptions, smearingNote, testReadings } from "./assumptions";
 import { buildBlock, type BlockItem } from "./formulas";
 import { formatAddress } from "./address";
 // Types only: the pane reads the functions' published object at run time, never their modules.
@@ -273,7 +273,7 @@ export class Pane {
       this.renderAssumptions(eng);
       const tEnd = performance.now();
       this.lastTimings = { read: tRead - t0, check: tCheck - tRead, pictures: tPictures - tCheck, choices: tChoices - tPictures, assumptions: tEnd - tChoices, total: tEnd - t0 };
-      this.status(`Checked ${fmt(check.rows)} rows × ${check.columns.length} columns.`);
+      this.status(`Checked ${fmt(check.rows)} ${check.rows === 1 ? "row" : "rows"} × ${check.columns.length} ${check.columns.length === 1 ? "column" : "columns"}.`);
     } catch (e) {
       this.status(`Something went wrong in the pane (${e instanceof Error ? e.message : String(e)}); the workbook was not changed.`);
     } finally {
@@ -368,7 +368,7 @@ export class Pane {
       }
       const lv = String(t[0][4] ?? "").replace("Lower ", "") || "95%";
       const txt = t.slice(1).map((r) => `<tr><th scope="row">${esc(r[0])}</th><td>${esc(cellText(r[2]))}</td><td>${esc(cellText(r[4]))}</td><td>${esc(cellText(r[5]))}</td></tr>`).join("");
-      parts.push(`<h3>Elasticities (${esc(c.estimator === "ppml" ? "PPML" : c.form)}, ${esc(String(t[0][3]).replace("Std. error ", "").replace(/[()]/g, ""))} errors)</h3>` +
+      parts.push(`<h3>Elasticities (${esc(c.estimator === "ppml" ? "PPML" : c.form)}; errors: ${esc(String(t[0][3]).replace("Std. error ", "").replace(/[()]/g, ""))})</h3>` +
         (rows.length ? `<figure id="elx-elasticities">${intervalPlot(rows, "Elasticities with their intervals", lv)}<figcaption>Dots are elasticities, bars their ${esc(lv)} intervals; the black line is zero.</figcaption></figure>` : "") +
         `<div class="elx-table-wrap"><table><caption>The same numbers${binaries.length ? `; ${esc(binaries.join(", "))}: binary, see ELX.EFFECTS` : ""}</caption><thead><tr><th scope="col">Term</th><th scope="col">Elasticity</th><th scope="col">Lower ${esc(lv)}</th><th scope="col">Upper ${esc(lv)}</th></tr></thead><tbody>${txt}</tbody></table></div>`);
     } else {
@@ -412,7 +412,7 @@ export class Pane {
     const head = ok.map((r) => `<th scope="col" data-choice="${r.key}">${esc(r.label)}</th>`).join("");
     const body = terms.map((term) => `<tr><th scope="row">${esc(term)}</th>${ok.map((r) => `<td>${cell(r.table, term)}</td>`).join("")}</tr>`).join("") +
       `<tr><th scope="row">Rows used</th>${ok.map((r) => `<td>${r.n === null ? "–" : fmt(r.n)}</td>`).join("")}</tr>`;
-    const html = (ok.length ? `<p>${fmt(s.check.lostToLog)} rows hold a zero or negative in a logged column. The elasticity under each way of handling them, with its interval:</p><div class="elx-table-wrap"><table id="elx-choices-table"><caption>Elasticity [interval] by zero choice</caption><thead><tr><th scope="col">Term</th>${head}</tr></thead><tbody>${body}</tbody></table></div>` : "") +
+    const html = (ok.length ? `<p>${fmt(s.check.lostToLog)} ${s.check.lostToLog === 1 ? "row holds" : "rows hold"} a zero or negative in a logged column. The elasticity under each way of handling them, with its interval:</p><div class="elx-table-wrap"><table id="elx-choices-table"><caption>Elasticity [interval] by zero choice</caption><thead><tr><th scope="col">Term</th>${head}</tr></thead><tbody>${body}</tbody></table></div>` : "") +
       failed.map((r) => `<p data-choice-error="${r.key}">${r.key === "ppml" ? "PPML" : esc(r.label)}: not available for these ranges (${esc(r.message)}).</p>`).join("") +
       `<p class="elx-muted">log(v + 1) and asinh results depend on the units of the shifted column; PPML keeps zero y and leaves out only rows with a zero in a logged x. Whichever you choose, say so where the number is used.</p>`;
     this.show("elx-choices", html);
@@ -430,7 +430,7 @@ export class Pane {
       const sm = c.form.startsWith("log") ? this.callFor(eng, "SMEARING", optionsText(c)) : null;
       if (sm && sm.ok) {
         const f = table2d(sm.value)?.[0]?.[0];
-        if (typeof f === "number") tests += `<p>Duan's smearing factor is ${shortNumber(f)}: exp(fitted log y) understates the mean of y by about ${shortNumber((f - 1) * 100)}% here.</p>`;
+        if (typeof f === "number") tests += `<p>${esc(smearingNote(f))}</p>`;
       }
     } else {
       tests = "<p>The specification tests (ELX.TESTS) are for the least-squares forms; the pictures above show the least-squares residuals for comparison.</p>";

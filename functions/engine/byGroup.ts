@@ -9,7 +9,7 @@
 import { readYX, asMatrix, keyText, subsetRoles, type Origin, type RawData } from "./intake";
 import { prepare } from "./transforms";
 import { estimatorOf } from "./estimators";
-import { ElxProblem, fail, RowList } from "./problems";
+import { ElxProblem, count, fail, RowList } from "./problems";
 import { modelKey, type Options } from "./options";
 import { BoundedCache, hashCells, type Sized } from "./cache";
 import type { AnyFit } from "./model";
@@ -49,7 +49,7 @@ export function fitGroups(keys: unknown, y: unknown, x: unknown, o: Options, yOr
   const start = raw.yHeader ? 1 : 0;
   const keyRows = km.length - start;
   if (keyRows < raw.dataRows || keyRows > raw.dataRows + raw.trailingBlank) {
-    fail(`keys has ${km.length} rows but y has ${raw.dataRows + raw.trailingBlank + start}; give keys the same rows as y`);
+    fail(`keys has ${count(km.length, "row")} but y has ${raw.dataRows + raw.trailingBlank + start}; give keys the same rows as y`);
   }
   // Bucket the usable rows by key, in first-appearance order over all rows.
   const order: string[] = [];

@@ -6,7 +6,8 @@
  */
 import { count, fail, unavailable } from "./problems";
 import { leastSquares, type Dependency, type QrFit } from "./leastSquares";
-import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, leastSquaresInput, type Covariance, type CovarianceInput } from "./covariance";
+import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, leastSquaresInput, originalUnits, standardError, type Covariance, type CovarianceInput } from "./covariance";
+import { normalised, scaled, workingUnit } from "./scaling";
 import { originalMedian, transformLabel, type Dataset, type Transform } from "./transforms";
 import { fisherSf, studentQuantile, studentTwoSided } from "./distributions";
 import type { SeType } from "./options";
@@ -113,23 +114,28 @@ export abstract class Model {
     const key = type === "HAC" ? `HAC${L}` : type;
     let c = this.covCache.get(key);
     if (!c) {
-      let V: Float64Array;
+      let W: Float64Array;
       const input = this.covarianceInput();
+      const unit = this.covUnit;
+      const scale = input.factor.scale;
       const panel = this.panelCovariance(type, lags);
       if (panel) {
-        c = { type, V: panel.V, df: panel.df === this.dfResid ? undefined : panel.df, negative: panel.negative, lags: panel.lags, label: panel.label };
+        // panel covariances come in the coefficients' units of the factorised columns: back to W
+        const k = this.k;
+        W = Float64Array.from(panel.V, (v, i) => v * scale[Math.floor(i / k)] * scale[i % k]);
+        c = { type, W, scale, unit, V: originalUnits(W, scale, unit), df: panel.df === this.dfResid ? undefined : panel.df, negative: panel.negative, lags: panel.lags, label: panel.label };
         this.covCache.set(key, c);
         return c;
       }
-      if (type === "classical") V = classicalCovariance(input);
-      else if (type === "HAC") V = hacCovariance(input, L);
+      if (type === "classical") W = classicalCovariance(input);
+      else if (type === "HAC") W = hacCovariance(input, L);
       else if (type === "cluster" || type === "DK") return fail("unreachable covariance type");
       else {
         const r = hcCovariance(input, type, this.leverageCache);
         if (r.h) this.leverageCache = r.h;
-        V = r.V;
+        W = r.V;
       }
-      c = { type, V, lags: type === "HAC" ? L : undefined, label: type === "HAC" ? `HAC, ${L} lag${L === 1 ? "" : "s"}` : type };
+      c = { type, W, scale, unit, V: originalUnits(W, scale, unit), lags: type === "HAC" ? L : undefined, label: type === "HAC" ? `HAC, ${count(L, "lag")}` : type };
       this.covCache.set(key, c);
     }
     return c;
@@ -176,10 +182,15 @@ export abstract class Model {
     return out;
   }
 
-  /** Standard errors under a covariance. */
+  /** The unit of the covariances computed on `qr`: standard errors are √W times it (OLS: y's scale). */
+  protected get covUnit(): number {
+    return 1;
+  }
+
+  /** Standard errors under a covariance (NaN where a two-way cluster variance came out negative). */
   standardErrors(c: Covariance): Float64Array {
     const se = new Float64Array(this.k);
-    for (let j = 0; j < this.k; j++) se[j] = Math.sqrt(Math.max(0, c.V[j * this.k + j]));
+    for (let j = 0; j < this.k; j++) se[j] = c.negative && c.negative.includes(j) ? NaN : standardError(c, j);
     return se;
   }
 
@@ -237,14 +248,21 @@ export const OLS_INFO: EstimatorInfo = Object.freeze({
 export class OlsFit extends Model {
   readonly estimator = "ols" as const;
   readonly info = OLS_INFO;
+  /**
+   * The factorisation of the design with y divided by `yUnit`: 1 for ordinary data, a power of two
+   * near max|y| when |y| leaves [2^−100, 2^100] (scaling.ts). Its coefficients, residuals, RSS and
+   * covariances are in units of yUnit; dividing by a power of two is exact, and it keeps squares
+   * finite for y as large as 1e155 or as small as 1e−150. Read coef, resid and rss for y's own units.
+   */
   readonly qr: QrFit;
+  readonly yUnit: number;
   private statsCache: FitStatistics | null = null;
 
   get meanTransform(): Transform {
     return this.data.yTransform;
   }
 
-  /** y − ŷ on the fitted scale (fixed effects included), unweighted. */
+  /** y − ŷ on the fitted scale (fixed effects included), unweighted, in units of yUnit. */
   private readonly residuals: Float64Array;
   private readonly covInput: CovarianceInput;
   /** R² of the full model and of the absorbed (within) data, for fits with fixed effects. */
@@ -261,9 +279,11 @@ export class OlsFit extends Model {
     super(data, intercept && keys.length === 0);
     const terms = this.terms;
     const w = data.roles.weights;
+    this.yUnit = workingUnit(data.y);
+    const y = scaled(data.y, this.yUnit);
     if (keys.length > 0) {
       const prep = prepareAbsorption(keys.map((k) => ({ name: k.name, codes: k.codes })), w);
-      const fe = fitAbsorbed(prep.absorber, data.y, this.design, terms.map((t) => t.name));
+      const fe = fitAbsorbed(prep.absorber, y, this.design, terms.map((t) => t.name));
       this.absorber = prep.absorber;
       this.absorbed = fe.absorbed;
       this.qr = fe.qr;
@@ -273,13 +293,13 @@ export class OlsFit extends Model {
     } else if (w) {
       const sw = Float64Array.from(w, Math.sqrt);
       const Xs = this.design.map((c) => Float64Array.from(c, (v, i) => v * sw[i]));
-      const ls = leastSquares(Xs, Float64Array.from(data.y, (v, i) => v * sw[i]));
+      const ls = leastSquares(Xs, Float64Array.from(y, (v, i) => v * sw[i]));
       this.qr = ls.qr ?? explainDependency(ls.dependent as Dependency, terms);
       const u = this.qr.resid;
       this.residuals = Float64Array.from(u, (v, i) => v / sw[i]);
       this.covInput = { columns: Xs, factor: this.qr, scores: u, ssr: this.qr.rss, dfResid: this.dfResid, rowNumbers: data.rowNumbers };
     } else {
-      const ls = leastSquares(this.design, data.y);
+      const ls = leastSquares(this.design, y);
       this.qr = ls.qr ?? explainDependency(ls.dependent as Dependency, terms);
       this.residuals = this.qr.resid;
       this.covInput = leastSquaresInput(this.design, this.qr, data.rowNumbers, this.dfResid);
@@ -290,11 +310,26 @@ export class OlsFit extends Model {
     return this.covInput;
   }
 
-  get coef(): Float64Array {
-    return this.qr.coef;
+  protected get covUnit(): number {
+    return this.yUnit;
   }
 
+  /** y divided by yUnit (max magnitude in [0.5, 1)): for sums of squares that must not overflow. */
+  get scaledY(): Float64Array {
+    return this.yUnit === 1 ? this.data.y : this.memo("scaledY", () => scaled(this.data.y, this.yUnit));
+  }
+
+  get coef(): Float64Array {
+    return this.yUnit === 1 ? this.qr.coef : this.memo("coef", () => Float64Array.from(this.qr.coef, (v) => v * this.yUnit));
+  }
+
+  /** Residuals in y's units. */
   get resid(): Float64Array {
+    return this.yUnit === 1 ? this.residuals : this.memo("resid", () => Float64Array.from(this.residuals, (v) => v * this.yUnit));
+  }
+
+  /** Residuals in units of yUnit (for sums of squares and the tests). */
+  get scaledResid(): Float64Array {
     return this.residuals;
   }
 
@@ -302,7 +337,7 @@ export class OlsFit extends Model {
   get fitted(): Float64Array {
     return this.memo("fitted", () => {
       const y = this.data.y;
-      const e = this.residuals;
+      const e = this.resid;
       return Float64Array.from(y, (v, i) => v - e[i]);
     });
   }
@@ -312,13 +347,14 @@ export class OlsFit extends Model {
     return this.absorbed === 0 && this.data.roles.weights === null;
   }
 
+  /** RSS in y's units (Infinity when that overflows: statistics use qr.rss, in units of yUnit). */
   get rss(): number {
-    return this.qr.rss;
+    return this.qr.rss * this.yUnit * this.yUnit;
   }
 
-  /** Residual variance s² = RSS/(n − k). */
+  /** Residual variance s² = RSS/(n − k − a). */
   get s2(): number {
-    return this.qr.rss / this.dfResid;
+    return this.rss / this.dfResid;
   }
 
   /** The Student t quantile for a two-sided interval at `level`, on n − k − a df (clusters: G − 1). */
@@ -333,12 +369,12 @@ export class OlsFit extends Model {
   statistics(): FitStatistics {
     if (this.statsCache) return this.statsCache;
     const { n, k } = this;
-    const y = this.data.y;
-    const w = this.data.roles.weights;
-    if (this.absorbedR2 || w) {
+    if (this.absorbedR2 || this.data.roles.weights) {
       this.statsCache = this.weightedOrAbsorbedStatistics();
       return this.statsCache;
     }
+    // in units of yUnit: R², F and the likelihood's RSS term do not overflow for extreme y
+    const y = this.scaledY;
     let tss = 0;
     if (this.intercept) {
       let mean = 0;
@@ -352,18 +388,20 @@ export class OlsFit extends Model {
     } else {
       for (let i = 0; i < n; i++) tss += y[i] * y[i];
     }
-    const rss = this.rss;
+    const rss = this.qr.rss;
     const dfModel = k - (this.intercept ? 1 : 0);
     const rSquared = tss > 0 ? 1 - rss / tss : NaN;
     const adjRSquared = 1 - (1 - rSquared) * ((n - (this.intercept ? 1 : 0)) / this.dfResid);
-    const sigma = Math.sqrt(rss / this.dfResid);
+    const sigma = Math.sqrt(rss / this.dfResid) * this.yUnit;
     let fStatistic: number | null = null;
     let fPValue: number | null = null;
-    if (dfModel > 0 && rss > 0) {
+    const exact = this.isExact();
+    if (dfModel > 0 && rss > 0 && !exact) {
       fStatistic = ((tss - rss) / dfModel) / (rss / this.dfResid);
       fPValue = fisherSf(fStatistic, dfModel, this.dfResid);
     }
-    const logLik = -0.5 * n * (Math.log(2 * Math.PI) + Math.log(rss / n) + 1);
+    // unbounded for an exact fit (RSS is rounding noise): NaN, shown as #N/A with the reason
+    const logLik = exact ? NaN : -0.5 * n * (Math.log(2 * Math.PI) + Math.log(rss / n) + 2 * Math.log(this.yUnit) + 1);
     const aic = -2 * logLik + 2 * (k + 1);
     const bic = -2 * logLik + (k + 1) * Math.log(n);
     this.statsCache = { rSquared, adjRSquared, sigma, fStatistic, fDf1: dfModel, fDf2: this.dfResid, fPValue, logLik, aic, bic };
@@ -378,10 +416,11 @@ export class OlsFit extends Model {
    */
   private weightedOrAbsorbedStatistics(): FitStatistics {
     const { n, k } = this;
-    const y = this.data.y;
+    const y = this.scaledY;
     const w = this.data.roles.weights;
-    const rss = this.rss;
+    const rss = this.qr.rss; // in units of yUnit
     const df = this.dfResid;
+    const exact = this.isExact();
     let rSquared: number;
     let fStatistic: number | null = null;
     let fPValue: number | null = null;
@@ -392,7 +431,7 @@ export class OlsFit extends Model {
       within = this.absorbedR2.within;
       dfModel = k;
       const withinTss = rss / (1 - within);
-      if (k > 0 && rss > 0) {
+      if (k > 0 && rss > 0 && !exact) {
         fStatistic = ((withinTss - rss) / k) / (rss / df);
         fPValue = fisherSf(fStatistic, k, df);
       }
@@ -409,7 +448,7 @@ export class OlsFit extends Model {
       for (let i = 0; i < n; i++) tss += (w ? w[i] : 1) * (y[i] - m) * (y[i] - m);
       rSquared = tss > 0 ? 1 - rss / tss : NaN;
       dfModel = k - (this.intercept ? 1 : 0);
-      if (dfModel > 0 && rss > 0) {
+      if (dfModel > 0 && rss > 0 && !exact) {
         fStatistic = ((tss - rss) / dfModel) / (rss / df);
         fPValue = fisherSf(fStatistic, dfModel, df);
       }
@@ -418,16 +457,33 @@ export class OlsFit extends Model {
     const adjRSquared = 1 - (1 - rSquared) * ((n - (this.intercept || this.absorbed > 0 ? 1 : 0)) / df);
     let sumLogW = 0;
     if (w) for (let i = 0; i < n; i++) sumLogW += Math.log(w[i]);
-    const logLik = 0.5 * sumLogW - 0.5 * n * (Math.log(2 * Math.PI) + 1 - Math.log(n) + Math.log(rss));
+    const logLik = exact ? NaN : 0.5 * sumLogW - 0.5 * n * (Math.log(2 * Math.PI) + 1 - Math.log(n) + Math.log(rss) + 2 * Math.log(this.yUnit));
     return {
-      rSquared, adjRSquared, sigma: Math.sqrt(rss / df), fStatistic, fDf1: dfModel, fDf2: df, fPValue,
+      rSquared, adjRSquared, sigma: Math.sqrt(rss / df) * this.yUnit, fStatistic, fDf1: dfModel, fDf2: df, fPValue,
       logLik, aic: -2 * logLik + 2 * (p + 1), bic: -2 * logLik + (p + 1) * Math.log(n), withinRSquared: within,
     };
   }
 
   /** Refuses a perfect fit where a quantity needs residual variation. */
   requireResidualVariation(what: string): void {
-    if (this.isExact()) unavailable(`the fit is exact (every residual is zero up to rounding), so ${what} is undefined`);
+    if (this.isExact()) unavailable(`${this.exactReason()}; that leaves ${what} undefined`);
+  }
+
+  /**
+   * What an exact fit usually means, in the analyst's words: an x column that alone is a linear
+   * function of y (y in other units, or y itself) is named; otherwise y was computed from the regressors.
+   */
+  exactReason(): string {
+    return this.memo("exactReason", () => {
+      const head = "the fit is exact (every residual is zero up to rounding)";
+      const y = this.data.y;
+      for (let j = 0; j < this.data.x.length; j++) {
+        if (squaredCorrelation(this.data.x[j], y) > 1 - 1e-10) {
+          return `${head}: ${this.data.xNames[j]} is an exact linear function of ${this.data.yName} (y itself, or y in other units): remove it from x`;
+        }
+      }
+      return `${head}: ${this.data.yName} is an exact linear combination of the regressors, which usually means it was computed from them (a formula, a total, a share) or that y sits among them in another form: fit y as it was measured`;
+    });
   }
 
   /**
@@ -437,18 +493,44 @@ export class OlsFit extends Model {
   isExact(): boolean {
     return this.memo("exact", () => {
       let yy = 0;
-      const y = this.data.y;
+      const y = this.scaledY;
       for (let i = 0; i < y.length; i++) yy += y[i] * y[i];
-      return !(this.rss > EXACT_FIT * yy);
+      return !(this.qr.rss > EXACT_FIT * yy);
     });
   }
+}
+
+/** Squared correlation of two columns (two-pass means, scaled against overflow); 0 when either is constant. */
+function squaredCorrelation(a0: Float64Array, b0: Float64Array): number {
+  const a = normalised(a0);
+  const b = normalised(b0);
+  const n = a.length;
+  let ma = 0;
+  let mb = 0;
+  for (let i = 0; i < n; i++) {
+    ma += a[i];
+    mb += b[i];
+  }
+  ma /= n;
+  mb /= n;
+  let saa = 0;
+  let sbb = 0;
+  let sab = 0;
+  for (let i = 0; i < n; i++) {
+    const da = a[i] - ma;
+    const db = b[i] - mb;
+    saa += da * da;
+    sbb += db * db;
+    sab += da * db;
+  }
+  return saa > 0 && sbb > 0 ? (sab / saa) * (sab / sbb) : 0;
 }
 
 function checkShape(data: Dataset, k: number, intercept: boolean): void {
   const n = data.n;
   if (n <= k) {
     const left = data.leftOutBlank + data.leftOutNonPositive;
-    fail(`${count(n, "usable row")} ${n === 1 ? "is" : "are"} too few for ${k} coefficients${intercept ? " (the intercept counts)" : ""}: need at least ${k + 1}${left > 0 ? `; ${left} rows were left out` : ""}`);
+    fail(`${count(n, "usable row")} ${n === 1 ? "is" : "are"} too few for ${count(k, "coefficient")}${intercept ? " (the intercept counts)" : ""}: need at least ${k + 1}${left > 0 ? `; ${count(left, "row was", "rows were")} left out` : ""}`);
   }
   // Constant regressors: a clearer message than the rank check's.
   data.x.forEach((c, j) => {

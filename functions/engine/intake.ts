@@ -496,7 +496,7 @@ export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null,
   if (ym.length === 1 && ym[0].length > 1) {
     // y laid out across one row: variables are in rows, observations in columns.
     if (xm[0].length !== ym[0].length) {
-      fail(`y is one row of ${ym[0].length} cells, so x must have ${ym[0].length} columns with one regressor per row (it has ${xm[0].length} columns)`);
+      fail(`y is one row of ${ym[0].length} cells, so x must have ${ym[0].length} columns with one regressor per row (it has ${count(xm[0].length, "column")})`);
     }
     ym = transpose(ym);
     xm = transpose(xm);

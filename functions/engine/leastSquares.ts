@@ -158,7 +158,7 @@ export function leastSquares(X: Float64Array[], y: Float64Array, refineWhenNeede
   const k = X.length;
   const k1 = k + 1;
   const n = y.length;
-  if (n <= k) fail(`${count(n, "usable row")} ${n === 1 ? "is" : "are"} too few for ${k} coefficients`);
+  if (n <= k) fail(`${count(n, "usable row")} ${n === 1 ? "is" : "are"} too few for ${count(k, "coefficient")}`);
   const scale = new Float64Array(k);
   const inv = new Float64Array(k);
   for (let j = 0; j < k; j++) {

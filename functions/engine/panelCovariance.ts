@@ -23,7 +23,7 @@
  */
 import { fail, requireFeasible, rowsPhrase } from "./problems";
 import type { QrFit } from "./leastSquares";
-import { BLOCK, defaultLags, forEachQBlock, LEVERAGE_TOL, sandwich } from "./covariance";
+import { BLOCK, defaultLags, forEachQBlock, LEVERAGE_TOL, originalUnits, sandwich as unitSandwich } from "./covariance";
 import { recode } from "./absorb";
 
 export interface ScoreModel {
@@ -59,6 +59,11 @@ export interface PanelCovariance {
   groups?: number[];
   lags?: number;
   factors?: number[];
+}
+
+/** R⁻¹ M R⁻ᵀ in the coefficients' units of the factorised columns. */
+function sandwich(qr: QrFit, M: Float64Array): Float64Array {
+  return originalUnits(unitSandwich(qr, M), qr.scale, 1);
 }
 
 function rowName(m: ScoreModel, i: number): number {

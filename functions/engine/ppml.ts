@@ -18,6 +18,7 @@
  * dispersion φ = Σ u²/μ̂ /(n − k). They are the OLS sandwich formulas on the weighted design √μ̂·X with
  * the Pearson residuals u/√μ̂, so the same code computes them.
  */
+import { scaled, workingUnit } from "./scaling";
 import { leastSquares, type QrFit } from "./leastSquares";
 import { normalQuantile, normalTwoSided } from "./distributions";
 import { fail, unavailable, rowsPhrase, RowList } from "./problems";
@@ -78,7 +79,11 @@ export class PpmlFit extends Model {
   /** @param maxIter iteration limit (tests lower it to reach the non-convergence message) */
   constructor(data: Dataset, intercept: boolean, maxIter = PPML_MAX_ITER) {
     super(data, intercept);
-    const y = data.y;
+    // With an intercept PPML is equivariant to the units of y (y·s moves the intercept by log s and
+    // nothing else), so y of extreme magnitude is fitted divided by a power of two and the intercept,
+    // μ̂ and the deviance are put back afterwards; the iterations then start near the answer.
+    const unit = intercept ? workingUnit(data.y) : 1;
+    const y = unit === 1 ? data.y : scaled(data.y, unit);
     const n = this.n;
     let positive = 0;
     for (let i = 0; i < n; i++) if (y[i] > 0) positive++;
@@ -128,8 +133,16 @@ export class PpmlFit extends Model {
       }
     }
     if (!converged || !lastQr) {
-      unavailable(`PPML did not converge in ${maxIter} iterations (deviance ${Number.isFinite(dev) ? dev.toPrecision(6) : "not finite"}): look for a regressor that separates the zero rows, or rescale very large regressors`);
+      unavailable(`PPML did not converge in ${maxIter} iterations (deviance ${Number.isFinite(dev * unit) ? (dev * unit).toPrecision(6) : "not finite"}): look for a regressor that separates the zero rows, or rescale very large regressors`);
     }
+    if (unit !== 1) {
+      const shift = Math.log(unit);
+      beta[0] += shift;
+      eta = Float64Array.from(eta, (v) => v + shift);
+      mu = Float64Array.from(mu, (v) => v * unit);
+      dev *= unit;
+    }
+    const yOwn = data.y;
     this.beta = beta;
     this.mu = mu;
     this.iterations = iter;
@@ -137,11 +150,11 @@ export class PpmlFit extends Model {
     // The factor at the converged μ̂ carries the covariances: weighted design √μ̂·X, Pearson residuals.
     for (let i = 0; i < n; i++) {
       const s = Math.sqrt(mu[i]);
-      z[i] = (eta[i] + (y[i] - mu[i]) / mu[i]) * s;
+      z[i] = (eta[i] + (yOwn[i] - mu[i]) / mu[i]) * s;
       for (let j = 0; j < k; j++) A[j][i] = X[j][i] * s;
     }
     const q = leastSquares(A, z).qr ?? explain();
-    const pearson = Float64Array.from(y, (v, i) => (v - mu[i]) / Math.sqrt(mu[i]));
+    const pearson = Float64Array.from(yOwn, (v, i) => (v - mu[i]) / Math.sqrt(mu[i]));
     let ssr = 0;
     for (let i = 0; i < n; i++) ssr += pearson[i] * pearson[i];
     this.qr = q;
@@ -227,8 +240,10 @@ export class PpmlFit extends Model {
 
   statistics(): PpmlStatistics {
     return this.memo("ppmlStats", () => {
-      const y = this.data.y;
-      const mu = this.mu;
+      // the squared correlation does not depend on units: extreme y and μ̂ are scaled first
+      const unit = workingUnit(this.data.y);
+      const y = unit === 1 ? this.data.y : scaled(this.data.y, unit);
+      const mu = unit === 1 ? this.mu : scaled(this.mu, unit);
       const n = this.n;
       let my = 0;
       let mm = 0;
@@ -250,7 +265,7 @@ export class PpmlFit extends Model {
       }
       return {
         deviance: this.devianceValue,
-        pseudoRSquared: (sxy * sxy) / (sxx * syy),
+        pseudoRSquared: (sxy / sxx) * (sxy / syy),
         iterations: this.iterations,
         zerosKept: this.data.yZerosUsed,
         dispersion: this.covInput.ssr / this.dfResid,

@@ -72,6 +72,13 @@ export function isLogLike(t: Transform): boolean {
   return t.kind !== "level";
 }
 
+/** Whether two columns hold the same values in every row (y included among the regressors). */
+function sameValues(a: Float64Array, b: Float64Array): boolean {
+  if (a.length < 2) return false;
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
+}
+
 function isBinary(col: Float64Array): boolean {
   for (let i = 0; i < col.length; i++) {
     const v = col[i];
@@ -255,6 +262,11 @@ export function prepare(raw: RawData, o: Options): Dataset {
   const info = estimatorOf(o);
   const logY = info.logsY && o.form.startsWith("log-");
   const logX = o.form.endsWith("-log");
+  raw.x.forEach((c, j) => {
+    if (sameValues(c, raw.y)) {
+      fail(`${raw.xNames[j]} (column ${j + 1} of x) holds the same values as y (${raw.yName}) in every row used: y cannot explain itself (the fit would be exact and its t-values meaningless); take the y column out of the x range`);
+    }
+  });
   // Instruments take the x side's transform, so they join the regressors until the end.
   const kx = raw.x.length;
   const allX = [...raw.x, ...raw.roles.instruments];

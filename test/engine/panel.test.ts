@@ -18,7 +18,7 @@ import * as fs from "fs";
 import * as path from "path";
 import { connectedComponents, dropSingletons, fitAbsorbed, keepRows, timeCodes, prepareAbsorption, usableWeights, Absorber, type FixedEffectKey } from "../../functions/engine/absorb";
 import { clusterCovariance, driscollKraay, negativeVarianceReason, panelClassical, panelHac, panelHc, panelStandardErrors, type ScoreModel } from "../../functions/engine/panelCovariance";
-import { classicalCovariance, hacCovariance, hcCovariance, leastSquaresInput } from "../../functions/engine/covariance";
+import { classicalCovariance, hacCovariance, hcCovariance, leastSquaresInput, originalUnits } from "../../functions/engine/covariance";
 import { leastSquares } from "../../functions/engine/leastSquares";
 import { ppmlAbsorbed } from "../../functions/engine/ppmlAbsorbed";
 import { ElxProblem } from "../../functions/engine/problems";
@@ -75,16 +75,16 @@ describe("absorbing a key equals adding its indicator columns (Frisch–Waugh–
     const qr = leastSquares(full, Float64Array.from(c.y)).qr ?? noDep();
     const K = full.length;
     relClose(fit.coef, qr.coef.slice(0, k), 1e-10, "slopes");
-    relClose(diag(panelClassical(model).V, k), diag(classicalCovariance(leastSquaresInput(full, qr, Int32Array.from({ length: qr.n }, (_, i) => i + 1))), K, 0, k), 1e-10, "classical");
+    relClose(diag(panelClassical(model).V, k), diag(originalUnits(classicalCovariance(leastSquaresInput(full, qr, Int32Array.from({ length: qr.n }, (_, i) => i + 1))), qr.scale, 1), K, 0, k), 1e-10, "classical");
     const rows = Int32Array.from({ length: qr.n }, (_, i) => i + 1);
     for (const type of ["HC1", "HC3"] as const) {
-      relClose(diag(panelHc(model, type).V, k), diag(hcCovariance(leastSquaresInput(full, qr, rows), type, null).V, K, 0, k), 1e-10, type);
+      relClose(diag(panelHc(model, type).V, k), diag(originalUnits(hcCovariance(leastSquaresInput(full, qr, rows), type, null).V, qr.scale, 1), K, 0, k), 1e-10, type);
     }
     const year = { name: "year", codes: Int32Array.from(c.cluster.year.codes.year) };
     const fullModel: ScoreModel = { X: full, qr, u: qr.resid, absorbed: 0, leverageOffset: new Float64Array(qr.n) };
     relClose(diag(clusterCovariance(model, [year], 0).V, k), diag(clusterCovariance(fullModel, [year], 0).V, K, 0, k), 1e-10, "cluster by year");
     // HAC within one unit spanning all rows is the ordinary Newey–West of covariance.ts
-    relClose(diag(panelHac(fullModel, new Int32Array(qr.n), 3).V, K, 0, k), diag(hacCovariance(leastSquaresInput(full, qr, Int32Array.from({ length: qr.n }, (_, i) => i + 1)), 3), K, 0, k), 1e-12, "HAC one unit");
+    relClose(diag(panelHac(fullModel, new Int32Array(qr.n), 3).V, K, 0, k), diag(originalUnits(hacCovariance(leastSquaresInput(full, qr, Int32Array.from({ length: qr.n }, (_, i) => i + 1)), 3), qr.scale, 1), K, 0, k), 1e-12, "HAC one unit");
   });
 
   test("two keys, unbalanced (EmplUK, firm and year): slopes, HC1, two-way cluster, DK, 1e-10; a = G₁ + G₂ − 1", () => {
@@ -98,7 +98,7 @@ describe("absorbing a key equals adding its indicator columns (Frisch–Waugh–
     expect(fit.absorber.components).toBe(1);
     relClose(fit.coef, qr.coef.slice(0, k), 1e-10, "slopes");
     const rows = Int32Array.from({ length: qr.n }, (_, i) => i + 1);
-    relClose(diag(panelHc(model, "HC1").V, k), diag(hcCovariance(leastSquaresInput(full, qr, rows), "HC1", null).V, K, 0, k), 1e-10, "HC1");
+    relClose(diag(panelHc(model, "HC1").V, k), diag(originalUnits(hcCovariance(leastSquaresInput(full, qr, rows), "HC1", null).V, qr.scale, 1), K, 0, k), 1e-10, "HC1");
     const fullModel: ScoreModel = { X: full, qr, u: qr.resid, absorbed: 0, leverageOffset: null };
     const cl = [{ name: "firm", codes: Int32Array.from(c.keys.firm) }, { name: "year", codes: Int32Array.from(c.keys.year) }];
     // the indicator regression has no nested count of its own: compare with a_n = 0 on both sides
@@ -122,7 +122,7 @@ describe("absorbing a key equals adding its indicator columns (Frisch–Waugh–
     expect(K - 2).toBe(28);
     relClose(fit.coef, qr.coef.slice(0, 2), 1e-10, "slopes");
     const r = Int32Array.from({ length: qr.n }, (_, i) => i + 1);
-    relClose(diag(panelHc(model, "HC1").V, 2), diag(hcCovariance(leastSquaresInput(full, qr, r), "HC1", null).V, K, 0, 2), 1e-10, "HC1");
+    relClose(diag(panelHc(model, "HC1").V, 2), diag(originalUnits(hcCovariance(leastSquaresInput(full, qr, r), "HC1", null).V, qr.scale, 1), K, 0, 2), 1e-10, "HC1");
   });
 
   test("demeaning in place gives the same column as into a new array (two keys, unbalanced)", () => {
@@ -152,9 +152,9 @@ describe("absorbing a key equals adding its indicator columns (Frisch–Waugh–
     relClose(fit.coef, qr.coef.slice(1), 1e-10, "slopes");
     const rows = Int32Array.from({ length: qr.n }, (_, i) => i + 1);
     for (const type of ["HC1", "HC2", "HC3"] as const) {
-      relClose(diag(panelHc(model, type).V, 2), diag(hcCovariance(leastSquaresInput(full, qr, rows), type, null).V, 3, 1, 2), 1e-10, type);
+      relClose(diag(panelHc(model, type).V, 2), diag(originalUnits(hcCovariance(leastSquaresInput(full, qr, rows), type, null).V, qr.scale, 1), 3, 1, 2), 1e-10, type);
     }
-    relClose(diag(panelClassical(model).V, 2), diag(classicalCovariance(leastSquaresInput(full, qr, Int32Array.from({ length: qr.n }, (_, i) => i + 1))), 3, 1, 2), 1e-10, "classical");
+    relClose(diag(panelClassical(model).V, 2), diag(originalUnits(classicalCovariance(leastSquaresInput(full, qr, Int32Array.from({ length: qr.n }, (_, i) => i + 1))), qr.scale, 1), 3, 1, 2), 1e-10, "classical");
   });
 });
 
