@@ -5,8 +5,8 @@
  * Loads dist/functions.js the way the spreadsheet host does (a global CustomFunctions whose
  * associate() fills a registry, with the host's Error class and ErrorCode values), lays the demo
  * data (data/demo.json, made by scripts/make-demo-data.js) out as a sheet, and prints the results of
- * the formulas an analyst would type, each preceded by the formula itself. Functions that a build
- * does not register yet are skipped with a note, so the script keeps working as they arrive.
+ * the formulas an analyst would type, each preceded by the formula itself. A function missing from
+ * the build loaded (an older one, with --bundle) is skipped with a note.
  *
  * The data are invented (Harrow & Crumb, a fictional bakery chain) and simulated from a known model,
  * so the true values are printed next to the estimates. Plain Node, no dependencies.
@@ -216,7 +216,7 @@ async function formula(text, id, args, addresses) {
   out("");
   out(text);
   if (!has(id)) {
-    out(`  (ELX.${id} is not in this build yet: skipped)`);
+    out(`  (ELX.${id} is not in the build loaded: skipped)`);
     return undefined;
   }
   const res = await call(id, args, addresses, text);
@@ -341,7 +341,7 @@ async function main() {
   out("  (PPML fits the mean of Units itself, so the two stock-out weeks with normal footfall stay in;");
   out("   zeros=drop still removes the closed weeks, where the logged Footfall is 0.)");
 
-  heading("7. Functions that arrive in later builds (run only when registered)");
+  heading("7. Predictions in loaves, residual tests, the form check and per-store elasticities");
   await formula(F("SMEARING", "zeros=drop"), "SMEARING", [y, x, "zeros=drop"], yx);
   await formula(F("SMEARING", "zeros=drop; retransform=normal"), "SMEARING", [y, x, "zeros=drop; retransform=normal"], yx);
   await formula(`=ELX.PREDICT(${Y.address}, ${X.address}, ${SCENARIO.address}, "zeros=drop; interval=mean")`,

@@ -3,10 +3,26 @@
  * the pane passes the test table it got from ELX.TESTS (or its error message).
  */
 import type { Estimator, Form } from "./check";
+import { shortNumber } from "./charts";
 
 export interface Paragraph {
   heading: string;
   text: string;
+}
+
+/**
+ * Duan's factor f read as a gap in percent. exp(fitted log y) times f is the mean, so exp(fitted log y)
+ * alone is 100(1 − 1/f)% below the mean (6.4% for f = 1.0682), and multiplying by f raises it by
+ * 100(f − 1)% (6.82%): two different percentages, both said.
+ */
+export function smearingNote(f: number): string {
+  const head = `Duan's smearing factor is ${shortNumber(f)}`;
+  if (f === 1) return `${head}: exp(fitted log y) already predicts the mean of y here.`;
+  const gap = shortNumber(Math.abs(100 * (1 - 1 / f)));
+  const step = shortNumber(Math.abs(100 * (f - 1)));
+  return f > 1
+    ? `${head}: exp(fitted log y) alone is about ${gap}% below the mean of y here; multiplying by the factor raises it by ${step}% to the mean.`
+    : `${head}: exp(fitted log y) alone is about ${gap}% above the mean of y here; multiplying by the factor lowers it by ${step}% to the mean.`;
 }
 
 /** The meaning of a coefficient and the assumptions that come with the form. */

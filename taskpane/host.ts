@@ -53,6 +53,11 @@ export type WriteResult =
   | { ok: true; address: string }
   | { ok: false; message: string; occupied: string[]; suggestion: string | null };
 
+/** "1 row", "3 rows". */
+function plural(n: number, word: string): string {
+  return `${n} ${word}${n === 1 ? "" : "s"}`;
+}
+
 function message(e: unknown): string {
   if (e && typeof e === "object" && "message" in e) return String((e as { message: unknown }).message);
   return String(e);
@@ -146,7 +151,7 @@ export class Host {
           ok: false,
           occupied,
           suggestion,
-          message: `Nothing was written: the block needs ${where} (${block.height} rows × ${block.width} columns) and ${list} ${occupied.length === 1 ? "is" : "are"} not empty.` +
+          message: `Nothing was written: the block needs ${where} (${plural(block.height, "row")} × ${plural(block.width, "column")}) and ${list} ${occupied.length === 1 ? "is" : "are"} not empty.` +
             (suggestion ? ` ${suggestion} is free.` : " Choose another cell."),
         } as WriteResult;
       }
@@ -199,7 +204,7 @@ export class Host {
     const a = parsed.value;
     if (a.top !== a.bottom || a.left !== a.right) {
       // A range is accepted as a target when it is at least as large as the block; its top left is used.
-      if (rowCount(a) < height || columnCount(a) < width) return { ok: false, message: `the block needs ${height} rows × ${width} columns; give one cell for its top left corner (for example I2)` };
+      if (rowCount(a) < height || columnCount(a) < width) return { ok: false, message: `the block needs ${plural(height, "row")} × ${plural(width, "column")}; give one cell for its top left corner (for example I2)` };
     }
     const sheets = context.workbook.worksheets;
     const sheet = a.sheet ? sheets.getItemOrNullObject(a.sheet) : sheets.getActiveWorksheet();
@@ -207,7 +212,7 @@ export class Host {
     await context.sync();
     if (sheet.isNullObject) return { ok: false, message: `there is no sheet named "${a.sheet}" in this workbook` };
     const area: Address = { sheet: String(sheet.name), top: a.top, left: a.left, bottom: a.top + height - 1, right: a.left + width - 1 };
-    if (area.bottom > MAX_ROWS || area.right > MAX_COLUMNS) return { ok: false, message: `a block of ${height} rows × ${width} columns at ${anchorText} would run off the sheet; choose a cell further up or left` };
+    if (area.bottom > MAX_ROWS || area.right > MAX_COLUMNS) return { ok: false, message: `a block of ${plural(height, "row")} × ${plural(width, "column")} at ${anchorText} would run off the sheet; choose a cell further up or left` };
     return { ok: true, value: { sheet, area } };
   }
 

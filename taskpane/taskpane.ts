@@ -12,7 +12,7 @@ import css from "./pane.css";
 import { engineValues, Host, hostRunner, type RangeSnapshot } from "./host";
 import { checkData, yieldToPage, type CheckResult, type Estimator, type Form } from "./check";
 import { intervalPlot, quantilePlot, residualPlot, shortNumber, type IntervalRow } from "./charts";
-import { CAUTIONS, formAssumptions, testReadings } from "./assumptions";
+import { CAUTIONS, formAssumptions, smearingNote, testReadings } from "./assumptions";
 import { buildBlock, type BlockItem } from "./formulas";
 import { formatAddress } from "./address";
 // Types only: the pane reads the functions' published object at run time, never their modules.
@@ -303,7 +303,8 @@ export class Pane {
       this.lastTimings = { read: tRead - t0, check: tCheck - tRead, pictures: tPictures - tCheck, choices: tChoices - tPictures, assumptions: tEnd - tChoices, total: tEnd - t0 };
       // The refusal comes first: bring it into view, its first way out under the keyboard.
       if (!main.ok) (this.el["elx-verdict-body"].querySelector("button") as HTMLElement | null)?.focus();
-      this.status(main.ok ? `Checked ${fmt(check.rows)} rows × ${check.columns.length} columns.` : `Checked ${fmt(check.rows)} rows × ${check.columns.length} columns: the chosen options do not run on these data (see below).`);
+      const size = `${fmt(check.rows)} ${check.rows === 1 ? "row" : "rows"} × ${check.columns.length} ${check.columns.length === 1 ? "column" : "columns"}`;
+      this.status(main.ok ? `Checked ${size}.` : `Checked ${size}: the chosen options do not run on these data (see below).`);
     } catch (e) {
       this.status(`Something went wrong in the pane (${e instanceof Error ? e.message : String(e)}); the workbook was not changed.`);
     } finally {
@@ -393,7 +394,7 @@ export class Pane {
       const rows: IntervalRow[] = v.items.filter((r) => !r.binary && [r.estimate, r.lower, r.upper].every(Number.isFinite)).map((r) => ({ term: r.term, estimate: r.estimate, lower: r.lower, upper: r.upper }));
       const binaries = v.items.filter((r) => r.binary).map((r) => r.term);
       const txt = v.items.filter((r) => !r.binary).map((r) => `<tr><th scope="row">${esc(r.term)}</th><td>${esc(cellText(r.estimate))}</td><td>${esc(cellText(r.lower))}</td><td>${esc(cellText(r.upper))}</td></tr>`).join("");
-      parts.push(`<h3>Elasticities (${esc(v.estimator === "ppml" ? "PPML" : c.form)}, ${esc(v.seLabel)} errors)</h3>` +
+      parts.push(`<h3>Elasticities (${esc(v.estimator === "ppml" ? "PPML" : c.form)}; errors: ${esc(v.seLabel)})</h3>` +
         (rows.length ? `<figure id="elx-elasticities">${intervalPlot(rows, "Elasticities with their intervals", lv)}<figcaption>Dots are elasticities, bars their ${esc(lv)} intervals; the black line is zero.</figcaption></figure>` : "") +
         `<div class="elx-table-wrap"><table><caption>The same numbers${binaries.length ? `; ${esc(binaries.join(", "))}: binary, see ELX.EFFECTS` : ""}</caption><thead><tr><th scope="col">Term</th><th scope="col">Elasticity</th><th scope="col">Low (${esc(lv)})</th><th scope="col">High (${esc(lv)})</th></tr></thead><tbody>${txt}</tbody></table></div>`);
     } else {
@@ -437,7 +438,7 @@ export class Pane {
       const nums = row ? [row.estimate, row.lower, row.upper].map((v) => `<td>${esc(cellText(v))}</td>`).join("") : "<td>–</td><td>–</td><td>–</td>";
       return `<tr data-choice="${esc(r.key)}" data-term="${esc(term)}"><th scope="row">${esc(r.label)}</th>${nums}<td>${r.n === null ? "–" : esc(fmt(r.n))}</td></tr>`;
     }).join("")).join("");
-    const html = (ok.length ? `<p>${esc(fmt(s.check.lostToLog))} rows hold a zero or negative in a logged column. The elasticity under each way of handling them, with its ${esc(lv)} interval:</p><div class="elx-table-wrap"><table id="elx-choices-table" class="elx-compact"><caption>Elasticity by zero choice${binaries.length ? `; ${esc(binaries.join(", "))}: binary, see ELX.EFFECTS` : ""}</caption><thead><tr><th scope="col">Choice</th><th scope="col">Elasticity</th><th scope="col">Low (${esc(lv)})</th><th scope="col">High (${esc(lv)})</th><th scope="col">Rows used</th></tr></thead><tbody>${body}</tbody></table></div>` : "") +
+    const html = (ok.length ? `<p>${esc(fmt(s.check.lostToLog))} ${s.check.lostToLog === 1 ? "row holds" : "rows hold"} a zero or negative in a logged column. The elasticity under each way of handling them, with its ${esc(lv)} interval:</p><div class="elx-table-wrap"><table id="elx-choices-table" class="elx-compact"><caption>Elasticity by zero choice${binaries.length ? `; ${esc(binaries.join(", "))}: binary, see ELX.EFFECTS` : ""}</caption><thead><tr><th scope="col">Choice</th><th scope="col">Elasticity</th><th scope="col">Low (${esc(lv)})</th><th scope="col">High (${esc(lv)})</th><th scope="col">Rows used</th></tr></thead><tbody>${body}</tbody></table></div>` : "") +
       failed.map((r) => `<p data-choice-error="${esc(r.key)}">${r.key === "ppml" ? "PPML" : esc(r.label)}: not available for these ranges (${esc(r.message)}).</p>`).join("") +
       `<p class="elx-muted">log(v + 1) and asinh results depend on the units of the shifted column; PPML keeps zero y and leaves out only rows with a zero in a logged x. Whichever you choose, say so where the number is used.</p>`;
     this.show("elx-choices", html);
@@ -455,7 +456,7 @@ export class Pane {
       const sm = c.form.startsWith("log") ? this.callFor(eng, "SMEARING", optionsText(c)) : null;
       if (sm && sm.ok) {
         const f = table2d(sm.value)?.[0]?.[0];
-        if (typeof f === "number") tests += `<p>Duan's smearing factor is ${shortNumber(f)}: exp(fitted log y) understates the mean of y by about ${shortNumber((f - 1) * 100)}% here.</p>`;
+        if (typeof f === "number") tests += `<p>${esc(smearingNote(f))}</p>`;
       }
     } else {
       tests = "<p>The specification tests (ELX.TESTS) are for the least-squares forms; the pictures above show the least-squares residuals for comparison.</p>";

@@ -3,7 +3,7 @@
  * SMEARING, PREDICT, HETEROTEST, NORMALTEST, TESTS, FORMCHECK.
  */
 import { seTypeOf, type Form } from "../engine/options";
-import { cut, fail, nearest, quote, ElxProblem } from "../engine/problems";
+import { count, cut, fail, nearest, quote, ElxProblem } from "../engine/problems";
 import { asMatrix, isHeaderRow, originOf, xColumnNames } from "../engine/intake";
 import { apply, LEVEL, matchName } from "../engine/transforms";
 import { predictRow, retransformFactor } from "../engine/retransform";
@@ -68,7 +68,7 @@ export function predictTable(y: unknown, x: unknown, newX: unknown, opts: unknow
         if (matchName(g, names) < 0) fail(`new_x column ${quote(g)} is not a column of x; did you mean ${cut(nearest(g, names) ?? "")}? (x has ${names.map((n) => cut(n)).join(", ")})`);
       });
     } else {
-      if (cells[0].length !== names.length) fail(`new_x has ${cells[0].length} columns but x has ${names.length} (${names.join(", ")}); give new_x the same columns, in the same order, or add a header row to match them by name`);
+      if (cells[0].length !== names.length) fail(`new_x has ${count(cells[0].length, "column")} but x has ${names.length} (${names.join(", ")}); give new_x the same columns, in the same order, or add a header row to match them by name`);
       map = names.map((_, j) => j);
     }
     const cov = fit.covariance(seTypeOf(o), o.lags);

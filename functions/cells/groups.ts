@@ -1,21 +1,26 @@
 /** ELX.BYGROUP: one row of elasticities per segment. */
 import { getGroups } from "../engine/byGroup";
-import { seTypeOf } from "../engine/options";
+import { estimatorOf, seTypeOf } from "../engine/estimators";
 import { ElxProblem } from "../engine/problems";
 import { elasticity } from "../engine/elasticity";
 import { breuschPaganKoenker } from "../engine/specTests";
 import type { OlsFit } from "../engine/fit";
 import { guarded, hostError, num, options, originsOf, table, safe, type Cell, type Table } from "./host";
+import { BINARY_NOTE } from "./regression";
 
 export function byGroupTable(keys: unknown, y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
   return guarded(() => {
     const o = options(opts);
     const origins = originsOf(invocation);
     const g = getGroups(keys, y, x, o, origins[1] ?? null, origins[2] ?? null);
-    const ppml = o.estimator === "ppml";
+    const ppml = !estimatorOf(o).residualVariance;
     const se = seTypeOf(o);
+    // A term binary in every group fitted has no elasticity anywhere: its header says where to look
+    // and its cells stay empty (never #N/A, which would break a sum over the column).
+    const fitted = g.groups.filter((grp) => grp.fit);
+    const binaryEverywhere = g.xNames.map((_, j) => fitted.length > 0 && fitted.every((grp) => (grp.fit as NonNullable<typeof grp.fit>).data.binary[j]));
     const header = ["Group", "Observations"];
-    g.xNames.forEach((n) => header.push(`Elasticity: ${n}`, `Std. error: ${n}`));
+    g.xNames.forEach((n, j) => header.push(`Elasticity: ${n}${binaryEverywhere[j] ? ` (${BINARY_NOTE})` : ""}`, `Std. error: ${n}`));
     header.push(ppml ? "Pseudo R²" : "R²");
     if (!ppml) header.push("Breusch–Pagan p");
     const width = header.length;
@@ -36,17 +41,15 @@ export function byGroupTable(keys: unknown, y: unknown, x: unknown, opts: unknow
         if (!(e instanceof ElxProblem)) throw e;
         covProblem = hostError(e.kind, e.message);
       }
-      g.xNames.forEach((name, j) => {
-        if (fit.data.binary[j]) {
-          const e = hostError("na", `${name} is binary (0/1) here: its effect is a percent change; see ELX.EFFECTS on this group`);
-          row.push(e, e);
-        } else if (!cov) row.push(covProblem as Cell, covProblem as Cell);
+      g.xNames.forEach((_, j) => {
+        if (fit.data.binary[j]) row.push(binaryEverywhere[j] ? "" : `binary in this group: see ELX.EFFECTS`, "");
+        else if (!cov) row.push(covProblem as Cell, covProblem as Cell);
         else {
           const r = elasticity(fit, j, cov, o.level, o.at);
           row.push(num(r.estimate), num(r.se));
         }
       });
-      if (fit.estimator === "ppml") row.push(num(fit.statistics().pseudoRSquared));
+      if (fit.estimator === "ppml") row.push(num(fit.statistics().pseudoRSquared)); // narrows the fit's type
       else {
         row.push(num(fit.statistics().rSquared, "R² is undefined: y does not vary in this group"));
         row.push(safe(() => num(fit.memo("test:bp", () => breuschPaganKoenker(fit as OlsFit)).pValue)));

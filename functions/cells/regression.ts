@@ -33,6 +33,8 @@ export function fitTable(y: unknown, x: unknown, opts: unknown, invocation: unkn
     const cov = fit.covariance(seTypeOf(o), o.lags);
     const se = fit.standardErrors(cov);
     const crit = fit.criticalValue(o.level);
+    // An exact fit's standard errors are rounding noise: t and p would be huge numbers and zeros.
+    const exact = fit.estimator === "ols" && fit.isExact() ? hostError("na", `${fit.exactReason()}; that leaves t and p undefined`) : null;
     const body: Table = fit.terms.map((t, j) => {
       const b = fit.coef[j];
       const tstat = b / se[j];
@@ -42,15 +44,18 @@ export function fitTable(y: unknown, x: unknown, opts: unknown, invocation: unkn
         fit.termLabel(t),
         num(b),
         num(se[j]),
-        num(tstat, why),
-        num(fit.pValue(tstat), why),
+        exact ?? num(tstat, why),
+        exact ?? num(fit.pValue(tstat), why),
         num(b - crit * se[j]),
         num(b + crit * se[j]),
       ];
     });
-    return table(["Term", "Transform", "Coefficient", `Std. error (${cov.label})`, fit.estimator === "ppml" ? "z" : "t", "p-value", ...intervalHeaders(o.level)], body, o);
+    return table(["Term", "Transform", "Coefficient", `Std. error (${cov.label})`, fit.info.statistic, "p-value", ...intervalHeaders(o.level)], body, o);
   });
 }
+
+/** The Evaluated-at text of a binary term's row, whose other cells are left empty. */
+export const BINARY_NOTE = "binary: see ELX.EFFECTS";
 
 function binaryMessage(name: string): string {
   return `${name} is binary (0/1): its effect is a percent change, not an elasticity; see ELX.EFFECTS`;
@@ -75,8 +80,8 @@ export function elasticitiesTable(y: unknown, x: unknown, opts: unknown, invocat
     const body: Table = fit.data.xNames.map((name, j) => {
       const t = fit.terms[fit.coefIndex(j)];
       if (fit.data.binary[j]) {
-        const e = hostError("na", binaryMessage(name));
-        return [name, fit.termLabel(t), e, e, e, e, "binary: see ELX.EFFECTS"];
+        // Empty, not #N/A: a binary term has no elasticity, and an error cell would break a sum.
+        return [name, fit.termLabel(t), "", "", "", "", BINARY_NOTE];
       }
       const r = elasticity(fit, j, cov, o.level, o.at);
       return [name, fit.termLabel(t), num(r.estimate), num(r.se), num(r.lower), num(r.upper), r.at];
@@ -91,7 +96,7 @@ export function effectsTable(y: unknown, x: unknown, opts: unknown, invocation: 
     const fit = fitFor(y, x, o, invocation);
     const g = fit.meanTransform;
     if (g.kind === "level") unavailable("percent effects need y in logs (form=log-log or form=log-level); with y in levels a coefficient is a change in units of y: read ELX.FIT");
-    if (g.kind !== "log") unavailable(`percent effects need y in plain logs; here y is transformed by ${g.kind === "asinh" ? "asinh" : "log(y + c)"} (zeros=${g.kind === "asinh" ? "ihs" : "shift"}), whose coefficients are not percent changes of y: use zeros=drop or, in a later version, estimator=ppml`);
+    if (g.kind !== "log") unavailable(`percent effects need y in plain logs; here y is transformed by ${g.kind === "asinh" ? "asinh" : "log(y + c)"} (zeros=${g.kind === "asinh" ? "ihs" : "shift"}), whose coefficients are not percent changes of y: use zeros=drop or estimator=ppml`);
     const cols = fit.data.xTransforms.map((t, j) => (t.kind === "level" ? j : -1)).filter((j) => j >= 0);
     if (cols.length === 0) unavailable("no regressor is in levels here: under a log x side each coefficient is already an elasticity (ELX.ELASTICITIES); percent effects are for binary columns or those named in levels=");
     const cov = fit.covariance(seTypeOf(o), o.lags);
@@ -128,6 +133,17 @@ function collinearityRows(fit: OlsFit): [string, Cell][] {
 }
 
 /**
+ * What PPML under zeros=drop keeps of the rows the log of y lost: the zeros of y stay in, except in
+ * rows that a logged regressor at or below zero leaves out as well.
+ */
+export function ppmlKeeps(kept: number, lost: number, yName: string): string {
+  const zeros = (n: number) => `${n} ${n === 1 ? "row" : "rows"} with ${yName} = 0`;
+  if (kept >= lost) return `keeps the ${zeros(lost)}`;
+  const rest = lost - kept;
+  return `keeps ${kept === 0 ? "none" : kept} of the ${zeros(lost)} (the other ${rest} ${rest === 1 ? "is" : "are"} left out of PPML too: a logged regressor is zero or negative in ${rest === 1 ? "that row" : "those rows"})`;
+}
+
+/**
  * For a log-y OLS fit that dropped zero rows of y: how many the log lost, and whether PPML on the same
  * data, which keeps them, gives an elasticity outside the OLS interval.
  */
@@ -149,9 +165,10 @@ function ppmlContrastRows(fit: OlsFit, o: Options, y: unknown, x: unknown, invoc
       const b = elasticity(p, j, pc, o.level, o.at);
       if (b.estimate < a.lower || b.estimate > a.upper) differ.push(`${name} ${fmt(b.estimate)} against ${fmt(a.estimate)} [${fmt(a.lower)}, ${fmt(a.upper)}]`);
     });
+    const keeps = ppmlKeeps(p.data.yZerosUsed, fit.data.yNonPositive, fit.data.yName);
     text = differ.length > 0
-      ? `PPML, which keeps the ${zeros} zero rows, gives a materially different elasticity (outside the OLS interval): ${differ.join("; ")}; the dropped zeros or heteroskedasticity may bias the log fit: compare with estimator=ppml`
-      : `PPML, which keeps the ${zeros} zero rows, gives elasticities inside the OLS intervals`;
+      ? `PPML, which ${keeps}, gives a materially different elasticity (outside the OLS interval): ${differ.join("; ")}; the dropped zeros or heteroskedasticity may bias the log fit: compare with estimator=ppml`
+      : `PPML, which ${keeps}, gives elasticities inside the OLS intervals`;
   } catch (e) {
     if (!(e instanceof ElxProblem)) throw e;
     text = `PPML on the same rows could not be fitted: ${e.message}`;

@@ -6,11 +6,10 @@
  * group's numbers equal ELX.ELASTICITIES on its rows. A group that cannot be fitted keeps its reason
  * and the others still come. Rows with a blank or error key are left out and counted (groupKey).
  */
-import { readYX, asMatrix, type Origin, type RawData } from "./intake";
+import { readYX, asMatrix, keyText, subsetRoles, type Origin, type RawData } from "./intake";
 import { prepare } from "./transforms";
-import { OlsFit } from "./fit";
-import { PpmlFit } from "./ppml";
-import { ElxProblem, fail, RowList } from "./problems";
+import { estimatorOf } from "./estimators";
+import { ElxProblem, count, fail, RowList } from "./problems";
 import { modelKey, type Options } from "./options";
 import { BoundedCache, hashCells, type Sized } from "./cache";
 import type { AnyFit } from "./model";
@@ -31,23 +30,13 @@ export interface Groups {
 }
 
 /**
- * The key of one cell, the one rule by which keys compare (here and for role columns): a key is the
- * cell's text. A number is its shortest text, so 1 and "1" are one key (1.5 and "1.50" are not);
+ * The key of one cell, the one rule by which keys compare (here and for role columns): see keyText
+ * in intake.ts. A number is its shortest text, so 1 and "1" are one key (1.5 and "1.50" are not);
  * text is trimmed of spaces at both ends and keeps its case ("North" and "north" are two keys);
  * TRUE/FALSE are "TRUE"/"FALSE". A blank cell, white space only, and an error cell have no key (null):
  * their rows are left out and counted.
  */
-export function groupKey(v: unknown): string | null {
-  if (v === null || v === undefined) return null;
-  if (typeof v === "string") return v.trim() === "" ? null : v.trim();
-  if (typeof v === "number") return Number.isFinite(v) ? String(v) : null;
-  if (typeof v === "boolean") return v ? "TRUE" : "FALSE";
-  if (typeof v === "object") {
-    const basic = (v as { basicValue?: unknown }).basicValue;
-    if (basic !== undefined && typeof basic !== "object") return groupKey(basic);
-  }
-  return null; // error cells and anything else: no key
-}
+export const groupKey = keyText;
 
 /**
  * Splits the rows by key and fits each group.
@@ -56,11 +45,11 @@ export function groupKey(v: unknown): string | null {
 export function fitGroups(keys: unknown, y: unknown, x: unknown, o: Options, yOrigin: Origin | null, xOrigin: Origin | null): Groups {
   const km = asMatrix(keys, "keys");
   if (km[0].length !== 1) fail(`keys must be one column (it has ${km[0].length}); give the column of product, store or region names`);
-  const raw = readYX(y, x, yOrigin, xOrigin);
+  const raw = readYX(y, x, yOrigin, xOrigin, o);
   const start = raw.yHeader ? 1 : 0;
   const keyRows = km.length - start;
   if (keyRows < raw.dataRows || keyRows > raw.dataRows + raw.trailingBlank) {
-    fail(`keys has ${km.length} rows but y has ${raw.dataRows + raw.trailingBlank + start}; give keys the same rows as y`);
+    fail(`keys has ${count(km.length, "row")} but y has ${raw.dataRows + raw.trailingBlank + start}; give keys the same rows as y`);
   }
   // Bucket the usable rows by key, in first-appearance order over all rows.
   const order: string[] = [];
@@ -94,6 +83,7 @@ export function fitGroups(keys: unknown, y: unknown, x: unknown, o: Options, yOr
       y: pick(raw.y),
       x: raw.x.map(pick),
       rowNumbers: Int32Array.from(idx, (w) => raw.rowNumbers[w]),
+      roles: subsetRoles(raw.roles, idx),
       leftOutBlank: leftOut.get(key) as number,
       leftOutBlankRows: new RowList(),
       numericTextRows: new RowList(),
@@ -102,7 +92,7 @@ export function fitGroups(keys: unknown, y: unknown, x: unknown, o: Options, yOr
     try {
       if (idx.length === 0) fail("no usable row: every row of this group has a blank, text or error cell");
       const data = prepare(sub, o);
-      const fit = o.estimator === "ppml" ? new PpmlFit(data, o.intercept) : new OlsFit(data, o.intercept);
+      const fit = estimatorOf(o).build(data, o) as AnyFit;
       return { key, rows: idx.length, fit, problem: null };
     } catch (e) {
       if (!(e instanceof ElxProblem)) throw e;

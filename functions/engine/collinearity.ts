@@ -11,23 +11,30 @@
  */
 import { SingularValueDecomposition, Matrix } from "ml-matrix";
 import type { OlsFit } from "./fit";
+import { working } from "./scaling";
 
 /** VIFs of the x columns, in order; null without an intercept (the centred definition needs one). */
 export function varianceInflation(fit: OlsFit): number[] | null {
   if (!fit.intercept) return null;
   return fit.memo("vif", () => {
     const { k, qr } = fit;
-    return fit.data.x.map((c, j) => {
+    return fit.data.x.map((c0, j) => {
       const idx = fit.coefIndex(j);
       let d = 0;
       for (let m = idx; m < k; m++) d += qr.Rinv[idx * k + m] * qr.Rinv[idx * k + m];
-      d /= qr.scale[idx] * qr.scale[idx];
+      // d·Σ(x − x̄)²/Σx², with an extreme column scaled by a power of two so that no square overflows
+      // (the ratio does not depend on the column's units; qr.scale[idx]² = Σx²)
+      const c = working(c0);
       let mean = 0;
       for (let i = 0; i < c.length; i++) mean += c[i];
       mean /= c.length;
       let ss = 0;
-      for (let i = 0; i < c.length; i++) ss += (c[i] - mean) * (c[i] - mean);
-      return d * ss;
+      let sq = 0;
+      for (let i = 0; i < c.length; i++) {
+        ss += (c[i] - mean) * (c[i] - mean);
+        sq += c[i] * c[i];
+      }
+      return (d * ss) / sq;
     });
   });
 }

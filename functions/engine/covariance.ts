@@ -10,11 +10,39 @@
  * sandwich::NeweyWest(m, lag = L, prewhite = FALSE, adjust = FALSE).
  *
  * Cost: one pass over the rows with O(k²) work per row (HAC: O(k²·L) per row).
+ *
+ * Units: the functions below return W = R⁻¹(Σ ω z zᵀ)R⁻ᵀ, the covariance of the coefficients of the
+ * unit-length columns (c_j = b_j·‖x_j‖), in the units of the y that was factorised. The covariance of
+ * b is V_ij = W_ij/(‖x_i‖‖x_j‖); standard errors are read from W (standardError), so that a column or
+ * a y of extreme magnitude (1e155, 1e−150) cannot push V_jj out of the range of doubles while the
+ * standard error itself is an ordinary number.
  */
-import { fail, requireFeasible, rowsPhrase } from "./problems";
+import { count, fail, requireFeasible, rowsPhrase } from "./problems";
 import type { QrFit } from "./leastSquares";
 import { dotBlock } from "./blocks";
 import type { SeType } from "./options";
+
+/**
+ * What a covariance of the coefficients needs, made explicit so that every estimator supplies its
+ * own: the columns the sandwich is computed on and their QR factor (the bread B = R⁻¹R⁻ᵀ in the
+ * factor's scaled units), the score residuals u_i (the meat is Σ u_i² z_i z_iᵀ with z_i the rows of
+ * Q), the residual sum of squares and degrees of freedom for the classical form, and the sheet rows.
+ * OLS: the design and its residuals. PPML: the weighted design √μ̂·X and the Pearson residuals
+ * (y − μ̂)/√μ̂. Estimators that absorb parameters give dfResid = n − k − absorbed.
+ */
+export interface CovarianceInput {
+  columns: Float64Array[];
+  factor: QrFit;
+  scores: Float64Array;
+  ssr: number;
+  dfResid: number;
+  rowNumbers: Int32Array;
+}
+
+/** The covariance input of a plain least-squares fit of y on X with factor qr. */
+export function leastSquaresInput(X: Float64Array[], qr: QrFit, rowNumbers: Int32Array, dfResid = qr.n - qr.k): CovarianceInput {
+  return { columns: X, factor: qr, scores: qr.resid, ssr: qr.rss, dfResid, rowNumbers };
+}
 
 /** Leverage at or above 1 − LEVERAGE_TOL counts as 1: HC2/HC3 are then undefined. */
 export const LEVERAGE_TOL = 1e-10;
@@ -24,8 +52,20 @@ export function defaultLags(n: number): number {
   return Math.floor(4 * Math.pow(n / 100, 2 / 9));
 }
 
+/**
+ * The most lags accepted on n rows: a tenth of the rows, or the default when that is larger (common
+ * practice). Why a bound at all: the scores g_t = x_t e_t of a least-squares fit sum to zero
+ * (Xᵀe = 0), so the sample autocovariances over all lags cancel Γ_0 exactly; as L approaches n the
+ * Bartlett weights approach 1 and the estimate is pulled toward zero, giving errors smaller than
+ * HC3's (false precision). Even well below that, the usual t and normal critical values hold only
+ * while L/n is small (Kiefer and Vogelsang 2005, Econometric Theory 21, fixed-b asymptotics).
+ */
+export function maxLags(n: number): number {
+  return Math.max(defaultLags(n), Math.floor(n / 10));
+}
+
 /** Rows per block in the passes below (k·BLOCK doubles stay in cache). */
-const BLOCK = 256;
+export const BLOCK = 256;
 
 /**
  * Rows start … start+m−1 of Q = X_s R⁻¹ into Z (column-major, column j at j·BLOCK): for each j,
@@ -58,7 +98,7 @@ function qRows(X: Float64Array[], qr: QrFit, inv: Float64Array, start: number, m
 }
 
 /** Visits the rows of Q block by block: visit(start, m, Z) with Z as qRows fills it. */
-function forEachQBlock(X: Float64Array[], qr: QrFit, visit: (start: number, m: number, Z: Float64Array) => void): void {
+export function forEachQBlock(X: Float64Array[], qr: QrFit, visit: (start: number, m: number, Z: Float64Array) => void): void {
   const Z = new Float64Array(qr.k * BLOCK);
   const inv = Float64Array.from(qr.scale, (s) => 1 / s);
   for (let start = 0; start < qr.n; start += BLOCK) {
@@ -68,9 +108,9 @@ function forEachQBlock(X: Float64Array[], qr: QrFit, visit: (start: number, m: n
   }
 }
 
-/** Rinv · M · Rinvᵀ for symmetric M (row-major k×k), then back to the columns' original units. */
-function sandwich(qr: QrFit, M: Float64Array): Float64Array {
-  const { k, Rinv, scale } = qr;
+/** Rinv · M · Rinvᵀ for symmetric M (row-major k×k), in the space of the unit-length columns. */
+export function sandwich(qr: QrFit, M: Float64Array): Float64Array {
+  const { k, Rinv } = qr;
   const T = new Float64Array(k * k); // T = Rinv · M
   for (let i = 0; i < k; i++) {
     for (let j = 0; j < k; j++) {
@@ -84,18 +124,18 @@ function sandwich(qr: QrFit, M: Float64Array): Float64Array {
     for (let j = i; j < k; j++) {
       let s = 0;
       for (let m = j; m < k; m++) s += T[i * k + m] * Rinv[j * k + m];
-      const v = s / (scale[i] * scale[j]);
-      V[i * k + j] = v;
-      V[j * k + i] = v;
+      V[i * k + j] = s;
+      V[j * k + i] = s;
     }
   }
   return V;
 }
 
-/** Classical covariance s²(XᵀX)⁻¹ = s² R⁻¹R⁻ᵀ. */
-export function classicalCovariance(qr: QrFit): Float64Array {
-  const { k, n } = qr;
-  const s2 = qr.rss / (n - k);
+/** Classical covariance s²(XᵀX)⁻¹ = s² R⁻¹R⁻ᵀ, s² = SSR/df (as W, see Units above). */
+export function classicalCovariance(c: CovarianceInput): Float64Array {
+  const qr = c.factor;
+  const k = qr.k;
+  const s2 = c.ssr / c.dfResid;
   const I = new Float64Array(k * k);
   for (let j = 0; j < k; j++) I[j * k + j] = s2;
   return sandwich(qr, I);
@@ -103,12 +143,12 @@ export function classicalCovariance(qr: QrFit): Float64Array {
 
 /**
  * Heteroskedasticity-consistent covariance HC0–HC3, in one blocked pass over the rows.
- * @param X design columns; qr their factorisation; h leverages when known (HC2 and HC3 compute
- *   them in the same pass otherwise, and return them)
- * @param rowNumbers sheet rows, to name a row whose leverage is 1
+ * HC1 scales HC0 by n/df. @param h leverages when known (HC2 and HC3 compute them in the same pass
+ * otherwise, and return them)
  */
-export function hcCovariance(X: Float64Array[], qr: QrFit, type: "HC0" | "HC1" | "HC2" | "HC3", h: Float64Array | null, rowNumbers: Int32Array): { V: Float64Array; h: Float64Array | null } {
-  const { n, k, resid } = qr;
+export function hcCovariance(c: CovarianceInput, type: "HC0" | "HC1" | "HC2" | "HC3", h: Float64Array | null): { V: Float64Array; h: Float64Array | null } {
+  const { columns: X, factor: qr, scores: resid, rowNumbers } = c;
+  const { n, k } = qr;
   const needH = type === "HC2" || type === "HC3";
   // Leverages are computed in the same pass when they are needed and not known yet.
   const lev = needH ? h ?? new Float64Array(n) : null;
@@ -118,7 +158,7 @@ export function hcCovariance(X: Float64Array[], qr: QrFit, type: "HC0" | "HC1" |
   const W = new Float64Array(k * BLOCK);
   const w = new Float64Array(BLOCK);
   const inv = Float64Array.from(qr.scale, (s) => 1 / s);
-  const hc1 = n / (n - k);
+  const hc1 = n / c.dfResid;
   const ones: number[] = [];
   for (let start = 0; start < n; start += BLOCK) {
     const m = Math.min(BLOCK, n - start);
@@ -158,10 +198,15 @@ export function hcCovariance(X: Float64Array[], qr: QrFit, type: "HC0" | "HC1" |
 }
 
 /** Newey–West HAC covariance with L lags (Bartlett weights, no prewhitening, no df factor). */
-export function hacCovariance(X: Float64Array[], qr: QrFit, L: number): Float64Array {
-  const { n, k, resid } = qr;
-  if (L > n - 1) fail(`lags=${L} is more than the data allow: with ${n} rows use at most lags=${n - 1} (the default is ${defaultLags(n)})`);
-  requireFeasible(n * k * k * (L + 1), `HAC with ${L} lags on ${n} rows and ${k} terms`, "use fewer lags (lags=), a sample of the rows, or se=HC3");
+export function hacCovariance(c: CovarianceInput, L: number): Float64Array {
+  const { columns: X, factor: qr, scores: resid } = c;
+  const { n, k } = qr;
+  const most = maxLags(n);
+  if (L > most) {
+    const why = most > Math.floor(n / 10) ? "the default lag length, more than a tenth of these rows" : `a tenth of the rows, common practice; the default is ${defaultLags(n)}`;
+    fail(`lags=${L} is too many for ${n} rows: use at most lags=${most} (${why}); with more lags the HAC errors shrink toward zero and look more precise than they are`);
+  }
+  requireFeasible(n * k * k * (L + 1), `HAC with ${count(L, "lag")} on ${n} rows and ${count(k, "term")}`, "use fewer lags (lags=), a sample of the rows, or se=HC3");
   const G: Float64Array[] = [];
   for (let j = 0; j < k; j++) G.push(new Float64Array(n));
   forEachQBlock(X, qr, (start, m, Z) => {
@@ -202,10 +247,47 @@ export function hacCovariance(X: Float64Array[], qr: QrFit, L: number): Float64A
 
 export interface Covariance {
   type: SeType;
-  /** Row-major k×k. */
+  /** Row-major k×k covariance of the coefficients of the unit-length columns, in units of `unit`². */
+  W: Float64Array;
+  /** The column lengths ‖x_j‖ of the factorised design. */
+  scale: Float64Array;
+  /** The power of two y was divided by before the factorisation (OLS: yUnit; PPML: 1). */
+  unit: number;
+  /** Row-major k×k covariance of the coefficients in their own units (entries may under- or overflow at extreme magnitudes: read errors through standardError). */
   V: Float64Array;
+  /** Degrees of freedom of t, p and intervals when they are not the fit's residual df (clusters: G − 1). */
+  df?: number;
+  /** Terms whose variance came out negative (two-way clusters, not repaired): shown as not available. */
+  negative?: number[];
   /** Lag length used, for HAC. */
   lags?: number;
   /** Label for output headers: "HC3", "HAC, 4 lags". */
   label: string;
+}
+
+/** V_ij = W_ij·unit²/(‖x_i‖‖x_j‖): the covariance in the coefficients' own units. */
+export function originalUnits(W: Float64Array, scale: Float64Array, unit: number): Float64Array {
+  const k = scale.length;
+  const V = new Float64Array(k * k);
+  for (let i = 0; i < k; i++) for (let j = 0; j < k; j++) V[i * k + j] = ((W[i * k + j] * unit) / scale[i]) * (unit / scale[j]);
+  return V;
+}
+
+/** The standard error of coefficient j: √W_jj·unit/‖x_j‖. */
+export function standardError(c: Covariance, j: number): number {
+  const k = c.scale.length;
+  return (Math.sqrt(Math.max(0, c.W[j * k + j])) / c.scale[j]) * c.unit;
+}
+
+/** The standard error of the combination x0ᵀb: √(Σ (x0_i/‖x_i‖) W_ij (x0_j/‖x_j‖))·unit. */
+export function combinationError(c: Covariance, x0: Float64Array): number {
+  const k = c.scale.length;
+  const u = Float64Array.from(x0, (v, i) => v / c.scale[i]);
+  let s = 0;
+  for (let a = 0; a < k; a++) {
+    let r = 0;
+    for (let b = 0; b < k; b++) r += c.W[a * k + b] * u[b];
+    s += u[a] * r;
+  }
+  return Math.sqrt(Math.max(0, s)) * c.unit;
 }

@@ -11,7 +11,7 @@
 import { relativeSlope, transformLabel } from "./transforms";
 import type { Model, Term } from "./fit";
 import type { AtPoint } from "./options";
-import type { Covariance } from "./covariance";
+import { standardError, type Covariance } from "./covariance";
 
 export interface ElasticityRow {
   term: Term;
@@ -20,7 +20,7 @@ export interface ElasticityRow {
   lower: number;
   upper: number;
   factor: number;
-  /** Where it was evaluated, in words ("constant", "mean Price = 2.31"). */
+  /** Where it was evaluated, in words (EVERYWHERE, "mean Price = 2.31"). */
   at: string;
 }
 
@@ -30,6 +30,9 @@ function formatNumber(v: number): string {
   if (a >= 1e-3 && a < 1e7) return String(Number(v.toPrecision(6)));
   return v.toExponential(4);
 }
+
+/** Where a constant elasticity (log x and log y, or a logged x under PPML) is evaluated: nowhere in particular. */
+export const EVERYWHERE = "everywhere (constant elasticity)";
 
 /** The factor that turns coefficient b of x column j into an elasticity, and its description. */
 export function elasticityFactor(fit: Model, column: number, at: AtPoint): { factor: number; at: string } {
@@ -51,14 +54,14 @@ export function elasticityFactor(fit: Model, column: number, at: AtPoint): { fac
   // Under zeros=shift or zeros=ihs on y the elasticity depends on that transform (and on y's
   // units, Bellemare and Wichman 2020): say which one was used.
   if (g.kind === "shift" || g.kind === "asinh") parts.push(`${fit.data.yName} taken as ${transformLabel(g)}`);
-  return { factor: num / den, at: parts.length === 0 ? "constant" : parts.join(", ") };
+  return { factor: num / den, at: parts.length === 0 ? EVERYWHERE : parts.join(", ") };
 }
 
 /** Elasticity of y with respect to x column j, with its delta-method error and interval. */
 export function elasticity(fit: Model, column: number, cov: Covariance, level: number, at: AtPoint): ElasticityRow {
   const idx = fit.coefIndex(column);
   const b = fit.coef[idx];
-  const se = Math.sqrt(Math.max(0, cov.V[idx * fit.k + idx]));
+  const se = standardError(cov, idx);
   const crit = fit.criticalValue(level);
   const { factor, at: where } = elasticityFactor(fit, column, at);
   const lo = (b - crit * se) * factor;
@@ -86,8 +89,8 @@ export interface EffectRow {
 export function percentEffect(fit: Model, column: number, cov: Covariance, level: number): EffectRow {
   const idx = fit.coefIndex(column);
   const b = fit.coef[idx];
-  const V = cov.V[idx * fit.k + idx];
-  const se = Math.sqrt(Math.max(0, V));
+  const se = standardError(cov, idx);
+  const V = se * se;
   const crit = fit.criticalValue(level);
   // expm1 keeps digits for small coefficients
   return {

@@ -10,7 +10,7 @@
  *
  * Cost: one pass over the cells. Columns are Float64Array (column-major), compacted in place.
  */
-import { cut, fail, count, quote, rowsPhrase, RowList } from "./problems";
+import { cut, fail, count, quote, rowsPhrase, nearest, RowList } from "./problems";
 
 /** Why a cell cannot be used. 0 = usable. */
 export const enum CellIssue {
@@ -33,8 +33,10 @@ export interface RangeRead {
   header: boolean;
   /** Columns whose header cell was empty (0-based): they carry their default name. */
   unnamed: number[];
-  /** One array per column, NaN where the cell is unusable. */
+  /** One array per column, NaN where the cell is unusable (empty for key columns). */
   columns: Float64Array[];
+  /** Key columns only (others null): each cell's key text, null when blank or an error. */
+  keys: ((string | null)[] | null)[];
   /** Per data row, the first issue found in that row (CellIssue.None when usable). */
   issues: Uint8Array;
   rows: number;
@@ -204,12 +206,30 @@ export function transpose(cells: unknown[][]): unknown[][] {
 }
 
 /**
- * Reads one range into numeric columns.
+ * The text by which a key cell (a role column's, or ELX.BYGROUP's keys) is compared: numbers by
+ * their shortest decimal text (so 1 and "1" are one key), text trimmed of surrounding spaces with
+ * its case kept, TRUE/FALSE as those words; blank and error cells have no key (null).
+ */
+export function keyText(v: unknown): string | null {
+  if (v === null || v === undefined) return null;
+  if (typeof v === "string") return v.trim() === "" ? null : v.trim();
+  if (typeof v === "number") return Number.isFinite(v) ? String(v) : null;
+  if (typeof v === "boolean") return v ? "TRUE" : "FALSE";
+  if (typeof v === "object") {
+    const basic = (v as { basicValue?: unknown }).basicValue;
+    if (basic !== undefined && typeof basic !== "object") return keyText(basic);
+  }
+  return null; // error cells and anything else: no key
+}
+
+/**
+ * Reads one range into numeric columns (and key columns as their key text).
  * @param cells row-major 2-D array of cell values
  * @param defaultNames names to use without a header row
  * @param originRow sheet row of the range's first row (1 when unknown: rows are then range rows)
+ * @param keyColumns columns read as keys: text is a value there, blank and error cells are issues
  */
-export function readRange(cells: unknown[][], defaultNames: (j: number) => string, originRow: number, header = isHeaderRow(cells[0])): RangeRead {
+export function readRange(cells: unknown[][], defaultNames: (j: number) => string, originRow: number, header = isHeaderRow(cells[0]), keyColumns: ReadonlySet<number> = NO_KEYS): RangeRead {
   const width = cells[0].length;
   const start = header ? 1 : 0;
   const rows = cells.length - start;
@@ -218,7 +238,12 @@ export function readRange(cells: unknown[][], defaultNames: (j: number) => strin
   if (header) ({ names, unnamed } = headerNames(cells[0], defaultNames));
   else for (let j = 0; j < width; j++) names.push(defaultNames(j));
   const columns: Float64Array[] = [];
-  for (let j = 0; j < width; j++) columns.push(new Float64Array(rows));
+  const keys: ((string | null)[] | null)[] = [];
+  for (let j = 0; j < width; j++) {
+    const isKey = keyColumns.has(j);
+    columns.push(new Float64Array(isKey ? 0 : rows));
+    keys.push(isKey ? new Array<string | null>(rows) : null);
+  }
   const text: TextCells[] = [];
   for (let j = 0; j < width; j++) text.push({ count: 0, numeric: 0, first: -1, firstText: "", firstNumeric: -1, firstNumericText: "" });
   let numericText: Uint8Array | null = null;
@@ -228,6 +253,13 @@ export function readRange(cells: unknown[][], defaultNames: (j: number) => strin
     let issue = 0;
     for (let j = 0; j < width; j++) {
       const v = row[j];
+      const kc = keys[j];
+      if (kc) {
+        const t = keyText(v);
+        kc[i] = t;
+        if (t === null && issue === 0) issue = isBlankCell(v) ? CellIssue.Blank : CellIssue.Error;
+        continue;
+      }
       let x: number;
       if (typeof v === "number" && v - v === 0) x = v; // fast path: a finite number
       else {
@@ -254,12 +286,57 @@ export function readRange(cells: unknown[][], defaultNames: (j: number) => strin
     }
     issues[i] = issue;
   }
-  return { names, header, unnamed, columns, issues, rows, firstRow: originRow + start, text, numericText };
+  return { names, header, unnamed, columns, keys, issues, rows, firstRow: originRow + start, text, numericText };
+}
+
+const NO_KEYS: ReadonlySet<number> = new Set();
+
+/** The role options, as typed: columns of x named by header or 1-based number. */
+export interface RoleSpec {
+  absorb: readonly string[];
+  factors: readonly string[];
+  cluster: readonly string[];
+  panel: string | null;
+  time: string | null;
+  weights: string | null;
+  instruments: readonly string[];
+}
+
+export const NO_ROLES: RoleSpec = Object.freeze({ absorb: [], factors: [], cluster: [], panel: null, time: null, weights: null, instruments: [] });
+
+/** A key column over the rows used: a code per row and the distinct keys in code order. */
+export interface KeyColumn {
+  name: string;
+  codes: Int32Array;
+  labels: string[];
+  /** Whether codes follow ascending numbers (every key a number) rather than first appearance. */
+  numericOrder: boolean;
+}
+
+/** The role columns over the rows used (compacted like y and x). */
+export interface RoleColumns {
+  absorb: KeyColumn[];
+  factors: KeyColumn[];
+  cluster: KeyColumn[];
+  panel: KeyColumn | null;
+  time: KeyColumn | null;
+  weights: Float64Array | null;
+  weightsName: string | null;
+  instruments: Float64Array[];
+  instrumentNames: string[];
 }
 
 export interface RawData {
   yName: string;
+  /** Names of the regressors: the columns of x that have no role. */
   xNames: string[];
+  /** Every column of the x range by its name, and the regressor index of each (−1: a role column). */
+  columnNames: string[];
+  regressorOf: Int32Array;
+  roles: RoleColumns;
+  /** Rows left out because their weight was zero or negative. */
+  leftOutWeight: number;
+  leftOutWeightRows: RowList;
   /** y then x columns, compacted to the usable rows. */
   y: Float64Array;
   x: Float64Array[];
@@ -286,7 +363,9 @@ export interface RawData {
  * What to do with a column of x that holds text. Options that give text columns a role join this
  * list at the front (for example "name it in factors=").
  */
-export const TEXT_COLUMN_CHOICES: readonly string[] = ["leave it out of x", "use ELX.BYGROUP with it as keys"];
+export const TEXT_COLUMN_CHOICES: readonly string[] = [
+  "name it in factors= (indicator terms), absorb= (fixed effects) or cluster=", "leave it out of x", "use ELX.BYGROUP with it as keys",
+];
 
 /** "a, b, or c" (the last choice after ", or"; two choices: "a, or b"). */
 function orList(choices: readonly string[]): string {
@@ -327,13 +406,89 @@ function refuseTextColumns(r: RangeRead, rows: number, isY: boolean): void {
   });
 }
 
+/** Resolves a role option's column (header name, case-insensitive, or 1-based number) in the x range. */
+function roleColumn(ref: string, names: readonly string[], key: string): number {
+  const t = ref.trim();
+  let i = names.findIndex((n) => n.toLowerCase() === t.toLowerCase());
+  if (i < 0) i = names.findIndex((n) => n.replace(/\s+/g, "").toLowerCase() === t.replace(/\s+/g, "").toLowerCase());
+  if (i >= 0) return i;
+  if (/^\d+$/.test(t)) {
+    const c = Number(t);
+    if (c >= 1 && c <= names.length) return c - 1;
+    fail(`${key}=${t}: x has ${count(names.length, "column")}; give a number from 1 to ${names.length} or a header name`);
+  }
+  return fail(`${key}=${t} is not a column of x; did you mean ${key}=${nearest(t, names)}? (columns: ${names.join(", ")})`);
+}
+
+/** Codes for a key column: ascending numbers when every key is a number, else first appearance. */
+function keyColumn(name: string, text: (string | null)[], rows: Int32Array): KeyColumn {
+  const n = rows.length;
+  const seen = new Map<string, number>();
+  const labels: string[] = [];
+  const codes = new Int32Array(n);
+  for (let w = 0; w < n; w++) {
+    const t = text[rows[w]] as string;
+    let c = seen.get(t);
+    if (c === undefined) {
+      c = labels.length;
+      seen.set(t, c);
+      labels.push(t);
+    }
+    codes[w] = c;
+  }
+  const numericOrder = labels.length > 0 && labels.every((l) => /^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i.test(l));
+  if (numericOrder) {
+    const order = labels.map((l, c) => ({ v: Number(l), c })).sort((a, b) => a.v - b.v);
+    const remap = new Int32Array(labels.length);
+    order.forEach((e, r) => (remap[e.c] = r));
+    for (let w = 0; w < n; w++) codes[w] = remap[codes[w]];
+    return { name, codes, labels: order.map((e) => labels[e.c]), numericOrder };
+  }
+  return { name, codes, labels, numericOrder };
+}
+
+/** A key column restricted to some of its rows (kept[w] = old row index), recoded to the keys left. */
+export function subsetKeys(col: KeyColumn, kept: ArrayLike<number>): KeyColumn {
+  const remap = new Int32Array(col.labels.length).fill(-1);
+  const present = new Uint8Array(col.labels.length);
+  for (let w = 0; w < kept.length; w++) present[col.codes[kept[w]]] = 1;
+  const labels: string[] = [];
+  for (let c = 0; c < col.labels.length; c++) {
+    if (present[c]) {
+      remap[c] = labels.length;
+      labels.push(col.labels[c]);
+    }
+  }
+  const codes = Int32Array.from({ length: kept.length }, (_, w) => remap[col.codes[kept[w]]]);
+  return { name: col.name, codes, labels, numericOrder: col.numericOrder };
+}
+
+/** The role columns restricted to some of their rows (kept[w] = old row index). */
+export function subsetRoles(r: RoleColumns, kept: ArrayLike<number>): RoleColumns {
+  const pick = (c: Float64Array) => Float64Array.from({ length: kept.length }, (_, w) => c[kept[w]]);
+  const keys = (c: KeyColumn) => subsetKeys(c, kept);
+  return {
+    absorb: r.absorb.map(keys),
+    factors: r.factors.map(keys),
+    cluster: r.cluster.map(keys),
+    panel: r.panel ? keys(r.panel) : null,
+    time: r.time ? keys(r.time) : null,
+    weights: r.weights ? pick(r.weights) : null,
+    weightsName: r.weightsName,
+    instruments: r.instruments.map(pick),
+    instrumentNames: r.instrumentNames,
+  };
+}
+
 /**
  * Reads y and x together: headers, shapes, listwise deletion with counts and row numbers.
  * @param yCells the y range (one column, or one row for data laid out across)
  * @param xCells the x range (one or more columns, same height as y)
  * @param yOrigin, xOrigin where the ranges start on the sheet, when the host said
+ * @param roles the columns of x named in role options: keys (absorb, factors, cluster, panel, time)
+ *   are read as text, weights and instruments as numbers; the rest are the regressors
  */
-export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null, xOrigin: Origin | null): RawData {
+export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null, xOrigin: Origin | null, roles: RoleSpec = NO_ROLES): RawData {
   let ym = asMatrix(yCells, "y");
   let xm = asMatrix(xCells, "x");
   let yRow = yOrigin?.row ?? 1;
@@ -341,7 +496,7 @@ export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null,
   if (ym.length === 1 && ym[0].length > 1) {
     // y laid out across one row: variables are in rows, observations in columns.
     if (xm[0].length !== ym[0].length) {
-      fail(`y is one row of ${ym[0].length} cells, so x must have ${ym[0].length} columns with one regressor per row (it has ${xm[0].length} columns)`);
+      fail(`y is one row of ${ym[0].length} cells, so x must have ${ym[0].length} columns with one regressor per row (it has ${count(xm[0].length, "column")})`);
     }
     ym = transpose(ym);
     xm = transpose(xm);
@@ -358,13 +513,44 @@ export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null,
     if (!yHead && ym[0].every(isBlankCell)) yHead = true;
     if (!xHead && xm[0].every(isBlankCell)) xHead = true;
   }
+  // Which columns of x have a role: keys are read as text, weights and instruments as numbers.
+  const yFirst = yHead ? headerNames(ym[0], () => "y").names[0] : "y";
+  const rangeNames = xColumnNames(yFirst, xHead ? xm[0] : xm[0].map(() => null));
+  const role = new Array<string | null>(rangeNames.length).fill(null);
+  const keyCols = new Set<number>();
+  const claim = (ref: string, key: string, isKey: boolean): number => {
+    const j = roleColumn(ref, rangeNames, key);
+    const had = role[j];
+    if (had !== null && had !== key) {
+      const keyRoles = ["absorb", "cluster", "panel", "time"];
+      // A key may be absorbed, clustered on, a panel unit and a period at once; nothing else doubles up.
+      if (!(keyRoles.includes(had) && keyRoles.includes(key))) {
+        fail(`${cut(rangeNames[j])} is named in both ${had}= and ${key}=; a column can take only one of these roles (factors= makes indicator terms, absorb= fixed effects, weights= and instruments= are numbers)`);
+      }
+    }
+    if (had === null) role[j] = key;
+    if (isKey) keyCols.add(j);
+    return j;
+  };
+  const absorbCols = roles.absorb.map((r) => claim(r, "absorb", true));
+  const factorCols = roles.factors.map((r) => claim(r, "factors", true));
+  const clusterCols = roles.cluster.map((r) => claim(r, "cluster", true));
+  const panelCol = roles.panel === null ? -1 : claim(roles.panel, "panel", true);
+  const timeCol = roles.time === null ? -1 : claim(roles.time, "time", true);
+  const weightCol = roles.weights === null ? -1 : claim(roles.weights, "weights", false);
+  const instrumentCols = roles.instruments.map((r) => claim(r, "instruments", false));
+  const regressorCols: number[] = [];
+  for (let j = 0; j < rangeNames.length; j++) if (role[j] === null) regressorCols.push(j);
+  if (regressorCols.length === 0 && factorCols.length === 0 && absorbCols.length === 0) {
+    fail("every column of x has a role (keys, weights or instruments): x needs at least one regressor");
+  }
+
   const yr = readRange(ym, () => "y", yRow, yHead);
-  const xr = readRange(xm, defaultXName, xRow, xHead);
+  const xr = readRange(xm, defaultXName, xRow, xHead, keyCols);
   if (yr.rows !== xr.rows) {
     fail(`y has ${count(yr.rows, "row")} of data and x has ${xr.rows}${yr.header || xr.header ? " (after the header row)" : ""}; give both ranges the same rows`);
   }
   if (yr.rows === 0) fail("y and x have a header row but no data rows below it");
-  const k = xr.columns.length;
   let rows = yr.rows;
   // Trim trailing rows that are blank in every column: not observations.
   let trailing = 0;
@@ -383,9 +569,18 @@ export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null,
   yr.names = [names[0]];
   xr.names = names.slice(1);
   refuseTextColumns(yr, rows, true);
+  for (const j of [weightCol, ...instrumentCols]) {
+    if (j >= 0 && 2 * xr.text[j].count > rows) fail(`${cut(xr.names[j])} holds text, but ${role[j]}= needs numbers: check the column, or name it in absorb=, factors= or cluster= if it is a key`);
+  }
   refuseTextColumns(xr, rows, false);
   const y = yr.columns[0];
-  const x = xr.columns;
+  const x = regressorCols.map((j) => xr.columns[j]);
+  const k = x.length;
+  const wCol = weightCol >= 0 ? xr.columns[weightCol] : null;
+  const zCols = instrumentCols.map((j) => xr.columns[j]);
+  const used = new Int32Array(rows);
+  const weightRows = new RowList();
+  let leftOutWeight = 0;
   const rowNumbers = new Int32Array(rows);
   const blankRows = new RowList();
   const numericRows = new RowList();
@@ -399,19 +594,34 @@ export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null,
       if (numericText && (yr.numericText?.[i] || xr.numericText?.[i])) numericRows.add(yr.firstRow + i);
       continue;
     }
+    if (wCol && !(wCol[i] > 0)) {
+      leftOutWeight++;
+      weightRows.add(yr.firstRow + i);
+      continue;
+    }
     if (w !== i) {
       y[w] = y[i];
       for (let j = 0; j < k; j++) x[j][w] = x[j][i];
+      if (wCol) wCol[w] = wCol[i];
+      for (const z of zCols) z[w] = z[i];
     }
+    used[w] = i;
     rowNumbers[w] = yr.firstRow + i;
     w++;
+  }
+  if (w === 0 && leftOutWeight > 0 && leftOut === 0) {
+    fail(`every row's weight in ${cut(rangeNames[weightCol])} is zero or negative; weights= needs positive weights`);
   }
   if (w === 0) {
     // Name the columns that are unusable most often, so the analyst knows where to look.
     const cols = [...yr.names, ...xr.names].map((name, j) => {
-      const c = j === 0 ? y : x[j - 1];
       let bad = 0;
-      for (let i = 0; i < rows; i++) if (c[i] !== c[i]) bad++;
+      const kc = j === 0 ? null : xr.keys[j - 1];
+      if (kc) for (let i = 0; i < rows; i++) bad += kc[i] === null ? 1 : 0;
+      else {
+        const c = j === 0 ? yr.columns[0] : xr.columns[j - 1];
+        for (let i = 0; i < rows; i++) if (c[i] !== c[i]) bad++;
+      }
       return { name, bad };
     }).filter((c) => c.bad > 0).sort((a, b) => b.bad - a.bad).slice(0, 3);
     const worst = cols.map((c) => `${c.name} in ${c.bad === rows ? "every row" : count(c.bad, "row")}`).join(", ");
@@ -419,9 +629,29 @@ export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null,
   }
   const example = numericRows.count > 0 ? firstNumericText(yr, xr) : null;
   const unnamed = [...yr.unnamed.map(() => yr.names[0]), ...xr.unnamed.map((j) => xr.names[j])];
+  const usedRows = used.subarray(0, w);
+  const keyOf = (j: number) => keyColumn(xr.names[j], xr.keys[j] as (string | null)[], usedRows);
+  const roleColumns: RoleColumns = {
+    absorb: absorbCols.map(keyOf),
+    factors: factorCols.map(keyOf),
+    cluster: clusterCols.map(keyOf),
+    panel: panelCol >= 0 ? keyOf(panelCol) : null,
+    time: timeCol >= 0 ? keyOf(timeCol) : null,
+    weights: wCol ? wCol.subarray(0, w) : null,
+    weightsName: weightCol >= 0 ? xr.names[weightCol] : null,
+    instruments: zCols.map((c) => c.subarray(0, w)),
+    instrumentNames: instrumentCols.map((j) => xr.names[j]),
+  };
+  const regressorOf = new Int32Array(xr.names.length).fill(-1);
+  regressorCols.forEach((j, r) => (regressorOf[j] = r));
   return {
     yName: yr.names[0],
-    xNames: xr.names,
+    xNames: regressorCols.map((j) => xr.names[j]),
+    columnNames: xr.names,
+    regressorOf,
+    roles: roleColumns,
+    leftOutWeight,
+    leftOutWeightRows: weightRows,
     y: y.subarray(0, w),
     x: x.map((c) => c.subarray(0, w)),
     rowNumbers: rowNumbers.subarray(0, w),

@@ -142,24 +142,28 @@ function blockedQr(X: Float64Array[], y: Float64Array, inv: Float64Array, keep: 
   return T;
 }
 
+/** A least-squares solution, or the first column that depends on earlier ones (the rank question). */
+export type LeastSquares = { qr: QrFit; dependent: null } | { qr: null; dependent: Dependency };
+
 /**
- * Solves min ||y − Xb|| by Householder QR.
+ * Solves min ||y − Xb|| by Householder QR, or answers which column makes the design rank-deficient.
  * @param X columns of the design (not modified), all of length n
  * @param y the response (not modified)
- * @param onDependent called with the first dependent column; it should throw a problem
  * @param refineWhenNeeded false for auxiliary regressions whose statistic needs only the residual
  *   sum of squares or one t ratio to working accuracy (as R's lm.fit gives them)
+ * @returns `{ qr }` for a full-rank design, else `{ dependent }`: the first column within RANK_TOL of
+ *   the span of earlier ones, with the columns it depends on (none: the column is all zeros)
  */
-export function leastSquares(X: Float64Array[], y: Float64Array, onDependent: (d: Dependency) => never, refineWhenNeeded = true): QrFit {
+export function leastSquares(X: Float64Array[], y: Float64Array, refineWhenNeeded = true): LeastSquares {
   const k = X.length;
   const k1 = k + 1;
   const n = y.length;
-  if (n <= k) fail(`${count(n, "usable row")} ${n === 1 ? "is" : "are"} too few for ${k} coefficients`);
+  if (n <= k) fail(`${count(n, "usable row")} ${n === 1 ? "is" : "are"} too few for ${count(k, "coefficient")}`);
   const scale = new Float64Array(k);
   const inv = new Float64Array(k);
   for (let j = 0; j < k; j++) {
     const s = norm2(X[j]);
-    if (s === 0) onDependent({ column: j, on: [] });
+    if (s === 0) return { qr: null, dependent: { column: j, on: [] } };
     scale[j] = s;
     inv[j] = 1 / s;
   }
@@ -170,7 +174,7 @@ export function leastSquares(X: Float64Array[], y: Float64Array, onDependent: (d
   };
   readR();
   for (let j = 0; j < k; j++) {
-    if (!(Math.abs(R[j * k + j]) >= RANK_TOL)) onDependent({ column: j, on: dependencyOf(R, k, j) });
+    if (!(Math.abs(R[j * k + j]) >= RANK_TOL)) return { qr: null, dependent: { column: j, on: dependencyOf(R, k, j) } };
   }
   const c = new Float64Array(k);
   const backSolve = () => {
@@ -215,7 +219,7 @@ export function leastSquares(X: Float64Array[], y: Float64Array, onDependent: (d
   }
   let rss = 0;
   for (let i = 0; i < n; i++) rss += resid[i] * resid[i];
-  return { n, k, R, Rinv, scale, coef, resid, rss, condition, refined };
+  return { qr: { n, k, R, Rinv, scale, coef, resid, rss, condition, refined }, dependent: null };
 }
 
 /** κ₁(R) = ‖R‖₁‖R⁻¹‖₁ of the column-scaled design. */

@@ -6,8 +6,9 @@ import { readYX, type Origin } from "./intake";
 import { modelKey, type Options } from "./options";
 import { ElxProblem, fail } from "./problems";
 import { prepare } from "./transforms";
-import { OlsFit } from "./fit";
-import { PpmlFit } from "./ppml";
+import type { OlsFit } from "./fit";
+import type { PpmlFit } from "./ppml";
+import { estimatorOf } from "./estimators";
 
 export type AnyFit = OlsFit | PpmlFit;
 
@@ -35,9 +36,9 @@ function keyOf(input: ModelInput): string {
 
 /** Fits without the cache (for tests and for callers that build their own data). */
 export function fitUncached(input: ModelInput): AnyFit {
-  const raw = readYX(input.y, input.x, input.yOrigin, input.xOrigin);
+  const raw = readYX(input.y, input.x, input.yOrigin, input.xOrigin, input.options);
   const data = prepare(raw, input.options);
-  return input.options.estimator === "ppml" ? new PpmlFit(data, input.options.intercept) : new OlsFit(data, input.options.intercept);
+  return estimatorOf(input.options).build(data, input.options) as AnyFit;
 }
 
 /** The fit for these cells and options, from the cache when the same content was fitted before. */
@@ -66,8 +67,9 @@ export function clearCache(): void {
   cache.clear();
 }
 
-/** The least-squares fit, refusing estimator=ppml for functions that only apply to OLS. */
+/** The least-squares fit, refusing estimators without a residual variance for functions that need one. */
 export function getOlsFit(input: ModelInput, what: string): OlsFit {
-  if (input.options.estimator === "ppml") fail(`${what} applies to least-squares fits of log or level y; drop estimator=ppml (PPML has no residual variance to test or retransform)`);
+  const info = estimatorOf(input.options);
+  if (!info.residualVariance) fail(`${what} applies to least-squares fits of log or level y; ${info.noResidualVariance}`);
   return getFit(input) as OlsFit;
 }

@@ -10,7 +10,7 @@ import { cut, fail, nearest, quote } from "./problems";
 
 export type Form = "log-log" | "log-level" | "level-log" | "level-level";
 export type Estimator = "ols" | "ppml";
-export type SeType = "classical" | "HC0" | "HC1" | "HC2" | "HC3" | "HAC";
+export type SeType = "classical" | "HC0" | "HC1" | "HC2" | "HC3" | "HAC" | "cluster" | "DK";
 export type ZeroPolicy = "stop" | "drop" | "shift" | "ihs";
 export type AtPoint = "mean" | "median";
 export type Retransform = "duan" | "normal" | "none";
@@ -33,7 +33,30 @@ export interface Options {
   interval: IntervalKind;
   intercept: boolean;
   headers: boolean;
+  /**
+   * Role columns of x, each named by header or 1-based number as typed (see RoleName): fixed-effect
+   * keys (at most two), factor columns, cluster keys (at most two), the panel unit, the period, the
+   * weights, excluded instruments, and the regressors named endogenous.
+   */
+  absorb: string[];
+  factors: string[];
+  cluster: string[];
+  panel: string | null;
+  time: string | null;
+  weights: string | null;
+  instruments: string[];
+  endogenous: string[];
+  /** Windows of ELX.ROLLING: length (rows, or periods with time=), step, expanding start. */
+  window: number | null;
+  step: number;
+  expanding: boolean;
+  /** Share of rows at each end where ELX.BREAKTEST places no break. */
+  trim: number;
 }
+
+/** The options that name columns of x in a role (not regressors, except factors' indicators). */
+export const ROLE_KEYS = ["absorb", "factors", "cluster", "panel", "time", "weights", "instruments"] as const;
+export type RoleKey = (typeof ROLE_KEYS)[number];
 
 /** Default confidence level of intervals (common practice). */
 export const DEFAULT_LEVEL = 0.95;
@@ -52,24 +75,64 @@ export const DEFAULTS: Readonly<Options> = Object.freeze({
   interval: "none",
   intercept: true,
   headers: true,
+  absorb: [],
+  factors: [],
+  cluster: [],
+  panel: null,
+  time: null,
+  weights: null,
+  instruments: [],
+  endogenous: [],
+  window: null,
+  step: 1,
+  expanding: false,
+  trim: 0.15,
 } as Options);
 
 const CHOICES: Record<string, readonly string[]> = {
   form: ["log-log", "log-level", "level-log", "level-level"],
   estimator: ["ols", "ppml"],
-  se: ["HC3", "HC0", "HC1", "HC2", "classical", "HAC"],
+  se: ["HC3", "HC0", "HC1", "HC2", "classical", "HAC", "cluster", "DK"],
   zeros: ["stop", "drop", "shift", "ihs"],
   at: ["mean", "median"],
   retransform: ["duan", "normal", "none"],
   interval: ["none", "mean", "individual"],
   intercept: ["true", "false"],
   headers: ["true", "false"],
+  expanding: ["true", "false"],
 };
 
 export const OPTION_KEYS = [
   "form", "levels", "estimator", "se", "lags", "level", "zeros", "shift", "at",
   "retransform", "interval", "intercept", "headers",
+  "absorb", "factors", "cluster", "panel", "time", "weights", "instruments", "endogenous",
+  "window", "step", "expanding", "trim",
 ] as const;
+
+/** How many columns a role option may name. */
+const ROLE_LIMIT: Record<string, number> = {
+  absorb: 2, cluster: 2, panel: 1, time: 1, weights: 1, factors: Infinity, instruments: Infinity, endogenous: Infinity,
+};
+
+function columnList(key: string, value: string): string[] {
+  const list = value.split(",").map((s) => s.trim()).filter((s) => s !== "");
+  const limit = ROLE_LIMIT[key];
+  if (list.length > limit) {
+    fail(`${key}= takes ${limit === 1 ? "one column" : `at most ${limit} columns`} (it names ${list.length}: ${list.join(", ")})`);
+  }
+  const seen = new Set<string>();
+  for (const c of list) {
+    if (seen.has(c.toLowerCase())) fail(`${key}= names ${c} twice; name each column once`);
+    seen.add(c.toLowerCase());
+  }
+  return list;
+}
+
+function wholeNumber(key: string, raw: string, min: number): number {
+  const v = number(key, raw);
+  if (!Number.isInteger(v) || v < min) fail(`${key}=${raw} must be a whole number ${min} or more (for example ${key}=${Math.max(min, key === "window" ? 52 : 1)})`);
+  return v;
+}
 
 function choose(key: string, raw: string): string {
   const list = CHOICES[key];
@@ -92,7 +155,7 @@ function number(key: string, raw: string): number {
  * @example parseOptions("form=log-level; se=HC1").se // "HC1"
  */
 export function parseOptions(text: unknown): Options {
-  const o: Options = { ...DEFAULTS, levels: [] };
+  const o: Options = { ...DEFAULTS, levels: [], absorb: [], factors: [], cluster: [], instruments: [], endogenous: [] };
   if (text === null || text === undefined || text === "") return o;
   if (typeof text !== "string") {
     return fail(`options must be text like "form=log-log; se=HC3", not ${typeof text === "number" ? "the number " + text : "a " + typeof text}`);
@@ -141,6 +204,21 @@ export function parseOptions(text: unknown): Options {
         o.level = v;
         break;
       }
+      case "absorb": case "factors": case "cluster": case "instruments": case "endogenous":
+        o[key] = columnList(key, value);
+        break;
+      case "panel": case "time": case "weights":
+        o[key] = columnList(key, value)[0] ?? null;
+        break;
+      case "window": o.window = wholeNumber(key, value, 1); break;
+      case "step": o.step = wholeNumber(key, value, 1); break;
+      case "expanding": o.expanding = choose(key, value) === "true"; break;
+      case "trim": {
+        const v = number(key, value);
+        if (!(v >= 0.05 && v <= 0.45)) fail(`trim=${value} must lie between 0.05 and 0.45 (for example trim=0.15: no break in the first or last 15% of rows)`);
+        o.trim = v;
+        break;
+      }
       case "shift": {
         const v = number(key, value);
         if (!(v > 0) || !Number.isFinite(v)) fail(`shift=${cut(value)} must be a number above 0 (for example shift=1)`);
@@ -149,15 +227,19 @@ export function parseOptions(text: unknown): Options {
       }
     }
   }
+  // lags= only changes HAC errors: given with any other se it would be silently ignored.
+  if (o.lags !== null && o.se !== "HAC") fail(`lags=${o.lags} applies only to se=HAC (Newey–West errors)${o.se ? `, not se=${o.se}` : "; the default errors are HC3 (HC1 for ppml)"}: add se=HAC, or remove lags=`);
   return o;
 }
 
-/** The covariance type in force: the one asked for, else the estimator's default. */
-export function seTypeOf(o: Options): SeType {
-  return o.se ?? (o.estimator === "ppml" ? "HC1" : "HC3");
-}
+export { seTypeOf } from "./estimators";
 
-/** The options that change the fitted model (not how it is read): part of the fit cache key. */
+/**
+ * The options that change the fitted model (not how it is read): part of the fit cache key. Every
+ * role column is in it, since a blank key or weight leaves its row out of the fit.
+ */
 export function modelKey(o: Options): string {
-  return [o.form, o.levels.join(","), o.estimator, o.zeros, o.zeros === "shift" ? o.shift : "", o.intercept].join("|");
+  const roles = [o.absorb, o.factors, o.cluster, [o.panel ?? ""], [o.time ?? ""], [o.weights ?? ""], o.instruments, o.endogenous]
+    .map((l) => l.map((c) => c.toLowerCase()).join(","));
+  return [o.form, o.levels.join(","), o.estimator, o.zeros, o.zeros === "shift" ? o.shift : "", o.intercept, ...roles].join("|");
 }

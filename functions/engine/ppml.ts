@@ -18,12 +18,14 @@
  * dispersion φ = Σ u²/μ̂ /(n − k). They are the OLS sandwich formulas on the weighted design √μ̂·X with
  * the Pearson residuals u/√μ̂, so the same code computes them.
  */
+import { scaled, workingUnit } from "./scaling";
 import { leastSquares, type QrFit } from "./leastSquares";
 import { normalQuantile, normalTwoSided } from "./distributions";
 import { fail, unavailable, rowsPhrase, RowList } from "./problems";
 import { Model } from "./fit";
 import { LOG, type Dataset, type Transform } from "./transforms";
-import type { SeType } from "./options";
+import type { CovarianceInput } from "./covariance";
+import type { EstimatorInfo } from "./estimators";
 
 /** Convergence tolerance on the relative change of the deviance and of the coefficients. */
 export const PPML_TOL = 1e-12;
@@ -47,10 +49,26 @@ export interface PpmlStatistics {
   dispersion: number;
 }
 
+/** Poisson pseudo-maximum likelihood: y in levels, zeros kept, an exponential mean. */
+export const PPML_INFO: EstimatorInfo = Object.freeze({
+  id: "ppml",
+  title: "PPML",
+  seTypes: ["HC1", "HC0", "classical"],
+  defaultSe: "HC1",
+  logsY: false,
+  negativeY: false,
+  residualVariance: false,
+  exponentialMean: true,
+  statistic: "z",
+  noResidualVariance: "drop estimator=ppml (PPML has no residual variance to test or retransform)",
+} as const);
+
 export class PpmlFit extends Model {
   readonly estimator = "ppml" as const;
+  readonly info = PPML_INFO;
+  /** The factor of the weighted design √μ̂·X at the converged estimate. */
   readonly qr: QrFit;
-  protected readonly covDesign: Float64Array[];
+  private readonly covInput: CovarianceInput;
   readonly meanTransform: Transform = LOG;
   private readonly beta: Float64Array;
   /** μ̂, the fitted mean of y. */
@@ -61,7 +79,11 @@ export class PpmlFit extends Model {
   /** @param maxIter iteration limit (tests lower it to reach the non-convergence message) */
   constructor(data: Dataset, intercept: boolean, maxIter = PPML_MAX_ITER) {
     super(data, intercept);
-    const y = data.y;
+    // With an intercept PPML is equivariant to the units of y (y·s moves the intercept by log s and
+    // nothing else), so y of extreme magnitude is fitted divided by a power of two and the intercept,
+    // μ̂ and the deviance are put back afterwards; the iterations then start near the answer.
+    const unit = intercept ? workingUnit(data.y) : 1;
+    const y = unit === 1 ? data.y : scaled(data.y, unit);
     const n = this.n;
     let positive = 0;
     for (let i = 0; i < n; i++) if (y[i] > 0) positive++;
@@ -85,7 +107,7 @@ export class PpmlFit extends Model {
         z[i] = (eta[i] + (y[i] - mu[i]) / mu[i]) * s;
         for (let j = 0; j < k; j++) A[j][i] = X[j][i] * s;
       }
-      lastQr = leastSquares(A, z, explain);
+      lastQr = leastSquares(A, z).qr ?? explain();
       let next: Float64Array = Float64Array.from(lastQr.coef);
       let newEta = linear(X, next);
       let newMu = Float64Array.from(newEta, Math.exp);
@@ -111,8 +133,16 @@ export class PpmlFit extends Model {
       }
     }
     if (!converged || !lastQr) {
-      unavailable(`PPML did not converge in ${maxIter} iterations (deviance ${Number.isFinite(dev) ? dev.toPrecision(6) : "not finite"}): look for a regressor that separates the zero rows, or rescale very large regressors`);
+      unavailable(`PPML did not converge in ${maxIter} iterations (deviance ${Number.isFinite(dev * unit) ? (dev * unit).toPrecision(6) : "not finite"}): look for a regressor that separates the zero rows, or rescale very large regressors`);
     }
+    if (unit !== 1) {
+      const shift = Math.log(unit);
+      beta[0] += shift;
+      eta = Float64Array.from(eta, (v) => v + shift);
+      mu = Float64Array.from(mu, (v) => v * unit);
+      dev *= unit;
+    }
+    const yOwn = data.y;
     this.beta = beta;
     this.mu = mu;
     this.iterations = iter;
@@ -120,15 +150,19 @@ export class PpmlFit extends Model {
     // The factor at the converged μ̂ carries the covariances: weighted design √μ̂·X, Pearson residuals.
     for (let i = 0; i < n; i++) {
       const s = Math.sqrt(mu[i]);
-      z[i] = (eta[i] + (y[i] - mu[i]) / mu[i]) * s;
+      z[i] = (eta[i] + (yOwn[i] - mu[i]) / mu[i]) * s;
       for (let j = 0; j < k; j++) A[j][i] = X[j][i] * s;
     }
-    const q = leastSquares(A, z, explain);
-    const pearson = Float64Array.from(y, (v, i) => (v - mu[i]) / Math.sqrt(mu[i]));
-    let rss = 0;
-    for (let i = 0; i < n; i++) rss += pearson[i] * pearson[i];
-    this.qr = { ...q, resid: pearson, rss };
-    this.covDesign = A;
+    const q = leastSquares(A, z).qr ?? explain();
+    const pearson = Float64Array.from(yOwn, (v, i) => (v - mu[i]) / Math.sqrt(mu[i]));
+    let ssr = 0;
+    for (let i = 0; i < n; i++) ssr += pearson[i] * pearson[i];
+    this.qr = q;
+    this.covInput = { columns: A, factor: q, scores: pearson, ssr, dfResid: this.dfResid, rowNumbers: data.rowNumbers };
+  }
+
+  covarianceInput(): CovarianceInput {
+    return this.covInput;
   }
 
   /** Santos Silva and Tenreyro (2010): a combination zero where y > 0 and one-signed where y = 0. */
@@ -142,26 +176,16 @@ export class PpmlFit extends Model {
     // Check dependencies on the y > 0 rows one at a time, dropping each dependent column found.
     for (let guard = 0; guard < this.k; guard++) {
       if (positive <= cols.length) break;
-      let dep: { column: number; on: number[] } | null = null;
-      try {
-        leastSquares(cols.map((e) => sub(e.c)), new Float64Array(positive), (d) => {
-          dep = d;
-          throw new Error("dependent");
-        });
-      } catch (e) {
-        if (!dep) throw e;
-      }
-      if (!dep) return;
-      const d = dep as { column: number; on: number[] };
+      const d = leastSquares(cols.map((e) => sub(e.c)), new Float64Array(positive)).dependent;
+      if (!d) return;
       const target = cols[d.column];
       const basis = d.on.map((i) => cols[i]);
       // The combination z = x_target − Σ c_m x_m, exact on the y > 0 rows.
       let zAll: Float64Array;
       if (basis.length === 0) zAll = target.c;
       else {
-        const fitPos = leastSquares(basis.map((e) => sub(e.c)), sub(target.c), () => {
-          throw new Error("basis dependent");
-        });
+        const fitPos = leastSquares(basis.map((e) => sub(e.c)), sub(target.c)).qr;
+        if (!fitPos) return; // the basis is itself dependent: the fit's own rank check names it
         zAll = Float64Array.from(target.c, (v, i) => {
           let s = v;
           basis.forEach((e, m) => (s -= fitPos.coef[m] * e.c[i]));
@@ -206,12 +230,6 @@ export class PpmlFit extends Model {
     return this.mu;
   }
 
-  protected checkSeType(type: SeType): void {
-    if (type !== "HC0" && type !== "HC1" && type !== "classical") {
-      fail(`se=${type} is not offered with estimator=ppml: use se=HC1 (the default), se=HC0 or se=classical`);
-    }
-  }
-
   criticalValue(level: number): number {
     return normalQuantile(0.5 + level / 2);
   }
@@ -222,8 +240,10 @@ export class PpmlFit extends Model {
 
   statistics(): PpmlStatistics {
     return this.memo("ppmlStats", () => {
-      const y = this.data.y;
-      const mu = this.mu;
+      // the squared correlation does not depend on units: extreme y and μ̂ are scaled first
+      const unit = workingUnit(this.data.y);
+      const y = unit === 1 ? this.data.y : scaled(this.data.y, unit);
+      const mu = unit === 1 ? this.mu : scaled(this.mu, unit);
       const n = this.n;
       let my = 0;
       let mm = 0;
@@ -245,10 +265,10 @@ export class PpmlFit extends Model {
       }
       return {
         deviance: this.devianceValue,
-        pseudoRSquared: (sxy * sxy) / (sxx * syy),
+        pseudoRSquared: (sxy / sxx) * (sxy / syy),
         iterations: this.iterations,
         zerosKept: this.data.yZerosUsed,
-        dispersion: this.qr.rss / this.dfResid,
+        dispersion: this.covInput.ssr / this.dfResid,
       };
     });
   }

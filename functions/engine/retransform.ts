@@ -15,7 +15,7 @@
 import { unavailable } from "./problems";
 import type { OlsFit } from "./fit";
 import type { AnyFit } from "./model";
-import type { Covariance } from "./covariance";
+import { combinationError, type Covariance } from "./covariance";
 import type { Retransform } from "./options";
 
 /** Duan's smearing factor: mean of exp(e_i), summed with compensation. */
@@ -53,8 +53,9 @@ export function retransformFactor(fit: OlsFit, how: Retransform): number {
 }
 
 /** Back to y's units from a value m on the fitted scale, with retransformation. */
-export function toLevels(fit: AnyFit, m: number, how: Retransform): number {
-  if (fit.estimator === "ppml") return Math.exp(m); // PPML fits the mean itself: no factor
+export function toLevels(model: AnyFit, m: number, how: Retransform): number {
+  if (model.info.exponentialMean) return Math.exp(m); // the fit is the mean itself: no factor
+  const fit = model as OlsFit; // every other estimator fits y's transform with a residual variance
   const g = fit.data.yTransform;
   switch (g.kind) {
     case "level":
@@ -81,18 +82,6 @@ export interface Prediction {
   upper: number;
 }
 
-/** x0'Vx0 for a design row x0 (intercept included). */
-export function quadraticForm(V: Float64Array, x0: Float64Array): number {
-  const k = x0.length;
-  let s = 0;
-  for (let a = 0; a < k; a++) {
-    let r = 0;
-    for (let b = 0; b < k; b++) r += V[a * k + b] * x0[b];
-    s += x0[a] * r;
-  }
-  return s;
-}
-
 /**
  * The prediction for one transformed design row x0 and, when asked, its interval.
  * @param cov covariance for interval=mean (the chosen se); the individual interval uses the classical one
@@ -104,12 +93,14 @@ export function predictRow(fit: AnyFit, x0: Float64Array, how: Retransform, inte
   if (interval === "none") return { value, lower: NaN, upper: NaN };
   const t = fit.criticalValue(level);
   if (interval === "mean") {
-    const se = Math.sqrt(Math.max(0, quadraticForm(cov.V, x0)));
+    const se = combinationError(cov, x0);
     return { value, lower: toLevels(fit, m - t * se, how), upper: toLevels(fit, m + t * se, how) };
   }
-  if (fit.estimator === "ppml") unavailable("interval=individual needs a distribution for single outcomes; PPML models only the mean: use interval=mean");
-  const Vc = fit.covariance("classical").V;
-  const se = Math.sqrt(fit.s2 + Math.max(0, quadraticForm(Vc, x0)));
+  if (!fit.info.residualVariance) unavailable(`interval=individual needs a distribution for single outcomes; ${fit.info.title} models only the mean: use interval=mean`);
+  // in units of yUnit (both terms), so that neither square overflows for an extreme y
+  const Vc = fit.covariance("classical");
+  const m0 = combinationError(Vc, x0) / Vc.unit;
+  const se = Math.sqrt((fit as OlsFit).qr.rss / fit.dfResid + m0 * m0) * Vc.unit;
   // no factor: exp (or the inverse transform) is increasing, so the ends map to the ends
   return { value, lower: toLevels(fit, m - t * se, "none"), upper: toLevels(fit, m + t * se, "none") };
 }

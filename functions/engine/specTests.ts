@@ -14,13 +14,17 @@
  * - RESET (Ramsey 1969, JRSS B 31): F test of ŷ² and ŷ³ added to the model.
  *
  * These agree with R's lmtest::bptest and lmtest::resettest (test/reference/diagnostics.test.ts).
+ * Every statistic here is invariant to the units of y and of each regressor, so residuals, fitted
+ * values and regressors of extreme magnitude are first scaled by powers of two (scaling.ts): e² and
+ * e⁴, x² and ŷ³ then stay finite, and the statistic is unchanged.
  * Each auxiliary regression runs on the engine's QR; an auxiliary column that is an exact combination
  * of earlier ones is dropped and the degrees of freedom count only the columns kept.
  */
-import { leastSquares, type Dependency } from "./leastSquares";
+import { leastSquares } from "./leastSquares";
 import { chiSquareSf, fisherSf } from "./distributions";
-import { fail, requireFeasible, unavailable } from "./problems";
+import { count, fail, requireFeasible, unavailable } from "./problems";
 import type { OlsFit } from "./fit";
+import { working } from "./scaling";
 
 export interface TestResult {
   name: string;
@@ -30,12 +34,6 @@ export interface TestResult {
   pValue: number;
   /** What a rejection at 5% means, and what not rejecting means, in plain words. */
   reading: string;
-}
-
-class Dropped extends Error {
-  constructor(readonly column: number) {
-    super("dependent auxiliary column");
-  }
 }
 
 interface AuxFit {
@@ -54,33 +52,50 @@ export function auxiliary(v: Float64Array, W: Float64Array[]): AuxFit {
   let cols = [new Float64Array(n).fill(1), ...W];
   for (;;) {
     if (cols.length >= n) {
-      fail(`the auxiliary regression has ${cols.length} terms for ${n} rows; it needs more rows than terms`);
+      fail(`the auxiliary regression has ${count(cols.length, "term")} for ${count(n, "row")}; it needs more rows than terms`);
     }
-    try {
-      const q = leastSquares(cols, v, (d: Dependency) => {
-        throw new Dropped(d.column);
-      }, false);
+    const ls = leastSquares(cols, v, false);
+    if (ls.qr) {
       let mean = 0;
       for (let i = 0; i < n; i++) mean += v[i];
       mean /= n;
       let tss = 0;
       for (let i = 0; i < n; i++) tss += (v[i] - mean) * (v[i] - mean);
-      return { rss: q.rss, tss, kept: cols.length };
-    } catch (e) {
-      if (!(e instanceof Dropped) || e.column === 0) throw e;
-      cols = cols.filter((_, j) => j !== e.column);
+      return { rss: ls.qr.rss, tss, kept: cols.length };
     }
+    const drop = ls.dependent.column;
+    if (drop === 0) unavailable("the auxiliary regression's variable is zero in every row, so the test is undefined");
+    cols = cols.filter((_, j) => j !== drop);
   }
 }
 
-/** The model's regressors other than the intercept (as fitted: transformed). */
+/** The model's regressors other than the intercept (as fitted: transformed; scaled if extreme). */
 function regressors(fit: OlsFit): Float64Array[] {
-  return fit.data.x;
+  return fit.memo("test:regressors", () => fit.data.x.map(working));
+}
+
+/** Residuals in a unit where their fourth powers are finite (the tests do not depend on it). */
+function testResiduals(fit: OlsFit): Float64Array {
+  return working(fit.qr.resid);
 }
 
 function squaredResiduals(fit: OlsFit): Float64Array {
-  const e = fit.resid;
+  const e = testResiduals(fit);
   return Float64Array.from(e, (v) => v * v);
+}
+
+/** Fitted values minus their mean, in a unit where their cubes are finite. */
+function centredFitted(fit: OlsFit): Float64Array {
+  const f = fit.fitted;
+  let m = 0;
+  for (let i = 0; i < f.length; i++) m += f[i];
+  m /= f.length;
+  return working(Float64Array.from(f, (v) => v - m));
+}
+
+/** Fitted values in a unit where their cubes are finite. */
+function testFitted(fit: OlsFit): Float64Array {
+  return working(fit.fitted);
 }
 
 function requireSpread(fit: OlsFit): void {
@@ -110,8 +125,11 @@ export function breuschPaganKoenker(fit: OlsFit): TestResult {
 export function breuschPaganOriginal(fit: OlsFit): TestResult {
   requireSpread(fit);
   const n = fit.n;
-  const sigma2 = fit.rss / n;
-  const g = Float64Array.from(fit.resid, (v) => (v * v) / sigma2);
+  const e = testResiduals(fit);
+  let ss = 0;
+  for (let i = 0; i < n; i++) ss += e[i] * e[i];
+  const sigma2 = ss / n;
+  const g = Float64Array.from(e, (v) => (v * v) / sigma2);
   const a = auxiliary(g, regressors(fit));
   const df = a.kept - 1;
   if (df <= 0) unavailable("Breusch–Pagan needs at least one regressor besides the intercept");
@@ -147,12 +165,13 @@ export function white(fit: OlsFit): TestResult {
 /** White's special form: e² on ŷ and ŷ². */
 export function whiteSpecial(fit: OlsFit): TestResult {
   requireSpread(fit);
-  const f = fit.fitted;
+  const f = testFitted(fit);
   return nR2(squaredResiduals(fit), [Float64Array.from(f), Float64Array.from(f, (v) => v * v)], "White (special form)");
 }
 
 /** Skewness and kurtosis of the residuals with n denominators. */
-export function moments(e: Float64Array): { skewness: number; kurtosis: number } {
+export function moments(e0: Float64Array): { skewness: number; kurtosis: number } {
+  const e = working(e0); // skewness and kurtosis do not depend on the units
   const n = e.length;
   let mean = 0;
   for (let i = 0; i < n; i++) mean += e[i];
@@ -176,7 +195,7 @@ export function moments(e: Float64Array): { skewness: number; kurtosis: number }
 /** Jarque–Bera test of normal residuals. */
 export function jarqueBera(fit: OlsFit): TestResult {
   requireSpread(fit);
-  const { skewness: S, kurtosis: K } = moments(fit.resid);
+  const { skewness: S, kurtosis: K } = moments(testResiduals(fit));
   const n = fit.n;
   const stat = (n / 6) * (S * S + ((K - 3) * (K - 3)) / 4);
   const p = chiSquareSf(stat, 2);
@@ -194,32 +213,30 @@ export function jarqueBera(fit: OlsFit): TestResult {
 /** RESET with powers 2 and 3 of the fitted values (lmtest::resettest, type = "fitted"). */
 export function reset(fit: OlsFit): TestResult {
   requireSpread(fit);
-  const f = fit.fitted;
+  // y, ŷ and the RSS in units of yUnit (F does not depend on the units of y), ŷ² and ŷ³ scaled.
+  // With an intercept, ŷ is centred first: (ŷ − c)² and (ŷ − c)³ span the same space as ŷ² and ŷ³
+  // together with the intercept and ŷ (a combination of the regressors), so F is the same, but the
+  // powers are no longer nearly collinear when ŷ sits far from zero (log y of values near 1e150).
+  // With fixed effects, y, ŷ² and ŷ³ are absorbed as the regressors were (the columns of the
+  // covariance input), so the auxiliary regression has the same fixed effects.
+  const f = fit.intercept || fit.absorbed > 0 ? centredFitted(fit) : testFitted(fit);
+  const y = fit.within(fit.scaledY);
+  const rss0 = fit.qr.rss;
   const n = fit.n;
   const k = fit.k;
-  const cols = [...fit.design, Float64Array.from(f, (v) => v * v), Float64Array.from(f, (v) => v * v * v)];
-  if (n <= k + 2) fail(`RESET needs more than ${k + 2} rows (the fit has ${n})`);
-  let rss1: number;
+  const cols = [...fit.covarianceInput().columns, fit.within(Float64Array.from(f, (v) => v * v)), fit.within(Float64Array.from(f, (v) => v * v * v))];
+  if (fit.dfResid <= 2) fail(`RESET needs more than ${k + fit.absorbed + 2} rows (the fit has ${n})`);
+  // ŷ³ may depend on ŷ² and the regressors (for example with one binary regressor): then ŷ² alone.
   let added = 2;
-  try {
-    rss1 = leastSquares(cols, fit.data.y, () => {
-      throw new Dropped(-1);
-    }, false).rss;
-  } catch (e) {
-    if (!(e instanceof Dropped)) throw e;
-    // ŷ³ may depend on ŷ² and the regressors (for example with one binary regressor)
+  let ls = leastSquares(cols, y, false);
+  if (!ls.qr) {
     added = 1;
-    try {
-      rss1 = leastSquares(cols.slice(0, k + 1), fit.data.y, () => {
-        throw new Dropped(-1);
-      }, false).rss;
-    } catch (e2) {
-      if (!(e2 instanceof Dropped)) throw e2;
-      unavailable("RESET is undefined here: the powers of the fitted values are combinations of the regressors");
-    }
+    ls = leastSquares(cols.slice(0, k + 1), y, false);
   }
-  const df2 = n - k - added;
-  const stat = ((fit.rss - rss1) / added) / (rss1 / df2);
+  if (!ls.qr) return unavailable("RESET is undefined here: the powers of the fitted values are combinations of the regressors");
+  const rss1 = ls.qr.rss;
+  const df2 = fit.dfResid - added;
+  const stat = ((rss0 - rss1) / added) / (rss1 / df2);
   const p = fisherSf(stat, added, df2);
   return {
     name: "RESET (fitted², fitted³)",

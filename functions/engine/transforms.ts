@@ -13,7 +13,10 @@
  */
 import { cut, fail, count, quote, rowsPhrase, nearest, RowList } from "./problems";
 import type { Options } from "./options";
-import type { RawData } from "./intake";
+import { subsetRoles, type RawData, type RoleColumns } from "./intake";
+import { estimatorOf } from "./estimators";
+import { dropSingletons } from "./absorb";
+import { leaveOut } from "./ppmlAbsorbed";
 
 export type Transform =
   | { kind: "level" }
@@ -69,6 +72,13 @@ export function isLogLike(t: Transform): boolean {
   return t.kind !== "level";
 }
 
+/** Whether two columns hold the same values in every row (y included among the regressors). */
+function sameValues(a: Float64Array, b: Float64Array): boolean {
+  if (a.length < 2) return false;
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
+}
+
 function isBinary(col: Float64Array): boolean {
   for (let i = 0; i < col.length; i++) {
     const v = col[i];
@@ -121,7 +131,24 @@ export interface Dataset {
   yNegative: number;
   /** Zeros in y among the rows used (zeros=shift/ihs keep them; PPML keeps them). */
   yZerosUsed: number;
+  /** The role columns over the rows used; instruments transformed as the x side. */
+  roles: RoleColumns;
+  instrumentTransforms: Transform[];
+  /** Every column of the x range by name, and the index in x of each (−1: a role column). */
+  columnNames: string[];
+  regressorOf: Int32Array;
+  /** Rows left out because their weight was zero or negative. */
+  leftOutWeight: number;
+  leftOutWeightRows: RowList;
+  /** For each column of x, the factor column whose indicator it is (null for regressors). */
+  factorOf: (string | null)[];
+  /** Rows left out by absorb=: singletons, and (PPML) values whose y is zero in every row; those rows. */
+  leftOutSingleton: number;
+  leftOutAllZero: number;
+  allZeroValues: number;
+  leftOutAbsorbedRows: RowList;
 }
+
 
 /** A name as compared: ends trimmed, inner runs of white space as one space, any case. */
 function nameKey(s: string): string {
@@ -140,6 +167,30 @@ export function matchName(typed: string, names: readonly string[]): number {
   const squash = (s: string) => s.replace(/\s+/g, "").toLowerCase();
   const hits = names.map((n, j) => (squash(n) === squash(typed) ? j : -1)).filter((j) => j >= 0);
   return hits.length === 1 ? hits[0] : -1;
+}
+
+/**
+ * Resolves a term of a fit: a name in x (regressors and factor indicators such as "Region: North"),
+ * or a 1-based column number of the x range; a role column is named as such.
+ */
+export function resolveTerm(term: unknown, data: Pick<Dataset, "xNames" | "columnNames" | "regressorOf" | "roles">, what = "term"): number {
+  if (typeof term === "string" && term.trim() !== "") {
+    const t = term.trim().toLowerCase();
+    const i = data.xNames.findIndex((n) => n.toLowerCase() === t);
+    if (i >= 0) return i;
+  }
+  if (data.columnNames.length === data.xNames.length && data.regressorOf.every((r, j) => r === j)) return resolveColumn(term, data.xNames, what);
+  const c = resolveColumn(term, data.columnNames, what);
+  const r = data.regressorOf[c];
+  if (r >= 0) return r;
+  const name = data.columnNames[c];
+  const roles = data.roles;
+  const isFactor = roles.factors.some((f) => f.name === name);
+  if (isFactor) {
+    const terms = data.xNames.filter((n) => n.startsWith(`${name}: `));
+    return fail(`${name} is a factors= column: its terms are ${terms.join(", ")}; name one of them`);
+  }
+  return fail(`${name} is a role column (keys, weights or instruments), not a regressor; name a regressor (${data.xNames.join(", ")})`);
 }
 
 /** Resolves a term given by header name or 1-based column number; suggests the nearest name. */
@@ -208,21 +259,37 @@ function negativeAdvice(names: string[], yName: string | null, o: Options, also 
  * @param o parsed options (form, levels, zeros, shift, estimator)
  */
 export function prepare(raw: RawData, o: Options): Dataset {
-  const k = raw.x.length;
-  const ppml = o.estimator === "ppml";
-  const logY = !ppml && o.form.startsWith("log-");
+  const info = estimatorOf(o);
+  const logY = info.logsY && o.form.startsWith("log-");
   const logX = o.form.endsWith("-log");
-  const binary = raw.x.map(isBinary);
+  raw.x.forEach((c, j) => {
+    if (sameValues(c, raw.y)) {
+      fail(`${raw.xNames[j]} (column ${j + 1} of x) holds the same values as y (${raw.yName}) in every row used: y cannot explain itself (the fit would be exact and its t-values meaningless); take the y column out of the x range`);
+    }
+  });
+  // Instruments take the x side's transform, so they join the regressors until the end.
+  const kx = raw.x.length;
+  const allX = [...raw.x, ...raw.roles.instruments];
+  const allNames = [...raw.xNames, ...raw.roles.instrumentNames];
+  const k = allX.length;
+  const binary = allX.map(isBinary);
   const keepLevel = new Array<boolean>(k).fill(false);
-  for (const t of o.levels) keepLevel[resolveColumn(t, raw.xNames, "levels= column")] = true;
-  const logged = raw.x.map((_, j) => logX && !binary[j] && !keepLevel[j]);
+  for (const t of o.levels) {
+    const c = resolveColumn(t, raw.columnNames, "levels= column");
+    const r = raw.regressorOf[c];
+    const z = raw.roles.instrumentNames.indexOf(raw.columnNames[c]);
+    if (r >= 0) keepLevel[r] = true;
+    else if (z >= 0) keepLevel[kx + z] = true;
+    else fail(`levels=${cut(String(t))}: ${cut(raw.columnNames[c])} is a key or weights column, which is never logged; name a regressor or an instrument`);
+  }
+  const logged = allX.map((_, j) => logX && !binary[j] && !keepLevel[j]);
 
   // Counts of values ≤ 0 in each column that a log would take, zeros and negatives apart.
   const yNp = nonPositive(raw.y, raw.rowNumbers);
-  if (ppml && yNp.negatives > 0) {
-    fail(`${raw.yName} has ${count(yNp.negatives, "negative value")} (${rowsPhrase(yNp.negativeRows)}); PPML models a mean that cannot be negative, and a negative quantity is usually a data error: check and correct those rows`);
+  if (!info.negativeY && yNp.negatives > 0) {
+    fail(`${raw.yName} has ${count(yNp.negatives, "negative value")} (${rowsPhrase(yNp.negativeRows)}); ${info.title} models a mean that cannot be negative, and a negative quantity is usually a data error: check and correct those rows`);
   }
-  const npx = raw.x.map((c, j) => (logged[j] ? nonPositive(c, raw.rowNumbers) : null));
+  const npx = allX.map((c, j) => (logged[j] ? nonPositive(c, raw.rowNumbers) : null));
   const hit = (np: NonPositive | null) => np !== null && np.zeros + np.negatives > 0;
   const offenders: string[] = [];
   const zeroNames: string[] = [];
@@ -235,14 +302,15 @@ export function prepare(raw: RawData, o: Options): Dataset {
   }
   npx.forEach((np, j) => {
     if (np === null || !hit(np)) return;
-    offenders.push(describeNonPositive(raw.xNames[j], np));
-    if (np.zeros > 0) zeroNames.push(raw.xNames[j]);
-    if (np.negatives > 0) negativeNames.push(raw.xNames[j]);
+    offenders.push(describeNonPositive(allNames[j], np));
+    if (np.zeros > 0) zeroNames.push(allNames[j]);
+    if (np.negatives > 0) negativeNames.push(allNames[j]);
   });
 
   let y = raw.y;
-  let x = raw.x;
+  let x = allX;
   let rowNumbers = raw.rowNumbers;
+  let roles = raw.roles;
   let dropped = 0;
   let droppedNegative = 0;
   const droppedRows = new RowList();
@@ -264,6 +332,7 @@ export function prepare(raw: RawData, o: Options): Dataset {
     }
     if (o.zeros === "drop") {
       const n0 = y.length;
+      const kept = new Int32Array(n0);
       let w = 0;
       for (let i = 0; i < n0; i++) {
         let bad = logY && y[i] <= 0;
@@ -285,12 +354,14 @@ export function prepare(raw: RawData, o: Options): Dataset {
           for (let j = 0; j < k; j++) x[j][w] = x[j][i];
           rowNumbers[w] = rowNumbers[i];
         }
+        kept[w] = i;
         w++;
       }
       y = y.subarray(0, w);
       x = x.map((c) => c.subarray(0, w));
       rowNumbers = rowNumbers.subarray(0, w);
       if (w === 0) fail(`every row has a zero, blank or negative value in a column to be logged (${offenders.join("; ")}); nothing is left to fit: use zeros=shift, zeros=ihs or estimator=ppml`);
+      roles = { ...subsetRoles({ ...roles, instruments: [] }, kept.subarray(0, w)), instruments: x.slice(kx), instrumentNames: roles.instrumentNames };
     } else {
       // shift or ihs: only in the logged columns that contain a value ≤ 0.
       const replace = (name: string, col: Float64Array, np: NonPositive, isY: boolean): Transform => {
@@ -305,28 +376,76 @@ export function prepare(raw: RawData, o: Options): Dataset {
       };
       if (yHit) yTransform = replace(raw.yName, y, yNp, true);
       npx.forEach((np, j) => {
-        if (np !== null && hit(np)) xT[j] = replace(raw.xNames[j], x[j], np, false);
+        if (np !== null && hit(np)) xT[j] = replace(allNames[j], x[j], np, false);
       });
     }
   }
 
+  // Fixed effects: values seen in one row only (singletons) carry no information on the slopes, and
+  // under PPML a value whose y is zero in every row has no finite effect: such rows are left out.
+  let singletons = 0;
+  let allZeroRows = 0;
+  let allZeroValues = 0;
+  const singletonRows = new RowList();
+  if (roles.absorb.length > 0) {
+    const codes = roles.absorb.map((c) => c.codes);
+    const d = info.exponentialMean ? null : dropSingletons(codes);
+    const r = d ? { keep: d.keep, zeroRows: 0, zeroValues: 0, singletons: d.dropped } : leaveOut(y, codes, null);
+    const keep = r.keep;
+    singletons = r.singletons;
+    allZeroRows = r.zeroRows;
+    allZeroValues = r.zeroValues;
+    if (singletons + allZeroRows > 0) {
+      const kept: number[] = [];
+      for (let i = 0; i < keep.length; i++) {
+        if (keep[i]) kept.push(i);
+        else singletonRows.add(rowNumbers[i]);
+      }
+      if (kept.length === 0) {
+        fail(`every value of ${roles.absorb.map((c) => c.name).join(" and ")} occurs in only one row${info.exponentialMean ? " or has y = 0 in every row" : ""}, so fixed effects leave nothing to estimate from: absorb a coarser column, or leave absorb= out`);
+      }
+      const pick = (c: Float64Array) => Float64Array.from(kept, (i) => c[i]);
+      y = pick(y);
+      x = x.map(pick);
+      rowNumbers = Int32Array.from(kept, (i) => rowNumbers[i]);
+      roles = { ...subsetRoles({ ...roles, instruments: [] }, kept), instruments: x.slice(kx), instrumentNames: roles.instrumentNames };
+    }
+  }
+
   const n = y.length;
-  const yMean = stableSum(y) / n;
-  const xMeans = x.map((c) => stableSum(c) / n);
+  const wts = roles.weights;
+  const mean = (c: Float64Array) => (wts ? weightedMean(c, wts) : stableSum(c) / n);
+  const yMean = mean(y);
+  const xMeans = x.slice(0, kx).map(mean);
   let yZerosUsed = 0;
   for (let i = 0; i < n; i++) if (y[i] === 0) yZerosUsed++;
   if (yTransform.kind !== "level") transformInPlace(y, yTransform);
   x.forEach((c, j) => {
     if (xT[j].kind !== "level") transformInPlace(c, xT[j]);
   });
+  const regressors = x.slice(0, kx);
+  const xNames = raw.xNames.slice();
+  const xTransforms = xT.slice(0, kx);
+  const xBinary = binary.slice(0, kx);
+  const factorOf: (string | null)[] = xNames.map(() => null);
+  for (const f of roles.factors) {
+    for (const ind of indicators(f.codes, f.labels, f.name)) {
+      regressors.push(ind.column);
+      xNames.push(ind.name);
+      xTransforms.push(LEVEL);
+      xBinary.push(true);
+      xMeans.push(mean(ind.column));
+      factorOf.push(f.name);
+    }
+  }
   return {
     yName: raw.yName,
-    xNames: raw.xNames,
+    xNames,
     y,
-    x,
+    x: regressors,
     yTransform,
-    xTransforms: xT,
-    binary,
+    xTransforms,
+    binary: xBinary,
     n,
     rowNumbers,
     leftOutBlank: raw.leftOutBlank,
@@ -342,7 +461,43 @@ export function prepare(raw: RawData, o: Options): Dataset {
     yNonPositive: yNp.zeros + yNp.negatives,
     yNegative: yNp.negatives,
     yZerosUsed,
+    roles: { ...roles, instruments: x.slice(kx) },
+    instrumentTransforms: xT.slice(kx),
+    columnNames: raw.columnNames,
+    regressorOf: raw.regressorOf,
+    leftOutWeight: raw.leftOutWeight,
+    leftOutWeightRows: raw.leftOutWeightRows,
+    factorOf,
+    leftOutSingleton: singletons,
+    leftOutAllZero: allZeroRows,
+    allZeroValues,
+    leftOutAbsorbedRows: singletonRows,
   };
+}
+
+/** Σ w v / Σ w with compensated sums. */
+export function weightedMean(v: Float64Array, w: Float64Array): number {
+  const p = new Float64Array(v.length);
+  for (let i = 0; i < v.length; i++) p[i] = w[i] * v[i];
+  return stableSum(p) / stableSum(w);
+}
+
+/**
+ * One 0/1 column per value of a factor except the first in sheet order (the reference level),
+ * named "Column: value", in order of first appearance.
+ */
+function indicators(codes: Int32Array, labels: string[], name: string): { name: string; column: Float64Array }[] {
+  const order: number[] = [];
+  const seen = new Uint8Array(labels.length);
+  for (let i = 0; i < codes.length; i++) {
+    const c = codes[i];
+    if (!seen[c]) {
+      seen[c] = 1;
+      order.push(c);
+    }
+  }
+  if (order.length < 2) fail(`${name} has one value (${labels[order[0]]}) in the rows used, so factors= makes no indicator term: remove it from factors=`);
+  return order.slice(1).map((c) => ({ name: `${name}: ${labels[c]}`, column: Float64Array.from(codes, (v) => (v === c ? 1 : 0)) }));
 }
 
 function transformInPlace(col: Float64Array, t: Transform): void {

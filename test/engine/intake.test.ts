@@ -141,9 +141,9 @@ describe("numbers stored as text are named, with decimal commas (item 17)", () =
 describe("a text column in x is named with what to do (item 18)", () => {
   const y = col("Units", [10, 12, 9, 15, 20, 14]);
 
-  it("Region holds text: leave it out of x, or use ELX.BYGROUP with it as keys", () => {
+  it("Region holds text: name it in a role option, leave it out of x, or use ELX.BYGROUP with it as keys", () => {
     const x = cols(["Price", "Region"], [[2, 1.8, 2.2, 1.5, 1.2, 1.6], ["North", "South", "North", "East", "South", "East"]]);
-    expect(message(() => readYX(y, x, null, null))).toBe('Region holds text in all 6 rows (for example "North" in row 2): leave it out of x, or use ELX.BYGROUP with it as keys');
+    expect(message(() => readYX(y, x, null, null))).toBe('Region holds text in all 6 rows (for example "North" in row 2): name it in factors= (indicator terms), absorb= (fixed effects) or cluster=, leave it out of x, or use ELX.BYGROUP with it as keys');
   });
 
   it("a column that is text in most rows is refused too; text in a few rows is left out and counted", () => {
@@ -153,10 +153,9 @@ describe("a text column in x is named with what to do (item 18)", () => {
     expect(readYX(y, few, null, null).leftOutBlank).toBe(1);
   });
 
-  it("the choices are one list, so role options can join it at the front", () => {
-    expect(textColumnMessage("Region", "", false)).toBe("Region holds text: leave it out of x, or use ELX.BYGROUP with it as keys");
-    expect(textColumnMessage("Region", "", false, ["name it in factors=, absorb= or cluster=", ...TEXT_COLUMN_CHOICES]))
-      .toBe("Region holds text: name it in factors=, absorb= or cluster=, leave it out of x, or use ELX.BYGROUP with it as keys");
+  it("the choices are one list, the role options first", () => {
+    expect(TEXT_COLUMN_CHOICES[0]).toBe("name it in factors= (indicator terms), absorb= (fixed effects) or cluster=");
+    expect(textColumnMessage("Region", "", false, ["leave it out of x"])).toBe("Region holds text: leave it out of x");
   });
 
   it("a y column of text is told that y must hold numbers", () => {

@@ -65,14 +65,15 @@ describe("shapes and values", () => {
     expect(byNumber).toEqual(byName);
   });
 
-  it("ELASTICITIES marks the binary term and points to EFFECTS", () => {
+  it("ELASTICITIES leaves the binary term's cells empty (not #N/A) and points to EFFECTS", () => {
     const t = call(reg, "ELASTICITIES", Y, X, null) as unknown[][];
     expect(t.length).toBe(4);
     expect(t[3][0]).toBe("Promo");
-    expect(err(t[3][2]).code).toBe("#N/A");
-    expect(err(t[3][2]).message).toMatch(/binary.*ELX\.EFFECTS/);
+    // empty cells, not error values: a SUM over the Elasticity column must still work
+    expect(t[3].slice(2, 6)).toEqual(["", "", "", ""]);
     expect(t[3][6]).toBe("binary: see ELX.EFFECTS");
-    expect(t[1][6]).toBe("constant");
+    // a log-log elasticity is the same at every point: the column says so, not "constant" (the intercept's word)
+    expect(t[1][6]).toBe("everywhere (constant elasticity)");
   });
 
   it("ELASTICITIES under log-level evaluates b·x̄ at the mean and says where", () => {
@@ -181,7 +182,7 @@ describe("bad input: an error value with a message that says what to do", () => 
     ["an unknown option key", () => call(reg, "FIT", Y, X, "from=log-level"), /unknown option "from"; did you mean form\?/],
     ["an unknown option value", () => call(reg, "FIT", Y, X, "se=HC4"), /se=HC4 is not a valid choice; did you mean se=HC3\?/],
     ["a level given as a percent", () => call(reg, "FIT", Y, X, "level=95"), /level=95 must lie between 0.5 and 0.999/],
-    ["lags larger than the data allow", () => call(reg, "FIT", Y, X, "se=HAC; lags=10"), /lags=10 is more than the data allow: with 10 rows use at most lags=9/],
+    ["more lags than the rows support", () => call(reg, "FIT", Y, X, "se=HAC; lags=9"), /lags=9 is too many for 10 rows: use at most lags=2/],
     ["a binary term asked for an elasticity", () => call(reg, "ELASTICITY", Y, X, "Promo", null), /Promo is binary.*ELX\.EFFECTS/],
     ["percent effects with y in levels", () => call(reg, "EFFECTS", Y, X, "form=level-level"), /percent effects need y in logs/],
     ["y with two columns", () => call(reg, "FIT", X, Y, null), /y must be one column/],

@@ -60,7 +60,7 @@ describe("row lists and text columns (items 14, 18)", () => {
     const region = ["North", "South", "North", "East", "South", "East", "North", "South", "East", "North"];
     const e = err(call(reg, "FIT", Y, rows([price, region], ["Price", "Region"]), null));
     expect(e.code).toBe("#VALUE!");
-    expect(e.message).toBe('Region holds text in all 10 rows (for example "North" in row 2): leave it out of x, or use ELX.BYGROUP with it as keys');
+    expect(e.message).toBe('Region holds text in all 10 rows (for example "North" in row 2): name it in factors= (indicator terms), absorb= (fixed effects) or cluster=, leave it out of x, or use ELX.BYGROUP with it as keys');
   });
 });
 
