@@ -1,6 +1,6 @@
 /**
  * The pane's data check: what the chosen log form will do to the y and x ranges, per column and per
- * row, before any number is trusted. It follows the catalogue's range rules (a first row all text is
+ * row, before any number is trusted. It follows the range rules of README's function reference (a first row all text is
  * a header row; TRUE/FALSE count as 1/0; a row with a blank, text or error cell is left out; a binary
  * 0/1 column stays in levels under a log x side) and tells blank from zero by the host's value types.
  *
