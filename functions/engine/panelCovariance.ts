@@ -222,7 +222,9 @@ export function clusterCovariance(m: ScoreModel, clusters: ClusterKey[], nestedA
   for (const q of parts) for (let j = 0; j < k * k; j++) M[j] += q.sign * q.c * q.M[j];
   const V = sandwich(m.qr, M);
   const G = Math.min(...coded.map((c) => c.levels));
-  const label = coded.length === 1 ? `cluster (${coded[0].name}, ${coded[0].levels} clusters)` : `cluster (${coded[0].name} × ${coded[1].name})`;
+  const label = coded.length === 1
+    ? `cluster: ${coded[0].name}, ${coded[0].levels} clusters`
+    : `cluster: ${coded[0].name} (${coded[0].levels}) × ${coded[1].name} (${coded[1].levels})`;
   return { V, df: G - 1, label, negative: negatives(V, k), groups, factors: parts.map((q) => q.c) };
 }
 
