@@ -111,7 +111,7 @@ export abstract class Model {
   covariance(type: SeType, lags: number | null = null): Covariance {
     requireSeType(this.info, type);
     const L = type === "HAC" ? lags ?? defaultLags(this.n) : 0;
-    const key = type === "HAC" ? `HAC${L}` : type;
+    const key = type === "HAC" ? `HAC${L}` : type === "DK" ? `DK${lags ?? ""}` : type;
     let c = this.covCache.get(key);
     if (!c) {
       let W: Float64Array;

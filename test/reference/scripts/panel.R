@@ -260,13 +260,44 @@ ppml_cases <- list(
             list("state", "region", c("state", "year")), w = "emp")
 )
 
+# ---- PREDICT under fixed effects ------------------------------------------------------------------
+# predict(lm(y ~ x + factor(key1) [+ factor(key2)]), newdata) and predict(glm(..., quasipoisson),
+# newdata, type = "response") at new rows whose key values were seen in the fit; keys are given as
+# the codes the cells use (firm: first appearance, year: ascending), x at chosen values.
+predict_case <- function(name, source, d, y, x, fe, newdata, ppml = FALSE) {
+  f <- as.formula(paste(y, "~", paste(c(x, paste0("factor(", fe, ")")), collapse = " + ")))
+  m <- if (ppml) {
+    m0 <- glm(f, family = quasipoisson, data = d, control = ctl)
+    glm(f, family = quasipoisson, data = d, control = ctl, start = coef(m0))
+  } else lm(f, data = d)
+  p <- if (ppml) predict(m, newdata = newdata, type = "response") else predict(m, newdata = newdata)
+  code_of <- function(v, key) {
+    if (key == "year") as.integer(factor(v, levels = sort(unique(d[[key]])))) - 1L
+    else as.integer(factor(v, levels = unique(d[[key]]))) - 1L
+  }
+  list(name = scalar(name), source = scalar(source), ppml = scalar(ppml), y = d[[y]],
+       x = lapply(setNames(x, x), function(v) d[[v]]),
+       keys = lapply(setNames(fe, fe), function(v) code_of(d[[v]], v)),
+       new_x = lapply(setNames(x, x), function(v) newdata[[v]]),
+       new_keys = lapply(setNames(fe, fe), function(v) code_of(newdata[[v]], v)),
+       predicted = unname(p))
+}
+grun_new <- data.frame(firm = c(1, 3, 7, 10), year = c(1935, 1940, 1947, 1954),
+                       lvalue = c(7.5, 6.0, 5.2, 4.4), lcapital = c(6.0, 4.1, 3.3, 2.0))
+predict_cases <- list(
+  predict_case("grunfeld_predict_oneway", "plm::Grunfeld", grun, "ly", c("lvalue", "lcapital"), "firm", grun_new),
+  predict_case("grunfeld_predict_twoway", "plm::Grunfeld", grun, "ly", c("lvalue", "lcapital"), c("firm", "year"), grun_new),
+  predict_case("grunfeld_predict_ppml_oneway", "plm::Grunfeld", grun, "inv", c("lvalue", "lcapital"), "firm", grun_new, ppml = TRUE)
+)
+
 out <- list(
   generated_by = scalar("Rscript test/reference/scripts/panel.R"),
   r_version = scalar(R.version.string),
   packages = list(sandwich = scalar(as.character(packageVersion("sandwich"))), plm = scalar(as.character(packageVersion("plm"))),
                   estimatr = scalar(as.character(packageVersion("estimatr"))), MASS = scalar(as.character(packageVersion("MASS")))),
   ols = cases,
-  ppml = ppml_cases
+  ppml = ppml_cases,
+  predict = predict_cases
 )
 writeLines(to_json(out), out_path)
 cat("wrote", out_path, "\n")
