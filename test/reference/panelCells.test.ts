@@ -353,3 +353,46 @@ describe("bad input through the cells: one message each", () => {
     expect(lookup(s, "Caution")).toMatch(/Fixed effects remove only differences that stay the same/);
   });
 });
+
+describe("residual tests under fixed effects: lmtest::bptest / resettest on lm(ly ~ lvalue + lcapital + factor(firm)), plm::Grunfeld", () => {
+  interface TestsCase { name: string; y: number[]; x: Record<string, number[]>; keys: Record<string, number[]>; bp: number[]; bp_original: number[]; white: number[]; reset: number[]; jb: number[] }
+  const t: TestsCase = ref.tests[0];
+  const names = [...Object.keys(t.x), ...Object.keys(t.keys)];
+  const cols = [...Object.values(t.x), ...Object.values(t.keys)];
+  const Y = [["y"], ...t.y.map((v) => [v])];
+  const X = [names, ...t.y.map((_, i) => cols.map((c) => c[i]))];
+  test("Breusch–Pagan (Koenker and original), White, Jarque–Bera (formula on residuals(m)) and RESET: statistic and p to 1e-9", () => {
+    const out = table(call(reg, "TESTS", Y, X, "form=level-level; absorb=firm"));
+    const row = (label: string) => out.find((r) => r[0] === label) as unknown[];
+    const pairs: [string, number[]][] = [
+      ["Breusch–Pagan (Koenker, studentized)", t.bp],
+      ["Breusch–Pagan (original)", t.bp_original],
+      ["White", t.white],
+      ["Jarque–Bera", t.jb],
+      ["RESET (fitted², fitted³)", t.reset],
+    ];
+    for (const [label, [stat, p]] of pairs) {
+      expectClose(row(label)[1], stat, 1e-9, 0, `${label} statistic`);
+      expectClose(row(label)[3], p, 1e-9, 0, `${label} p`);
+    }
+    expectClose((call(reg, "HETEROTEST", Y, X, "bp", "form=level-level; absorb=firm") as unknown[][])[0][0], t.bp[1], 1e-9, 0, "HETEROTEST bp");
+    expectClose((call(reg, "NORMALTEST", Y, X, "form=level-level; absorb=firm") as unknown[][])[0][0], t.jb[1], 1e-9, 0, "NORMALTEST");
+  });
+});
+
+describe("weighted PPML without fixed effects: glm(gsp ~ lpcap + lpc + unemp, quasipoisson, weights = emp), plm::Produc", () => {
+  const w = ref.ppml_weighted_plain;
+  const sheetWith = (extra: boolean) => {
+    const names = [...Object.keys(w.x), "w", ...(extra ? ["region"] : [])];
+    const cols: number[][] = [...(Object.values(w.x) as number[][]), w.weights, ...(extra ? [w.region] : [])];
+    return { Y: [["y"], ...(w.y as number[]).map((v) => [v])], X: [names, ...(w.y as number[]).map((_: number, i: number) => cols.map((c) => c[i]))] };
+  };
+  test("coefficients (1e-10); HC0, HC1 (vcovHC), classical (vcov) and cluster by region (vcovCL HC1) to 1e-9", () => {
+    for (const [se, opt] of [["HC0", "se=HC0"], ["HC1", "se=HC1"], ["classical", "se=classical"], ["cluster_region", "cluster=region"]]) {
+      const { Y, X } = sheetWith(se === "cluster_region");
+      const t = table(call(reg, "FIT", Y, X, `form=level-level; estimator=ppml; weights=w; ${opt}`));
+      expectAll(t.slice(1).map((r) => r[2]), w.coefficients, 1e-10, `coefficients ${se}`);
+      expectAll(t.slice(1).map((r) => r[3]), w.se[se], 1e-9, `errors ${se}`);
+    }
+  });
+});

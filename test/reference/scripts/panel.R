@@ -290,6 +290,48 @@ predict_cases <- list(
   predict_case("grunfeld_predict_ppml_oneway", "plm::Grunfeld", grun, "inv", c("lvalue", "lcapital"), "firm", grun_new, ppml = TRUE)
 )
 
+# ---- residual tests under fixed effects, and weighted PPML without fixed effects ----------------
+# Breusch-Pagan and White on the residuals of lm(y ~ x + factor(g)) with the regressors x (not the
+# indicators) as the variance's explanatory variables: lmtest::bptest(m, varformula, data,
+# studentize = TRUE | FALSE); White: varformula with squares and cross-products; RESET
+# lmtest::resettest(m, power = 2:3, type = "fitted") (the auxiliary regression keeps the indicators);
+# Jarque-Bera n/6 (S^2 + (K - 3)^2 / 4) with moments of residuals(m) (n denominators).
+suppressPackageStartupMessages(library(lmtest))
+tests_case <- function(name, source, d, y, x, fe) {
+  f <- as.formula(paste(y, "~", paste(c(x, paste0("factor(", fe, ")")), collapse = " + ")))
+  m <- lm(f, data = d)
+  vf <- as.formula(paste("~", paste(x, collapse = " + ")))
+  sq <- paste0("I(", x, "^2)")
+  cr <- combn(x, 2, function(p) paste0("I(", p[1], "*", p[2], ")"))
+  wf <- as.formula(paste("~", paste(c(x, sq, cr), collapse = " + ")))
+  bp <- bptest(m, vf, data = d)
+  bpo <- bptest(m, vf, data = d, studentize = FALSE)
+  wh <- bptest(m, wf, data = d)
+  rs <- resettest(m, power = 2:3, type = "fitted")
+  e <- residuals(m); n <- length(e); e <- e - mean(e)
+  S <- mean(e^3) / mean(e^2)^1.5; K <- mean(e^4) / mean(e^2)^2
+  jb <- n / 6 * (S^2 + (K - 3)^2 / 4)
+  list(name = scalar(name), source = scalar(source), y = d[[y]], x = lapply(setNames(x, x), function(v) d[[v]]),
+       keys = lapply(setNames(fe, fe), function(v) codes0(d[[v]])),
+       bp = c(unname(bp$statistic), unname(bp$p.value)), bp_original = c(unname(bpo$statistic), unname(bpo$p.value)),
+       white = c(unname(wh$statistic), unname(wh$p.value)), reset = c(unname(rs$statistic), unname(rs$p.value)),
+       jb = c(jb, pchisq(jb, 2, lower.tail = FALSE)))
+}
+tests_cases <- list(tests_case("grunfeld_tests_oneway", "plm::Grunfeld", grun, "ly", c("lvalue", "lcapital"), "firm"))
+# glm(y ~ x, quasipoisson, weights = w): coefficients, HC0/HC1 (vcovHC), classical (vcov: Pearson
+# dispersion with the prior weights), cluster vcovCL(type = "HC1") (G/(G-1) (n-1)/(n-k))
+ppml_weighted_plain <- local({
+  d <- prod_d
+  m0 <- glm(gsp ~ lpcap + lpc + unemp, family = quasipoisson, data = d, weights = emp, control = ctl)
+  m <- glm(gsp ~ lpcap + lpc + unemp, family = quasipoisson, data = d, weights = emp, control = ctl, start = coef(m0))
+  list(name = scalar("produc_ppml_weighted_plain"), source = scalar("plm::Produc, weights emp"), y = d$gsp,
+       x = list(lpcap = d$lpcap, lpc = d$lpc, unemp = d$unemp), weights = d$emp, region = d$region,
+       coefficients = unname(coef(m)),
+       se = list(HC0 = unname(sqrt(diag(vcovHC(m, type = "HC0")))), HC1 = unname(sqrt(diag(vcovHC(m, type = "HC1")))),
+                 classical = unname(sqrt(diag(vcov(m)))),
+                 cluster_region = unname(sqrt(diag(vcovCL(m, cluster = ~region, type = "HC1"))))))
+})
+
 out <- list(
   generated_by = scalar("Rscript test/reference/scripts/panel.R"),
   r_version = scalar(R.version.string),
@@ -297,7 +339,9 @@ out <- list(
                   estimatr = scalar(as.character(packageVersion("estimatr"))), MASS = scalar(as.character(packageVersion("MASS")))),
   ols = cases,
   ppml = ppml_cases,
-  predict = predict_cases
+  predict = predict_cases,
+  tests = tests_cases,
+  ppml_weighted_plain = ppml_weighted_plain
 )
 writeLines(to_json(out), out_path)
 cat("wrote", out_path, "\n")
