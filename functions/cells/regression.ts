@@ -12,7 +12,7 @@ import { elasticity, percentEffect } from "../engine/elasticity";
 import { readRange, asMatrix, CellIssue, numericTextAdvice, uniqueNames } from "../engine/intake";
 import type { OlsFit } from "../engine/fit";
 import type { PpmlFit } from "../engine/ppml";
-import { negativeVarianceReason } from "../engine/panelCovariance";
+import { fewClustersNote, negativeVarianceReason } from "../engine/panelCovariance";
 import type { Covariance } from "../engine/covariance";
 import type { Model } from "../engine/fit";
 import { guarded, hostError, intervalHeaders, num, options, originsOf, table, safe, type Cell, type Table } from "./host";
@@ -203,9 +203,6 @@ function leftOutRows(d: Dataset): [string, Cell][] {
   return rows;
 }
 
-/** Fewer clusters than this make cluster-robust errors unreliable (Cameron and Miller 2015; common practice). */
-export const FEW_CLUSTERS = 30;
-
 /**
  * SUMMARY's rows for the role columns: the fixed effects absorbed (values per key, absorbed parameters,
  * connected components of two keys), the rows they left out (singletons; PPML's values with y = 0 in
@@ -257,11 +254,7 @@ function cautionText(fit: Model, cov: Covariance): string {
 
 /** The message for a clustered covariance with fewer than FEW_CLUSTERS clusters in some cluster= column (null otherwise). */
 export function fewClusters(fit: Model, cov: Covariance): string | null {
-  if (cov.type !== "cluster" || !cov.groups) return null;
-  const names = fit.data.roles.cluster.map((c) => c.name);
-  const few = names.map((n, m) => ({ n, g: cov.groups![m] })).filter((c) => c.g < FEW_CLUSTERS);
-  if (few.length === 0) return null;
-  return `Few clusters: ${few.map((c) => `${c.n} has ${c.g}`).join(", ")}; with fewer than about ${FEW_CLUSTERS} clusters the clustered errors tend to be too small (Cameron and Miller 2015; common practice), so read p-values and intervals with care.`;
+  return cov.type === "cluster" ? fewClustersNote(fit.data.roles.cluster.map((c) => c.name), cov.groups) : null;
 }
 
 function ppmlSummaryRows(fit: PpmlFit, o: Options): [string, Cell][] {

@@ -340,6 +340,17 @@ export function driscollKraay(m: ScoreModel, periods: Int32Array | null, lags: n
   return { V: sandwich(m.qr, M), df: dfResid(m), label: `Driscoll–Kraay, ${L} lag${L === 1 ? "" : "s"}`, negative: [], lags: L, groups: [T] };
 }
 
+/** Fewer clusters than this make cluster-robust errors unreliable (Cameron and Miller 2015; common practice). */
+export const FEW_CLUSTERS = 30;
+
+/** A caution for cluster columns with fewer than FEW_CLUSTERS clusters (null when every column has enough). */
+export function fewClustersNote(names: readonly string[], groups: readonly number[] | undefined): string | null {
+  if (!groups) return null;
+  const few = names.map((n, m) => ({ n, g: groups[m] })).filter((c) => c.g < FEW_CLUSTERS);
+  if (few.length === 0) return null;
+  return `Few clusters: ${few.map((c) => `${c.n} has ${c.g}`).join(", ")}; with fewer than about ${FEW_CLUSTERS} clusters the clustered errors tend to be too small (Cameron and Miller 2015; common practice), so read p-values and intervals with care.`;
+}
+
 /** The reason to show (as #N/A) for a term whose two-way cluster variance came out negative. */
 export function negativeVarianceReason(term: string): string {
   return `the two-way clustered variance of ${term} came out negative (V₁ + V₂ − V₁₂ is not repaired), so it has no standard error: cluster by one key only, or use se=DK`;

@@ -396,3 +396,16 @@ describe("weighted PPML without fixed effects: glm(gsp ~ lpcap + lpc + unemp, qu
     }
   });
 });
+
+describe("the pane's view carries the few-clusters caution (Cameron and Miller 2015; common practice: about 30)", () => {
+  test("10 firms: a caution naming firm; 200 firm-year pairs are not few", () => {
+    const c = OLS.find((o) => o.name === "grunfeld_oneway") as Case;
+    const api = (globalThis as { Elasticell?: { elasticitiesView: (...a: unknown[]) => { ok: boolean; value: { clusterCaution: string | null } } } }).Elasticell;
+    if (!api) throw new Error("dist/functions.js did not publish globalThis.Elasticell");
+    const { Y, X } = sheet(c);
+    const v = api.elasticitiesView(Y, X, "form=level-level; absorb=firm; cluster=firm");
+    expect(v.ok).toBe(true);
+    expect(v.value.clusterCaution).toMatch(/^Few clusters: firm has 10;/);
+    expect(api.elasticitiesView(Y, X, "form=level-level; absorb=firm; se=HC1").value.clusterCaution).toBeNull();
+  });
+});
