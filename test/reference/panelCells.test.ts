@@ -15,11 +15,17 @@
  *     (equal to plm::vcovSCC(type = "HC0"), checked in the script);
  *   R² summary(m)$r.squared; within R² 1 − RSS/Σw·ỹ² (ỹ: residuals of y on the fixed effects alone);
  *   PPML glm(y ~ x + factor(key), quasipoisson) with vcovHC HC0/HC1 and vcovCL HC0 · (n−1)/(n−p);
- *   PREDICT predict(lm(...), newdata) and predict(glm(...), newdata, type = "response").
+ *   PPML classical sqrt(diag(vcov(m))) of the quasipoisson glm (Pearson dispersion);
+ *   PREDICT predict(lm(...), newdata) and predict(glm(...), newdata, type = "response");
+ *   residual tests under fixed effects lmtest::bptest(m, ~ x, studentize = TRUE | FALSE), White as
+ *     bptest with squares and cross-products, lmtest::resettest(m, power = 2:3, type = "fitted"),
+ *     Jarque–Bera by its formula on residuals(m);
+ *   weighted PPML without fixed effects glm(weights = w) with vcovHC, vcov and vcovCL(type = "HC1").
  * Identities (no external number): absorbing a key equals adding its indicator columns (factors=),
  * and the row order changes no result.
  *
- * Tolerances: slopes 1e-10 relative; every standard error 1e-9 relative; R² 1e-10; predictions 1e-10.
+ * Tolerances: slopes 1e-10 relative; every standard error 1e-9 relative; R² 1e-10; predictions 1e-10;
+ * test statistics and p-values 1e-9.
  */
 import * as fs from "fs";
 import * as path from "path";
@@ -196,6 +202,17 @@ describe.each(PPML.map((c) => [c.name, c] as const))("%s (PPML with fixed effect
     expect(lookup(s, "Values left out: y = 0 in every row (no finite effect)")).toBe(c.all_zero_values);
     expect(lookup(s, "Rows left out: those values' rows")).toBe(c.all_zero_rows);
     expect(lookup(s, "Absorbed parameters")).toBe(c.absorbed);
+  });
+});
+
+describe("PPML with fixed effects, classical errors: sqrt(diag(vcov(glm(inv ~ lvalue + lcapital + factor(firm), quasipoisson)))), plm::Grunfeld", () => {
+  test("Pearson dispersion on n − k − a df (1e-9); SUMMARY's dispersion row equals summary(m)$dispersion (1e-9)", () => {
+    const c = PPML.find((p) => p.name === "grunfeld_ppml_oneway") as Case;
+    const f = fit(c, `${baseOptions(c, "ppml")}; se=classical`);
+    expectAll(f.se, ref.ppml_classical.se, 1e-9, "classical");
+    const { Y, X } = sheet(c);
+    const s = table(call(reg, "SUMMARY", Y, X, baseOptions(c, "ppml")));
+    expectClose(lookup(s, "Pearson dispersion"), ref.ppml_classical.dispersion, 1e-9, 0, "dispersion");
   });
 });
 

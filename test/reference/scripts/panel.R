@@ -332,6 +332,16 @@ ppml_weighted_plain <- local({
                  cluster_region = unname(sqrt(diag(vcovCL(m, cluster = ~region, type = "HC1"))))))
 })
 
+# classical errors of PPML with fixed effects: sqrt(diag(vcov(glm(y ~ x + factor(g), quasipoisson))))
+# (Pearson dispersion on n - rank df)
+ppml_classical <- local({
+  f <- inv ~ lvalue + lcapital + factor(firm)
+  m0 <- glm(f, family = quasipoisson, data = grun, control = ctl)
+  m <- glm(f, family = quasipoisson, data = grun, control = ctl, start = coef(m0))
+  list(name = scalar("grunfeld_ppml_oneway"), se = unname(sqrt(diag(vcov(m)))[c("lvalue", "lcapital")]),
+       dispersion = scalar(summary(m)$dispersion))
+})
+
 out <- list(
   generated_by = scalar("Rscript test/reference/scripts/panel.R"),
   r_version = scalar(R.version.string),
@@ -341,7 +351,8 @@ out <- list(
   ppml = ppml_cases,
   predict = predict_cases,
   tests = tests_cases,
-  ppml_weighted_plain = ppml_weighted_plain
+  ppml_weighted_plain = ppml_weighted_plain,
+  ppml_classical = ppml_classical
 )
 writeLines(to_json(out), out_path)
 cat("wrote", out_path, "\n")
