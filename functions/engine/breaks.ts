@@ -27,7 +27,7 @@
  * regime and backward for the second. Each update is orthogonal, so as stable as a fresh QR.
  * Cost: O(n·k²) for all candidates together, against O(n²·k²) for a fit per candidate.
  */
-import { leastSquares, RANK_TOL, type Dependency, type QrFit } from "./leastSquares";
+import { forwardSolveRt, leastSquares, RANK_TOL, type Dependency, type QrFit } from "./leastSquares";
 import { classicalCovariance, defaultLags, hacCovariance, hcCovariance } from "./covariance";
 import { chiSquareSf, fisherSf, studentTwoSided } from "./distributions";
 import { count, fail, unavailable } from "./problems";
@@ -166,6 +166,35 @@ export function quadraticInverse(V: Float64Array, d: Float64Array, m: number): n
 }
 
 /**
+ * The interacted fit at a break and its extra sum of squares: with the interactions last, the extra
+ * sum of squares of d is ‖R₂₂·c₂‖² (c the scaled coefficients; the last k entries of Qᵀy).
+ */
+function interactedFit(d: BreakData, point: number): { Z: Float64Array[]; qr: QrFit; extra: number } {
+  const k = d.X.length;
+  const Z = interactedDesign(d.X, point);
+  const qr = leastSquares(Z, d.y, () => fail("the columns of x are collinear within one regime: move the break or leave a column out of x"));
+  const m = 2 * k;
+  let extra = 0;
+  for (let i = k; i < m; i++) {
+    let v = 0;
+    for (let j = i; j < m; j++) v += qr.R[i * m + j] * qr.coef[j] * qr.scale[j];
+    extra += v * v;
+  }
+  return { Z, qr, extra };
+}
+
+/**
+ * The extra sum of squares of a break, from the more accurate of two routes: Chow's difference
+ * RSS_pooled − RSS_1 − RSS_2 of three separate (refined) fits when it is not small against
+ * RSS_pooled (its rounding is then at most about 1e3·ε relative), else ‖R₂₂·c₂‖² of the interacted
+ * fit, which has no cancellation but carries the interacted design's condition.
+ */
+function chowExtra(pooled: number, before: number, after: number, triangle: number): number {
+  const diff = pooled - before - after;
+  return diff > 1e-3 * pooled ? diff : triangle;
+}
+
+/**
  * Chow F, the Wald F under `covariance`, and the per-term changes, for a known break.
  * @param point rows in the first regime (the second starts at 0-based row `point`)
  * @param lags HAC lag length (null: floor(4(n/100)^(2/9)) of the n rows used)
@@ -177,22 +206,14 @@ export function breakAt(d: BreakData, point: number, covariance: BreakCovariance
   checkBreakPoint(n, k, point, d.rowNumbers);
   const before = regimeFit(d, 0, point, "before");
   const after = regimeFit(d, point, n, "from");
-  const pooled = leastSquares(d.X, d.y, () => fail(`the columns of x are collinear in the rows used: remove one of them`), false);
-  const Z = interactedDesign(d.X, point);
-  const qr = leastSquares(Z, d.y, () => fail("the columns of x are collinear within one regime: move the break or leave a column out of x"));
+  const pooled = leastSquares(d.X, d.y, () => fail(`the columns of x are collinear in the rows used: remove one of them`));
+  const { Z, qr, extra } = interactedFit(d, point);
   let yy = 0;
   for (let i = 0; i < n; i++) yy += d.y[i] * d.y[i];
   if (!(qr.rss > EXACT * yy)) unavailable("the model with a break fits the data exactly (every residual is zero up to rounding), so the break tests are undefined");
   const df2 = n - 2 * k;
-  // Chow: extra sum of squares of the interactions = ‖R₂₂ c₂‖², c the scaled coefficients.
   const m = 2 * k;
-  let extra = 0;
-  for (let i = k; i < m; i++) {
-    let v = 0;
-    for (let j = i; j < m; j++) v += qr.R[i * m + j] * qr.coef[j] * qr.scale[j];
-    extra += v * v;
-  }
-  const chowF = (extra / k) / (qr.rss / df2);
+  const chowF = (chowExtra(pooled.rss, before.rss, after.rss, extra) / k) / ((before.rss + after.rss) / df2);
   const chow: FTest = { statistic: chowF, df1: k, df2, pValue: fisherSf(chowF, k, df2) };
   let V: Float64Array;
   let L: number | undefined;
@@ -201,13 +222,7 @@ export function breakAt(d: BreakData, point: number, covariance: BreakCovariance
     L = lags ?? defaultLags(n);
     V = hacCovariance(Z, qr, L);
   } else V = hcCovariance(Z, qr, covariance, null, d.rowNumbers).V;
-  const dd = new Float64Array(k);
-  const Vdd = new Float64Array(k * k);
-  for (let i = 0; i < k; i++) {
-    dd[i] = qr.coef[k + i];
-    for (let j = 0; j < k; j++) Vdd[i * k + j] = V[(k + i) * m + (k + j)];
-  }
-  const q = quadraticInverse(Vdd, dd, k);
+  const q = covariance === "classical" ? chowF * k : robustWaldForm(Z, qr, covariance, L ?? 0);
   if (q === null) unavailable(`the ${covariance} covariance of the changes is not positive definite for this break (too few rows on one side carry the change), so its Wald test is undefined: use se=classical or move the break`);
   const waldF = q / k;
   const label = covariance === "HAC" ? `HAC, ${L} lag${L === 1 ? "" : "s"}` : covariance;
@@ -233,6 +248,75 @@ export function breakAt(d: BreakData, point: number, covariance: BreakCovariance
     };
   });
   return { n, k, point, rss: { pooled: pooled.rss, before: before.rss, after: after.rss }, chow, wald, terms, coef: qr.coef, V };
+}
+
+/**
+ * dᵀ V_dd⁻¹ d for the interaction block d of the interacted fit, in the orthonormal space of its QR
+ * factor: with the interactions last, R is block upper triangular, so V_dd = R₂₂⁻¹ M₂₂ R₂₂⁻ᵀ (M the
+ * meat Σ ω_i z_i z_iᵀ in that space, z_i = R⁻ᵀ x_i) and dᵀ V_dd⁻¹ d = uᵀ M₂₂⁻¹ u with u = R₂₂ d
+ * (scaled). The weights are those of functions/engine/covariance.ts (HC0 e², HC1 e²·n/(n−2k),
+ * HC2 e²/(1−h), HC3 e²/(1−h)²; HAC Bartlett sums of g_t = z_t e_t). Inverting M₂₂ instead of V_dd
+ * keeps the digits an ill-conditioned design would cost (V_dd's condition is about that of R₂₂
+ * squared times M₂₂'s). The covariance itself (for the per-term errors) comes from covariance.ts,
+ * which has already refused leverage 1 and infeasible HAC requests.
+ */
+function robustWaldForm(Z: Float64Array[], qr: QrFit, type: Exclude<BreakCovariance, "classical">, L: number): number | null {
+  const { n, R, scale, coef, resid } = qr;
+  const m = Z.length;
+  const k = m / 2;
+  const u = new Float64Array(k);
+  for (let i = k; i < m; i++) {
+    let v = 0;
+    for (let j = i; j < m; j++) v += R[i * m + j] * coef[j] * scale[j];
+    u[i - k] = v;
+  }
+  const M = new Float64Array(k * k);
+  const z = new Float64Array(m);
+  const inv = Float64Array.from(scale, (v) => 1 / v);
+  const hac = type === "HAC";
+  const G = hac ? new Float64Array(n * k) : null; // g_t, row-major n×k
+  const hc1 = n / (n - m);
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < m; j++) z[j] = Z[j][i] * inv[j];
+    forwardSolveRt(R, m, z);
+    const e = resid[i];
+    if (G) {
+      for (let a = 0; a < k; a++) G[i * k + a] = z[k + a] * e;
+      continue;
+    }
+    let w = e * e;
+    if (type === "HC1") w *= hc1;
+    else if (type === "HC2" || type === "HC3") {
+      let h = 0;
+      for (let j = 0; j < m; j++) h += z[j] * z[j];
+      w = type === "HC2" ? w / (1 - h) : w / ((1 - h) * (1 - h));
+    }
+    for (let a = 0; a < k; a++) {
+      const wa = w * z[k + a];
+      for (let b = a; b < k; b++) M[a * k + b] += wa * z[k + b];
+    }
+  }
+  if (G) {
+    for (let l = 0; l <= L; l++) {
+      const wl = l === 0 ? 1 : 1 - l / (L + 1);
+      for (let a = 0; a < k; a++) {
+        for (let b = 0; b < k; b++) {
+          if (l === 0 && b < a) continue;
+          let s = 0;
+          for (let t = l; t < n; t++) s += G[t * k + a] * G[(t - l) * k + b];
+          s *= wl;
+          if (l === 0) M[a * k + b] += s;
+          else {
+            // the meat adds w_l (Γ_l + Γ_lᵀ), Γ_l[a][b] = Σ_t g_t[a] g_{t−l}[b]
+            if (a <= b) M[a * k + b] += s;
+            if (b <= a) M[b * k + a] += s;
+          }
+        }
+      }
+    }
+  }
+  for (let a = 0; a < k; a++) for (let b = 0; b < a; b++) M[a * k + b] = M[b * k + a];
+  return quadraticInverse(M, u, k);
 }
 
 export interface SupFResult {
@@ -273,7 +357,10 @@ export function candidateRange(n: number, k: number, trim: number): { from: numb
 /**
  * One sweep of Givens updates over the rows in `order`, filling, for each candidate point, the
  * regime's ‖R⁻ᵀ s‖² (num), its RSS and whether its columns have full rank.
- * Columns are scaled by `inv` (unit length over all rows), y and e by `yInv`.
+ * Columns are scaled by `inv` (unit length over all rows), e by `yInv`. The last column of the
+ * factor is the pooled residual e rather than y: X_r·b̂ lies in the span of X_r, so regressing e on
+ * X_r leaves the same residuals as regressing y, and the size of ‖y‖ against ‖e‖ (an R² near 1)
+ * costs no digits in RSS_r.
  * @param forward true: rows 0, 1, … (first regime, point = rows so far); false: rows n−1, n−2, …
  *   (second regime, point = index of the last row added)
  */
@@ -318,7 +405,7 @@ function sweep(X: Float64Array[], y: Float64Array, e: Float64Array, inv: Float64
       sc[j] += Math.abs(s[j]) >= Math.abs(p) ? (s[j] - t) + p : (p - t) + s[j];
       s[j] = t;
     }
-    w[k] = y[i] * yInv;
+    w[k] = ei; // the pooled residual in place of y: the same regime residuals, no large ‖y‖ to lose digits to
     for (let j = 0; j < k1; j++) {
       const b = w[j];
       if (b === 0) continue;
@@ -351,6 +438,30 @@ function sweep(X: Float64Array[], y: Float64Array, e: Float64Array, inv: Float64
 }
 
 /**
+ * The columns the sweeps work on: with a constant column (the intercept) in X, every other column
+ * centred at its mean. This is a change of columns X → X·A, under which every regime's residuals
+ * and the statistic are unchanged; the centred difference x_i − x̄ is computed with an error
+ * relative to itself (and the error of x̄ moves the column along the intercept only, inside the
+ * span), so the centred design is the same problem, better conditioned (log price near 1.5 ± 0.1
+ * otherwise nearly repeats the intercept). Without a constant column, X as it is.
+ */
+function sweepColumns(X: Float64Array[]): Float64Array[] {
+  const constant = (c: Float64Array) => c.length > 0 && c[0] !== 0 && c.every((v) => v === c[0]);
+  if (!X.some(constant)) return X;
+  return X.map((c) => {
+    if (constant(c)) return c;
+    const n = c.length;
+    let m = 0;
+    for (let i = 0; i < n; i++) m += c[i];
+    m /= n;
+    let corr = 0;
+    for (let i = 0; i < n; i++) corr += c[i] - m;
+    m += corr / n;
+    return Float64Array.from(c, (v) => v - m);
+  });
+}
+
+/**
  * sup-F over every candidate break in candidateRange(n, k, trim).
  * @param allowed when given, allowed[point] = 1 marks the candidates that may be used (breaks
  *   between periods); the others are skipped
@@ -365,7 +476,12 @@ export function supF(d: BreakData, trim: number, allowed: Uint8Array | null = nu
     if (dep.on.length === 0) return fail(`${name} is zero in every row used: remove it from x`);
     return fail(`${name} is an exact linear combination of ${nameList(dep.on.map((i) => d.names[i]))} (collinear): remove one of these columns`);
   });
-  const inv = Float64Array.from(pooled.scale, (v) => 1 / v);
+  const W = sweepColumns(d.X);
+  const inv = Float64Array.from(W, (c) => {
+    let ss = 0;
+    for (let i = 0; i < n; i++) ss += c[i] * c[i];
+    return 1 / Math.sqrt(ss);
+  });
   let yn = 0;
   for (let i = 0; i < n; i++) yn = Math.max(yn, Math.abs(d.y[i]));
   if (yn === 0) unavailable("y is zero in every row used, so no break can be tested");
@@ -379,8 +495,8 @@ export function supF(d: BreakData, trim: number, allowed: Uint8Array | null = nu
   const rss2 = new Float64Array(c);
   const ok1 = new Uint8Array(c);
   const ok2 = new Uint8Array(c);
-  sweep(d.X, d.y, pooled.resid, inv, yInv, from, to, true, num1, rss1, ok1);
-  sweep(d.X, d.y, pooled.resid, inv, yInv, from, to, false, num2, rss2, ok2);
+  sweep(W, d.y, pooled.resid, inv, yInv, from, to, true, num1, rss1, ok1);
+  sweep(W, d.y, pooled.resid, inv, yInv, from, to, false, num2, rss2, ok2);
   const stats = new Float64Array(c);
   const df2 = n - 2 * k;
   const y2 = 1 / (yInv * yInv);
@@ -408,6 +524,31 @@ export function supF(d: BreakData, trim: number, allowed: Uint8Array | null = nu
       bestStat = st;
       best = a;
     }
+  }
+  if (best >= 0) {
+    // The sweeps are normwise backward stable, as an ordinary QR fit per candidate; the reported
+    // statistic is refitted from separate refined fits (as breakAt computes the Chow F) at every
+    // candidate within 1e-6 of the largest, so that the maximum and its place are those of
+    // separate fits.
+    const near: number[] = [];
+    for (let a = 0; a < c; a++) if (stats[a] >= bestStat * (1 - 1e-6)) near.push(a);
+    near.sort((p, q) => stats[q] - stats[p]);
+    let refBest = -1;
+    let refStat = -Infinity;
+    for (const a of near.slice(0, 8)) {
+      const point = from + a;
+      const f = interactedFit(d, point);
+      const r1 = regimeFit(d, 0, point, "before").rss;
+      const r2 = regimeFit(d, point, n, "from").rss;
+      const st = chowExtra(pooled.rss, r1, r2, f.extra) / ((r1 + r2) / df2);
+      stats[a] = st;
+      if (st > refStat || (st === refStat && a < refBest)) {
+        refStat = st;
+        refBest = a;
+      }
+    }
+    best = refBest;
+    bestStat = refStat;
   }
   if (exact > 0) unavailable(`the model with a break fits the data exactly at ${count(exact, "candidate break")} (every residual is zero up to rounding), so sup-F is undefined`);
   if (best < 0) {
