@@ -7,11 +7,15 @@
  * coefficients d are the changes; "before" is b, "after" is b + d.
  *
  * - Chow F: the classical Wald F of d = 0, df (k, n − 2k). It equals Chow's
- *   ((RSS_pooled − RSS_1 − RSS_2)/k) / ((RSS_1 + RSS_2)/(n − 2k)). It is computed from the QR
- *   factor of the interacted design: with the interactions last, the extra sum of squares is
+ *   ((RSS_pooled − RSS_1 − RSS_2)/k) / ((RSS_1 + RSS_2)/(n − 2k)), computed so from three refined
+ *   fits; when the difference is under 1e-3 of RSS_pooled (cancellation), the extra sum of squares
+ *   is taken instead from the QR factor of the interacted design: with the interactions last, it is
  *   ‖R₂₂·d‖² (the last k entries of Qᵀy), a sum of squares with no cancellation.
- * - Wald F with the chosen covariance V (HC0–HC3, HAC through functions/engine/covariance.ts on
- *   the interacted design): dᵀ V_dd⁻¹ d / k on df (k, n − 2k), as lmtest::waldtest(test = "F").
+ * - Wald F with the chosen covariance V (HC0–HC3, HAC on the interacted design):
+ *   dᵀ V_dd⁻¹ d / k on df (k, n − 2k), as lmtest::waldtest(test = "F"). V for the per-term errors
+ *   comes from functions/engine/covariance.ts; the statistic inverts the meat's interaction block
+ *   in the QR's orthonormal space instead of V_dd (robustWaldForm), which keeps the digits an
+ *   ill-conditioned design costs V_dd.
  * - sup-F: the largest Wald statistic in Andrews' form (k times the Chow F) over every break that
  *   leaves at least ⌊trim·n⌋ rows and more than k rows in each regime (strucchange::Fstats with
  *   from = trim). The p-value is Hansen's (1997) approximation as strucchange::pvalue.Fstats
@@ -24,7 +28,11 @@
  * and R_2(t), with the residual sums of squares RSS_1(t) and RSS_2(t) in the last entry of the
  * factor of [X y], are updated row by row with Givens rotations (Golub and Van Loan, Matrix
  * Computations, 4th ed., §6.5.2: updating a QR factorisation by a row), forward for the first
- * regime and backward for the second. Each update is orthogonal, so as stable as a fresh QR.
+ * regime and backward for the second. Each update is orthogonal, so as stable (normwise) as a
+ * fresh QR per candidate. Two changes that leave every regime's residuals unchanged keep digits:
+ * the sweeps run on the centred columns when there is an intercept, and on the pooled residual e
+ * in place of y. The largest statistic is then refitted from separate refined fits, so that the
+ * reported sup-F and its break are those of separate fits.
  * Cost: O(n·k²) for all candidates together, against O(n²·k²) for a fit per candidate.
  */
 import { forwardSolveRt, leastSquares, RANK_TOL, type Dependency, type QrFit } from "./leastSquares";

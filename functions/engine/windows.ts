@@ -52,10 +52,10 @@ function wholeAtLeast(v: number, min: number): boolean {
   return Number.isInteger(v) && v >= min;
 }
 
-function checkSpec(spec: WindowSpec, length: number, unit: string, units: string): void {
+function checkSpec(spec: WindowSpec, length: number, unit: string, unitPlural: string, units: string): void {
   if (!wholeAtLeast(spec.window, 1)) fail(`window=${spec.window} must be a whole number of ${units} (1 or more)`);
   if (!wholeAtLeast(spec.step, 1)) fail(`step=${spec.step} must be a whole number of ${units} (1 or more)`);
-  if (spec.window > length) fail(`window=${spec.window} is longer than the data, which have ${count(length, unit)}: use window=${length} or less`);
+  if (spec.window > length) fail(`window=${spec.window} is longer than the data, which have ${count(length, unit, unitPlural)}: use window=${length} or less`);
 }
 
 /** Window starts and ends (end exclusive) over `length` units. */
@@ -76,7 +76,7 @@ function spans(spec: WindowSpec, length: number): { spans: [number, number][]; n
  */
 export function rowWindows(rowNumbers: Int32Array, spec: WindowSpec, k: number): WindowLayout {
   const n = rowNumbers.length;
-  checkSpec(spec, n, "usable row", "rows");
+  checkSpec(spec, n, "usable row", "usable rows", "rows");
   if (spec.window <= k) fail(`window=${spec.window} is too short for ${k} coefficients (the intercept counts): each window needs at least ${k + 1} rows`);
   const { spans: s, notReached } = spans(spec, n);
   const windows = s.map(([a, b]): Window => {
@@ -178,7 +178,7 @@ export function readPeriods(values: readonly unknown[], rowNumbers: Int32Array, 
  */
 export function periodWindows(periods: Periods, spec: WindowSpec, k: number): WindowLayout {
   const P = periods.labels.length;
-  checkSpec(spec, P, `period of ${periods.name}`, "periods");
+  checkSpec(spec, P, `period of ${periods.name}`, `periods of ${periods.name}`, "periods");
   const { spans: s, notReached } = spans(spec, P);
   const n = periods.rank.length;
   const rank = periods.rank;

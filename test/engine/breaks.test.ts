@@ -217,11 +217,42 @@ describe("windows", () => {
   });
 });
 
+describe("breaks between periods (plm::Grunfeld from test/reference/breaks.json, 10 firms × 20 years)", () => {
+  it("sup-F with breaks only between years is the largest k·Chow F over the year boundaries", () => {
+    const g = JSON.parse(fs.readFileSync(path.join(__dirname, "../reference/breaks.json"), "utf8")).series.grunfeld as { names: string[]; y: number[]; X: number[][]; year: number[]; firm: number[] };
+    const rn = Int32Array.from(g.y, (_, i) => i + 2);
+    const periods = readPeriods(g.year, rn, "year", g.firm);
+    const b = breakByPeriod(periods, null);
+    const pick = (a: number[]) => Float64Array.from(b.order, (i) => a[i]);
+    const d: BreakData = { X: g.X.map(pick), y: pick(g.y), names: g.names, rowNumbers: Int32Array.from(b.order, (i) => rn[i]) };
+    const s = supF(d, 0.15, b.allowed);
+    let best = -Infinity;
+    let bestPoint = -1;
+    for (let point = s.from; point <= s.to; point++) {
+      if (!b.allowed[point]) {
+        expect(Number.isNaN(s.stats[point - s.from])).toBe(true);
+        continue;
+      }
+      const st = 3 * breakAt(d, point, "classical").chow.statistic;
+      expect(rel(s.stats[point - s.from], st)).toBeLessThan(1e-10);
+      if (st > best) {
+        best = st;
+        bestPoint = point;
+      }
+    }
+    expect(s.point).toBe(bestPoint);
+    expect(s.point % 10).toBe(0); // 10 rows per year
+    expect(rel(s.statistic, best)).toBeLessThan(1e-12);
+  });
+});
+
 describe("bad input: each gets its message", () => {
   const d = seriesData("seatbelts");
   const rn = d.rowNumbers;
   it("a window longer than the data", () => {
     expectProblem(() => rowWindows(rn, { window: 500, step: 1, expanding: false }, 3), /^window=500 is longer than the data, which have 192 usable rows: use window=192 or less$/);
+    const p = readPeriods([2001, 2002, 2003], Int32Array.from([2, 3, 4]), "Year");
+    expectProblem(() => periodWindows(p, { window: 4, step: 1, expanding: false }, 1), /^window=4 is longer than the data, which have 3 periods of Year: use window=3 or less$/);
   });
   it("a window shorter than the terms need", () => {
     expectProblem(() => rowWindows(rn, { window: 3, step: 1, expanding: false }, 3), /^window=3 is too short for 3 coefficients \(the intercept counts\): each window needs at least 4 rows$/);
