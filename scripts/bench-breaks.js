@@ -192,5 +192,5 @@ console.log(`Break tests and rolling windows, medians over ${RUNS} runs (node ${
 for (const r of rows) {
   // eslint-disable-next-line no-console
   console.log(`${r.what}\n  engine ${r.seconds.toFixed(3)} s wall, ${r.cpu.toFixed(3)} s CPU (target ${r.target} s: ${r.seconds < r.target ? "met" : "MISSED"})` +
-    (r.r !== null ? `; R (${r.rWhat}) ${r.r.toFixed(2)} s, ${(r.r / r.seconds).toFixed(0)}× the engine's time` : "") + `\n  ${r.note}\n`);
+    (r.r !== null ? `; R (${r.rWhat}) ${r.r.toFixed(2)} s, ${(r.r / r.seconds).toFixed(1)}× the engine's wall time` : "") + `\n  ${r.note}\n`);
 }

@@ -12,7 +12,7 @@
  */
 import * as fs from "fs";
 import * as path from "path";
-import { breakAt, candidateRange, quadraticInverse, supF, type BreakData } from "../../functions/engine/breaks";
+import { breakAt, candidateRange, hansenSupFPValue, quadraticInverse, supF, type BreakData } from "../../functions/engine/breaks";
 import { leastSquares } from "../../functions/engine/leastSquares";
 import { hcCovariance } from "../../functions/engine/covariance";
 import { breakByPeriod, breakByRow, eachWindow, fitRows, periodWindows, readPeriods, rowWindows } from "../../functions/engine/windows";
@@ -288,6 +288,9 @@ describe("bad input: each gets its message", () => {
     const t = expectProblem(() => readPeriods(["Jan", "Feb", "Jan"], Int32Array.from([2, 3, 4]), "Month"), /^Month is not in time order/);
     expect(t).toMatch(/in the order they first appear in the sheet/);
     expectProblem(() => readPeriods([1, 2, 1, 3], Int32Array.from([2, 3, 4, 5]), "Week", ["A", "A", "A", "B"]), /^Week is not in time order within unit A: sheet row 4 \(1\) comes after sheet row 3 \(2\)/);
+  });
+  it("more than 40 terms: Hansen's table ends there", () => {
+    expectProblem(() => hansenSupFPValue(10, 41, 30), /^the sup-F p-value \(Hansen 1997\) is tabulated for at most 40 coefficients; this model has 41: use fewer terms$/, "na");
   });
   it("a trim outside its range, or too few rows for any break", () => {
     expectProblem(() => candidateRange(100, 2, 0.6), /^trim=0.6 must be between 0.05 and 0.45/);
