@@ -20,6 +20,7 @@ import { leastSquares, type Dependency } from "./leastSquares";
 import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, leastSquaresInput, originalUnits } from "./covariance";
 import { ElxProblem, count, fail } from "./problems";
 import type { BreakCovariance } from "./breaks";
+import type { KeyColumn } from "./intake";
 
 export interface WindowSpec {
   /** Rows (or periods) per window; with expanding, of the first window. */
@@ -153,22 +154,45 @@ export function readPeriods(values: readonly unknown[], rowNumbers: Int32Array, 
   if (numeric) labels.forEach((l, i) => index.set(l, i));
   const rank = new Int32Array(n);
   for (let i = 0; i < n; i++) rank[i] = vals[i] === null ? -1 : (index.get(vals[i] as string | number) as number);
-  const order = numeric ? `periods of ${name} in ascending order of their values` : `periods of ${name} in the order they first appear in the sheet`;
-  // Each series must run in period order.
+  const order = orderRule(name, numeric);
+  checkPeriodOrder(name, rank, (i) => vals[i] as string | number, rowNumbers, units ? (i) => unitText(units[i]) : null, numeric);
+  return { name, rank, labels, numeric, order, blankRows };
+}
+
+function orderRule(name: string, numeric: boolean): string {
+  return numeric ? `periods of ${name} in ascending order of their values` : `periods of ${name} in the order they first appear in the sheet`;
+}
+
+/** Refuses a series (the whole sheet, or one unit) whose rows go back in period order. */
+function checkPeriodOrder(name: string, rank: Int32Array, value: (i: number) => string | number, rowNumbers: Int32Array, unitOf: ((i: number) => string) | null, numeric: boolean): void {
+  const n = rank.length;
   const last = new Map<string, number>();
   for (let i = 0; i < n; i++) {
     if (rank[i] < 0) continue;
-    const u = units ? unitText(units[i]) : "";
+    const u = unitOf ? unitOf(i) : "";
     const p = last.get(u);
     if (p !== undefined && rank[i] < rank[p]) {
-      const where = units ? ` within ${u === "" ? "the rows with a blank unit" : `unit ${u}`}` : "";
-      fail(`${name} is not in time order${where}: sheet row ${rowNumbers[i]} (${vals[i]}) comes after sheet row ${rowNumbers[p]} (${vals[p]}). ` +
+      const where = unitOf ? ` within ${u === "" ? "the rows with a blank unit" : `unit ${u}`}` : "";
+      fail(`${name} is not in time order${where}: sheet row ${rowNumbers[i]} (${value(i)}) comes after sheet row ${rowNumbers[p]} (${value(p)}). ` +
         `Periods count ${numeric ? "in ascending order of their values" : "in the order they first appear in the sheet"}, and each series' rows must follow that order: ` +
-        `sort the rows by ${name}${numeric ? " (smallest first)" : " (oldest first)"}${units ? "" : ", or, for several stores or products, name the unit column in panel="}`);
+        `sort the rows by ${name}${numeric ? " (smallest first)" : " (oldest first)"}${unitOf ? "" : ", or, for several stores or products, name the unit column in panel="}`);
     }
     last.set(u, i);
   }
-  return { name, rank, labels, numeric, order, blankRows };
+}
+
+/**
+ * The periods of a time column as intake reads it (a key column over the rows used: codes in
+ * ascending order of the numbers when every key is a number, else in first-appearance order), with
+ * the same order rule as readPeriods. Blank periods never reach here: intake leaves those rows out
+ * and counts them.
+ * @param panel the unit of each row (panel=), or null for one series
+ */
+export function periodsOfKey(time: KeyColumn, rowNumbers: Int32Array, panel: KeyColumn | null): Periods {
+  const labels: (string | number)[] = time.numericOrder ? time.labels.map(Number) : time.labels.slice();
+  const rank = Int32Array.from(time.codes);
+  checkPeriodOrder(time.name, rank, (i) => labels[rank[i]], rowNumbers, panel ? (i) => panel.labels[panel.codes[i]] : null, time.numericOrder);
+  return { name: time.name, rank, labels, numeric: time.numericOrder, order: orderRule(time.name, time.numericOrder), blankRows: [] };
 }
 
 /**
