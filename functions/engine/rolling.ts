@@ -58,12 +58,23 @@ export function windowLength(arg: unknown, o: Options): number {
 
 /** The rows at positions idx of the raw data, as a separate call on those rows would read them. */
 function subsetRaw(raw: RawData, idx: Int32Array): RawData {
-  const pick = (c: Float64Array) => Float64Array.from(idx, (w) => c[w]);
+  const m = idx.length;
+  // windows of rows are runs of consecutive positions: a plain copy (Float64Array.from with a
+  // mapping function is many times slower than a loop or a slice)
+  const run = m > 0 && idx[m - 1] - idx[0] === m - 1;
+  const pick = (c: Float64Array) => {
+    if (run) return c.slice(idx[0], idx[0] + m);
+    const out = new Float64Array(m);
+    for (let i = 0; i < m; i++) out[i] = c[idx[i]];
+    return out;
+  };
+  const rowNumbers = new Int32Array(m);
+  for (let i = 0; i < m; i++) rowNumbers[i] = raw.rowNumbers[idx[i]];
   return {
     ...raw,
     y: pick(raw.y),
     x: raw.x.map(pick),
-    rowNumbers: Int32Array.from(idx, (w) => raw.rowNumbers[w]),
+    rowNumbers,
     roles: subsetRoles(raw.roles, idx),
     leftOutBlank: 0,
     leftOutBlankRows: new RowList(),
@@ -80,11 +91,18 @@ function subsetRaw(raw: RawData, idx: Int32Array): RawData {
  */
 export function fitWindows(y: unknown, x: unknown, length: number, o: Options, yOrigin: Origin | null, xOrigin: Origin | null): RollingWindows {
   const raw = readYX(y, x, yOrigin, xOrigin, o);
-  // The whole data prepared once (on a copy: prepare transforms its columns in place): the options
-  // are checked on every row, and the count of coefficients (factor indicators included) is known
-  // before the windows are laid out.
-  const whole = prepare(subsetRaw(raw, Int32Array.from(raw.rowNumbers, (_, i) => i)), o);
-  const k = whole.x.length + (o.intercept && whole.roles.absorb.length === 0 ? 1 : 0);
+  // The whole data prepared once (on a copy: prepare transforms its columns in place), so that the
+  // count of coefficients (factor indicators included) is known before the windows are laid out.
+  // When the whole data cannot be prepared (zeros under zeros=stop, say), windows without the
+  // problem can still be fitted: k is then counted from the regressors, and each window that meets
+  // the problem shows it.
+  let k = raw.xNames.length + (o.intercept && o.absorb.length === 0 ? 1 : 0);
+  try {
+    const whole = prepare(subsetRaw(raw, Int32Array.from(raw.rowNumbers, (_, i) => i)), o);
+    k = whole.x.length + (o.intercept && whole.roles.absorb.length === 0 ? 1 : 0);
+  } catch (e) {
+    if (!(e instanceof ElxProblem)) throw e;
+  }
   const spec = { window: length, step: o.step, expanding: o.expanding };
   const time = raw.roles.time;
   const layout = time
