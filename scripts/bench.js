@@ -669,7 +669,12 @@ CASES.push({
     const t = await timeRuns(3, () => fresh(d), (p) => invoke("ROLLING", p.yRows, p.xRows, window, `step=${step}`), 1);
     const tab = t.last;
     const windows = Array.isArray(tab) ? tab.slice(1).filter((r) => typeof r[0] === "number").length : 0;
-    let note = `${windows} windows of ${window.toLocaleString("en")} rows, log-log, HC3`;
+    // processor time of one more call: on a machine shared with other work it is the steadier figure
+    const p = fresh(d);
+    const c0 = process.cpuUsage();
+    invoke("ROLLING", p.yRows, p.xRows, window, `step=${step}`);
+    const c1 = process.cpuUsage(c0);
+    let note = `${windows} windows of ${window.toLocaleString("en")} rows, log-log, HC3; CPU ${fmtMs((c1.user + c1.system) / 1000)} (load average ${os.loadavg()[0].toFixed(1)})`;
     if (HAVE_R) {
       const r = runRScript(d, `t0 <- proc.time()[["elapsed"]]; b1 <- NULL
         for (s in seq(1, ${d.n} - ${window} + 1, by = ${step})) {

@@ -325,6 +325,11 @@ describe("bad input through the cells: an error value with a message each", () =
     // the first window (1935–1942) loses both rows: 80 − 2
     expect(t[1][0]).toBe(1935);
     expect(t[1][2]).toBe(78);
+    const b = tableOf(call(reg, "BREAKTEST", g.y, g.x, 1945, "time=year; panel=firm", g.inv), "blanks");
+    const bl = rowOf(b, "(left out)");
+    expect(bl[1]).toBe(2);
+    expect(String(bl[6])).toMatch(/rows with a blank, text or error cell in y, x or year are in neither regime/);
+    expect(rowOf(b, "Chow F (classical errors)")[2]).toBe("3, 192"); // 198 rows used
   });
   it("periods out of order in the sheet", () => {
     const s = ref.series.usincexp;
