@@ -261,6 +261,38 @@ describe("identities (no reference needed)", () => {
     }
   });
 
+  it("every window equals ELX.ELASTICITIES on that window's rows alone, with fixed effects and clusters within the window (Grunfeld, years) and with estimator=ppml (Seatbelts)", () => {
+    const s = ref.series.grunfeld;
+    const g = cellsOf("grunfeld", [{ header: "year", values: s.year as number[] }, { header: "firm", values: s.firm as number[] }]);
+    const fe = "absorb=firm; cluster=firm";
+    const t = tableOf(call(reg, "ROLLING", g.y, g.x, 8, `time=year; panel=firm; step=4; ${fe}`, g.inv), "fe windows");
+    const body = t.slice(1).filter((row) => typeof row[0] === "number");
+    expect(body.length).toBe(4);
+    for (const row of body) {
+      const keep = (s.year as number[]).map((yr, i) => (yr >= (row[0] as number) && yr <= (row[1] as number) ? i + 1 : -1)).filter((i) => i > 0);
+      const y = [g.y[0], ...keep.map((i) => g.y[i])];
+      const x = [g.x[0], ...keep.map((i) => g.x[i])];
+      const el = tableOf(call(reg, "ELASTICITIES", y, x, `time=year; panel=firm; ${fe}`, null), "fe elasticities");
+      for (let j = 0; j < 2; j++) {
+        close(row[3 + 2 * j], el[1 + j][2] as number, 1e-13, "identity: window = its own call", `Grunfeld ${row[0]}–${row[1]} ${fe} term ${j}`);
+        close(row[4 + 2 * j], el[1 + j][3] as number, 1e-13, "identity: window = its own call", `Grunfeld ${row[0]}–${row[1]} ${fe} se ${j}`);
+      }
+    }
+    const c = cellsOf("seatbelts");
+    const pt = tableOf(call(reg, "ROLLING", c.y, c.x, 60, "step=44; estimator=ppml", c.inv), "ppml windows");
+    const pb = pt.slice(1).filter((row) => typeof row[0] === "number");
+    expect(pb.length).toBe(4);
+    for (const row of pb) {
+      const from = (row[0] as number) - 1;
+      const to = (row[1] as number) - 1;
+      const el = tableOf(call(reg, "ELASTICITIES", [c.y[0], ...c.y.slice(from, to + 1)], [c.x[0], ...c.x.slice(from, to + 1)], "estimator=ppml", null), "ppml elasticities");
+      for (let j = 0; j < 2; j++) {
+        close(row[3 + 2 * j], el[1 + j][2] as number, 1e-13, "identity: window = its own call", `Seatbelts ppml ${row[0]}–${row[1]} term ${j}`);
+        close(row[4 + 2 * j], el[1 + j][3] as number, 1e-13, "identity: window = its own call", `Seatbelts ppml ${row[0]}–${row[1]} se ${j}`);
+      }
+    }
+  });
+
   it("BREAKTEST's classical Wald equals the Chow F from three residual sums of squares (ELX.SUMMARY on each regime and on all rows)", () => {
     const c = cellsOf("seatbelts");
     const n = c.y.length - 1;
