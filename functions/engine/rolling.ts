@@ -91,18 +91,11 @@ function subsetRaw(raw: RawData, idx: Int32Array): RawData {
  */
 export function fitWindows(y: unknown, x: unknown, length: number, o: Options, yOrigin: Origin | null, xOrigin: Origin | null): RollingWindows {
   const raw = readYX(y, x, yOrigin, xOrigin, o);
-  // The whole data prepared once (on a copy: prepare transforms its columns in place), so that the
-  // count of coefficients (factor indicators included) is known before the windows are laid out.
-  // When the whole data cannot be prepared (zeros under zeros=stop, say), windows without the
-  // problem can still be fitted: k is then counted from the regressors, and each window that meets
-  // the problem shows it.
-  let k = raw.xNames.length + (o.intercept && o.absorb.length === 0 ? 1 : 0);
-  try {
-    const whole = prepare(subsetRaw(raw, Int32Array.from(raw.rowNumbers, (_, i) => i)), o);
-    k = whole.x.length + (o.intercept && whole.roles.absorb.length === 0 ? 1 : 0);
-  } catch (e) {
-    if (!(e instanceof ElxProblem)) throw e;
-  }
+  // The coefficients of a window: the regressors, one indicator per factor value but the first,
+  // and the intercept (not with fixed effects). Counted from the raw columns, so that the windows'
+  // rows are prepared once each and the whole data not at all.
+  const indicators = raw.roles.factors.reduce((sum, f) => sum + Math.max(0, f.labels.length - 1), 0);
+  const k = raw.xNames.length + indicators + (o.intercept && o.absorb.length === 0 ? 1 : 0);
   const spec = { window: length, step: o.step, expanding: o.expanding };
   const time = raw.roles.time;
   const layout = time
