@@ -97,7 +97,7 @@ function breakBody(r: BreakTestResult, o: Options): { header: string[]; body: Ta
   const chowReading = searched
     ? `at the most likely break found by the search (${where}): no p-value, since the break was chosen for its large statistic; read the sup-F row`
     : known.chow.pValue < a
-      ? `the coefficients differ before and from ${where} at the ${alpha} level, if the spread of the errors is the same in both regimes (Chow's assumption; the next row does not need it)`
+      ? `the coefficients differ before and from ${where} at the ${alpha} level, if the spread of the errors is the same in both regimes (Chow's assumption${known.wald.covariance === "classical" ? "; a robust se= does not need it" : "; the next row does not need it"})`
       : `no change detected at the ${alpha} level with classical errors`;
   const waldReading = searched
     ? `the same break tested with ${known.wald.label} errors: no p-value (the break was chosen by the search)`
