@@ -9,6 +9,7 @@
  */
 import { effectsTable, elasticitiesTable, elasticityValue, fitTable, summaryTable, zerosTable } from "./cells/regression";
 import { byGroupTable } from "./cells/groups";
+import { breakTestTable, rollingTable } from "./cells/time";
 import { fitView, elasticitiesView, makeCaller, cacheStats, readColumns, type CellFunction, type ElasticellApi } from "./paneApi";
 import { formCheckTable, heteroValue, normalValue, predictTable, smearingValue, testsTable } from "./cells/diagnostics";
 
@@ -173,6 +174,7 @@ export function formcheck(y: any[][], x: any[][], options?: string, invocation?:
 const cellFunctions = {
   FIT: fit, ELASTICITY: elasticity, ELASTICITIES: elasticities, EFFECTS: effects, SUMMARY: summary, ZEROS: zeros,
   SMEARING: smearing, PREDICT: predict, HETEROTEST: heterotest, NORMALTEST: normaltest, TESTS: tests, FORMCHECK: formcheck, BYGROUP: bygroup,
+  ROLLING: rolling, BREAKTEST: breaktest,
 };
 const published: ElasticellApi = {
   functions: cellFunctions as unknown as Record<string, CellFunction>,
@@ -196,4 +198,32 @@ const published: ElasticellApi = {
  */
 export function bygroup(keys: any[][], y: any[][], x: any[][], options?: string, invocation?: CustomFunctions.Invocation): any[][] {
   return byGroupTable(keys, y, x, options, invocation);
+}
+
+/**
+ * One row per window of consecutive usable rows (or, with time=, of consecutive periods): From, To, Observations, then the elasticity and its standard error for each regressor. Each window is fitted as a separate call on its rows would be; a window that cannot be fitted shows why and the others still come.
+ * @customfunction ROLLING
+ * @param y Dependent variable: one column.
+ * @param x Regressors: one or more columns, same rows as y.
+ * @param window Rows per window (with time=, periods per window), for example 52.
+ * @param [options] Text like "step=4; se=HAC" or "time=Week; expanding=true". Keys: step, expanding, time, panel and every model option.
+ * @requiresParameterAddresses
+ * @returns The table of windows.
+ */
+export function rolling(y: any[][], x: any[][], window: any, options?: string, invocation?: CustomFunctions.Invocation): any[][] {
+  return rollingTable(y, x, window, options, invocation);
+}
+
+/**
+ * Whether the model changed: Chow F (classical errors), the same hypothesis as a Wald F with the chosen errors (HC3 by default), sup-F over unknown breaks with Hansen's (1997) p-value and the most likely break; then per regressor the elasticity before, after, the difference, its standard error and p, with a plain reading.
+ * @customfunction BREAKTEST
+ * @param y Dependent variable: one column.
+ * @param x Regressors: one or more columns, same rows as y.
+ * @param [at] Where the second regime starts: a period of the time= column, else a data row counted from 1. Omitted: the last period with time=, else only the search for an unknown break.
+ * @param [options] Text like "time=Week; se=HAC" or "trim=0.2". Keys: time, panel, trim, se, lags, level, at, form, levels, zeros, factors, intercept, headers.
+ * @requiresParameterAddresses
+ * @returns The table of tests and changes.
+ */
+export function breaktest(y: any[][], x: any[][], at?: any, options?: string, invocation?: CustomFunctions.Invocation): any[][] {
+  return breakTestTable(y, x, at, options, invocation);
 }

@@ -51,7 +51,7 @@ const { HostError, loadFunctions: loadBundle } = require("./host-shim");
 const loadFunctions = () => loadBundle(BUNDLE);
 const registry = loadFunctions();
 const KNOWN_IDS = ["FIT", "ELASTICITY", "ELASTICITIES", "EFFECTS", "SUMMARY", "ZEROS", "SMEARING", "PREDICT",
-  "HETEROTEST", "NORMALTEST", "TESTS", "FORMCHECK", "BYGROUP"];
+  "HETEROTEST", "NORMALTEST", "TESTS", "FORMCHECK", "BYGROUP", "ROLLING", "BREAKTEST"];
 /** A registered entry that converts ranges only, if a build exposes one for benchmarking. */
 const CONVERT_ID = [...registry.keys()].find((id) => /^(INTAKE|CONVERT|COLUMNS|READRANGES?)$/i.test(id)) || null;
 
@@ -677,6 +677,101 @@ CASES.push({
   },
 });
 
+// ----- change over time: ROLLING and BREAKTEST, beside base R and strucchange -----
+/** Writes y then the x columns as doubles and runs an R script on them; its last line is JSON. */
+function runRScript(d, body) {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), "elx-bench-"));
+  const bin = path.join(dir, "data.bin");
+  try {
+    const fd = fs.openSync(bin, "w");
+    const w = (a) => fs.writeSync(fd, Buffer.from(a.buffer, a.byteOffset, a.byteLength));
+    w(d.ycol);
+    for (const c of d.xcols) w(c);
+    fs.closeSync(fd);
+    const head = `v <- readBin("${bin}", "double", ${d.n * (d.k + 1)}); y <- log(v[1:${d.n}]); X <- cbind(1, log(matrix(v[-(1:${d.n})], ${d.n}, ${d.k})))\n`;
+    const res = spawnSync("Rscript", ["--vanilla", "-e", head + body], { encoding: "utf8", maxBuffer: 1 << 24 });
+    if (res.status !== 0) return { error: (res.stderr || "").trim().split("\n").slice(-2).join(" ") };
+    return JSON.parse(res.stdout.trim().split("\n").pop());
+  } finally {
+    fs.rmSync(dir, { recursive: true, force: true });
+  }
+}
+/** The first n rows of a data set, as makeData returns them. */
+function headRows(d, n) {
+  return { n, k: d.k, yRows: d.yRows.slice(0, n), xRows: d.xRows.slice(0, n), ycol: d.ycol.slice(0, n), xcols: d.xcols.map((c) => c.slice(0, n)) };
+}
+CASES.push({
+  name: "rolling n=10^5,k=5,100 windows",
+  requires: ["ROLLING"],
+  async run() {
+    // 4 regressors and the intercept: k = 5 coefficients; 100 windows of 10,000 rows, step 909
+    const d = data("rolling", () => makeData(1e5, 4, 81));
+    const window = 10000;
+    const step = 909;
+    const t = await timeRuns(3, () => fresh(d), (p) => invoke("ROLLING", p.yRows, p.xRows, window, `step=${step}`), 1);
+    const tab = t.last;
+    const windows = Array.isArray(tab) ? tab.slice(1).filter((r) => typeof r[0] === "number").length : 0;
+    // processor time of one more call: on a machine shared with other work it is the steadier figure
+    const p = fresh(d);
+    const c0 = process.cpuUsage();
+    invoke("ROLLING", p.yRows, p.xRows, window, `step=${step}`);
+    const c1 = process.cpuUsage(c0);
+    let note = `${windows} windows of ${window.toLocaleString("en")} rows, log-log, HC3; CPU ${fmtMs((c1.user + c1.system) / 1000)} (load average ${os.loadavg()[0].toFixed(1)})`;
+    if (HAVE_R) {
+      const r = runRScript(d, `t0 <- proc.time()[["elapsed"]]; b1 <- NULL
+        for (s in seq(1, ${d.n} - ${window} + 1, by = ${step})) {
+          r <- s:(s + ${window} - 1); f <- lm.fit(X[r, ], y[r]); h <- rowSums(qr.Q(f$qr)^2)
+          B <- chol2inv(qr.R(f$qr)); V <- B %*% crossprod(X[r, ] * (f$residuals / (1 - h))) %*% B
+          if (is.null(b1)) { b1 <- coef(f); se1 <- sqrt(diag(V)) }
+        }
+        el <- proc.time()[["elapsed"]] - t0
+        cat(sprintf('{"seconds": %.6f, "b": [%s], "se": [%s]}', el, paste(sprintf("%.17g", b1), collapse = ","), paste(sprintf("%.17g", se1), collapse = ",")), "\n")`);
+      if (r.error) note += `; R failed: ${r.error}`;
+      else {
+        // the first window's elasticities (log-log: the slopes) against R's
+        const row = tab[1];
+        let worst = 0;
+        for (let j = 1; j <= d.k; j++) {
+          worst = Math.max(worst, Math.abs(row[1 + 2 * j] - r.b[j]) / Math.abs(r.b[j]), Math.abs(row[2 + 2 * j] - r.se[j]) / Math.abs(r.se[j]));
+        }
+        note += `; R lm.fit + HC3 per window (strucchange has no rolling fit) ${fmtMs(1000 * r.seconds)} (${(1000 * r.seconds / t.median).toFixed(1)}x ours), first window within ${worst.toExponential(1)}`;
+      }
+    }
+    store.rolling = t.median;
+    results.push(["ELX.ROLLING 10^5 rows, 100 windows", "k=5", fmtMs(t.median), note]);
+    dropData("rolling");
+  },
+});
+CASES.push({
+  name: "breaktest supF n=10^4,k=5",
+  requires: ["BREAKTEST"],
+  async run() {
+    const d = data("breaks", () => makeData(1e4, 4, 82));
+    const t = await timeRuns(3, () => fresh(d), (p) => invoke("BREAKTEST", p.yRows, p.xRows, null, ""), 1);
+    const sup = Array.isArray(t.last) ? t.last.find((r) => /^sup-F/.test(r[0])) : null;
+    let note = sup ? `sup-F ${Number(sup[1]).toFixed(4)} over every break (trim 0.15), then Chow and HC3 Wald at the best` : `no table: ${t.last && t.last.message}`;
+    if (HAVE_R) {
+      // R's Fstats refits every candidate: about 2 minutes at 10^4 rows, so R runs on the first
+      // 2,000 rows, beside the engine on the same rows
+      const m = 2000;
+      const dm = headRows(d, m);
+      const small = await timeRuns(3, () => fresh(dm), (p) => invoke("BREAKTEST", p.yRows, p.xRows, null, ""), 1);
+      const ours = Array.isArray(small.last) ? small.last.find((r) => /^sup-F/.test(r[0])) : null;
+      const r = runRScript(dm, `suppressPackageStartupMessages(library(strucchange))
+        t0 <- proc.time()[["elapsed"]]; fs <- Fstats(y ~ 0 + X, from = 0.15); st <- sctest(fs, type = "supF"); el <- proc.time()[["elapsed"]] - t0
+        cat(sprintf('{"seconds": %.6f, "stat": %.17g, "p": %.17g}', el, st$statistic, st$p.value), "\n")`);
+      if (r.error) note += `; R failed: ${r.error}`;
+      else {
+        const rel = ours ? Math.abs(ours[1] - r.stat) / r.stat : NaN;
+        note += `; at n=2,000 (R's Fstats takes minutes at 10^4): ours ${fmtMs(small.median)}, strucchange::Fstats + sctest ${fmtMs(1000 * r.seconds)} (${(1000 * r.seconds / small.median).toFixed(0)}x ours), sup-F within ${rel.toExponential(1)}`;
+      }
+    }
+    store.breaktest = t.median;
+    results.push(["ELX.BREAKTEST sup-F 10^4 rows", "k=5", fmtMs(t.median), note]);
+    dropData("breaks");
+  },
+});
+
 // ---------------------------------------------------------------------------------------------
 // Run
 // ---------------------------------------------------------------------------------------------
@@ -747,6 +842,8 @@ async function main() {
     if (store.panel.r !== undefined) targets.push(["  against R plm two-way within (R / engine)", "(ratio printed)", `${store.panel.r.toFixed(2)}x`, ""]);
   }
   if (store.bygroup !== undefined) targets.push(["BYGROUP vs loop of ELASTICITIES", "(ratio printed)", `${store.bygroup.toFixed(2)}x`, ""]);
+  if (store.rolling !== undefined) targets.push(["ROLLING 10^5 rows, k=5, 100 windows", "< 0.5 s", fmtMs(store.rolling), yes(store.rolling < 500)]);
+  if (store.breaktest !== undefined) targets.push(["BREAKTEST sup-F 10^4 rows, k=5", "< 0.5 s", fmtMs(store.breaktest), yes(store.breaktest < 500)]);
   out("");
   out("Targets (README, speed)");
   printTable(["Target", "Goal", "Measured", ""], targets);
