@@ -31,6 +31,7 @@ import { leastSquares, forwardSolveRt, type Dependency, type QrFit } from "./lea
 import { classicalCovariance, defaultLags, hacCovariance, hcCovariance } from "./covariance";
 import { studentQuantile, studentTwoSided } from "./distributions";
 import { count, fail, nearest, unavailable } from "./problems";
+import { EXACT_FIT } from "./fit";
 
 export const INTERCEPT = "(Intercept)";
 
@@ -119,6 +120,7 @@ function isConstant(c: Float64Array): { constant: boolean; value: number } {
 }
 
 function listNames(names: string[]): string {
+  if (names.length === 0) return "nothing";
   return names.length === 1 ? names[0] : `${names.slice(0, -1).join(", ")} and ${names[names.length - 1]}`;
 }
 
@@ -216,6 +218,8 @@ export class IvFit {
   /** Σ w e² (e'e unweighted). */
   readonly rss: number;
   readonly covarianceInput: CovarianceInput;
+  /** Σ w e² below EXACT_FIT·Σ w y²: the residuals are rounding noise. */
+  readonly exact: boolean;
   private readonly covCache = new Map<string, IvCovariance>();
 
   constructor(d: IvData) {
@@ -278,6 +282,20 @@ export class IvFit {
     });
     this.firstStages = firstStages;
     this.projected = Xhat;
+    // A first-stage prediction at rounding level (the instruments and exogenous regressors are
+    // exactly orthogonal to x_j): the QR scales every column to unit length, so check it here.
+    for (const fs of firstStages) {
+      const xj = X[fs.index];
+      let a = 0;
+      let b = 0;
+      for (let i = 0; i < n; i++) {
+        a += fs.fitted[i] * fs.fitted[i];
+        b += xj[i] * xj[i];
+      }
+      if (!(a > 1e-22 * b)) {
+        fail(`the instruments and exogenous regressors do not move ${fs.name} at all (its first-stage prediction is zero in every row): the model is not identified; use instruments that move ${fs.name}`);
+      }
+    }
     // Stage 2: y on X̂.
     const y = scaled(d.y, sw);
     this.yUsed = y;
@@ -293,8 +311,13 @@ export class IvFit {
       for (let i = 0; i < n; i++) eW[i] -= bc * xc[i];
     }
     let rss = 0;
-    for (let i = 0; i < n; i++) rss += eW[i] * eW[i];
+    let yy = 0;
+    for (let i = 0; i < n; i++) {
+      rss += eW[i] * eW[i];
+      yy += y[i] * y[i];
+    }
     this.rss = rss;
+    this.exact = !(rss > EXACT_FIT * yy);
     this.resid = sw ? Float64Array.from(eW, (v, i) => v / sw[i]) : eW;
     this.covarianceInput = { design: Xhat, qr: { ...second, resid: eW, rss }, n, k, dfResid: n - k };
   }
@@ -312,6 +335,7 @@ export class IvFit {
 
   /** The coefficient covariance of the given type (memoised). */
   covariance(se: IvSe): IvCovariance {
+    if (this.exact && se.type !== "HC2" && se.type !== "HC3") this.requireResidualVariation("the errors of the coefficients are");
     const key = se.type === "HAC" ? `HAC${se.lags ?? defaultLags(this.n)}` : se.type;
     if (se.type === "cluster") return sandwichCovariance(this.covarianceInput, se, this.rowNumbers, "two-stage least squares");
     let c = this.covCache.get(key);
@@ -320,6 +344,11 @@ export class IvFit {
       this.covCache.set(key, c);
     }
     return c;
+  }
+
+  /** Refuses an exact fit where a quantity needs residual variation. */
+  requireResidualVariation(what: string): void {
+    if (this.exact) unavailable(`the fit is exact (every residual is zero up to rounding), so ${what} undefined`);
   }
 
   standardErrors(c: IvCovariance): Float64Array {

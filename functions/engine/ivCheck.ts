@@ -117,13 +117,14 @@ function fmt(v: number): string {
 
 /** First-stage strength, Wu–Hausman and Sargan for a 2SLS fit, with a one-line reading. */
 export function ivCheck(fit: IvFit, se: IvSe): IvCheck {
+  const seLabel = fit.covariance(se).label; // refuses HC2/HC3 and an exact fit first
+  fit.requireResidualVariation("the instrument checks are");
   const n = fit.n;
   const Z = fit.instrumentsDesign;
   const kz = Z.length;
   const q = kz - fit.firstInstrument;
   const exogZ = Z.slice(0, fit.firstInstrument);
   const instIdx = Array.from({ length: q }, (_, m) => fit.firstInstrument + m);
-  const seLabel = se.type === "cluster" ? "cluster" : se.type === "HAC" ? `HAC` : se.type;
 
   const firstStages: FirstStageCheck[] = fit.firstStages.map((fs) => {
     const xj = fit.design[fs.index];
