@@ -173,6 +173,7 @@ describe("2SLS identities (no reference needed)", () => {
   });
 
   test("over-identified, the structural residuals are orthogonal to X̂ (the 2SLS normal equations)", () => {
+    // Source: the definition b = (X̂'X̂)^-1 X̂'y with X̂ = P_Z X gives X̂'(y − Xb) = X̂'(y − X̂b) = 0.
     const fit = fitIv(market());
     for (const c of fit.projected) {
       let s = 0;
@@ -186,6 +187,8 @@ describe("2SLS identities (no reference needed)", () => {
   });
 
   test("unit weights give the unweighted fit; doubling every weight changes nothing", () => {
+    // Source: weighted 2SLS multiplies y, X and Z by √w (as R's ivreg(weights =)); a common factor
+    // cancels in b and in every sandwich.
     const d = market();
     const a = fitIv(d);
     const b = fitIv({ ...d, weights: new Float64Array(d.y.length).fill(1) });
@@ -200,6 +203,7 @@ describe("2SLS identities (no reference needed)", () => {
   });
 
   test("row order does not change coefficients or HC1 errors", () => {
+    // Property: every sum in 2SLS and HC1 runs over rows, so a permutation leaves them unchanged.
     const d = market();
     const n = d.y.length;
     const perm = Array.from({ length: n }, (_, i) => (i * 37) % n);
@@ -213,6 +217,8 @@ describe("2SLS identities (no reference needed)", () => {
   });
 
   test("the first-stage F in the checks is that of the first-stage regression itself", () => {
+    // Source: the F statistic of q exclusion restrictions from the restricted and unrestricted
+    // residual sums of squares, ((RSS_r − RSS_u)/q)/(RSS_u/(n − k)) (e.g. Wooldridge, ch. 4).
     const d = market();
     const fit = fitIv(d);
     const chk = ivCheck(fit, { type: "classical" });

@@ -15,7 +15,7 @@
  * "not weak" every time.
  * Weak instruments (π = 0.0247: concentration n·2π²/0.1525 ≈ 2, so the expected first-stage F is
  * about 1 + 2/2 = 2): the mean first-stage F over 500 replications is between 1.6 and 2.4, the check flags weak
- * instruments (F below 10; Staiger and Stock 1997, Econometrica 65(3), a rule of thumb) in at least
+ * instruments (F below 10; Staiger and Stock 1997, Econometrica 65(3), a rule of thumb, common practice) in at least
  * 95% of replications, and the 2SLS estimates are pulled towards OLS (Staiger and Stock's point).
  */
 import { fitIv } from "../../functions/engine/iv";

@@ -32,7 +32,8 @@
 #   partial R^2 of the excluded instruments in each first stage: 1 - RSS(x_j ~ Z) / RSS(x_j ~ Z_exog)
 #   (lm / lm.wfit);
 #   Wu-Hausman regression form: lm(y ~ X + v), v the first-stage residuals: coefficients of v;
-#   estimatr::iv_robust(f, data, se_type = "classical" | "HC0" | "HC1" | "stata" (clusters = g)).
+#   estimatr::iv_robust(f, data, se_type = "classical" | "HC0" | "HC1" | "CR0" (clusters = g); CR0 is
+#   the cluster sandwich without the factor G/(G-1)(n-1)/(n-k)).
 #   The data columns exactly as entered in the model (logs taken in R) are written out with the values.
 suppressPackageStartupMessages({
   library(AER)
@@ -108,7 +109,8 @@ make_case <- function(label, d, yname, xnames, endo, inst, weights = NULL, clust
   V <- sapply(endo, function(e) lm.wfit(Z, X[, e], w)$residuals)
   aug <- lm.wfit(cbind(X, V), d[[yname]], w)
   wh_coef <- unname(aug$coefficients[(k + 1):(k + length(endo))])
-  # estimatr, same conventions (classical e'e/(n-k), HC0, HC1 = n/(n-k) HC0, stata = CR1 as vcovCL HC1).
+  # estimatr, same conventions (classical e'e/(n-k), HC0, HC1 = n/(n-k) HC0; CR0 = the cluster sandwich
+# with no small-sample factor).
   est <- list()
   for (t in c("classical", "HC0", "HC1")) {
     r <- if (is.null(weights)) iv_robust(f, data = d, se_type = t) else iv_robust(f, data = d, weights = .w, se_type = t)
@@ -116,8 +118,8 @@ make_case <- function(label, d, yname, xnames, endo, inst, weights = NULL, clust
   }
   if (!is.null(cluster)) {
     d$.g <- g
-    r <- iv_robust(f, data = d, clusters = .g, se_type = "stata")
-    est$stata <- list(coef = unname(coef(r)), se = unname(r$std.error), df = unname(r$df))
+    r <- iv_robust(f, data = d, clusters = .g, se_type = "CR0")
+    est$CR0 <- list(coef = unname(coef(r)), se = unname(r$std.error))
   }
   s <- summary(m)
   list(
@@ -192,7 +194,7 @@ result <- list(
     diagnostics = scalar("summary(m, diagnostics = TRUE)$diagnostics; summary(m, vcov. = function(x) sandwich::vcovHC(x, type = 'HC0' | 'HC1') | NeweyWest(...) | vcovCL(x, cluster = g, type = 'HC1'), diagnostics = TRUE)$diagnostics"),
     partial_r2 = scalar("1 - sum(w * lm.wfit(Z, x_j, w)$residuals^2) / sum(w * lm.wfit(Z_exog, x_j, w)$residuals^2)"),
     wu_hausman_coef = scalar("lm.wfit(cbind(X, V), y, w)$coefficients of V, V the first-stage residuals"),
-    estimatr = scalar("estimatr::iv_robust(f, data = d, se_type = 'classical' | 'HC0' | 'HC1'); se_type = 'stata' with clusters = g"),
+    estimatr = scalar("estimatr::iv_robust(f, data = d, se_type = 'classical' | 'HC0' | 'HC1'); se_type = 'CR0' with clusters = g"),
     textbook = scalar("lm(education ~ feducation, data = mz); lm(lwage ~ education, data = mz)")
   ),
   cases = cases,
@@ -205,7 +207,8 @@ for (nm in names(cases)) {
   cat(nm, "n =", cs$n, "coef =", format(cs$coefficients, digits = 6), "\n")
   # estimatr agrees with ivreg
   for (t in names(cs$estimatr)) {
-    ref <- if (t == "stata") cs$se$cluster else cs$se[[t]]
+    G <- length(unique(cs$clusters))
+    ref <- if (t == "CR0") cs$se$cluster * sqrt((G - 1) / G * (cs$n - cs$k) / (cs$n - 1)) else cs$se[[t]]
     cat("  estimatr", t, "max rel diff coef", max(abs(cs$estimatr[[t]]$coef / cs$coefficients - 1)),
         "se", max(abs(cs$estimatr[[t]]$se / ref - 1)), "\n")
   }
