@@ -221,6 +221,7 @@ export class IvFit {
   /** Σ w e² below EXACT_FIT·Σ w y²: the residuals are rounding noise. */
   readonly exact: boolean;
   private readonly covCache = new Map<string, IvCovariance>();
+  private readonly memos = new Map<string, unknown>();
 
   constructor(d: IvData) {
     const endo = checkRoles(d);
@@ -344,6 +345,47 @@ export class IvFit {
       this.covCache.set(key, c);
     }
     return c;
+  }
+
+  /**
+   * R² = 1 − Σw e²/Σw (y − ȳ_w)² with the structural residuals (without an intercept, Σw y² below),
+   * as R's summary(ivreg); it can be negative, since 2SLS does not minimise Σe². Adjusted R² uses
+   * (n − 1)/(n − k) (n/(n − k) without an intercept).
+   */
+  statistics(): { rSquared: number; adjRSquared: number; sigma: number } {
+    return this.memo("statistics", () => {
+      const n = this.n;
+      const sw = this.sqrtWeights;
+      let tss = 0;
+      if (this.intercept) {
+        let sy = 0;
+        let s = 0;
+        for (let i = 0; i < n; i++) {
+          const w = sw ? sw[i] * sw[i] : 1;
+          sy += w * (sw ? this.yUsed[i] / sw[i] : this.yUsed[i]);
+          s += w;
+        }
+        const mean = sy / s;
+        for (let i = 0; i < n; i++) {
+          const w = sw ? sw[i] * sw[i] : 1;
+          const d = (sw ? this.yUsed[i] / sw[i] : this.yUsed[i]) - mean;
+          tss += w * d * d;
+        }
+      } else {
+        for (let i = 0; i < n; i++) tss += this.yUsed[i] * this.yUsed[i];
+      }
+      const rSquared = 1 - this.rss / tss;
+      const adjRSquared = 1 - (1 - rSquared) * ((n - (this.intercept ? 1 : 0)) / this.dfResid);
+      return { rSquared, adjRSquared, sigma: this.sigma };
+    });
+  }
+
+  /** A derived result computed once per fit (checks, factors). */
+  memo<T>(key: string, compute: () => T): T {
+    if (this.memos.has(key)) return this.memos.get(key) as T;
+    const v = compute();
+    this.memos.set(key, v);
+    return v;
   }
 
   /** Refuses an exact fit where a quantity needs residual variation. */

@@ -10,7 +10,7 @@
  *   HAC sqrt(diag(sandwich::NeweyWest(m, lag = L, prewhite = FALSE, adjust = FALSE)));
  *   cluster sqrt(diag(sandwich::vcovCL(m, cluster = g, type = "HC1")));
  *   summary(m, [vcov. = <the same covariance as a function>,] diagnostics = TRUE)$diagnostics;
- *   partial R² from lm.wfit; Wu–Hausman coefficients of lm(y ~ X + first-stage residuals);
+ *   summary(m)$r.squared; partial R² from lm.wfit; Wu–Hausman coefficients of lm(y ~ X + first-stage residuals);
  *   estimatr::iv_robust(se_type = "classical" | "HC0" | "HC1" | "CR0" with clusters: the
  *   cluster sandwich with no small-sample factor).
  * Datasets shipping with AER: CigarettesSW (1995 cross-section, over-identified; the same weighted by
@@ -66,6 +66,7 @@ interface IvCase {
   rss: number;
   resid_head: number[];
   df_residual: number;
+  r2: number;
   diagnostics: Record<string, DiagRow[]>;
   partial_r2: number[];
   wu_hausman_coef: number[];
@@ -119,6 +120,7 @@ describe.each(Object.keys(ref.cases))("2SLS %s (AER::ivreg with sandwich)", (lab
     checker.check(fit.sigma, c.sigma, "rss, sigma, residuals", `${label} sigma`);
     c.resid_head.forEach((e, i) => checker.check(fit.resid[i], e, "rss, sigma, residuals", `${label} resid ${i + 1}`));
     expect(fit.dfResid).toBe(c.df_residual);
+    checker.check(fit.statistics().rSquared, c.r2, "R²", `${label} R²`);
   });
 
   test.each(Object.keys(c.se))("%s standard errors equal sandwich's to 1e-9", (type) => {
@@ -196,13 +198,14 @@ describe("Wooldridge, Introductory Econometrics, Examples 15.1, 15.5, 15.7 and 1
   // printed number of digits, and against ivreg through the reference tests above.
   const round = (v: number, d: number) => Number(v.toFixed(d));
 
-  test("Example 15.1: log(wage) = .441 + .059 educ, se (.446) (.035), n = 428, with fatheduc as instrument", () => {
+  test("Example 15.1: log(wage) = .441 + .059 educ, se (.446) (.035), n = 428, R² = .093, with fatheduc as instrument", () => {
     const c = ref.cases.mroz_father;
     const fit = fitIv(dataOf(c));
     const se = fit.standardErrors(fit.covariance({ type: "classical" }));
     expect(fit.n).toBe(428);
     expect([round(fit.coef[0], 3), round(fit.coef[1], 3)]).toEqual([0.441, 0.059]);
     expect([round(se[0], 3), round(se[1], 3)]).toEqual([0.446, 0.035]);
+    expect(round(fit.statistics().rSquared, 3)).toBe(0.093);
     // first stage: educ = 10.24 + .269 fatheduc, se (.28) (.029), R² = .173 (printed, recalled)
     const fsCoef = fit.firstStages[0].qr.coef;
     expect([round(fsCoef[0], 2), round(fsCoef[1], 3)]).toEqual([10.24, 0.269]);
@@ -213,13 +216,14 @@ describe("Wooldridge, Introductory Econometrics, Examples 15.1, 15.5, 15.7 and 1
     checker.check(chk.firstStages[0].partialR2, ref.textbook.first_stage_r2, "partial R²", "textbook first stage R²");
   });
 
-  test("Example 15.5: .048 + .061 educ + .044 exper − .0009 expersq, se (.400) (.031) (.013) (.0004), parents' education as instruments", () => {
+  test("Example 15.5: .048 + .061 educ + .044 exper − .0009 expersq, se (.400) (.031) (.013) (.0004), R² = .136, parents' education as instruments", () => {
     const fit = fitIv(dataOf(ref.cases.mroz));
     const se = fit.standardErrors(fit.covariance({ type: "classical" }));
     expect(Array.from(fit.coef.slice(0, 3), (v) => round(v, 3))).toEqual([0.048, 0.061, 0.044]);
     expect(round(fit.coef[3], 4)).toBe(-0.0009);
     expect(Array.from(se.slice(0, 3), (v) => round(v, 3))).toEqual([0.4, 0.031, 0.013]);
     expect(round(se[3], 4)).toBe(0.0004);
+    expect(round(fit.statistics().rSquared, 3)).toBe(0.136);
   });
 
   test("Example 15.7: the first-stage residual enters with .058, t = 1.67 (regression form of the Wu–Hausman test)", () => {
