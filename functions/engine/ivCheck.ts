@@ -178,7 +178,9 @@ export function ivCheck(fit: IvFit, se: IvSe): IvCheck {
   const weakOnes = firstStages.filter((r) => Math.min(r.f, r.fChosen) < WEAK_F);
   const parts: string[] = [];
   if (weakOnes.length > 0) {
-    parts.push(`Weak instruments: the first-stage F of ${weakOnes.map((r) => `${r.name} is ${fmt(Math.min(r.f, r.fChosen))}`).join(", ")}, below 10 (Staiger and Stock 1997; a rule of thumb, common practice), so the 2SLS estimates and intervals may be far off; find a stronger instrument.`);
+    const list = weakOnes.map((r) => `${r.name} (${fmt(Math.min(r.f, r.fChosen))})`);
+    const named = list.length === 1 ? list[0] : `${list.slice(0, -1).join(", ")} and ${list[list.length - 1]}`;
+    parts.push(`Weak instruments: the first-stage F is below 10 for ${named} (Staiger and Stock 1997; a rule of thumb, common practice), so the 2SLS estimates and intervals may be far off, pulled towards OLS; find a stronger instrument.`);
   } else {
     parts.push("The instruments are not weak by the rule of thumb first-stage F ≥ 10 (Staiger and Stock 1997; common practice).");
   }

@@ -231,3 +231,23 @@ describe("2SLS identities (no reference needed)", () => {
     expect(chk.reading).toMatch(/^The instruments are not weak by the rule of thumb first-stage F ≥ 10 \(Staiger and Stock 1997; common practice\)\. Wu–Hausman rejects at 5%/);
   });
 });
+
+describe("the reading of the checks", () => {
+  test("names each weakly instrumented regressor with its F, and says the Sargan result means some instrument, not which", () => {
+    // Source for the threshold: Staiger and Stock (1997), Econometrica 65(3): first-stage F below 10
+    // (a rule of thumb, common practice). Invented data: a pure-noise shifter (weak), and a valid cost shifter beside one tied to the error (Sargan).
+    const d = market(300, 9);
+    const r = new Rng(9);
+    const weakZ = Float64Array.from({ length: 300 }, () => r.normal());
+    const bad = Float64Array.from(d.y, (v, i) => 0.8 * (v - 2 + 1.2 * d.x[0][i] - 0.5 * d.x[1][i]) + 0.2 * r.normal()); // tied to the error
+    const fit = fitIv({ ...d, instruments: [d.instruments[0], bad], instrumentNames: ["Cost", "Leak"] });
+    const chk = ivCheck(fit, { type: "HC1" });
+    expect(chk.sargan).not.toBeNull();
+    expect(chk.reading).toMatch(/Sargan rejects at 5% \(p = [\d.e-]+\): at least one instrument is invalid \(related to the error\), though the test cannot say which\./);
+    const weakFit = fitIv({ ...d, instruments: [weakZ], instrumentNames: ["Noise"] });
+    const w = ivCheck(weakFit, { type: "HC1" });
+    expect(w.weak).toBe(true);
+    expect(w.reading).toMatch(/^Weak instruments: the first-stage F is below 10 for Price \([\d.]+\) \(Staiger and Stock 1997; a rule of thumb, common practice\)/);
+    expect(w.reading).toMatch(/Sargan needs more instruments than endogenous regressors \(exactly identified here\)\.$/);
+  });
+});

@@ -103,7 +103,7 @@ describe("2SLS with a price set in response to demand (seeded simulation)", () =
       fs.push(chk.firstStages[0].f);
       iv.push(fit.coef[1]);
       if (chk.weak) flagged++;
-      if (/^Weak instruments: .*below 10 \(Staiger and Stock 1997; a rule of thumb, common practice\)/.test(chk.reading)) readingSaysWeak++;
+      if (/^Weak instruments: the first-stage F is below 10 for Price \([\d.]+\) \(Staiger and Stock 1997; a rule of thumb, common practice\)/.test(chk.reading)) readingSaysWeak++;
     }
     const mF = median(fs);
     const meanF = fs.reduce((a, v) => a + v, 0) / reps;
