@@ -300,7 +300,11 @@ export class IvFit {
     // Stage 2: y on X̂.
     const y = scaled(d.y, sw);
     this.yUsed = y;
-    const second = leastSquares(Xhat, y, (dep) => explainProjectedDependency(dep, names, this.endogenousIndex));
+    const second = leastSquares(Xhat, y, (dep) => {
+      // The regressors themselves collinear (an endogenous one included) say so first.
+      leastSquares(X, y, (dx) => explainRegressorDependency(dx, names), false);
+      return explainProjectedDependency(dep, names, this.endogenousIndex);
+    });
     const b = second.coef;
     this.coef = b;
     // Structural residuals with the actual X.
@@ -424,6 +428,11 @@ function explainInstrumentDependency(d: Dependency, z: ZColumn[]): never {
     return fail(`instrument ${col.name} is an exact linear combination of ${others} (collinear), so it adds nothing the other instruments and exogenous regressors do not already hold: remove it from instruments=`);
   }
   return fail(`${col.name} is an exact linear combination of ${others} (collinear): remove one of these columns`);
+}
+
+function explainRegressorDependency(d: Dependency, names: string[]): never {
+  if (d.on.length === 0) return fail(`${names[d.column]} is zero in every row used: remove it from x`);
+  return fail(`${names[d.column]} is an exact linear combination of ${listNames(d.on.map((i) => names[i]))} (collinear): remove one of these columns`);
 }
 
 function explainProjectedDependency(d: Dependency, names: string[], endo: number[]): never {

@@ -117,6 +117,13 @@ describe("2SLS bad input: a message each", () => {
     expect(p.message).toBe("the instruments do not move the endogenous regressors apart from the other regressors (the first-stage prediction of Promo is a combination of Price): the model is not identified; use instruments that each move an endogenous regressor");
   });
 
+  test("an endogenous regressor collinear with the other regressors gets the collinearity message", () => {
+    const d = market();
+    const price = Float64Array.from(d.x[1], (v) => 2 * v + 1);
+    const p = problem(() => fitIv({ ...d, x: [d.x[1], price], xNames: ["Income", "Price"] }));
+    expect(p.message).toBe("Price is an exact linear combination of (Intercept) and Income (collinear): remove one of these columns");
+  });
+
   test("HC2 and HC3 are refused with a way out", () => {
     const fit = fitIv(market());
     for (const type of ["HC2", "HC3"] as const) {

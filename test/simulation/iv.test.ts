@@ -50,6 +50,7 @@ function median(v: number[]): number {
 
 describe("2SLS with a price set in response to demand (seeded simulation)", () => {
   test("strong cost shifters: OLS biased, 2SLS centred on the truth, 95% intervals cover about 95%", () => {
+    const cpu = process.cpuUsage();
     const rng = new Rng(20261203);
     const reps = 1500;
     const n = 250;
@@ -77,7 +78,7 @@ describe("2SLS with a price set in response to demand (seeded simulation)", () =
     const sd = Math.sqrt(iv.reduce((a, v) => a + (v - mean) ** 2, 0) / (reps - 1));
     const olsMean = ols.reduce((a, v) => a + v, 0) / reps;
     const olsLimit = TRUE + 0.125 / (2 * pi * pi + 0.1525);
-    console.log(`strong instruments, ${reps} replications of n = ${n}: OLS mean ${olsMean.toFixed(4)} (limit ${olsLimit.toFixed(4)}), 2SLS mean ${mean.toFixed(4)} (truth ${TRUE}, MC se ${(sd / Math.sqrt(reps)).toFixed(4)}), coverage classical ${(100 * coverClassical / reps).toFixed(1)}%, HC1 ${(100 * coverHc1 / reps).toFixed(1)}%, read as not weak ${notWeak}/200`);
+    console.log(`strong instruments, ${reps} replications of n = ${n}: OLS mean ${olsMean.toFixed(4)} (limit ${olsLimit.toFixed(4)}), 2SLS mean ${mean.toFixed(4)} (truth ${TRUE}, MC se ${(sd / Math.sqrt(reps)).toFixed(4)}), coverage classical ${(100 * coverClassical / reps).toFixed(1)}%, HC1 ${(100 * coverHc1 / reps).toFixed(1)}%, read as not weak ${notWeak}/200; ${(process.cpuUsage(cpu).user / 1e6).toFixed(1)} s of CPU`);
     expect(Math.abs(olsMean - olsLimit)).toBeLessThan(0.01);
     expect(olsMean - TRUE).toBeGreaterThan(0.1);
     expect(Math.abs(mean - TRUE)).toBeLessThan(4 * sd / Math.sqrt(reps));
@@ -89,6 +90,7 @@ describe("2SLS with a price set in response to demand (seeded simulation)", () =
   });
 
   test("a weak cost shifter (first-stage F near 2) is flagged, and 2SLS drifts towards OLS", () => {
+    const cpu = process.cpuUsage();
     const rng = new Rng(7);
     const reps = 500;
     const n = 250;
@@ -109,7 +111,7 @@ describe("2SLS with a price set in response to demand (seeded simulation)", () =
     const meanF = fs.reduce((a, v) => a + v, 0) / reps;
     const mIv = median(iv);
     const olsLimit = TRUE + 0.125 / (2 * pi * pi + 0.1525);
-    console.log(`weak instrument (pi = ${pi.toFixed(4)}), ${reps} replications: mean first-stage F ${meanF.toFixed(2)} (median ${mF.toFixed(2)}), flagged weak ${(100 * flagged / reps).toFixed(1)}%, median 2SLS ${mIv.toFixed(3)} (truth ${TRUE}, OLS limit ${olsLimit.toFixed(3)})`);
+    console.log(`weak instrument (pi = ${pi.toFixed(4)}), ${reps} replications: mean first-stage F ${meanF.toFixed(2)} (median ${mF.toFixed(2)}), flagged weak ${(100 * flagged / reps).toFixed(1)}%, median 2SLS ${mIv.toFixed(3)} (truth ${TRUE}, OLS limit ${olsLimit.toFixed(3)}); ${(process.cpuUsage(cpu).user / 1e6).toFixed(1)} s of CPU`);
     expect(meanF).toBeGreaterThan(1.6);
     expect(meanF).toBeLessThan(2.4);
     expect(flagged / reps).toBeGreaterThanOrEqual(0.95);
