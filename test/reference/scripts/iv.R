@@ -15,6 +15,8 @@
 #   mroz         PSID1976 participants (428 women with a wage): log(wage) ~ education + experience +
 #                I(experience^2) | experience + I(experience^2) + meducation + feducation.
 #   mroz_father  log(wage) ~ education | feducation (exactly identified; a textbook example).
+#   cig95_noint  cig95 without an intercept (- 1 in both parts of the formula), where AER's Sargan
+#                (n times the centred R^2 of e on Z) differs from n e'P_Z e/e'e ("sargan_uncentred").
 #   mroz_two     log(wage) ~ education + experience + I(experience^2) with education and experience
 #                endogenous, instruments meducation, feducation, heducation, age (a numerical check with
 #                two endogenous regressors, not an economic model).
@@ -31,6 +33,7 @@
 #   df2, statistic, p-value;
 #   partial R^2 of the excluded instruments in each first stage: 1 - RSS(x_j ~ Z) / RSS(x_j ~ Z_exog)
 #   (lm / lm.wfit);
+#   Sargan n e'P_Z e/e'e: n * (1 - RSS(lm.fit(Z, e)) / sum(e^2)) and its chi-square p ("sargan_uncentred");
 #   Wu-Hausman regression form: lm(y ~ X + v), v the first-stage residuals: coefficients of v;
 #   estimatr::iv_robust(f, data, se_type = "classical" | "HC0" | "HC1" | "CR0" (clusters = g); CR0 is
 #   the cluster sandwich without the factor G/(G-1)(n-1)/(n-k)).
@@ -69,9 +72,10 @@ diag_rows <- function(dg) {
     statistic = scalar(dg[i, 3]), p = scalar(dg[i, 4])))
 }
 
-make_case <- function(label, d, yname, xnames, endo, inst, weights = NULL, cluster = NULL, note = "") {
-  fx <- paste(xnames, collapse = " + ")
-  fz <- paste(c(setdiff(xnames, endo), inst), collapse = " + ")
+make_case <- function(label, d, yname, xnames, endo, inst, weights = NULL, cluster = NULL, note = "", intercept = TRUE) {
+  fx <- paste(c(xnames, if (!intercept) "- 1"), collapse = " + ")
+  fz <- paste(c(setdiff(xnames, endo), inst, if (!intercept) "- 1"), collapse = " + ")
+  fx <- sub("\\+ - 1", "- 1", fx); fz <- sub("\\+ - 1", "- 1", fz)
   f <- as.formula(paste(yname, "~", fx, "|", fz))
   d$.w <- if (is.null(weights)) rep(1, nrow(d)) else d[[weights]]
   m <- if (is.null(weights)) ivreg(f, data = d) else ivreg(f, data = d, weights = .w)
@@ -107,6 +111,10 @@ make_case <- function(label, d, yname, xnames, endo, inst, weights = NULL, clust
     1 - ru / rr
   })
   V <- sapply(endo, function(e) lm.wfit(Z, X[, e], w)$residuals)
+  # Sargan as n e'P_Z e / e'e (uncentred R^2 of e on Z); equal to AER's centred form with an intercept
+  r <- residuals(m) * sqrt(w)
+  sargan_uncentred <- n * (1 - sum(lm.fit(Z * sqrt(w), r)$residuals^2) / sum(r^2))
+  if (length(inst) == length(endo)) sargan_uncentred <- NA
   aug <- lm.wfit(cbind(X, V), d[[yname]], w)
   wh_coef <- unname(aug$coefficients[(k + 1):(k + length(endo))])
   # estimatr, same conventions (classical e'e/(n-k), HC0, HC1 = n/(n-k) HC0; CR0 = the cluster sandwich
@@ -127,7 +135,9 @@ make_case <- function(label, d, yname, xnames, endo, inst, weights = NULL, clust
     note = scalar(note),
     formula = scalar(paste(deparse(f), collapse = " ")),
     n = scalar(n), k = scalar(k),
-    intercept = scalar(TRUE),
+    intercept = scalar(intercept),
+    sargan_uncentred = scalar(sargan_uncentred),
+    sargan_uncentred_p = scalar(if (length(inst) > length(endo)) pchisq(sargan_uncentred, length(inst) - length(endo), lower.tail = FALSE) else NA),
     y = unname(d[[yname]]),
     x_names = xnames,
     x = lapply(xnames, function(v) unname(d[[v]])),
@@ -163,6 +173,8 @@ cases <- list(
     note = "AER PSID1976 participants: log wage on education (instrumented by parents' education), experience and its square"),
   mroz_father = make_case("mroz_father", mz, "lwage", c("education"), "education", c("feducation"),
     note = "AER PSID1976 participants: log wage on education instrumented by father's education"),
+  cig95_noint = make_case("cig95_noint", c95, "lpacks", c("lrprice", "lrincome"), "lrprice", c("tdiff", "ctax"), intercept = FALSE,
+    note = "the 1995 cross-section without an intercept (ivreg with - 1 in both parts): where AER's centred Sargan differs"),
   mroz_two = make_case("mroz_two", mz, "lwage", c("education", "experience", "expersq"), c("education", "experience"),
     c("meducation", "feducation", "heducation", "age"),
     note = "numerical check with two endogenous regressors")
