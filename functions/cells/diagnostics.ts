@@ -17,7 +17,8 @@ import { guarded, hostError, intervalHeaders, levelLabel, num, options, originsO
 export function smearingValue(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
   return guarded(() => {
     const o = options(opts);
-    const fit = olsFor(y, x, o, invocation, "ELX.SMEARING");
+    // 2SLS: the factor of its structural residuals (the one PREDICT applies); see README.md
+    const fit = o.estimator === "2sls" ? (fitFor(y, x, o, invocation) as unknown as OlsFit) : olsFor(y, x, o, invocation, "ELX.SMEARING");
     if (o.retransform === "none") fail("retransform=none asks for no factor; use retransform=duan (default) or retransform=normal");
     return [[num(retransformFactor(fit, o.retransform))]];
   });

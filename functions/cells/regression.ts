@@ -12,6 +12,7 @@ import { elasticity, percentEffect } from "../engine/elasticity";
 import { readRange, asMatrix, CellIssue, numericTextAdvice, uniqueNames } from "../engine/intake";
 import type { OlsFit } from "../engine/fit";
 import type { PpmlFit } from "../engine/ppml";
+import { ivSummaryRows } from "./iv";
 import { guarded, hostError, intervalHeaders, num, options, originsOf, table, safe, type Cell, type Table } from "./host";
 
 /** Fit for a cell function whose first two parameters are y and x. */
@@ -221,6 +222,7 @@ export function summaryTable(y: unknown, x: unknown, opts: unknown, invocation: 
     const o = options(opts);
     const fit = fitFor(y, x, o, invocation);
     if (fit.estimator === "ppml") return table(["Statistic", "Value"], ppmlSummaryRows(fit, o), o);
+    if (fit.estimator === "2sls") return table(["Statistic", "Value"], ivSummaryRows(fit, o, leftOutRows(fit.data)), o);
     const s = fit.statistics();
     const cov = fit.covariance(seTypeOf(o), o.lags);
     const g = fit.data.yTransform;

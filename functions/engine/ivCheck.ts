@@ -27,7 +27,20 @@
 import { leastSquares, type LeastSquares, type QrFit } from "./leastSquares";
 import { chiSquareSf, fisherSf } from "./distributions";
 import { fail, unavailable } from "./problems";
-import { sandwichCovariance, type IvFit, type IvSe } from "./iv";
+import { sandwichCovariance, type CovarianceInput, type IvFit, type IvSe } from "./iv";
+
+/**
+ * The chosen covariance for the auxiliary regressions (first stages, Wu–Hausman) when the fit comes
+ * from a model with role columns: `of` returns V in the coefficients' own units for any
+ * least-squares input on the fit's rows; `absorbed` fixed-effect parameters count in every df.
+ */
+export interface CheckCovariance {
+  label: string;
+  absorbed: number;
+  /** Whether it is the classical covariance (the Wald F then equals the classical F). */
+  classical: boolean;
+  of(input: CovarianceInput): Float64Array;
+}
 
 /** The rule-of-thumb first-stage F below which instruments read as weak (Staiger and Stock 1997). */
 export const WEAK_F = 10;
@@ -105,11 +118,12 @@ function fullRank(ls: LeastSquares, what: string): QrFit {
 }
 
 /** Chosen-covariance Wald F of coefficients `idx` of an OLS fit on `design`. */
-function chosenF(fit: IvFit, design: Float64Array[], qr: QrFit, idx: number[], se: IvSe, what: string): number {
+function chosenF(fit: IvFit, design: Float64Array[], qr: QrFit, idx: number[], se: IvSe, what: string, chosen: CheckCovariance | null): number {
   const n = qr.n;
   const k = qr.k;
-  const c = sandwichCovariance({ columns: design, factor: qr, scores: qr.resid, ssr: qr.rss, dfResid: n - k, rowNumbers: fit.rowNumbers }, se, fit.rowNumbers, "two-stage least squares");
-  return waldF(qr.coef, c.V, k, idx, what);
+  const input = { columns: design, factor: qr, scores: qr.resid, ssr: qr.rss, dfResid: n - k - (chosen ? chosen.absorbed : 0), rowNumbers: fit.rowNumbers };
+  const V = chosen ? chosen.of(input) : sandwichCovariance(input, se, fit.rowNumbers, "two-stage least squares").V;
+  return waldF(qr.coef, V, k, idx, what);
 }
 
 function fmt(v: number): string {
@@ -117,9 +131,11 @@ function fmt(v: number): string {
 }
 
 /** First-stage strength, Wu–Hausman and Sargan for a 2SLS fit, with a one-line reading. */
-export function ivCheck(fit: IvFit, se: IvSe): IvCheck {
-  const seLabel = fit.covariance(se).label; // refuses HC2/HC3 and an exact fit first
+export function ivCheck(fit: IvFit, se: IvSe, chosen: CheckCovariance | null = null): IvCheck {
   fit.requireResidualVariation("the instrument checks are");
+  const seLabel = chosen ? chosen.label : fit.covariance(se).label; // refuses HC2/HC3 and an exact fit first
+  const a = chosen ? chosen.absorbed : 0;
+  const classicalChosen = chosen ? chosen.classical : se.type === "classical";
   const n = fit.n;
   const Z = fit.instrumentsDesign;
   const kz = Z.length;
@@ -137,9 +153,9 @@ export function ivCheck(fit: IvFit, se: IvSe): IvCheck {
       for (let i = 0; i < n; i++) rssR += xj[i] * xj[i];
     }
     if (!(rssU > 0)) unavailable(`the instruments predict ${fs.name} exactly (first-stage residuals all zero), so its first-stage F is undefined`);
-    const df2 = n - kz;
+    const df2 = n - kz - a;
     const f = ((rssR - rssU) / q) / (rssU / df2);
-    const fChosen = se.type === "classical" ? f : chosenF(fit, Z, fs.qr, instIdx, se, `${fs.name}'s first stage`);
+    const fChosen = classicalChosen ? f : chosenF(fit, Z, fs.qr, instIdx, se, `${fs.name}'s first stage`, chosen);
     return { name: fs.name, f, p: fisherSf(f, q, df2), fChosen, pChosen: fisherSf(fChosen, q, df2), df1: q, df2, partialR2: (rssR - rssU) / rssR };
   });
 
@@ -148,14 +164,14 @@ export function ivCheck(fit: IvFit, se: IvSe): IvCheck {
   const k = fit.k;
   const V = fit.firstStages.map((fs) => fs.qr.resid);
   const aug = [...fit.design, ...V];
-  if (n <= k + p) fail(`the Wu–Hausman regression has ${k + p} terms for ${n} rows; it needs more rows than terms`);
+  if (n <= k + p + a) fail(`the Wu–Hausman regression has ${k + p} terms for ${n} rows; it needs more rows than terms`);
   const qrU = fullRank(leastSquares(aug, fit.yUsed), "the Wu–Hausman regression");
   const qrR = fullRank(leastSquares(fit.design, fit.yUsed), "the structural equation");
-  const df2 = n - k - p;
+  const df2 = n - k - p - a;
   if (!(qrU.rss > 0)) unavailable("the Wu–Hausman regression fits exactly, so its F is undefined");
   const whF = ((qrR.rss - qrU.rss) / p) / (qrU.rss / df2);
   const vIdx = Array.from({ length: p }, (_, m) => k + m);
-  const whChosen = se.type === "classical" ? whF : chosenF(fit, aug, qrU, vIdx, se, "the first-stage residuals in the Wu–Hausman regression");
+  const whChosen = classicalChosen ? whF : chosenF(fit, aug, qrU, vIdx, se, "the first-stage residuals in the Wu–Hausman regression", chosen);
   const wuHausman: WuHausman = {
     f: whF,
     p: fisherSf(whF, p, df2),

@@ -180,6 +180,60 @@ cases <- list(
     note = "numerical check with two endogenous regressors")
 )
 
+# Fixed effects and clustered errors (the cells' absorb=State; cluster=State): state indicators in
+# both parts of the formula, clustered by state. The state effects are nested within the clusters, so
+# the cluster factor is G/(G-1)(n-1)/(n-p) with p = the slopes only (k + a - a_n, a_n = a):
+#   vcovCL(m, cluster = g, type = "HC0", cadjust = TRUE) * (n - 1) / (n - p), p = length(coef) - a,
+# the same function for the auxiliary regressions of the diagnostics (p their own slopes).
+fe_case <- function() {
+  d <- cig
+  d$state <- factor(as.character(d$state))
+  f <- lpacks ~ lrprice + lrincome + y1995 + state | lrincome + y1995 + state + tdiff + ctax
+  m <- ivreg(f, data = d)
+  n <- nobs(m)
+  a <- nlevels(d$state)
+  g <- as.character(d$state)
+  cl <- function(x) vcovCL(x, cluster = g, type = "HC0", cadjust = TRUE) * (n - 1) / (n - (length(coef(x)) - a))
+  slopes <- c("lrprice", "lrincome", "y1995")
+  fs <- lm(lrprice ~ lrincome + y1995 + state + tdiff + ctax, data = d)
+  wald <- function(fit, idx) {
+    b <- coef(fit)[idx]
+    as.numeric(t(b) %*% solve(cl(fit)[idx, idx, drop = FALSE]) %*% b) / length(idx)
+  }
+  d$v <- residuals(fs)
+  wh <- lm(lpacks ~ lrprice + lrincome + y1995 + state + v, data = d)
+  f1 <- wald(fs, c("tdiff", "ctax"))
+  f2 <- wald(wh, "v")
+  cluster_diag <- list(
+    list(row = scalar("Weak instruments"), df1 = scalar(2), df2 = scalar(fs$df.residual), statistic = scalar(f1), p = scalar(pf(f1, 2, fs$df.residual, lower.tail = FALSE))),
+    list(row = scalar("Wu-Hausman"), df1 = scalar(1), df2 = scalar(wh$df.residual), statistic = scalar(f2), p = scalar(pf(f2, 1, wh$df.residual, lower.tail = FALSE))))
+  pick <- function(V) unname(sqrt(diag(V))[slopes])
+  list(
+    note = scalar("AER CigarettesSW 1985 and 1995 with state fixed effects (factor(state) in both parts), clustered by state"),
+    formula = scalar(paste(deparse(f), collapse = " ")),
+    n = scalar(n), absorbed = scalar(a),
+    y = unname(d$lpacks),
+    x_names = slopes,
+    x = lapply(slopes, function(v) unname(d[[v]])),
+    instrument_names = c("tdiff", "ctax"),
+    instruments = lapply(c("tdiff", "ctax"), function(v) unname(d[[v]])),
+    state = g,
+    coefficients = unname(coef(m)[slopes]),
+    se = list(classical = pick(vcov(m)), HC1 = pick(vcovHC(m, type = "HC1")), cluster = pick(cl(m))),
+    diagnostics = list(
+      classical = diag_rows(summary(m, diagnostics = TRUE)$diagnostics),
+      HC1 = diag_rows(summary(m, vcov. = hc1, diagnostics = TRUE)$diagnostics),
+      # AER's linearHypothesis refuses the full clustered covariance of the indicator regressions
+      # (singular in the indicators' directions), so the two Wald F are formed here on the
+      # instruments' (or v's) block of vcovCL of the same auxiliary lm fits
+      cluster = cluster_diag
+    ),
+    sigma = scalar(m$sigma),
+    r2 = scalar(summary(m)$r.squared)
+  )
+}
+absorbed_cases <- list(cigpanel_fe = fe_case())
+
 # The textbook example's first stage and OLS, for the printed digits.
 fs_f <- lm(education ~ feducation, data = mz)
 ols_f <- lm(lwage ~ education, data = mz)
@@ -207,9 +261,11 @@ result <- list(
     partial_r2 = scalar("1 - sum(w * lm.wfit(Z, x_j, w)$residuals^2) / sum(w * lm.wfit(Z_exog, x_j, w)$residuals^2)"),
     wu_hausman_coef = scalar("lm.wfit(cbind(X, V), y, w)$coefficients of V, V the first-stage residuals"),
     estimatr = scalar("estimatr::iv_robust(f, data = d, se_type = 'classical' | 'HC0' | 'HC1'); se_type = 'CR0' with clusters = g"),
-    textbook = scalar("lm(education ~ feducation, data = mz); lm(lwage ~ education, data = mz)")
+    textbook = scalar("lm(education ~ feducation, data = mz); lm(lwage ~ education, data = mz)"),
+    absorbed = scalar("ivreg(lpacks ~ lrprice + lrincome + y1995 + state | lrincome + y1995 + state + tdiff + ctax, data = cig); vcovCL(m, cluster = g, type = 'HC0', cadjust = TRUE) * (n - 1) / (n - (length(coef(m)) - a)); summary(m, vcov. = <the same>, diagnostics = TRUE)")
   ),
   cases = cases,
+  absorbed = absorbed_cases,
   textbook = textbook
 )
 writeLines(to_json(result), out_path)
