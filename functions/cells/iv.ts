@@ -9,7 +9,13 @@ import { WEAK_F } from "../engine/ivCheck";
 import { retransformFactor } from "../engine/retransform";
 import type { OlsFit } from "../engine/fit";
 import { fitFor } from "./regression";
-import { guarded, hostError, num, options, safe, table, type Cell, type Table } from "./host";
+import type { ElxProblem } from "../engine/problems";
+import { guarded, hostError, num, options, safe, table, toHostError, type Cell, type Table } from "./host";
+
+/** A chosen-covariance statistic, or the error value saying why it is undefined. */
+function chosenCell(v: number, problem: ElxProblem | null): Cell {
+  return problem ? toHostError(problem) : num(v);
+}
 
 /** What no test of the instruments can show, said wherever 2SLS results are read. */
 export const IV_CAUTION = "No test can prove that an instrument has no direct effect on demand: that rests on knowing how prices are set. Associations, not causes; results depend on the sample and data quality.";
@@ -44,7 +50,7 @@ export function ivSummaryRows(fit: TwoStageFit, o: Options, leftOut: [string, Ce
   }
   fit.endogenousNames.forEach((name, j) => {
     rows.push([`First-stage F: ${name} (classical)`, check ? num(check.firstStages[j].f) : (checkProblem as Cell)]);
-    rows.push([`First-stage F: ${name} (${cov.label})`, check ? num(check.firstStages[j].fChosen) : (checkProblem as Cell)]);
+    rows.push([`First-stage F: ${name} (${cov.label})`, check ? chosenCell(check.firstStages[j].fChosen, check.firstStages[j].chosenProblem) : (checkProblem as Cell)]);
   });
   rows.push(["R² (structural residuals)", num(s.rSquared, "R² is undefined: y does not vary")]);
   rows.push(["Adjusted R²", num(s.adjRSquared, "adjusted R² is undefined: y does not vary")]);
@@ -73,13 +79,13 @@ export function ivCheckTable(y: unknown, x: unknown, opts: unknown, invocation: 
     const weak = (f: number) => (f < WEAK_F ? `below ${WEAK_F}: weak instruments by the rule of thumb (Staiger and Stock 1997; common practice)` : `at or above ${WEAK_F}: not weak by the rule of thumb (Staiger and Stock 1997; common practice)`);
     for (const r of c.firstStages) {
       body.push([`First-stage F: ${r.name} (classical)`, num(r.f), `${r.df1}, ${r.df2}`, num(r.p), weak(r.f)]);
-      body.push([`First-stage F: ${r.name} (${label})`, num(r.fChosen), `${r.df1}, ${r.df2}`, num(r.pChosen), weak(r.fChosen)]);
+      body.push([`First-stage F: ${r.name} (${label})`, chosenCell(r.fChosen, r.chosenProblem), `${r.df1}, ${r.df2}`, chosenCell(r.pChosen, r.chosenProblem), r.chosenProblem ? r.chosenProblem.message : weak(r.fChosen)]);
       body.push([`Partial R²: ${r.name}`, num(r.partialR2), "", "", "share of its variation, apart from the exogenous regressors, that the instruments explain"]);
     }
     const w = c.wuHausman;
     const wuReading = (p: number) => (p < 0.05 ? "rejected: OLS and 2SLS differ beyond chance, so the regressors named endogenous look endogenous" : "not rejected: no sign that OLS and 2SLS differ; OLS is more precise if the regressors are in fact exogenous");
     body.push(["Wu–Hausman (classical)", num(w.f), `${w.df1}, ${w.df2}`, num(w.p), wuReading(w.p)]);
-    body.push([`Wu–Hausman (${label})`, num(w.fChosen), `${w.df1}, ${w.df2}`, num(w.pChosen), wuReading(w.pChosen)]);
+    body.push([`Wu–Hausman (${label})`, chosenCell(w.fChosen, w.chosenProblem), `${w.df1}, ${w.df2}`, chosenCell(w.pChosen, w.chosenProblem), w.chosenProblem ? w.chosenProblem.message : wuReading(w.pChosen)]);
     if (c.sargan) {
       const s = c.sargan;
       body.push(["Sargan (n·R²)", num(s.statistic), s.df, num(s.p), s.p < 0.05 ? "rejected: at least one instrument is invalid (related to the error), though the test cannot say which" : "not rejected: no sign that the instruments disagree (this cannot show them valid)"]);

@@ -26,7 +26,7 @@
  */
 import { leastSquares, type LeastSquares, type QrFit } from "./leastSquares";
 import { chiSquareSf, fisherSf } from "./distributions";
-import { fail, unavailable } from "./problems";
+import { ElxProblem, fail, unavailable } from "./problems";
 import { sandwichCovariance, type CovarianceInput, type IvFit, type IvSe } from "./iv";
 
 /**
@@ -50,9 +50,11 @@ export interface FirstStageCheck {
   /** Classical F of the excluded instruments. */
   f: number;
   p: number;
-  /** Wald F with the chosen covariance. */
+  /** Wald F with the chosen covariance (NaN when it is undefined: see chosenProblem). */
   fChosen: number;
   pChosen: number;
+  /** Why the chosen-covariance F is undefined (a singular covariance), or null. */
+  chosenProblem: ElxProblem | null;
   df1: number;
   df2: number;
   partialR2: number;
@@ -63,6 +65,7 @@ export interface WuHausman {
   p: number;
   fChosen: number;
   pChosen: number;
+  chosenProblem: ElxProblem | null;
   df1: number;
   df2: number;
   /** Coefficients of the first-stage residuals in the augmented regression. */
@@ -126,6 +129,16 @@ function chosenF(fit: IvFit, design: Float64Array[], qr: QrFit, idx: number[], s
   return waldF(qr.coef, V, k, idx, what);
 }
 
+/** The chosen-covariance F, or NaN with the problem when that covariance is singular there. */
+function tolerant(compute: () => number): { value: number; problem: ElxProblem | null } {
+  try {
+    return { value: compute(), problem: null };
+  } catch (e) {
+    if (e instanceof ElxProblem && e.kind === "na") return { value: NaN, problem: e };
+    throw e;
+  }
+}
+
 function fmt(v: number): string {
   return v >= 100 ? v.toFixed(0) : v >= 10 ? v.toFixed(1) : v.toFixed(2);
 }
@@ -155,8 +168,9 @@ export function ivCheck(fit: IvFit, se: IvSe, chosen: CheckCovariance | null = n
     if (!(rssU > 0)) unavailable(`the instruments predict ${fs.name} exactly (first-stage residuals all zero), so its first-stage F is undefined`);
     const df2 = n - kz - a;
     const f = ((rssR - rssU) / q) / (rssU / df2);
-    const fChosen = classicalChosen ? f : chosenF(fit, Z, fs.qr, instIdx, se, `${fs.name}'s first stage`, chosen);
-    return { name: fs.name, f, p: fisherSf(f, q, df2), fChosen, pChosen: fisherSf(fChosen, q, df2), df1: q, df2, partialR2: (rssR - rssU) / rssR };
+    const ch = classicalChosen ? { value: f, problem: null } : tolerant(() => chosenF(fit, Z, fs.qr, instIdx, se, `${fs.name}'s first stage`, chosen));
+    const fChosen = ch.value;
+    return { name: fs.name, f, p: fisherSf(f, q, df2), fChosen, pChosen: ch.problem ? NaN : fisherSf(fChosen, q, df2), chosenProblem: ch.problem, df1: q, df2, partialR2: (rssR - rssU) / rssR };
   });
 
   // Wu–Hausman: y on [X, v̂], against y on X.
@@ -171,12 +185,14 @@ export function ivCheck(fit: IvFit, se: IvSe, chosen: CheckCovariance | null = n
   if (!(qrU.rss > 0)) unavailable("the Wu–Hausman regression fits exactly, so its F is undefined");
   const whF = ((qrR.rss - qrU.rss) / p) / (qrU.rss / df2);
   const vIdx = Array.from({ length: p }, (_, m) => k + m);
-  const whChosen = classicalChosen ? whF : chosenF(fit, aug, qrU, vIdx, se, "the first-stage residuals in the Wu–Hausman regression", chosen);
+  const wch = classicalChosen ? { value: whF, problem: null } : tolerant(() => chosenF(fit, aug, qrU, vIdx, se, "the first-stage residuals in the Wu–Hausman regression", chosen));
+  const whChosen = wch.value;
   const wuHausman: WuHausman = {
     f: whF,
     p: fisherSf(whF, p, df2),
     fChosen: whChosen,
-    pChosen: fisherSf(whChosen, p, df2),
+    pChosen: wch.problem ? NaN : fisherSf(whChosen, p, df2),
+    chosenProblem: wch.problem,
     df1: p,
     df2,
     coef: qrU.coef.slice(k),
@@ -192,18 +208,21 @@ export function ivCheck(fit: IvFit, se: IvSe, chosen: CheckCovariance | null = n
     sargan = { statistic, df: q - p, p: chiSquareSf(statistic, q - p) };
   }
 
-  const weakOnes = firstStages.filter((r) => Math.min(r.f, r.fChosen) < WEAK_F);
+  // the smaller of the two F (the classical one alone where the chosen one is undefined)
+  const low = (r: FirstStageCheck) => (Number.isFinite(r.fChosen) ? Math.min(r.f, r.fChosen) : r.f);
+  const weakOnes = firstStages.filter((r) => low(r) < WEAK_F);
   const parts: string[] = [];
   if (weakOnes.length > 0) {
-    const list = weakOnes.map((r) => `${r.name} (${fmt(Math.min(r.f, r.fChosen))})`);
+    const list = weakOnes.map((r) => `${r.name} (${fmt(low(r))})`);
     const named = list.length === 1 ? list[0] : `${list.slice(0, -1).join(", ")} and ${list[list.length - 1]}`;
     parts.push(`Weak instruments: the first-stage F is below 10 for ${named} (Staiger and Stock 1997; a rule of thumb, common practice), so the 2SLS estimates and intervals may be far off, pulled towards OLS; find a stronger instrument.`);
   } else {
     parts.push("The instruments are not weak by the rule of thumb first-stage F ≥ 10 (Staiger and Stock 1997; common practice).");
   }
-  parts.push(wuHausman.pChosen < 0.05
-    ? `Wu–Hausman rejects at 5% (p = ${wuHausman.pChosen.toPrecision(2)}): OLS and 2SLS differ beyond chance, so ${p === 1 ? `${fit.firstStages[0].name} looks endogenous` : "the named regressors look endogenous"}.`
-    : `Wu–Hausman does not reject at 5% (p = ${wuHausman.pChosen.toPrecision(2)}): no sign that OLS and 2SLS differ; OLS is more precise if the regressors are in fact exogenous.`);
+  const whP = Number.isFinite(wuHausman.pChosen) ? wuHausman.pChosen : wuHausman.p;
+  parts.push(whP < 0.05
+    ? `Wu–Hausman rejects at 5% (p = ${whP.toPrecision(2)}): OLS and 2SLS differ beyond chance, so ${p === 1 ? `${fit.firstStages[0].name} looks endogenous` : "the named regressors look endogenous"}.`
+    : `Wu–Hausman does not reject at 5% (p = ${whP.toPrecision(2)}): no sign that OLS and 2SLS differ; OLS is more precise if the regressors are in fact exogenous.`);
   if (sargan) {
     parts.push(sargan.p < 0.05
       ? `Sargan rejects at 5% (p = ${sargan.p.toPrecision(2)}): at least one instrument is invalid (related to the error), though the test cannot say which.`

@@ -58,6 +58,7 @@ interface FeCase {
   instrument_names: string[];
   instruments: number[][];
   state: string[];
+  weights: number[] | null;
   coefficients: number[];
   se: Record<string, number[]>;
   diagnostics: Record<string, Diag[]>;
@@ -65,7 +66,7 @@ interface FeCase {
 }
 const ref = JSON.parse(fs.readFileSync(path.join(__dirname, "iv.json"), "utf8")) as {
   cases: Record<string, IvCase>;
-  absorbed: { cigpanel_fe: FeCase };
+  absorbed: Record<string, FeCase>;
 };
 
 const COEF = 1e-10;
@@ -281,11 +282,17 @@ describe("readings and the rest of the functions on a 2SLS fit", () => {
   });
 });
 
-describe("2SLS with fixed effects and clustered errors (CigarettesSW, state effects, clustered by state)", () => {
-  const c = ref.absorbed.cigpanel_fe;
-  const x = rows([c.x[0].map(Math.exp), c.x[1].map(Math.exp), c.x[2], ...c.instruments, c.state], ["rprice", "rincome", "y1995", "tdiff", "ctax", "state"]);
+describe.each(["cigpanel_fe", "cigpanel_fe_w"])("2SLS with fixed effects and clustered errors (%s: CigarettesSW, state effects, clustered by state)", (label) => {
+  const c = ref.absorbed[label];
+  const cols: unknown[][] = [c.x[0].map(Math.exp), c.x[1].map(Math.exp), c.x[2], ...c.instruments, c.state];
+  const head = ["rprice", "rincome", "y1995", "tdiff", "ctax", "state"];
+  if (c.weights) {
+    cols.push(c.weights);
+    head.push("population");
+  }
+  const x = rows(cols, head);
   const y = rows([c.y.map(Math.exp)], ["packs"]);
-  const base = "estimator=2sls; endogenous=rprice; instruments=tdiff,ctax; levels=tdiff,ctax; absorb=state";
+  const base = `estimator=2sls; endogenous=rprice; instruments=tdiff,ctax; levels=tdiff,ctax; absorb=state${c.weights ? "; weights=population" : ""}`;
 
   test.each(["classical", "HC1", "cluster"])("ELX.FIT with %s errors: slopes to 1e-10, errors to 1e-9 (ivreg with factor(state), sandwich)", (type) => {
     const t = table(call(reg, "FIT", y, x, `${base}; ${type === "cluster" ? "cluster=state" : `se=${type}`}`), "FIT");
@@ -317,6 +324,42 @@ describe("2SLS with fixed effects and clustered errors (CigarettesSW, state effe
     expect(lookup(t, "Fixed effects absorbed")).toBe("state");
     expect(lookup(t, "Absorbed parameters")).toBe(c.absorbed);
     expectClose(lookup(t, "R² (structural residuals)"), c.r2, STAT, 0, "R²");
+  });
+});
+
+describe("Driscoll–Kraay and HAC within panels on a 2SLS fit (identities)", () => {
+  // Driscoll and Kraay (1998): S = Σ_{|l|≤L} w_l Σ_t h_t h_{t−l}ᵀ with h_t the scores summed over
+  // period t. Here there are T = 2 periods, so the default L = ⌊4(2/100)^(2/9)⌋ = 1 (w_1 = 1/2), and
+  // the 2SLS scores sum to zero (X̂ᵀe = 0), so h_2 = −h_1 and S = h_1h_1ᵀ: half of the meat of the
+  // errors clustered by period, Σ_t h_t h_tᵀ = 2h_1h_1ᵀ, which carry the factor G/(G−1)·(n−1)/(n−k)
+  // (Liang and Zeger 1986; the factor as sandwich::vcovCL(type = "HC1")). HAC within panels with no
+  // lags is HC0 (against R's vcovHC in iv.json).
+  const c = ref.cases.cigpanel;
+  const s = sheet(c);
+  const year = c.x[2].map((v) => (v === 1 ? 1995 : 1985));
+  const x = s.x.map((r, i) => [...r, i === 0 ? "year" : year[i - 1]]);
+  const opts = s.opts.replace("; cluster=state", "; panel=state");
+  test("se=DK over two years equals the cluster-by-year errors without their factor, halved in variance; panel HAC with lags=0 equals HC0", () => {
+    const dk = table(call(reg, "FIT", s.y, x, `${opts}; time=year; se=DK`), "FIT DK");
+    const byYear = table(call(reg, "FIT", s.y, x, `${opts}; cluster=year`), "FIT cluster");
+    const n = c.n;
+    const k = 4;
+    const factor = (2 / 1) * ((n - 1) / (n - k)) * 2;
+    for (let j = 1; j <= k; j++) expectClose(dk[j][3], (byYear[j][3] as number) / Math.sqrt(factor), STAT, 0, `DK ${j}`);
+    // HAC within panels needs each state's rows together: sorted by state (HC0 does not depend on order)
+    const order = c.clusters!.map((g, i) => ({ g, i })).sort((a, b) => (a.g < b.g ? -1 : a.g > b.g ? 1 : a.i - b.i)).map((v) => v.i + 1);
+    const sortRows = (r: unknown[][]) => [r[0], ...order.map((i) => r[i])];
+    const ph = table(call(reg, "FIT", sortRows(s.y), sortRows(s.x), `${opts}; se=HAC; lags=0`), "FIT panel HAC");
+    c.se.HC0.forEach((v, j) => expectClose(ph[j + 1][3], v, STAT, 0, `panel HAC ${j}`));
+    // two periods give a meat of rank one: the Wald F of two instruments is undefined under DK and
+    // says so in its own cells, while the classical rows and Sargan still come
+    const chk = table(call(reg, "IVCHECK", s.y, x, `${opts}; time=year; se=DK`), "IVCHECK DK");
+    const dkRow = chk.find((r) => String(r[0]).startsWith("First-stage F: rprice (Driscoll–Kraay")) as unknown[];
+    expect(problem(dkRow[1]).code).toBe("#N/A");
+    expect(problem(dkRow[1]).message).toBe("the covariance of rprice's first stage is singular under these errors, so its Wald F is undefined: use se=HC1 or more rows (or more clusters)");
+    expectClose(chk.find((r) => r[0] === "First-stage F: rprice (classical)")?.[1], diagRow(c.diagnostics.classical, "Weak instruments").statistic, STAT, 0, "classical F beside DK");
+    // one restriction: the Wu–Hausman Wald F is defined under DK too
+    expect(typeof (chk.find((r) => String(r[0]).startsWith("Wu–Hausman (Driscoll–Kraay")) as unknown[])[1]).toBe("number");
   });
 });
 

@@ -185,23 +185,24 @@ cases <- list(
 # the cluster factor is G/(G-1)(n-1)/(n-p) with p = the slopes only (k + a - a_n, a_n = a):
 #   vcovCL(m, cluster = g, type = "HC0", cadjust = TRUE) * (n - 1) / (n - p), p = length(coef) - a,
 # the same function for the auxiliary regressions of the diagnostics (p their own slopes).
-fe_case <- function() {
+fe_case <- function(weighted = FALSE) {
   d <- cig
   d$state <- factor(as.character(d$state))
+  d$.w <- if (weighted) d$population else rep(1, nrow(d))
   f <- lpacks ~ lrprice + lrincome + y1995 + state | lrincome + y1995 + state + tdiff + ctax
-  m <- ivreg(f, data = d)
+  m <- if (weighted) ivreg(f, data = d, weights = .w) else ivreg(f, data = d)
   n <- nobs(m)
   a <- nlevels(d$state)
   g <- as.character(d$state)
   cl <- function(x) vcovCL(x, cluster = g, type = "HC0", cadjust = TRUE) * (n - 1) / (n - (length(coef(x)) - a))
   slopes <- c("lrprice", "lrincome", "y1995")
-  fs <- lm(lrprice ~ lrincome + y1995 + state + tdiff + ctax, data = d)
+  fs <- lm(lrprice ~ lrincome + y1995 + state + tdiff + ctax, data = d, weights = .w)
   wald <- function(fit, idx) {
     b <- coef(fit)[idx]
     as.numeric(t(b) %*% solve(cl(fit)[idx, idx, drop = FALSE]) %*% b) / length(idx)
   }
   d$v <- residuals(fs)
-  wh <- lm(lpacks ~ lrprice + lrincome + y1995 + state + v, data = d)
+  wh <- lm(lpacks ~ lrprice + lrincome + y1995 + state + v, data = d, weights = .w)
   f1 <- wald(fs, c("tdiff", "ctax"))
   f2 <- wald(wh, "v")
   cluster_diag <- list(
@@ -209,7 +210,8 @@ fe_case <- function() {
     list(row = scalar("Wu-Hausman"), df1 = scalar(1), df2 = scalar(wh$df.residual), statistic = scalar(f2), p = scalar(pf(f2, 1, wh$df.residual, lower.tail = FALSE))))
   pick <- function(V) unname(sqrt(diag(V))[slopes])
   list(
-    note = scalar("AER CigarettesSW 1985 and 1995 with state fixed effects (factor(state) in both parts), clustered by state"),
+    note = scalar(paste0("AER CigarettesSW 1985 and 1995 with state fixed effects (factor(state) in both parts), clustered by state", if (weighted) ", weighted by population" else "")),
+    weights = if (weighted) unname(d$population) else NULL,
     formula = scalar(paste(deparse(f), collapse = " ")),
     n = scalar(n), absorbed = scalar(a),
     y = unname(d$lpacks),
@@ -232,7 +234,7 @@ fe_case <- function() {
     r2 = scalar(summary(m)$r.squared)
   )
 }
-absorbed_cases <- list(cigpanel_fe = fe_case())
+absorbed_cases <- list(cigpanel_fe = fe_case(), cigpanel_fe_w = fe_case(weighted = TRUE))
 
 # The textbook example's first stage and OLS, for the printed digits.
 fs_f <- lm(education ~ feducation, data = mz)
