@@ -21,9 +21,10 @@
  * above is done on the weighted columns; the structural residuals e are reported unweighted, and the
  * score residuals are √w·e.
  *
- * `covarianceInput` is the record every sandwich needs (the columns X̂ as used, their QR factor with
- * the score residuals in place of the second stage's own, n, k and the residual df), so that other
- * covariance types (two-way cluster, Driscoll–Kraay) can be computed from it without refitting.
+ * `covarianceInput` is covariance.ts's CovarianceInput: the columns X̂ as used, their QR factor, the
+ * score residuals √w·e, e'e and n − k; the one-way cluster covariance is panelCovariance.ts's on the
+ * same record, and ivModel.ts hands it to the Model's dispatch for every other type (two-way
+ * cluster, Driscoll–Kraay, HAC within panels, fixed effects).
  *
  * Cost: one QR of Z per endogenous regressor and one QR of X̂, each about 2·n·k² flops.
  */
