@@ -3,6 +3,7 @@
  * SMEARING, PREDICT, HETEROTEST, NORMALTEST, TESTS, FORMCHECK.
  */
 import { seTypeOf, type Form } from "../engine/options";
+import { estimatorOf } from "../engine/estimators";
 import { count, cut, fail, nearest, quote, ElxProblem } from "../engine/problems";
 import { asMatrix, isHeaderRow, originOf, xColumnNames } from "../engine/intake";
 import { apply, LEVEL, matchName } from "../engine/transforms";
@@ -18,7 +19,7 @@ export function smearingValue(y: unknown, x: unknown, opts: unknown, invocation:
   return guarded(() => {
     const o = options(opts);
     // 2SLS: the factor of its structural residuals (the one PREDICT applies); see README.md
-    const fit = o.estimator === "2sls" ? (fitFor(y, x, o, invocation) as unknown as OlsFit) : olsFor(y, x, o, invocation, "ELX.SMEARING");
+    const fit = estimatorOf(o).smearsResiduals ? (fitFor(y, x, o, invocation) as unknown as OlsFit) : olsFor(y, x, o, invocation, "ELX.SMEARING");
     if (o.retransform === "none") fail("retransform=none asks for no factor; use retransform=duan (default) or retransform=normal");
     return [[num(retransformFactor(fit, o.retransform))]];
   });

@@ -38,6 +38,11 @@ export interface EstimatorInfo {
   readonly statistic: "t" | "z";
   /** What to say when a function needs a residual variance this estimator does not have. */
   readonly noResidualVariance: string;
+  /**
+   * Whether SMEARING (and PREDICT's factor) read its residuals on the fitted scale although the
+   * residual tests do not apply (2SLS: the structural residuals y − Xb). Absent: as residualVariance.
+   */
+  readonly smearsResiduals?: boolean;
 }
 
 export interface EstimatorEntry extends EstimatorInfo {

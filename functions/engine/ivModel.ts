@@ -43,6 +43,7 @@ export const IV_INFO: EstimatorInfo = Object.freeze({
   exponentialMean: false,
   statistic: "t",
   noResidualVariance: "the residual tests and form checks read ordinary least-squares residuals, which 2SLS does not give: drop estimator=2sls for them (ELX.IVCHECK checks the instruments)",
+  smearsResiduals: true,
 } as const);
 
 /** Why HC2 and HC3 are refused under 2SLS. */
