@@ -12,6 +12,7 @@ import { byGroupTable } from "./cells/groups";
 import { breakTestTable, rollingTable } from "./cells/time";
 import { fitView, elasticitiesView, makeCaller, cacheStats, readColumns, type CellFunction, type ElasticellApi } from "./paneApi";
 import { formCheckTable, heteroValue, normalValue, predictTable, smearingValue, testsTable } from "./cells/diagnostics";
+import { ivCheckTable } from "./cells/iv";
 
 /**
  * Fits a log model by least squares and returns the coefficient table: Term, Transform, Coefficient, Std. error (its type in the header), t, p-value and the interval. Default form log-log, HC3 errors.
@@ -170,11 +171,25 @@ export function formcheck(y: any[][], x: any[][], options?: string, invocation?:
   return formCheckTable(y, x, options, invocation);
 }
 
+/**
+ * Checks of a two-stage least squares fit (estimator=2sls): per endogenous regressor the first-stage F of the excluded instruments (classical and with the chosen errors), its p-value and partial R²; Wu–Hausman; Sargan when there are more instruments than endogenous regressors; a one-line reading.
+ * @customfunction IVCHECK
+ * @param y Dependent variable: one column.
+ * @param x Regressors and the instrument columns: one or more columns, same rows as y.
+ * @param [options] Text like "estimator=2sls; endogenous=Price; instruments=Flour cost". Keys: estimator, endogenous, instruments, form, levels, se, lags, zeros, absorb, cluster, weights, headers.
+ * @requiresParameterAddresses
+ * @returns The table of checks.
+ */
+export function ivcheck(y: any[][], x: any[][], options?: string, invocation?: CustomFunctions.Invocation): any[][] {
+  return ivCheckTable(y, x, options, invocation);
+}
+
 // Published for the pane (shared runtime): the same module instances, so the same fit cache.
 const cellFunctions = {
   FIT: fit, ELASTICITY: elasticity, ELASTICITIES: elasticities, EFFECTS: effects, SUMMARY: summary, ZEROS: zeros,
   SMEARING: smearing, PREDICT: predict, HETEROTEST: heterotest, NORMALTEST: normaltest, TESTS: tests, FORMCHECK: formcheck, BYGROUP: bygroup,
   ROLLING: rolling, BREAKTEST: breaktest,
+  IVCHECK: ivcheck,
 };
 const published: ElasticellApi = {
   functions: cellFunctions as unknown as Record<string, CellFunction>,

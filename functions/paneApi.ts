@@ -5,7 +5,7 @@
  * loads (no DOM, no host API). The pane only reads: nothing here writes to a workbook.
  */
 import { getFit, cacheStats } from "./engine/model";
-import { parseOptions, seTypeOf } from "./engine/options";
+import { parseOptions, seTypeOf, type Estimator } from "./engine/options";
 import { ElxProblem } from "./engine/problems";
 import { transformLabel } from "./engine/transforms";
 import { readYX, type Origin } from "./engine/intake";
@@ -80,7 +80,7 @@ export interface ElasticitiesView {
   level: number;
   /** The covariance type, as the table's header names it (HC3, HC1, classical, HAC with its lags). */
   seLabel: string;
-  estimator: "ols" | "ppml";
+  estimator: Estimator;
   items: ElasticityItem[];
   /** A caution to show beside clustered errors with fewer than about 30 clusters (null otherwise). */
   clusterCaution: string | null;

@@ -51,7 +51,7 @@ const { HostError, loadFunctions: loadBundle } = require("./host-shim");
 const loadFunctions = () => loadBundle(BUNDLE);
 const registry = loadFunctions();
 const KNOWN_IDS = ["FIT", "ELASTICITY", "ELASTICITIES", "EFFECTS", "SUMMARY", "ZEROS", "SMEARING", "PREDICT",
-  "HETEROTEST", "NORMALTEST", "TESTS", "FORMCHECK", "BYGROUP", "ROLLING", "BREAKTEST"];
+  "HETEROTEST", "NORMALTEST", "TESTS", "FORMCHECK", "BYGROUP", "ROLLING", "BREAKTEST", "IVCHECK"];
 /** A registered entry that converts ranges only, if a build exposes one for benchmarking. */
 const CONVERT_ID = [...registry.keys()].find((id) => /^(INTAKE|CONVERT|COLUMNS|READRANGES?)$/i.test(id)) || null;
 
@@ -610,6 +610,93 @@ CASES.push({
     dropData("ppml");
   },
 });
+// 2SLS: 10^5 rows, 5 regressors (the first endogenous), 2 instruments, in levels with HC1 errors;
+// against the plain FIT of the same y on the same 5 regressors (HC1) and R's AER::ivreg + vcovHC.
+function makeIvData(n) {
+  const z = normals(4242);
+  const y = new Float64Array(n);
+  const cols = Array.from({ length: 7 }, () => new Float64Array(n)); // x1..x5, z1, z2
+  const yRows = new Array(n);
+  const xRows = new Array(n);
+  const plainRows = new Array(n);
+  for (let i = 0; i < n; i++) {
+    const u = 0.5 * z();
+    const z1 = z();
+    const z2 = z();
+    const x2 = z();
+    const x3 = z();
+    const x4 = z();
+    const x5 = z();
+    const x1 = 0.6 * z1 + 0.4 * z2 + 0.2 * x2 + 0.5 * u + 0.3 * z();
+    const row = [x1, x2, x3, x4, x5, z1, z2];
+    row.forEach((v, j) => (cols[j][i] = v));
+    y[i] = 3 - 1.5 * x1 + 0.4 * x2 - 0.2 * x3 + 0.1 * x4 + 0.05 * x5 + u;
+    yRows[i] = [y[i]];
+    xRows[i] = row;
+    plainRows[i] = row.slice(0, 5);
+  }
+  const head = ["x1", "x2", "x3", "x4", "x5", "z1", "z2"];
+  return { n, y, cols, yRows: [["y"], ...yRows], xRows: [head, ...xRows], plainRows: [head.slice(0, 5), ...plainRows] };
+}
+const IV_R_SCRIPT = `
+suppressPackageStartupMessages({ library(AER); library(sandwich) })
+args <- commandArgs(trailingOnly = TRUE)
+file <- args[1]; n <- as.integer(args[2]); runs <- as.integer(args[3])
+con <- file(file, "rb"); v <- readBin(con, "double", n * 8); close(con)
+m <- matrix(v, nrow = n, ncol = 8); rm(v)
+d <- data.frame(y = m[, 1], x1 = m[, 2], x2 = m[, 3], x3 = m[, 4], x4 = m[, 5], x5 = m[, 6], z1 = m[, 7], z2 = m[, 8])
+t <- numeric(runs)
+for (r in seq_len(runs)) {
+  gc()
+  t[r] <- system.time({
+    fm <- ivreg(y ~ x1 + x2 + x3 + x4 + x5 | x2 + x3 + x4 + x5 + z1 + z2, data = d)
+    se <- sqrt(diag(vcovHC(fm, type = "HC1")))
+  })[["elapsed"]]
+}
+cat(sprintf("median %.6f\\n", median(t)))
+cat("b", sprintf("%.17g", coef(fm)), "\\n")
+`;
+CASES.push({
+  name: "2sls n=10^5,k=5",
+  requires: ["FIT"],
+  async run() {
+    const d = data("2sls", () => makeIvData(1e5));
+    const ivOpts = "form=level-level; estimator=2sls; endogenous=x1; instruments=z1,z2; se=HC1";
+    const freshIv = () => {
+      variant++;
+      const yRows = d.yRows.slice();
+      const i = 1 + (variant % d.n);
+      yRows[i] = [d.yRows[i][0] * (1 + 1e-9 * variant)];
+      return { yRows, xRows: d.xRows, plainRows: d.plainRows };
+    };
+    const ti = await timeRuns(5, freshIv, (p) => invoke("FIT", p.yRows, p.xRows, ivOpts), 1);
+    const tp = await timeRuns(5, freshIv, (p) => invoke("FIT", p.yRows, p.plainRows, "form=level-level; se=HC1"), 1);
+    const fits = ti.median / tp.median;
+    store.iv = { ours: ti.median, fits };
+    let note = `plain FIT (HC1) ${fmtMs(tp.median)}: 2SLS = ${fits.toFixed(2)} plain fits`;
+    if (HAVE_R) {
+      const dir = fs.mkdtempSync(path.join(os.tmpdir(), "elx-bench-2sls-"));
+      try {
+        const bin = path.join(dir, "data.bin");
+        const fd = fs.openSync(bin, "w");
+        for (const c of [d.y, ...d.cols]) fs.writeSync(fd, Buffer.from(c.buffer, c.byteOffset, c.byteLength));
+        fs.closeSync(fd);
+        fs.writeFileSync(path.join(dir, "iv.R"), IV_R_SCRIPT);
+        const res = spawnSync("Rscript", ["--vanilla", path.join(dir, "iv.R"), bin, String(d.n), "5"], { encoding: "utf8", maxBuffer: 1 << 24 });
+        const line = (res.stdout || "").split("\n").find((l) => l.startsWith("median "));
+        if (res.status === 0 && line) {
+          const rMs = 1000 * Number(line.split(/\s+/)[1]);
+          store.iv.r = rMs / ti.median;
+          note += `; R AER::ivreg + vcovHC(HC1) ${fmtMs(rMs)}: R / ELX = ${store.iv.r.toFixed(2)}x`;
+        } else note += `; R: ${((res.stderr || "").trim().split("\n").pop() || "failed").slice(0, 60)}`;
+      } finally {
+        fs.rmSync(dir, { recursive: true, force: true });
+      }
+    }
+    results.push(["ELX.FIT estimator=2sls (1 endogenous, 2 instruments, HC1)", "n=10^5,k=5", fmtMs(ti.median), note]);
+    dropData("2sls");
+  },
+});
 CASES.push({
   name: "panel 1000x100,k=5",
   requires: ["FIT"],
@@ -844,6 +931,10 @@ async function main() {
   if (store.bygroup !== undefined) targets.push(["BYGROUP vs loop of ELASTICITIES", "(ratio printed)", `${store.bygroup.toFixed(2)}x`, ""]);
   if (store.rolling !== undefined) targets.push(["ROLLING 10^5 rows, k=5, 100 windows", "< 0.5 s", fmtMs(store.rolling), yes(store.rolling < 500)]);
   if (store.breaktest !== undefined) targets.push(["BREAKTEST sup-F 10^4 rows, k=5", "< 0.5 s", fmtMs(store.breaktest), yes(store.breaktest < 500)]);
+  if (store.iv) {
+    targets.push(["FIT estimator=2sls n=10^5, k=5, 2 instruments", "< 3 plain fits", `${store.iv.fits.toFixed(2)} fits`, yes(store.iv.fits < 3)]);
+    targets.push(["  against R (AER::ivreg + vcovHC HC1)", "(ratio printed)", store.iv.r !== undefined ? `${store.iv.r.toFixed(2)}x` : HAVE_R ? "n/a" : "no R", ""]);
+  }
   out("");
   out("Targets (README, speed)");
   printTable(["Target", "Goal", "Measured", ""], targets);

@@ -3,6 +3,7 @@
  * SMEARING, PREDICT, HETEROTEST, NORMALTEST, TESTS, FORMCHECK.
  */
 import { seTypeOf, type Form, type Options } from "../engine/options";
+import { estimatorOf } from "../engine/estimators";
 import { count, cut, fail, nearest, quote, unavailable, ElxProblem } from "../engine/problems";
 import { asMatrix, isHeaderRow, keyText, originOf, xColumnNames } from "../engine/intake";
 import { apply, LEVEL, matchName } from "../engine/transforms";
@@ -17,7 +18,8 @@ import { guarded, hostError, intervalHeaders, levelLabel, num, options, originsO
 export function smearingValue(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
   return guarded(() => {
     const o = options(opts);
-    const fit = olsFor(y, x, o, invocation, "ELX.SMEARING");
+    // 2SLS: the factor of its structural residuals (the one PREDICT applies); see README.md
+    const fit = estimatorOf(o).smearsResiduals ? (fitFor(y, x, o, invocation) as unknown as OlsFit) : olsFor(y, x, o, invocation, "ELX.SMEARING");
     if (o.retransform === "none") fail("retransform=none asks for no factor; use retransform=duan (default) or retransform=normal");
     return [[num(retransformFactor(fit, o.retransform))]];
   });

@@ -13,7 +13,8 @@ export function byGroupTable(keys: unknown, y: unknown, x: unknown, opts: unknow
     const o = options(opts);
     const origins = originsOf(invocation);
     const g = getGroups(keys, y, x, o, origins[1] ?? null, origins[2] ?? null);
-    const ppml = !estimatorOf(o).residualVariance;
+    const info = estimatorOf(o);
+    const ppml = info.exponentialMean;
     const se = seTypeOf(o);
     // A term binary in every group fitted has no elasticity anywhere: its header says where to look
     // and its cells stay empty (never #N/A, which would break a sum over the column).
@@ -23,6 +24,7 @@ export function byGroupTable(keys: unknown, y: unknown, x: unknown, opts: unknow
     g.xNames.forEach((n, j) => header.push(`Elasticity: ${n}${binaryEverywhere[j] ? ` (${BINARY_NOTE})` : ""}`, `Std. error: ${n}`));
     header.push(ppml ? "Pseudo R²" : "R²");
     if (!ppml) header.push("Breusch–Pagan p");
+    const noBp = info.residualVariance ? null : hostError("na", `Breusch–Pagan reads least-squares residuals; ${info.noResidualVariance}`);
     const width = header.length;
     const body: Table = g.groups.map((grp) => {
       const row: Cell[] = [grp.key, grp.rows];
@@ -52,7 +54,7 @@ export function byGroupTable(keys: unknown, y: unknown, x: unknown, opts: unknow
       if (fit.estimator === "ppml") row.push(num(fit.statistics().pseudoRSquared)); // narrows the fit's type
       else {
         row.push(num(fit.statistics().rSquared, "R² is undefined: y does not vary in this group"));
-        row.push(safe(() => num(fit.memo("test:bp", () => breuschPaganKoenker(fit as OlsFit)).pValue)));
+        row.push(noBp ?? safe(() => num(fit.memo("test:bp", () => breuschPaganKoenker(fit as OlsFit)).pValue)));
       }
       return row;
     });

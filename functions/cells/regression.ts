@@ -15,6 +15,7 @@ import type { PpmlFit } from "../engine/ppml";
 import { fewClustersNote, negativeVarianceReason } from "../engine/panelCovariance";
 import type { Covariance } from "../engine/covariance";
 import type { Model } from "../engine/fit";
+import { ivSummaryRows } from "./iv";
 import { guarded, hostError, intervalHeaders, num, options, originsOf, table, safe, type Cell, type Table } from "./host";
 
 /** Fit for a cell function whose first two parameters are y and x. */
@@ -283,6 +284,7 @@ export function summaryTable(y: unknown, x: unknown, opts: unknown, invocation: 
     const o = options(opts);
     const fit = fitFor(y, x, o, invocation);
     if (fit.estimator === "ppml") return table(["Statistic", "Value"], ppmlSummaryRows(fit, o), o);
+    if (fit.estimator === "2sls") return table(["Statistic", "Value"], ivSummaryRows(fit, o, leftOutRows(fit.data)), o);
     const s = fit.statistics();
     const cov = fit.covariance(seTypeOf(o), o.lags);
     const g = fit.data.yTransform;

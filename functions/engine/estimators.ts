@@ -16,6 +16,7 @@ import type { Dataset } from "./transforms";
 import type { Model } from "./fit";
 import { OlsFit, OLS_INFO } from "./fit";
 import { PpmlFit, PPML_INFO } from "./ppml";
+import { TwoStageFit, IV_INFO } from "./ivModel";
 import { fail } from "./problems";
 
 /** What the engine needs to know about an estimator besides its fit. */
@@ -37,6 +38,11 @@ export interface EstimatorInfo {
   readonly statistic: "t" | "z";
   /** What to say when a function needs a residual variance this estimator does not have. */
   readonly noResidualVariance: string;
+  /**
+   * Whether SMEARING (and PREDICT's factor) read its residuals on the fitted scale although the
+   * residual tests do not apply (2SLS: the structural residuals y − Xb). Absent: as residualVariance.
+   */
+  readonly smearsResiduals?: boolean;
 }
 
 export interface EstimatorEntry extends EstimatorInfo {
@@ -44,9 +50,18 @@ export interface EstimatorEntry extends EstimatorInfo {
 }
 
 export const ESTIMATORS: Readonly<Record<Estimator, EstimatorEntry>> = Object.freeze({
-  ols: { ...OLS_INFO, build: (data: Dataset, o: Options) => new OlsFit(data, o.intercept) },
-  ppml: { ...PPML_INFO, build: (data: Dataset, o: Options) => new PpmlFit(data, o.intercept) },
+  ols: { ...OLS_INFO, build: (data: Dataset, o: Options) => (refuseInstruments(OLS_INFO, o), new OlsFit(data, o.intercept)) },
+  ppml: { ...PPML_INFO, build: (data: Dataset, o: Options) => (refuseInstruments(PPML_INFO, o), new PpmlFit(data, o.intercept)) },
+  "2sls": { ...IV_INFO, build: (data: Dataset, o: Options) => new TwoStageFit(data, o) },
 });
+
+/** instruments= and endogenous= belong to estimator=2sls: elsewhere they are refused, never ignored. */
+function refuseInstruments(info: EstimatorInfo, o: Options): void {
+  if (o.instruments.length === 0 && o.endogenous.length === 0) return;
+  const given = o.instruments.length > 0 ? "instruments=" : "endogenous=";
+  if (info.exponentialMean) fail(`${given} with estimator=${info.id} is not offered: instrumental variables are available for least squares only (estimator=2sls); drop ${given} for PPML, or use estimator=2sls`);
+  fail(`${given} applies to two-stage least squares: add estimator=2sls (with both endogenous= and instruments=), or drop ${given}`);
+}
 
 /** The estimator named by the options. */
 export function estimatorOf(o: Options): EstimatorEntry {

@@ -8,9 +8,10 @@ import { ElxProblem, fail } from "./problems";
 import { prepare } from "./transforms";
 import type { OlsFit } from "./fit";
 import type { PpmlFit } from "./ppml";
+import type { TwoStageFit } from "./ivModel";
 import { estimatorOf } from "./estimators";
 
-export type AnyFit = OlsFit | PpmlFit;
+export type AnyFit = OlsFit | PpmlFit | TwoStageFit;
 
 /** At most this many fits are kept (each cell function of a block reads the same one). */
 export const CACHE_ENTRIES = 32;

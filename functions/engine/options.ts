@@ -9,7 +9,7 @@
 import { cut, fail, nearest, quote } from "./problems";
 
 export type Form = "log-log" | "log-level" | "level-log" | "level-level";
-export type Estimator = "ols" | "ppml";
+export type Estimator = "ols" | "ppml" | "2sls";
 export type SeType = "classical" | "HC0" | "HC1" | "HC2" | "HC3" | "HAC" | "cluster" | "DK";
 export type ZeroPolicy = "stop" | "drop" | "shift" | "ihs";
 export type AtPoint = "mean" | "median";
@@ -91,7 +91,7 @@ export const DEFAULTS: Readonly<Options> = Object.freeze({
 
 const CHOICES: Record<string, readonly string[]> = {
   form: ["log-log", "log-level", "level-log", "level-level"],
-  estimator: ["ols", "ppml"],
+  estimator: ["ols", "ppml", "2sls"],
   se: ["HC3", "HC0", "HC1", "HC2", "classical", "HAC", "cluster", "DK"],
   zeros: ["stop", "drop", "shift", "ihs"],
   at: ["mean", "median"],
