@@ -3,9 +3,9 @@
  * Demo data for Elasticell: "Harrow & Crumb", an invented regional bakery chain.
  *
  * Writes data/demo.json and data/demo.csv: 12 stores x 104 weeks of one product line (sourdough
- * loaves), columns Store, Week, Units, Price, Footfall, Promo, Income, Branch, FlourCost, Period,
+ * loaves), columns Store, Week, Units, Price, Footfall, Promo, Income, Branch, Period, FlourCost,
  * Rival. Branch and Period repeat Store and Week beside the regressors (role columns must sit inside
- * the x block: D:H holds the regressors and Branch, D:I adds FlourCost). The numbers are simulated
+ * the x block: D:H holds the regressors and Branch, D:I adds Period, D:J adds FlourCost). The numbers are simulated
  * from a known model (recorded under "truth" in the JSON) so that the demo can put estimates next
  * to the values that generated them. Invented data: for the demo and simulation checks only.
  *
@@ -259,9 +259,10 @@ const BUSY_RESPONSE = 0.8;
 const hasRival = (store, week) => RIVAL_STORES.includes(store) && week >= RIVAL_WEEK;
 
 // ---------- simulation ----------
-// Columns H..K repeat Store and Week as Branch and Period beside the regressors, so that one x block
-// (D:H, D:I) holds the regressors and the key columns that absorb=, cluster= and time= name.
-const header = ["Store", "Week", "Units", "Price", "Footfall", "Promo", "Income", "Branch", "FlourCost", "Period", "Rival"];
+// Columns H and I repeat Store and Week as Branch and Period beside the regressors, so that one x
+// block holds the regressors and the key columns that absorb=, cluster= and time= name: D:H for
+// fixed effects and clusters, D:I with the periods for windows and breaks, D:J with FlourCost for 2SLS.
+const header = ["Store", "Week", "Units", "Price", "Footfall", "Promo", "Income", "Branch", "Period", "FlourCost", "Rival"];
 const rows = [];
 for (const st of stores) {
   let flourLocal = (FLOUR_LOCAL_SD / Math.sqrt(1 - FLOUR_LOCAL_RHO * FLOUR_LOCAL_RHO)) * rnd.normal();
@@ -338,8 +339,8 @@ for (const st of stores) {
       promoOut,
       income,
       st.name,
-      flour,
       t,
+      flour,
       rival,
     ]);
   }
@@ -428,10 +429,10 @@ const out = {
   stockouts: STOCKOUTS.map(([store, week, reason]) => ({ store, week, reason })),
   blanks: BLANKS.map(([store, week, column, reason]) => ({ store, week, column, reason })),
   sheetLayout:
-    "columns A..K = Store, Week, Units, Price, Footfall, Promo, Income, Branch, FlourCost, Period, Rival; " +
+    "columns A..K = Store, Week, Units, Price, Footfall, Promo, Income, Branch, Period, FlourCost, Rival; " +
     "row 1 headers; rows 2..1249 data (stores in the order listed, weeks 1..104 within each store); " +
-    "Branch and Period repeat Store and Week beside the regressors so that x blocks D:H and D:I hold " +
-    "the key columns the role options name",
+    "Branch and Period repeat Store and Week beside the regressors so that the x blocks D:H (fixed " +
+    "effects, clusters), D:I (with periods) and D:J (with the instrument) hold the columns the role options name",
   columns: header,
   rows,
 };
