@@ -14,6 +14,7 @@ import { checkData, yieldToPage, type CheckResult, type Estimator, type Form } f
 import { intervalPlot, quantilePlot, residualPlot, shortNumber, type IntervalRow } from "./charts";
 import { CAUTIONS, formAssumptions, smearingNote, testReadings } from "./assumptions";
 import { buildBlock, type BlockItem } from "./formulas";
+import { detectRoles, instrumentParagraph, keySentence, optionSafe, roleAssumptions, roleColumns, roleOptions, type ColumnRoles, type RoleChoices } from "./roles";
 import { formatAddress } from "./address";
 // Types only: the pane reads the functions' published object at run time, never their modules.
 import type { ElasticellApi, ElasticitiesView, Outcome } from "../functions/paneApi";
@@ -32,14 +33,24 @@ export interface Choices {
   se: string;
   zeros: string;
   level: string;
+  /** Option words of the role choices (absorb=, cluster=, weights=, time=, the 2SLS words): see taskpane/roles.ts. */
+  roles?: string[];
 }
 
-/** The options text for the chosen controls (estimator only when not the default). */
+/**
+ * The options text for the chosen controls (estimator only when not the default). A cluster= choice
+ * writes se=cluster in place of the chosen se; under 2SLS, HC2 and HC3 become HC1 (2SLS offers
+ * classical, HC0, HC1, cluster, HAC and DK).
+ */
 export function optionsText(c: Choices, override: Partial<Choices> = {}): string {
   const o = { ...c, ...override };
+  const roles = o.roles ?? [];
   const parts = [`form=${o.form}`];
   if (o.estimator === "ppml") parts.push("estimator=ppml");
-  parts.push(`se=${o.se}`, `zeros=${o.zeros}`, `level=${o.level}`);
+  const twoStage = roles.includes("estimator=2sls") && o.estimator !== "ppml";
+  const se = roles.some((w) => w.startsWith("cluster=")) ? "cluster" : twoStage && (o.se === "HC2" || o.se === "HC3") ? "HC1" : o.se;
+  parts.push(`se=${se}`, `zeros=${o.zeros}`, `level=${o.level}`);
+  for (const w of roles) if (w !== "estimator=2sls" || twoStage) parts.push(w);
   return parts.join("; ");
 }
 
@@ -102,7 +113,16 @@ const TEMPLATE = `
       <select id="elx-se"><option>HC3</option><option>HC1</option><option>HC0</option><option>HC2</option><option value="classical">classical</option><option value="HAC">HAC (weekly series)</option></select></div>
     <div><label for="elx-level">Interval level</label>
       <select id="elx-level"><option value="0.9">90%</option><option value="0.95" selected>95%</option><option value="0.99">99%</option></select></div>
+    <div><label for="elx-absorb">Fixed effects (absorb)</label>
+      <select id="elx-absorb"><option value="">none</option></select></div>
+    <div><label for="elx-cluster">Cluster errors by</label>
+      <select id="elx-cluster"><option value="">none</option></select></div>
+    <div><label for="elx-weights">Weights</label>
+      <select id="elx-weights"><option value="">none</option></select></div>
+    <div><label for="elx-instrument">Instrument for the price</label>
+      <select id="elx-instrument"><option value="">none (least squares)</option></select></div>
   </div>
+  <p id="elx-roles-note" class="elx-muted">Fixed effects, clusters, weights and an instrument are columns of x; the pane lists them after the first check.</p>
   <button type="button" id="elx-run" class="elx-primary">Check ranges and model</button>
   <div id="elx-status" class="elx-status" role="status" aria-live="polite"></div>
   <progress id="elx-progress" class="elx-hidden" max="1" value="0" aria-label="Progress of the check"></progress>
@@ -168,7 +188,7 @@ export class Pane {
     root.innerHTML = TEMPLATE;
     const q = (id: string) => root.querySelector(`#${id}`) as HTMLElement;
     this.el = Object.fromEntries(
-      ["elx-y", "elx-x", "elx-form", "elx-estimator", "elx-zeros", "elx-se", "elx-level", "elx-run", "elx-status", "elx-progress", "elx-check", "elx-check-body", "elx-verdict", "elx-verdict-body", "elx-write-what",
+      ["elx-y", "elx-x", "elx-form", "elx-estimator", "elx-zeros", "elx-se", "elx-level", "elx-absorb", "elx-cluster", "elx-weights", "elx-instrument", "elx-roles-note", "elx-run", "elx-status", "elx-progress", "elx-check", "elx-check-body", "elx-verdict", "elx-verdict-body", "elx-write-what",
         "elx-choices", "elx-choices-body", "elx-pictures", "elx-pictures-body", "elx-assume", "elx-assume-body", "elx-target", "elx-write-btn", "elx-write-msg", "elx-y-sel", "elx-x-sel"]
         .map((id) => [id, q(id)]),
     );
@@ -197,9 +217,45 @@ export class Pane {
     return this.el[id] as HTMLInputElement;
   }
 
+  /** The key columns, weight and instrument candidates of the last x read. */
+  columnRoles: ColumnRoles = { keys: [], numeric: [], price: null, costs: [] };
+
+  roleChoices(): RoleChoices {
+    const v = (id: string) => (this.el[id] as HTMLSelectElement).value;
+    return { absorb: v("elx-absorb"), cluster: v("elx-cluster"), weights: v("elx-weights"), instrument: this.twoStageRegistered() ? v("elx-instrument") : "" };
+  }
+
   choices(): Choices {
     const v = (id: string) => (this.el[id] as HTMLInputElement | HTMLSelectElement).value;
-    return { form: v("elx-form") as Form, estimator: v("elx-estimator") as Estimator, se: v("elx-se"), zeros: v("elx-zeros"), level: v("elx-level") };
+    return { form: v("elx-form") as Form, estimator: v("elx-estimator") as Estimator, se: v("elx-se"), zeros: v("elx-zeros"), level: v("elx-level"), roles: roleOptions(this.roleChoices(), this.columnRoles) };
+  }
+
+  /** Whether this build of the functions fits two-stage least squares (ELX.IVCHECK is registered). */
+  twoStageRegistered(): boolean {
+    const e = engine();
+    return !!e && typeof e.functions.IVCHECK === "function";
+  }
+
+  /** Fills the role lists from the x columns (keeping a choice that is still there). */
+  private fillRoles(roles: ColumnRoles): void {
+    this.columnRoles = roles;
+    const fill = (id: string, none: string, names: string[], pick = "") => {
+      const sel = this.el[id] as HTMLSelectElement;
+      const keep = sel.value;
+      sel.innerHTML = `<option value="">${esc(none)}</option>` + names.filter(optionSafe).map((n) => `<option value="${esc(n)}">${esc(n)}</option>`).join("");
+      sel.value = names.includes(keep) ? keep : pick;
+    };
+    const keys = roles.keys.map((k) => k.name);
+    fill("elx-absorb", "none", keys);
+    fill("elx-cluster", "none", keys);
+    fill("elx-weights", "none", roles.numeric.filter((n) => n !== roles.price));
+    // Cost-like names first; any other numeric column can be chosen by hand.
+    const others = roles.numeric.filter((n) => n !== roles.price && !roles.costs.includes(n));
+    fill("elx-instrument", "none (least squares)", roles.price && this.twoStageRegistered() ? [...roles.costs, ...others] : []);
+    const note = this.el["elx-roles-note"];
+    note.textContent = roles.keys.length
+      ? `Key columns in x: ${roles.keys.map((k) => `${k.name} (${k.distinct} values)`).join(", ")}. Choose them for fixed effects or clusters.`
+      : "No key column (text, or whole numbers with few values) in x: fixed effects and clusters need one.";
   }
 
   private status(text: string): void {
@@ -258,9 +314,12 @@ export class Pane {
         return;
       }
       const tRead = performance.now();
+      this.fillRoles(detectRoles(x.value));
       const choices = this.choices();
       step("Checking the data…", 0.05);
-      const check = await checkData({ y: y.value, x: x.value, form: choices.form, estimator: choices.estimator }, (f) => step("Checking the data…", 0.05 + 0.25 * f));
+      const check = await checkData({ y: y.value, x: x.value, form: choices.form, estimator: choices.estimator, roles: roleColumns(this.roleChoices(), this.columnRoles) }, (f) => step("Checking the data…", 0.05 + 0.25 * f));
+      const keys = keySentence(this.columnRoles);
+      if (keys) check.sentences.push({ severity: "note", text: keys });
       if (stale()) return;
       this.renderCheck(check, y.value, x.value);
       const tCheck = performance.now();
@@ -336,7 +395,7 @@ export class Pane {
 
   private renderCheck(c: CheckResult, y: RangeSnapshot, x: RangeSnapshot): void {
     const head = `<p class="elx-muted">y ${esc(y.address)}, x ${esc(x.address)}${y.clipped || x.clipped ? " (cut to the sheet's used cells)" : ""}: ${fmt(c.rows)} data rows, ${fmt(c.usable)} usable.</p>`;
-    const rows = c.columns.map((col) => `<tr><th scope="row">${esc(col.name)}${col.role === "y" ? " (y)" : ""}</th><td>${fmt(col.values)}</td><td>${fmt(col.blank + col.text + col.errors)}</td><td>${fmt(col.zeros)}</td><td>${fmt(col.negatives)}</td><td>${col.binary ? "binary" : col.logged ? "log" : "levels"}</td></tr>`).join("");
+    const rows = c.columns.map((col) => `<tr><th scope="row">${esc(col.name)}${col.role === "y" ? " (y)" : ""}</th><td>${fmt(col.values)}</td><td>${fmt(col.blank + col.text + col.errors)}</td><td>${fmt(col.zeros)}</td><td>${fmt(col.negatives)}</td><td>${col.role === "key" ? "key / role" : col.binary ? "binary" : col.logged ? "log" : "levels"}</td></tr>`).join("");
     const tableHtml = c.columns.length === 0 ? "" : `<div class="elx-table-wrap"><table id="elx-check-table" class="elx-compact"><caption>Per column, over the data rows</caption><thead><tr><th scope="col">Column</th><th scope="col">Values</th><th scope="col">Blank, text or error</th><th scope="col">Zeros</th><th scope="col">Below zero</th><th scope="col">Taken as</th></tr></thead><tbody>${rows}</tbody></table></div>`;
     const label = { problem: "Problem:", warning: "Warning:", note: "Note:" };
     const sentences = `<ul class="elx-sentences" id="elx-sentences">${c.sentences.map((s) => `<li class="elx-${s.severity}"><span class="elx-tag">${label[s.severity]}</span>${esc(s.text)}</li>`).join("")}</ul>`;
@@ -461,7 +520,45 @@ export class Pane {
     } else {
       tests = "<p>The specification tests (ELX.TESTS) are for the least-squares forms; the pictures above show the least-squares residuals for comparison.</p>";
     }
-    this.show("elx-assume", paras.map((p) => `<h3>${esc(p.heading)}</h3><p>${esc(p.text)}</p>`).join("") + tests);
+    const roles = this.roleChoices();
+    paras.push(...roleAssumptions(roles, this.columnRoles));
+    const iv = this.instrumentHtml(eng);
+    this.show("elx-assume", paras.map((p) => `<h3>${esc(p.heading)}</h3><p>${esc(p.text)}</p>`).join("") + iv + tests);
+  }
+
+  /**
+   * When x holds a price column and a plausible cost column (or one chosen by hand): what an
+   * instrument must satisfy, and, when two-stage least squares is in this build, the price
+   * elasticity by least squares (x without the instrument column) and by 2SLS side by side.
+   */
+  private instrumentHtml(eng: EngineApi): string {
+    const s = this.state as RunState;
+    const r = this.columnRoles;
+    const chosen = this.roleChoices().instrument;
+    const cost = chosen || r.costs[0];
+    if (!r.price || !cost) return "";
+    const registered = this.twoStageRegistered();
+    const para = instrumentParagraph(r.price, cost, registered);
+    let html = `<section id="elx-instrument-section"><h3>${esc(para.heading)}</h3><p>${esc(para.text)}</p>`;
+    if (registered && chosen) {
+      const c = s.choices;
+      const ivOpts = optionsText(c, { estimator: "ols" });
+      const olsOpts = optionsText(c, { estimator: "ols", roles: (c.roles ?? []).filter((w) => !/^(estimator|endogenous|instruments)=/.test(w)) });
+      // least squares on x without the instrument column (it is not a regressor)
+      const header = s.xCells[0] ?? [];
+      const j = header.findIndex((h) => typeof h === "string" && h.trim() === chosen);
+      const xOls = j < 0 ? s.xCells : s.xCells.map((row) => row.filter((_, k) => k !== j));
+      const a = eng.elasticitiesView(s.yCells, xOls, olsOpts, null, null);
+      const b = eng.elasticitiesView(s.yCells, s.xCells, ivOpts, null, null);
+      const row = (label: string, v: Outcome<ElasticitiesView>) => {
+        const it = v.ok ? v.value.items.find((i) => i.term === r.price) : undefined;
+        return `<tr data-estimator="${esc(label)}"><th scope="row">${esc(label)}</th>${it ? [it.estimate, it.lower, it.upper].map((n) => `<td>${esc(cellText(n))}</td>`).join("") : `<td colspan="3">${esc(v.ok ? "no price term" : v.message)}</td>`}</tr>`;
+      };
+      const lv = percent(Number(c.level));
+      html += `<div class="elx-table-wrap"><table id="elx-iv-table" class="elx-compact"><caption>${esc(r.price)} elasticity, least squares against 2SLS with ${esc(cost)}</caption><thead><tr><th scope="col">Estimator</th><th scope="col">Elasticity</th><th scope="col">Low (${esc(lv)})</th><th scope="col">High (${esc(lv)})</th></tr></thead><tbody>${row("least squares", a)}${row("2SLS", b)}</tbody></table></div>`;
+      html += `<p class="elx-muted">2SLS intervals are wider: that is the price of removing the bias, not a worse fit. ELX.IVCHECK in the written block gives the first-stage F and the Wu–Hausman test.</p>`;
+    }
+    return html + "</section>";
   }
 
   /**
@@ -508,6 +605,7 @@ export class Pane {
     if (s.choices.estimator === "ols" && s.check.columns.some((col) => col.role === "x" && col.binary) && s.choices.form.startsWith("log")) out.push({ id: "EFFECTS", label: "Percent effects of binary columns (ELX.EFFECTS)" });
     if (s.choices.estimator === "ols") out.push({ id: "TESTS", label: "Specification tests (ELX.TESTS)" });
     out.push({ id: "SUMMARY", label: "Fit summary (ELX.SUMMARY)" });
+    if ((s.choices.roles ?? []).includes("estimator=2sls") && s.choices.estimator === "ols" && this.twoStageRegistered()) out.push({ id: "IVCHECK", label: "Instrument check (ELX.IVCHECK)" });
     return out;
   }
 

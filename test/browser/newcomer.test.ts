@@ -278,10 +278,10 @@ describe("the formula writer (item 7)", () => {
 describe("the sheet view and the pane's tables (item 8)", () => {
   it("draws long text only over empty cells: a label stops at the next non-empty cell", async () => {
     await openPreview();
-    // I1 holds a long label; put something in K1, two cells to its right.
-    await page.evaluate(() => (window as any).ElxPreview.setInput("K1", "note"));
+    // M1 holds a long label; put something in O1, two cells to its right.
+    await page.evaluate(() => (window as any).ElxPreview.setInput("O1", "note"));
     const r = await page.evaluate(() => {
-      const td = document.querySelector('td[data-a="I1"]') as HTMLElement;
+      const td = document.querySelector('td[data-a="M1"]') as HTMLElement;
       const walker = document.createTreeWalker(td, NodeFilter.SHOW_TEXT);
       const text = walker.nextNode() as Text;
       const range = document.createRange();
@@ -291,10 +291,10 @@ describe("the sheet view and the pane's tables (item 8)", () => {
       for (let el: HTMLElement | null = text.parentElement; el && !el.classList.contains("pv-scroll"); el = el.parentElement) {
         if (getComputedStyle(el).overflowX !== "visible") right = Math.min(right, el.getBoundingClientRect().right);
       }
-      return { right, next: (document.querySelector('td[data-a="K1"]') as HTMLElement).getBoundingClientRect().left, over: (document.querySelector('td[data-a="J1"]') as HTMLElement).getBoundingClientRect().left };
+      return { right, next: (document.querySelector('td[data-a="O1"]') as HTMLElement).getBoundingClientRect().left, over: (document.querySelector('td[data-a="N1"]') as HTMLElement).getBoundingClientRect().left };
     });
     expect(r.right).toBeLessThanOrEqual(r.next + 0.5);
-    // …and still runs over the empty J1.
+    // …and still runs over the empty N1.
     expect(r.right).toBeGreaterThan(r.over);
   });
 
