@@ -234,8 +234,8 @@ describe("the formula writer (item 7)", () => {
   it("reserves the room of the results the formulas give once the data are fixed, and says they return errors now", async () => {
     await openPreview();
     await readmeSteps(); // zeros=stop: every formula returns #VALUE! on these data
-    const msg = await write("R2");
-    expect(msg).toMatch(/^Written at Sales!R2:[A-Z]+\d+: 5 formulas \(ELX\.FIT, ELX\.ELASTICITIES, ELX\.EFFECTS, ELX\.TESTS, ELX\.SUMMARY\), but all of them return an error for these ranges and options now: /);
+    const msg = await write("W2");
+    expect(msg).toMatch(/^Written at Sales!W2:[A-Z]+\d+: 5 formulas \(ELX\.FIT, ELX\.ELASTICITIES, ELX\.EFFECTS, ELX\.TESTS, ELX\.SUMMARY\), but all of them return an error for these ranges and options now: /);
     const stop = engine("FIT", Y, X, OPTS("stop"), INVOCATION) as HostError;
     expect(msg).toContain(stop.message);
     expect(msg).not.toContain("with room for their results.");
