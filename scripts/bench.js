@@ -702,7 +702,7 @@ async function main() {
   targets.push([`peak memory during the ${store.memory ? store.memory.key : dname(1e6, 10)} fit`, "< 3x input", store.memory ? `${store.memory.heapX.toFixed(2)}x heap, ${store.memory.rssX.toFixed(2)}x RSS` : "n/a", yes(store.memory ? store.memory.worst < 3 : null)]);
   if (store.bygroup !== undefined) targets.push(["BYGROUP vs loop of ELASTICITIES", "(ratio printed)", `${store.bygroup.toFixed(2)}x`, ""]);
   out("");
-  out("Targets (from the issue)");
+  out("Targets (README, speed)");
   printTable(["Target", "Goal", "Measured", ""], targets);
   out("");
   out("Peak memory: extra bytes above the pre-call baseline (after global.gc()), as a multiple of the input as");

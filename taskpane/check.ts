@@ -1,6 +1,6 @@
 /**
  * The pane's data check: what the chosen log form will do to the y and x ranges, per column and per
- * row, before any number is trusted. It follows the catalogue's range rules (a first row all text is
+ * row, before any number is trusted. It follows the range rules of README's function reference (a first row all text is
  * a header row; TRUE/FALSE count as 1/0; a row with a blank, text or error cell is left out; a binary
  * 0/1 column stays in levels under a log x side) and tells blank from zero by the host's value types.
  *
@@ -8,6 +8,7 @@
  * the pane responsive, and reports progress.
  */
 import type { RangeSnapshot, ValueType } from "./host";
+import { defaultXName, headerNames, isHeaderRow as engineHeaderRow, uniqueNames } from "../functions/engine/intake";
 
 export type Form = "log-log" | "log-level" | "level-log" | "level-level";
 export type Estimator = "ols" | "ppml";
@@ -79,8 +80,12 @@ function rowsList(rows: number[], total: number): string {
   return total > rows.length || total > KEEP_ROWS ? `${shown} …` : shown;
 }
 
+/**
+ * The engine's header rule (a first row whose non-empty cells are all text, at least one), with the
+ * host's value types where it gave them: a cell typed as a number is never a header cell.
+ */
 function isHeaderRow(values: unknown[], types: ValueType[] | undefined): boolean {
-  return values.length > 0 && values.every((v, j) => (types ? types[j] === "String" : true) && typeof v === "string" && v.trim() !== "");
+  return engineHeaderRow(values) && values.every((v, j) => !types || types[j] === "String" || types[j] === "Empty" || v === null || v === "");
 }
 
 function transpose<T>(m: T[][]): T[][] {
@@ -153,8 +158,15 @@ export async function checkData(input: CheckInput, progress: (fraction: number) 
   if (xv.length === 1 && xv[0].length === 1 && yv.length > 2) {
     sentences.push({ severity: "warning", text: `x is a single cell (${input.x.address}): select the regressor columns, header row included.` });
   }
-  const yHeader = isHeaderRow(yv[0], yt[0]);
-  const xHeader = isHeaderRow(xv[0], xt[0]);
+  let yHeader = isHeaderRow(yv[0], yt[0]);
+  let xHeader = isHeaderRow(xv[0], xt[0]);
+  // As in the engine: ranges of the same height share the header row, so a blank first row beside a
+  // header is a header too.
+  const blankRow = (r: unknown[]) => r.every((v) => v === null || v === undefined || (typeof v === "string" && v.trim() === ""));
+  if (yv.length === xv.length && yHeader !== xHeader) {
+    if (!yHeader && blankRow(yv[0])) yHeader = true;
+    if (!xHeader && blankRow(xv[0])) xHeader = true;
+  }
   const yRows = yv.length - (yHeader ? 1 : 0);
   const xRows = xv.length - (xHeader ? 1 : 0);
   if (yRows === 0 || xRows === 0) return fail("The ranges hold a header row but no data rows below it.");
@@ -164,7 +176,11 @@ export async function checkData(input: CheckInput, progress: (fraction: number) 
   }
   const rows = yRows;
   const k = xv[0].length;
-  const names = [yHeader ? String(yv[0][0]).trim() : "y", ...Array.from({ length: k }, (_, j) => (xHeader ? String(xv[0][j]).trim() : `x${j + 1}`))];
+  // Names as the engine gives them: empty header cells by their default names, unique across y and x.
+  const names = uniqueNames([
+    yHeader ? headerNames(yv[0], () => "y").names[0] : "y",
+    ...(xHeader ? headerNames(xv[0], defaultXName).names : Array.from({ length: k }, (_, j) => defaultXName(j))),
+  ]);
   const logY = input.estimator === "ols" && (input.form === "log-log" || input.form === "log-level");
   const logX = input.form === "log-log" || input.form === "level-log";
 

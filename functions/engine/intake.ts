@@ -1,10 +1,13 @@
 /**
  * Intake: cell ranges as the host passes them → numeric columns and a report of what was left out.
  *
- * The catalogue's "Ranges" rules, in one place: a first row that is all text is a header row; numbers
+ * The range rules of README's function reference, in one place: a first row whose non-empty cells are
+ * all text is a header row (an empty cell there takes its default name); numbers
  * are used as they are; TRUE/FALSE count as 1/0; null, undefined, "" (and white space) are blank; a
  * row with a blank, text, error or non-finite cell in y or any x column is left out (listwise) and
- * counted, with its sheet row number kept. Rows at the bottom that are blank in y and in every x
+ * counted, with its sheet row number kept. Columns of x named in a role option (absorb, factors,
+ * cluster, panel, time: keys compared by their text; weights, instruments: numbers) are not regressors
+ * and go through the same listwise deletion. Rows at the bottom that are blank in y and in every x
  * column (a whole-column reference) are not observations: they are trimmed and not counted.
  * A single-row y is data laid out across: y and x are then read with variables in rows.
  *

@@ -20,7 +20,7 @@
  * Each auxiliary regression runs on the engine's QR; an auxiliary column that is an exact combination
  * of earlier ones is dropped and the degrees of freedom count only the columns kept.
  */
-import { leastSquares } from "./leastSquares";
+import { leastSquares, residualSS } from "./leastSquares";
 import { chiSquareSf, fisherSf } from "./distributions";
 import { count, fail, requireFeasible, unavailable } from "./problems";
 import type { OlsFit } from "./fit";
@@ -69,6 +69,29 @@ export function auxiliary(v: Float64Array, W: Float64Array[]): AuxFit {
   }
 }
 
+/** Condition estimate of the fit's design above which its factor is not reused for an auxiliary regression. */
+export const REUSE_CONDITION = 1e6;
+
+/**
+ * v on the fit's own design (intercept and regressors, as Breusch–Pagan uses it) through the fit's QR
+ * factor: the corrected semi-normal equations (two passes of n·k) instead of a new factorisation.
+ * Only for a plain fit with an intercept whose regressors enter unscaled and whose design is well
+ * conditioned; null otherwise (the caller factorises the auxiliary design itself).
+ */
+export function onFitDesign(fit: OlsFit, v: Float64Array): AuxFit | null {
+  if (!fit.plain || !fit.intercept || fit.qr.refined || !(fit.qr.condition < REUSE_CONDITION)) return null;
+  const W = regressors(fit);
+  if (W.some((c, j) => c !== fit.data.x[j])) return null;
+  const n = v.length;
+  const rss = residualSS(fit.design, fit.qr, v, new Float64Array(n));
+  let mean = 0;
+  for (let i = 0; i < n; i++) mean += v[i];
+  mean /= n;
+  let tss = 0;
+  for (let i = 0; i < n; i++) tss += (v[i] - mean) * (v[i] - mean);
+  return { rss, tss, kept: fit.k };
+}
+
 /** The model's regressors other than the intercept (as fitted: transformed; scaled if extreme). */
 function regressors(fit: OlsFit): Float64Array[] {
   return fit.memo("test:regressors", () => fit.data.x.map(working));
@@ -105,8 +128,8 @@ function requireSpread(fit: OlsFit): void {
 const HET_REJECT = "spread of the errors changes with the regressors: use robust errors (se=HC3, the default) and read intervals with care";
 const HET_KEEP = "no evidence against a constant spread";
 
-function nR2(e2: Float64Array, W: Float64Array[], name: string): TestResult {
-  const a = auxiliary(e2, W);
+function nR2(e2: Float64Array, W: Float64Array[], name: string, reuse: AuxFit | null = null): TestResult {
+  const a = reuse ?? auxiliary(e2, W);
   const df = a.kept - 1;
   if (df <= 0) unavailable(`${name} needs at least one regressor besides the intercept`);
   if (!(a.tss > 0)) unavailable(`${name} is undefined: the squared residuals do not vary`);
@@ -118,7 +141,8 @@ function nR2(e2: Float64Array, W: Float64Array[], name: string): TestResult {
 /** Studentized Breusch–Pagan (Koenker 1981). */
 export function breuschPaganKoenker(fit: OlsFit): TestResult {
   requireSpread(fit);
-  return nR2(squaredResiduals(fit), regressors(fit), "Breusch–Pagan (Koenker, studentized)");
+  const e2 = squaredResiduals(fit);
+  return nR2(e2, regressors(fit), "Breusch–Pagan (Koenker, studentized)", onFitDesign(fit, e2));
 }
 
 /** Original Breusch–Pagan (1979): ESS/2 of e²/σ̂² on the regressors. */
@@ -130,7 +154,7 @@ export function breuschPaganOriginal(fit: OlsFit): TestResult {
   for (let i = 0; i < n; i++) ss += e[i] * e[i];
   const sigma2 = ss / n;
   const g = Float64Array.from(e, (v) => (v * v) / sigma2);
-  const a = auxiliary(g, regressors(fit));
+  const a = onFitDesign(fit, g) ?? auxiliary(g, regressors(fit));
   const df = a.kept - 1;
   if (df <= 0) unavailable("Breusch–Pagan needs at least one regressor besides the intercept");
   const stat = (a.tss - a.rss) / 2;

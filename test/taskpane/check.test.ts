@@ -75,3 +75,22 @@ describe("data check", () => {
     expect(c.lostToLog).toBe(450);
   });
 });
+
+describe("the data check reads headers and names as the engine does (one intake rule)", () => {
+  // The rule is the engine's (functions/engine/intake.ts, readYX): a first row whose non-empty cells
+  // are all text is a header; an empty header cell takes its default name; names are unique across y and x.
+  it("a header row with one empty cell is a header, and that column is called x2", async () => {
+    const y = snap("Sales!C1:C4", 1, [["Units"], [120], [95], [130]]);
+    const x = snap("Sales!D1:E4", 1, [["Price", ""], [2.1, 3], [2.4, 4], [2.2, 5]]);
+    const c = await checkData({ y, x, form: "level-level", estimator: "ols" });
+    expect(c.rows).toBe(3);
+    expect(c.columns.map((col) => col.name)).toEqual(["Units", "Price", "x2"]);
+  });
+
+  it("duplicate headers get the engine's unique names (p, p (2), p (3))", async () => {
+    const y = snap("Sales!C1:C4", 1, [["p"], [120], [95], [130]]);
+    const x = snap("Sales!D1:E4", 1, [["p", "p"], [2.1, 3], [2.4, 4], [2.2, 5]]);
+    const c = await checkData({ y, x, form: "level-level", estimator: "ols" });
+    expect(c.columns.map((col) => col.name)).toEqual(["p", "p (2)", "p (3)"]);
+  });
+});

@@ -1,4 +1,4 @@
-# Reference values for the issue-3 cell functions (SMEARING, PREDICT, HETEROTEST, NORMALTEST,
+# Reference values for the diagnostics cell functions (SMEARING, PREDICT, HETEROTEST, NORMALTEST,
 # TESTS, FORMCHECK and the SUMMARY rows for retransformation factors, VIFs and the condition
 # number), from R's stats package and the lmtest, sandwich and MASS packages.
 #
@@ -382,7 +382,7 @@ if (length(py_out) == 1 && is.null(attr(py_out, "status"))) {
 unlink(py_file)
 
 result <- list(
-  description = scalar("Reference values for ELX.SMEARING, PREDICT, HETEROTEST, NORMALTEST, TESTS, FORMCHECK and SUMMARY's issue-3 rows; written by test/reference/scripts/diagnostics.R"),
+  description = scalar("Reference values for ELX.SMEARING, PREDICT, HETEROTEST, NORMALTEST, TESTS, FORMCHECK and SUMMARY's retransformation rows; written by test/reference/scripts/diagnostics.R"),
   r_version = scalar(R.version.string),
   packages = list(
     lmtest = scalar(as.character(packageVersion("lmtest"))),

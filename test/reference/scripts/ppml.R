@@ -1,4 +1,4 @@
-# Reference values for issue 4: PPML (estimator=ppml), the shift and inverse-hyperbolic-sine fits
+# Reference values for PPML (estimator=ppml), the shift and inverse-hyperbolic-sine fits
 # with their elasticities (zeros=shift, zeros=ihs), the SUMMARY "PPML contrast" and one ELX.BYGROUP
 # group, from R's stats package (glm with family = quasipoisson, lm) and the sandwich and lmtest
 # packages.
