@@ -21,8 +21,8 @@ const sheet = book.activeSheet;
 const FE = "zeros=drop; absorb=Branch; cluster=Branch";
 /** 2SLS with the flour cost index as the instrument for Price (x D:J: Period is named so it is not a regressor). */
 const IV = `${FE}; time=Period; estimator=2sls; endogenous=Price; instruments=FlourCost`;
-/** The four stores a rival opens near (rows 2..417): windows of periods, one series per store. */
-const TIME = "zeros=drop; absorb=Branch; time=Period; panel=Branch";
+/** The four stores a rival opens near (rows 2..417): periods, one series per store, HC1 errors. */
+const TIME = "zeros=drop; time=Period; panel=Branch; se=HC1";
 
 /**
  * The formulas on the demo sheet: label above, formula below, in column M (the data fill A:K).
@@ -41,8 +41,8 @@ export const DEMO_FORMULAS: { at: string; label: string; formula: string; needs?
   { at: "M81", label: "Store fixed effects (absorb=Branch), errors clustered by store", formula: `=ELX.ELASTICITIES(C1:C1249, D1:H1249, "${FE}")` },
   { at: "M88", label: "Two-stage least squares, FlourCost as the instrument for Price", formula: `=ELX.ELASTICITIES(C1:C1249, D1:J1249, "${IV}")`, needs: "IVCHECK" },
   { at: "M95", label: "Is FlourCost a strong instrument? (first stage, Wu–Hausman)", formula: `=ELX.IVCHECK(C1:C1249, D1:J1249, "${IV}")`, needs: "IVCHECK" },
-  { at: "M103", label: "Rival stores (rows 2–417): elasticities over 26-week windows", formula: `=ELX.ROLLING(C1:C417, D1:I417, 26, "${TIME}; step=13")`, needs: "ROLLING" },
-  { at: "M115", label: "Rival stores: did the model change in week 61?", formula: `=ELX.BREAKTEST(C1:C417, D1:I417, 61, "${TIME}")`, needs: "BREAKTEST" },
+  { at: "M103", label: "Rival stores (rows 2–417): elasticities over 52-week windows, store effects in each", formula: `=ELX.ROLLING(C1:C417, D1:I417, 52, "${TIME}; absorb=Branch; step=13")`, needs: "ROLLING" },
+  { at: "M112", label: "Rival stores: did the model change in week 61?", formula: `=ELX.BREAKTEST(C1:C417, D1:I417, 61, "${TIME}")`, needs: "BREAKTEST" },
 ];
 
 /** Seeded synthetic data for the benchmark: Units on Price, Footfall, Promo, Income (invented). */

@@ -137,7 +137,7 @@ const RIVAL_LAST = 1 + 104 * demo.truth.rival.stores.length;
 const YR = range("C", "C", 1, RIVAL_LAST);
 const XR = range("D", "I", 1, RIVAL_LAST); // the regressors, Branch and Period of those stores
 const Y1 = range("C", "C", 1, 105); // Northgate alone
-const X1 = range("D", "G", 1, 105);
+const X1 = range("D", "I", 1, 105);
 
 // A small block of what-if rows an analyst might type beside the data (I1:L4).
 const SCENARIO = {
@@ -512,13 +512,14 @@ async function changeSection(truth) {
   const stores = truth.rival.stores.join(", ");
   out(`Rows 1..${RIVAL_LAST} are the four stores a rival opens near in week ${truth.rival.fromWeek} (${stores}).`);
   out(`x is ${XR.address}: the regressors, Branch and Period. Windows count periods (time=Period), each`);
-  out("store's rows are one series (panel=Branch), and each window has its own store effects.");
-  const yx = [YR.address, XR.address];
-  const opts = "zeros=drop; absorb=Branch; time=Period; panel=Branch";
+  out("store's rows are one series (panel=Branch). Each 52-week window has its own store effects");
+  out("(absorb=Branch); HC1 errors, because in a short window one row can alone determine a store's");
+  out("intercept (leverage 1), where HC3 is undefined.");
+  const opts = "zeros=drop; time=Period; panel=Branch; se=HC1";
   if (has("ROLLING")) {
-    const rollOpts = `${opts}; step=13`;
-    await formula(`=ELX.ROLLING(${YR.address}, ${XR.address}, 26, ${q(rollOpts)})`, "ROLLING",
-      [YR.cells, XR.cells, 26, rollOpts], [YR.address, XR.address, null, null]);
+    const rollOpts = "zeros=drop; absorb=Branch; time=Period; panel=Branch; step=13; se=HC1";
+    await formula(`=ELX.ROLLING(${YR.address}, ${XR.address}, 52, ${q(rollOpts)})`, "ROLLING",
+      [YR.cells, XR.cells, 52, rollOpts], [YR.address, XR.address, null, null]);
     out(`  (true average price elasticity of these stores: ${round3(mean(stores4(truth)))} up to week ${truth.rival.fromWeek - 1}, ` +
       `${round3(mean(stores4(truth)) + truth.rival.elasticityShift)} from week ${truth.rival.fromWeek})`);
   } else {
@@ -526,12 +527,15 @@ async function changeSection(truth) {
     out("  ELX.ROLLING is not in the build loaded: rolling windows are unavailable.");
   }
   if (has("BREAKTEST")) {
+    out("");
+    out("The break test pools the four stores (BREAKTEST takes no absorb=; factors=Branch cannot share");
+    out("the column with panel=), so the store differences stay in the intercept of each regime:");
     await formula(`=ELX.BREAKTEST(${YR.address}, ${XR.address}, ${truth.rival.fromWeek}, ${q(opts)})`, "BREAKTEST",
       [YR.cells, XR.cells, truth.rival.fromWeek, opts], [YR.address, XR.address, null, null]);
     out("");
-    out(`Northgate alone (${Y1.address}, ${X1.address}), the break at its 61st data row (week ${truth.rival.fromWeek}):`);
-    await formula(`=ELX.BREAKTEST(${Y1.address}, ${X1.address}, ${truth.rival.fromWeek}, "zeros=drop")`, "BREAKTEST",
-      [Y1.cells, X1.cells, truth.rival.fromWeek, "zeros=drop"], [Y1.address, X1.address, null, null]);
+    out(`Northgate alone (${Y1.address}, ${X1.address}), the break at week ${truth.rival.fromWeek}:`);
+    await formula(`=ELX.BREAKTEST(${Y1.address}, ${X1.address}, ${truth.rival.fromWeek}, ${q(opts)})`, "BREAKTEST",
+      [Y1.cells, X1.cells, truth.rival.fromWeek, opts], [Y1.address, X1.address, null, null]);
     out(`  (Northgate's true price elasticity: ${truth.pricePerStore.Northgate} before, ${truth.rival.pricePerStoreAfter.Northgate} from week ${truth.rival.fromWeek})`);
   } else {
     out("");

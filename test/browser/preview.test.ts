@@ -183,7 +183,7 @@ describe("the preview workbook", () => {
     const ids = await page.evaluate(() => [...(window as any).ElxPreviewWorkbook.registry.keys()]);
     const input = (a: string) => page.evaluate((x) => (window as any).ElxPreview.input(x), a);
     expect(await input("M88")).toBe(ids.includes("IVCHECK") ? '=ELX.ELASTICITIES(C1:C1249, D1:J1249, "zeros=drop; absorb=Branch; cluster=Branch; time=Period; estimator=2sls; endogenous=Price; instruments=FlourCost")' : null);
-    expect(await input("M103")).toBe(ids.includes("ROLLING") ? '=ELX.ROLLING(C1:C417, D1:I417, 26, "zeros=drop; absorb=Branch; time=Period; panel=Branch; step=13")' : null);
+    expect(await input("M103")).toBe(ids.includes("ROLLING") ? '=ELX.ROLLING(C1:C417, D1:I417, 52, "zeros=drop; time=Period; panel=Branch; se=HC1; absorb=Branch; step=13")' : null);
     if (ids.includes("IVCHECK")) {
       const xi = [demo.columns.slice(3, 10), ...demo.rows.map((r) => r.slice(3, 10))];
       const iv = engine("ELASTICITIES", Y, xi, "zeros=drop; absorb=Branch; cluster=Branch; time=Period; estimator=2sls; endogenous=Price; instruments=FlourCost", { parameterAddresses: [`Sales!C1:C${N + 1}`, `Sales!D1:J${N + 1}`] }) as unknown[][];
