@@ -11,7 +11,7 @@
 import css from "./pane.css";
 import { engineValues, Host, hostRunner, type RangeSnapshot } from "./host";
 import { checkData, yieldToPage, type CheckResult, type Estimator, type Form } from "./check";
-import { intervalPlot, quantilePlot, residualPlot, shortNumber, type IntervalRow } from "./charts";
+import { intervalPlot, normalQuantile, pathPlot, quantilePlot, residualPlot, shortNumber, type IntervalRow, type PathPoint } from "./charts";
 import { CAUTIONS, formAssumptions, smearingNote, testReadings } from "./assumptions";
 import { buildBlock, type BlockItem } from "./formulas";
 import { detectRoles, instrumentParagraph, keySentence, optionSafe, roleAssumptions, roleColumns, roleOptions, type ColumnRoles, type RoleChoices } from "./roles";
@@ -147,6 +147,10 @@ const TEMPLATE = `
   <h2 id="elx-h-assume">What this form assumes</h2>
   <div id="elx-assume-body"></div>
 </section>
+<section id="elx-change" class="elx-hidden" aria-labelledby="elx-h-change">
+  <h2 id="elx-h-change">Change over time</h2>
+  <div id="elx-change-body"></div>
+</section>
 <section id="elx-write" aria-labelledby="elx-h-write">
   <h2 id="elx-h-write">Put the formulas in the sheet</h2>
   <p class="elx-muted" id="elx-write-what">${WRITE_BEFORE_CHECK}</p>
@@ -189,7 +193,7 @@ export class Pane {
     const q = (id: string) => root.querySelector(`#${id}`) as HTMLElement;
     this.el = Object.fromEntries(
       ["elx-y", "elx-x", "elx-form", "elx-estimator", "elx-zeros", "elx-se", "elx-level", "elx-absorb", "elx-cluster", "elx-weights", "elx-instrument", "elx-roles-note", "elx-run", "elx-status", "elx-progress", "elx-check", "elx-check-body", "elx-verdict", "elx-verdict-body", "elx-write-what",
-        "elx-choices", "elx-choices-body", "elx-pictures", "elx-pictures-body", "elx-assume", "elx-assume-body", "elx-target", "elx-write-btn", "elx-write-msg", "elx-y-sel", "elx-x-sel"]
+        "elx-choices", "elx-choices-body", "elx-pictures", "elx-pictures-body", "elx-assume", "elx-assume-body", "elx-change", "elx-change-body", "elx-target", "elx-write-btn", "elx-write-msg", "elx-y-sel", "elx-x-sel"]
         .map((id) => [id, q(id)]),
     );
     this.el["elx-y-sel"].addEventListener("click", () => void this.useSelection("elx-y"));
@@ -234,6 +238,87 @@ export class Pane {
   twoStageRegistered(): boolean {
     const e = engine();
     return !!e && typeof e.functions.IVCHECK === "function";
+  }
+
+  /** Whether this build registers a cell function (ROLLING, BREAKTEST, IVCHECK). */
+  registered(id: string): boolean {
+    const e = engine();
+    return !!e && typeof e.functions[id] === "function";
+  }
+
+  /**
+   * Windows and breaks for the checked options, when x holds a period column (time=): windows of 52
+   * periods (half the periods when there are fewer than 104), moved on by a quarter of that; the
+   * unit of a panel is the absorbed or clustered key. HC1 errors: in a short window one row can alone
+   * determine a fixed effect, where HC3 is undefined. Breaks pool the units (no absorb=, no cluster=).
+   */
+  windowPlan(): { window: number; step: number; time: string; rolling: string; breaks: string } | null {
+    const s = this.state;
+    if (!s || s.choices.estimator !== "ols") return null;
+    const words = s.choices.roles ?? [];
+    const time = words.find((w) => w.startsWith("time="))?.slice(5);
+    if (!time) return null;
+    const periods = this.columnRoles.keys.find((k) => k.name === time)?.distinct ?? 0;
+    if (periods < 8) return null;
+    const window = periods >= 104 ? 52 : Math.max(4, Math.floor(periods / 2));
+    const step = Math.max(1, Math.round(window / 4));
+    const unit = words.find((w) => w.startsWith("absorb="))?.slice(7) ?? words.find((w) => w.startsWith("cluster="))?.slice(8);
+    const keep = words.filter((w) => !/^(cluster|estimator|endogenous|instruments)=/.test(w) && w !== "estimator=2sls");
+    const panel = unit ? [`panel=${unit}`] : [];
+    const rolling = optionsText(s.choices, { se: "HC1", roles: [...keep, ...panel, `step=${step}`] });
+    const breaks = optionsText(s.choices, { se: "HC1", roles: [...keep.filter((w) => !w.startsWith("absorb=")), ...panel] });
+    return { window, step, time, rolling, breaks };
+  }
+
+  /**
+   * The price (or first) elasticity's path over rolling windows with its band, and the break test's
+   * reading, when ROLLING and BREAKTEST are registered and x holds a period column. The tables are
+   * read by position in their decided layout (From, To, Observations, then Elasticity and Std. error
+   * per term; tests in rows 1–3 with the p-value in column 4 and the break in column 5).
+   */
+  private renderChange(eng: EngineApi): void {
+    const w = this.windowPlan();
+    if (!w || !this.registered("ROLLING")) return;
+    const s = this.state as RunState;
+    const view = eng.elasticitiesView(s.yCells, s.xCells, optionsText(s.choices), ...this.origins());
+    if (!view.ok) return;
+    const terms = view.value.items;
+    let j = terms.findIndex((t) => !t.binary && /price/i.test(t.term));
+    if (j < 0) j = terms.findIndex((t) => !t.binary);
+    if (j < 0) return;
+    const term = terms[j].term;
+    const level = Number(s.choices.level);
+    const z = normalQuantile(1 - (1 - level) / 2);
+    const roll = this.callFor(eng, "ROLLING", w.rolling, [w.window]);
+    const t = roll.ok ? table2d(roll.value) : null;
+    const points: PathPoint[] = [];
+    let failed = 0;
+    for (const row of t ? t.slice(1) : []) {
+      const [from, to] = row;
+      if (typeof from !== "number" || typeof to !== "number") continue;
+      const b = row[3 + 2 * j];
+      const se = row[4 + 2 * j];
+      if (typeof b === "number" && typeof se === "number" && Number.isFinite(b) && Number.isFinite(se)) points.push({ at: (from + to) / 2, estimate: b, lower: b - z * se, upper: b + z * se });
+      else failed++;
+    }
+    let reading = "";
+    let breakAt: number | null = null;
+    if (this.registered("BREAKTEST")) {
+      const br = this.callFor(eng, "BREAKTEST", w.breaks, [null]);
+      const bt = br.ok ? table2d(br.value) : null;
+      const sup = bt?.[3];
+      if (sup && typeof sup[3] === "number") {
+        breakAt = typeof sup[4] === "number" ? sup[4] : null;
+        reading = `Break test over the pooled rows (${w.breaks}): sup-F ${pText(sup[3])}${breakAt !== null ? `, the most likely break from ${w.time} ${breakAt}` : ""}. A break found by searching marks where the fitted relation changed most, not why.`;
+      } else reading = `The break test did not run: ${br.ok ? "no result" : br.message}.`;
+    }
+    const lv = percent(level);
+    const html = (points.length >= 2
+      ? `<figure id="elx-rolling">${pathPlot(points, `${term} elasticity over ${w.window}-period windows`, `Middle of the window (${w.time})`, "Elasticity", breakAt)}<figcaption>Each dot is the ${esc(term)} elasticity fitted on ${w.window} consecutive periods of ${esc(w.time)} (moved on by ${w.step}); the band is the estimate ± ${esc(shortNumber(z))} standard errors (about ${esc(lv)}, HC1).${breakAt !== null ? " The dashed line is the most likely break." : ""}${failed ? ` ${failed} window${failed === 1 ? "" : "s"} could not be fitted (see ELX.ROLLING).` : ""}</figcaption></figure>`
+      : `<p>No path to draw: ${roll.ok ? "fewer than two windows could be fitted" : esc(roll.message)}.</p>`) +
+      (reading ? `<p id="elx-break-reading">${esc(reading)}</p>` : "") +
+      `<p class="elx-muted">Windows that straddle a change mix the two regimes, so the path turns gradually; each window has fewer rows, so its band is wider. Associations, not causes: a change may come from a rival, a new range or a change in how the data were recorded.</p>`;
+    this.show("elx-change", html);
   }
 
   /** Fills the role lists from the x columns (keeping a choice that is still there). */
@@ -292,7 +377,7 @@ export class Pane {
     this.busy = true;
     this.root.setAttribute("aria-busy", "true");
     try {
-      for (const s of ["elx-verdict", "elx-check", "elx-choices", "elx-pictures", "elx-assume"]) this.el[s].classList.add("elx-hidden");
+      for (const s of ["elx-verdict", "elx-check", "elx-choices", "elx-pictures", "elx-assume", "elx-change"]) this.el[s].classList.add("elx-hidden");
       this.el["elx-write-msg"].textContent = "";
       // Until this run's check passes, nothing may be written for the previous ranges.
       this.state = null;
@@ -357,6 +442,10 @@ export class Pane {
         step("Running the specification tests…", 0.88);
         await yieldToPage();
         this.renderAssumptions(eng);
+        step("Fitting the rolling windows…", 0.94);
+        await yieldToPage();
+        if (stale()) return;
+        this.renderChange(eng);
       }
       const tEnd = performance.now();
       this.lastTimings = { read: tRead - t0, check: tCheck - tRead, pictures: tPictures - tCheck, choices: tChoices - tPictures, assumptions: tEnd - tChoices, total: tEnd - t0 };
@@ -596,9 +685,9 @@ export class Pane {
   }
 
   /** The functions the writer will put in the sheet for the checked ranges and options. */
-  private plannedItems(): { id: string; label: string; optional?: boolean }[] {
+  private plannedItems(): PlannedItem[] {
     const s = this.state as RunState;
-    const out: { id: string; label: string; optional?: boolean }[] = [
+    const out: PlannedItem[] = [
       { id: "FIT", label: "Coefficients (ELX.FIT)" },
       { id: "ELASTICITIES", label: "Elasticities (ELX.ELASTICITIES)" },
     ];
@@ -606,6 +695,9 @@ export class Pane {
     if (s.choices.estimator === "ols") out.push({ id: "TESTS", label: "Specification tests (ELX.TESTS)" });
     out.push({ id: "SUMMARY", label: "Fit summary (ELX.SUMMARY)" });
     if ((s.choices.roles ?? []).includes("estimator=2sls") && s.choices.estimator === "ols" && this.twoStageRegistered()) out.push({ id: "IVCHECK", label: "Instrument check (ELX.IVCHECK)" });
+    const w = this.windowPlan();
+    if (w && this.registered("ROLLING")) out.push({ id: "ROLLING", label: `Elasticities over ${w.window}-period windows (ELX.ROLLING)`, extra: [String(w.window)], values: [w.window], options: w.rolling });
+    if (w && this.registered("BREAKTEST")) out.push({ id: "BREAKTEST", label: "Did the model change? (ELX.BREAKTEST, break searched)", extra: [""], values: [null], options: w.breaks });
     return out;
   }
 
@@ -622,13 +714,13 @@ export class Pane {
    * data now, on the same data with the zero rows left out, and on a stand-in of the same columns (so
    * that a formula that fails today still gets the room of the result it gives once the data are fixed).
    */
-  private room(eng: EngineApi, id: string, opts: string, standIn: { y: unknown[][]; x: unknown[][] }): { height: number; width: number; now: Outcome<unknown> } {
+  private room(eng: EngineApi, id: string, opts: string, standIn: { y: unknown[][]; x: unknown[][] }, extra: unknown[] = []): { height: number; width: number; now: Outcome<unknown> } {
     const shape = (r: Outcome<unknown>) => {
       const t = r.ok ? table2d(r.value) : null;
       return t ? { height: t.length, width: Math.max(...t.map((row) => row.length)) } : null;
     };
-    const now = this.callFor(eng, id, opts);
-    const shapes = [shape(now), shape(this.callFor(eng, id, opts.replace(/zeros=\w+/, "zeros=drop"))), shape(eng.call(id, standIn.y, standIn.x, opts, null))].filter((v): v is { height: number; width: number } => v !== null);
+    const now = this.callFor(eng, id, opts, extra);
+    const shapes = [shape(now), shape(this.callFor(eng, id, opts.replace(/zeros=\w+/, "zeros=drop"), extra)), shape(eng.call(id, standIn.y, standIn.x, ...extra, opts, null))].filter((v): v is { height: number; width: number } => v !== null);
     return { height: Math.max(1, ...shapes.map((v) => v.height)), width: Math.max(1, ...shapes.map((v) => v.width)), now };
   }
 
@@ -655,9 +747,9 @@ export class Pane {
     const items: BlockItem[] = [];
     const failing: { id: string; message: string }[] = [];
     for (const p of this.plannedItems()) {
-      const r = this.room(eng, p.id, opts, standIn);
+      const r = this.room(eng, p.id, p.options ?? opts, standIn, p.values ?? []);
       if (!r.now.ok) failing.push({ id: p.id, message: r.now.message });
-      items.push({ id: p.id, label: p.label, height: r.height, width: r.width });
+      items.push({ id: p.id, label: p.label, height: r.height, width: r.width, extra: p.extra, options: p.options });
     }
     const yName = s.check.columns[0]?.name ?? "y";
     const xNames = s.check.columns.slice(1).map((col) => col.name).join(", ");
@@ -689,6 +781,15 @@ export class Pane {
       (there as HTMLElement).focus();
     }
   }
+}
+
+/** A formula the writer plans: its id, label, extra arguments (as formula text and as values) and own options. */
+interface PlannedItem {
+  id: string;
+  label: string;
+  extra?: string[];
+  values?: unknown[];
+  options?: string;
 }
 
 /** The ways out offered when a log meets zeros under the chosen options. */

@@ -384,6 +384,11 @@ describe("the pane's panel choices: key columns, fixed effects, clusters, the in
     expect(text).toContain("A cost column such as FlourCost can serve as an instrument for Price");
     expect(text).toContain("no direct effect on demand");
     expect(text).toContain("No test can prove the second condition");
+    // With a period column (Period, written as time=) the pane draws the path over rolling windows
+    // and the break test's reading, when this build registers ROLLING and BREAKTEST.
+    const rolling = await page.evaluate(() => typeof (window as any).Elasticell.functions.ROLLING === "function");
+    expect(await page.locator("#elx-rolling").count()).toBe(rolling ? 1 : 0);
+    if (rolling) expect(await page.locator("#elx-break-reading").textContent()).toMatch(/^Break test over the pooled rows \(form=log-log; se=HC1; zeros=drop; level=0\.95; time=Period; panel=Branch\): sup-F p/);
     const registered = await page.evaluate(() => typeof (window as any).Elasticell.functions.IVCHECK === "function");
     const offered = await page.locator("#elx-instrument option").allTextContents();
     if (!registered) {
