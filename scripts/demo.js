@@ -522,6 +522,8 @@ async function changeSection(truth) {
       [YR.cells, XR.cells, 52, rollOpts], [YR.address, XR.address, null, null]);
     out(`  (true average price elasticity of these stores: ${round3(mean(stores4(truth)))} up to week ${truth.rival.fromWeek - 1}, ` +
       `${round3(mean(stores4(truth)) + truth.rival.elasticityShift)} from week ${truth.rival.fromWeek})`);
+    out("  (windows that straddle week 61 mix the two regimes, so the path turns gradually; the level stays");
+    out("   less elastic than the truth because prices still follow demand within each window)");
   } else {
     out("");
     out("  ELX.ROLLING is not in the build loaded: rolling windows are unavailable.");

@@ -595,7 +595,9 @@ export class Pane {
   private renderAssumptions(eng: EngineApi): void {
     const s = this.state as RunState;
     const c = s.choices;
-    const paras = formAssumptions(c.form, c.estimator, c.se);
+    // the errors in force: a cluster= choice writes se=cluster, 2SLS turns HC2/HC3 into HC1
+    const se = /(?:^|; )se=([^;]+)/.exec(optionsText(c))?.[1] ?? c.se;
+    const paras = formAssumptions(c.form, c.estimator, se);
     let tests = "";
     if (c.estimator === "ols") {
       const r = this.callFor(eng, "TESTS", optionsText(c));

@@ -424,7 +424,7 @@ describe("accessibility, screenshots and network", () => {
   it("takes the README's pictures of the preview and of the pane (the steps of npm run screenshots) into test-output/screenshots", async () => {
     for (const f of ["preview.png", "pane.png"]) fs.rmSync(path.join(SHOTS, f), { force: true });
     const files = await takeScreenshots(page, SHOTS);
-    expect(files).toEqual([path.join(SHOTS, "preview.png"), path.join(SHOTS, "pane.png")]);
+    expect(files).toEqual([path.join(SHOTS, "preview.png"), path.join(SHOTS, "pane.png"), path.join(SHOTS, "pane-panel.png")]);
     for (const f of files) expect(fs.statSync(f).size).toBeGreaterThan(20000);
   });
 
