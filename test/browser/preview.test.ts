@@ -370,6 +370,16 @@ describe("the pane's panel choices: key columns, fixed effects, clusters, the in
     expect(await page.evaluate(() => (window as any).ElxPreview.input("AH5"))).toBe(`=ELX.FIT(Sales!$C$1:$C$1249, Sales!$D$1:$H$1249, "${opts}")`);
     const fit = engine("FIT", Y, XP, opts, { parameterAddresses: [`Sales!C1:C${N + 1}`, `Sales!D1:H${N + 1}`] }) as unknown[][];
     sameTable(await block(5, 34, fit.length, fit[0].length), fit, "written fixed-effects FIT at AH5");
+    // Weights: the chosen column is written as weights= and the pane shows the weighted fit's elasticity.
+    await page.selectOption("#elx-weights", "Footfall");
+    await runCheck();
+    const wOpts = `${opts}; weights=Footfall`;
+    const wel = engine("ELASTICITIES", Y, XP, wOpts, { parameterAddresses: [`Sales!C1:C${N + 1}`, `Sales!D1:H${N + 1}`] }) as unknown[][];
+    expect(await page.textContent("#elx-write-what")).toContain(`"${wOpts}"`);
+    const wFirst = await page.locator("#elx-pictures table tbody tr").first().locator("td").first().textContent();
+    expect(wFirst).toBe(String(Number((wel[1][2] as number).toPrecision(3))).replace("-", "−"));
+    expect(await page.locator("#elx-assume-body").textContent()).toContain("weights=Footfall counts each row in proportion to Footfall");
+    await page.selectOption("#elx-weights", "");
     await page.selectOption("#elx-absorb", "");
     await page.selectOption("#elx-cluster", "");
   });
@@ -400,6 +410,19 @@ describe("the pane's panel choices: key columns, fixed effects, clusters, the in
       await runCheck();
       expect(await page.locator("#elx-iv-table tbody tr").count()).toBe(2);
       await page.selectOption("#elx-instrument", "");
+    }
+    if (rolling) {
+      // The writer adds ROLLING and BREAKTEST with their own options (HC1, the panel unit, the step).
+      await runCheck();
+      await page.fill("#elx-target", "AR2");
+      const before = await page.evaluate(() => (window as any).ElxPane.completedWrites);
+      await page.click("#elx-write-btn");
+      await page.waitForFunction((b) => (window as any).ElxPane.completedWrites > b, before);
+      const written = await page.evaluate(() => Array.from((window as any).ElxPreviewWorkbook.activeSheet.cells.values()).map((c: any) => c.input).filter((t: any) => typeof t === "string" && /^=ELX\.(ROLLING|BREAKTEST)\(Sales/.test(t)));
+      expect(written).toEqual([
+        '=ELX.ROLLING(Sales!$C$1:$C$1249, Sales!$D$1:$J$1249, 52, "form=log-log; se=HC1; zeros=drop; level=0.95; absorb=Branch; time=Period; panel=Branch; step=13")',
+        '=ELX.BREAKTEST(Sales!$C$1:$C$1249, Sales!$D$1:$J$1249, , "form=log-log; se=HC1; zeros=drop; level=0.95; time=Period; panel=Branch")',
+      ]);
     }
     await page.selectOption("#elx-absorb", "");
   });
