@@ -10,6 +10,8 @@ export interface KeyColumn {
   name: string;
   kind: "text" | "whole numbers";
   distinct: number;
+  /** Whole-number keys: the middle of the sorted distinct values (a default break point). */
+  middle?: number;
 }
 
 export interface ColumnRoles {
@@ -59,7 +61,10 @@ export function detectRoles(x: RangeSnapshot): ColumnRoles {
       }
     }
     if (text > 0 && 2 * text > text + nums) keys.push({ name, kind: "text", distinct: seen.size });
-    else if (nums > 0 && whole && !binary && seen.size >= 2 && 4 * seen.size <= nums) keys.push({ name, kind: "whole numbers", distinct: seen.size });
+    else if (nums > 0 && whole && !binary && seen.size >= 2 && 4 * seen.size <= nums) {
+      const sorted = [...seen].map(Number).sort((a, b) => a - b);
+      keys.push({ name, kind: "whole numbers", distinct: seen.size, middle: sorted[Math.floor(sorted.length / 2)] });
+    }
     else if (nums > 0 && !binary) numeric.push(name);
   });
   const price = numeric.find((n) => /price/i.test(n)) ?? null;
@@ -144,6 +149,6 @@ export function roleAssumptions(r: RoleChoices, roles: ColumnRoles): Paragraph[]
 export function instrumentParagraph(price: string, cost: string, registered: boolean): Paragraph {
   return {
     heading: "Prices that react to demand: an instrument",
-    text: `${price} may be set in response to demand (raised after strong weeks), which biases its elasticity. A cost column such as ${cost} can serve as an instrument for ${price} if it satisfies two conditions: relevance — it moves ${price} (the first-stage F says how strongly; below about 10 reads as weak, Staiger and Stock 1997, a rule of thumb) — and no direct effect on demand: it changes sales only through ${price}. No test can prove the second condition; it is an argument about the business (a cost that also moves rivals' prices or the quality of the product breaks it). ${registered ? `Choose ${cost} as the instrument below to write estimator=2sls; the table compares least squares and 2SLS.` : "Two-stage least squares (estimator=2sls) is not in this build of the functions, so it is not offered."}`,
+    text: `${price} may be set in response to demand (raised after strong weeks), which biases its elasticity. A cost column such as ${cost} can serve as an instrument for ${price} if it satisfies two conditions: relevance — it moves ${price} (the first-stage F says how strongly; below about 10 reads as weak, Staiger and Stock 1997, a rule of thumb) — and no direct effect on demand: it changes sales only through ${price}. No test can prove the second condition; it is an argument about the business (a cost that also moves rivals' prices or the quality of the product breaks it). ${registered ? `Choose ${cost} under "Instrument for the price" and check again to write estimator=2sls; a table then compares least squares and 2SLS.` : "Two-stage least squares (estimator=2sls) is not in this build of the functions, so it is not offered."}`,
   };
 }

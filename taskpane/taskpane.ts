@@ -252,14 +252,15 @@ export class Pane {
    * unit of a panel is the absorbed or clustered key. HC1 errors: in a short window one row can alone
    * determine a fixed effect, where HC3 is undefined. Breaks pool the units (no absorb=, no cluster=).
    */
-  windowPlan(): { window: number; step: number; time: string; rolling: string; breaks: string } | null {
+  windowPlan(): { window: number; step: number; time: string; middle: number; rolling: string; breaks: string } | null {
     const s = this.state;
     if (!s || s.choices.estimator !== "ols") return null;
     const words = s.choices.roles ?? [];
     const time = words.find((w) => w.startsWith("time="))?.slice(5);
     if (!time) return null;
-    const periods = this.columnRoles.keys.find((k) => k.name === time)?.distinct ?? 0;
-    if (periods < 8) return null;
+    const key = this.columnRoles.keys.find((k) => k.name === time);
+    const periods = key?.distinct ?? 0;
+    if (periods < 8 || key?.middle === undefined) return null;
     const window = periods >= 104 ? 52 : Math.max(4, Math.floor(periods / 2));
     const step = Math.max(1, Math.round(window / 4));
     const unit = words.find((w) => w.startsWith("absorb="))?.slice(7) ?? words.find((w) => w.startsWith("cluster="))?.slice(8);
@@ -267,7 +268,7 @@ export class Pane {
     const panel = unit ? [`panel=${unit}`] : [];
     const rolling = optionsText(s.choices, { se: "HC1", roles: [...keep, ...panel, `step=${step}`] });
     const breaks = optionsText(s.choices, { se: "HC1", roles: [...keep.filter((w) => !w.startsWith("absorb=")), ...panel] });
-    return { window, step, time, rolling, breaks };
+    return { window, step, time, middle: key.middle, rolling, breaks };
   }
 
   /**
@@ -304,7 +305,9 @@ export class Pane {
     let reading = "";
     let breakAt: number | null = null;
     if (this.registered("BREAKTEST")) {
-      const br = this.callFor(eng, "BREAKTEST", w.breaks, [null]);
+      // the sup-F row searches every break whatever the second argument; the middle period is given
+      // because without it a time column makes the last period the second regime
+      const br = this.callFor(eng, "BREAKTEST", w.breaks, [w.middle]);
       const bt = br.ok ? table2d(br.value) : null;
       const sup = bt?.[3];
       if (sup && typeof sup[3] === "number") {
@@ -699,7 +702,7 @@ export class Pane {
     if ((s.choices.roles ?? []).includes("estimator=2sls") && s.choices.estimator === "ols" && this.twoStageRegistered()) out.push({ id: "IVCHECK", label: "Instrument check (ELX.IVCHECK)" });
     const w = this.windowPlan();
     if (w && this.registered("ROLLING")) out.push({ id: "ROLLING", label: `Elasticities over ${w.window}-period windows (ELX.ROLLING)`, extra: [String(w.window)], values: [w.window], options: w.rolling });
-    if (w && this.registered("BREAKTEST")) out.push({ id: "BREAKTEST", label: "Did the model change? (ELX.BREAKTEST, break searched)", extra: [""], values: [null], options: w.breaks });
+    if (w && this.registered("BREAKTEST")) out.push({ id: "BREAKTEST", label: `Did the model change? Chow and Wald at ${w.time} ${w.middle}, the middle period (put the period of a known change in the third argument); sup-F searches every break (ELX.BREAKTEST)`, extra: [String(w.middle)], values: [w.middle], options: w.breaks });
     return out;
   }
 

@@ -421,7 +421,7 @@ describe("the pane's panel choices: key columns, fixed effects, clusters, the in
       const written = await page.evaluate(() => Array.from((window as any).ElxPreviewWorkbook.activeSheet.cells.values()).map((c: any) => c.input).filter((t: any) => typeof t === "string" && /^=ELX\.(ROLLING|BREAKTEST)\(Sales/.test(t)));
       expect(written).toEqual([
         '=ELX.ROLLING(Sales!$C$1:$C$1249, Sales!$D$1:$J$1249, 52, "form=log-log; se=HC1; zeros=drop; level=0.95; absorb=Branch; time=Period; panel=Branch; step=13")',
-        '=ELX.BREAKTEST(Sales!$C$1:$C$1249, Sales!$D$1:$J$1249, , "form=log-log; se=HC1; zeros=drop; level=0.95; time=Period; panel=Branch")',
+        '=ELX.BREAKTEST(Sales!$C$1:$C$1249, Sales!$D$1:$J$1249, 53, "form=log-log; se=HC1; zeros=drop; level=0.95; time=Period; panel=Branch")',
       ]);
     }
     await page.selectOption("#elx-absorb", "");

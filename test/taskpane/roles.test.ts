@@ -17,7 +17,7 @@ for (let i = 0; i < 24; i++) rows.push([2 + i / 10, i % 2, ["North", "South", "E
 describe("detectRoles", () => {
   it("finds a text key and a whole-number key with few values, not the 0/1 column", () => {
     const r = detectRoles(snapshot(rows));
-    expect(r.keys).toEqual([{ name: "Branch", kind: "text", distinct: 3 }, { name: "Week", kind: "whole numbers", distinct: 4 }]);
+    expect(r.keys).toEqual([{ name: "Branch", kind: "text", distinct: 3 }, { name: "Week", kind: "whole numbers", distinct: 4, middle: 3 }]);
     expect(r.numeric).toEqual(["Price", "FlourCost"]);
     expect(r.price).toBe("Price");
     expect(r.costs).toEqual(["FlourCost"]);
