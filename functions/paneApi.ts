@@ -10,6 +10,7 @@ import { ElxProblem } from "./engine/problems";
 import { transformLabel } from "./engine/transforms";
 import { readYX, type Origin } from "./engine/intake";
 import { elasticity } from "./engine/elasticity";
+import { fewClustersNote } from "./engine/panelCovariance";
 
 export type Outcome<T> = { ok: true; value: T } | { ok: false; message: string; kind: "value" | "na" };
 
@@ -81,6 +82,8 @@ export interface ElasticitiesView {
   seLabel: string;
   estimator: "ols" | "ppml";
   items: ElasticityItem[];
+  /** A caution to show beside clustered errors with fewer than about 30 clusters (null otherwise). */
+  clusterCaution: string | null;
 }
 
 /** The (cached) fit's elasticities under the options text. */
@@ -94,7 +97,8 @@ export function elasticitiesView(y: unknown[][], x: unknown[][], optionsText: st
       const r = elasticity(fit, j, cov, o.level, o.at);
       return { term, binary: false, estimate: r.estimate, se: r.se, lower: r.lower, upper: r.upper };
     });
-    return { level: o.level, seLabel: cov.label, estimator: fit.estimator, items };
+    const clusterCaution = cov.type === "cluster" ? fewClustersNote(fit.data.roles.cluster.map((c) => c.name), cov.groups) : null;
+    return { level: o.level, seLabel: cov.label, estimator: fit.estimator, items, clusterCaution };
   });
 }
 

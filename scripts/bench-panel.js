@@ -178,4 +178,4 @@ if (require.main === module) {
   }
 }
 
-module.exports = { benchPanel, makePanel };
+module.exports = { benchPanel, makePanel, benchR };

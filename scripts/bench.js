@@ -20,6 +20,7 @@
  *   node --expose-gc scripts/bench.js --only fit    cases whose name contains "fit"
  *   node --expose-gc scripts/bench.js --quick       sizes up to 10^5 only
  *   node --expose-gc scripts/bench.js --no-r        skip the R comparison
+ *   node --expose-gc scripts/bench.js --r-lm        the panel case also times R lm with indicator columns
  */
 "use strict";
 
@@ -610,6 +611,47 @@ CASES.push({
   },
 });
 CASES.push({
+  name: "panel 1000x100,k=5",
+  requires: ["FIT"],
+  async run() {
+    // 1,000 stores × 100 weeks = 10^5 rows, 5 regressors, both keys absorbed, errors clustered by
+    // store; against a plain FIT (HC3) of the same rows and regressors, and R's plm two-way within
+    // (with its clustered vcovHC) on the same data in the same run (--r-lm adds lm with indicators).
+    const { makePanel, benchR } = require("./bench-panel");
+    const pd = makePanel(1000, 100, 5, 7, 0);
+    const names = pd.X.map((_, j) => `x${j + 1}`);
+    const d = {
+      n: pd.n,
+      yRows: Array.from(pd.y, (v) => [v]),
+      xRows: Array.from({ length: pd.n }, (_, i) => [...pd.X.map((c) => c[i]), `S${pd.store[i]}`, pd.week[i]]),
+    };
+    d.yRows.unshift(["Sales"]);
+    d.xRows.unshift([...names, "Store", "Week"]);
+    d.n = d.yRows.length;
+    const plainX = d.xRows.map((r) => r.slice(0, 5));
+    const panelOpts = "form=level-level; absorb=Store,Week; cluster=Store";
+    const probe = await settle(invoke("FIT", d.yRows, d.xRows, panelOpts));
+    if (isHostError(probe)) throw new HostError(probe.code, probe.message);
+    const tp = await timeRuns(5, () => fresh(d), (p) => invoke("FIT", p.yRows, p.xRows, panelOpts), 1);
+    const tf = await timeRuns(5, () => fresh({ n: d.n, yRows: d.yRows, xRows: plainX }), (p) => invoke("FIT", p.yRows, p.xRows, "form=level-level"), 1);
+    const fits = tp.median / tf.median;
+    let note = `${fits.toFixed(2)} plain fits (plain FIT HC3: ${fmtMs(tf.median)})`;
+    store.panel = { fits };
+    if (HAVE_R) {
+      const r = benchR(pd, argv.includes("--r-lm"));
+      if (r && !r.error) {
+        const rMs = 1000 * (r.plm_within_s[0] + r.plm_cluster_s[0]);
+        store.panel.r = rMs / tp.median;
+        note += `; R plm two-way within + clustered vcovHC: ${fmtMs(rMs)} (R / engine = ${(rMs / tp.median).toFixed(2)}x)`;
+        if (r.lm_dummies_s) note += `; R lm with indicators: ${fmtMs(1000 * r.lm_dummies_s[0])}`;
+        const b = probe.slice(1).map((row) => row[2]);
+        note += `; slopes differ from plm by ${Math.max(...b.map((v, j) => Math.abs(v - r.plm_coef[j]) / Math.abs(r.plm_coef[j]))).toExponential(1)}`;
+      } else if (r) note += `; R failed: ${r.error.slice(0, 80)}`;
+    }
+    results.push(["ELX.FIT absorb=Store,Week; cluster=Store", "1000x100,k=5", fmtMs(tp.median), note]);
+  },
+});
+CASES.push({
   name: "bygroup 1000x150,k=3",
   requires: ["BYGROUP", "ELASTICITIES"],
   async run() {
@@ -700,6 +742,10 @@ async function main() {
   targets.push([`conversion of host rows, n=10^6, k=10${CONVERT_ID || (globalThis.Elasticell && globalThis.Elasticell.readColumns) ? "" : " (~ZEROS of x)"}`, "< 0.45 s", conv !== undefined ? fmtMs(conv) : "n/a", yes(conv !== undefined ? conv < 450 : null)]);
   targets.push(["cache hit (equal inputs), n=10^6, k=10", "< 5% of a fit", cache !== undefined ? `${cache.toFixed(1)}%` : "n/a", yes(cache !== undefined ? cache < 5 : null)]);
   targets.push([`peak memory during the ${store.memory ? store.memory.key : dname(1e6, 10)} fit`, "< 3x input", store.memory ? `${store.memory.heapX.toFixed(2)}x heap, ${store.memory.rssX.toFixed(2)}x RSS` : "n/a", yes(store.memory ? store.memory.worst < 3 : null)]);
+  if (store.panel) {
+    targets.push(["two-way FE + cluster, 10^5 rows, in plain fits", "< 10 fits", `${store.panel.fits.toFixed(2)}`, yes(store.panel.fits < 10)]);
+    if (store.panel.r !== undefined) targets.push(["  against R plm two-way within (R / engine)", "(ratio printed)", `${store.panel.r.toFixed(2)}x`, ""]);
+  }
   if (store.bygroup !== undefined) targets.push(["BYGROUP vs loop of ELASTICITIES", "(ratio printed)", `${store.bygroup.toFixed(2)}x`, ""]);
   out("");
   out("Targets (README, speed)");

@@ -2,9 +2,9 @@
  * Cell functions that read a fit back in the original units and test what the logs were taken for:
  * SMEARING, PREDICT, HETEROTEST, NORMALTEST, TESTS, FORMCHECK.
  */
-import { seTypeOf, type Form } from "../engine/options";
-import { count, cut, fail, nearest, quote, ElxProblem } from "../engine/problems";
-import { asMatrix, isHeaderRow, originOf, xColumnNames } from "../engine/intake";
+import { seTypeOf, type Form, type Options } from "../engine/options";
+import { count, cut, fail, nearest, quote, unavailable, ElxProblem } from "../engine/problems";
+import { asMatrix, isHeaderRow, keyText, originOf, xColumnNames } from "../engine/intake";
 import { apply, LEVEL, matchName } from "../engine/transforms";
 import { predictRow, retransformFactor } from "../engine/retransform";
 import { heteroTest, jarqueBera, moments, reset, breuschPaganKoenker, breuschPaganOriginal, white, whiteSpecial, type HeteroTest, type TestResult } from "../engine/specTests";
@@ -54,9 +54,14 @@ export function predictTable(y: unknown, x: unknown, newX: unknown, opts: unknow
     const addrs = (invocation as { parameterAddresses?: unknown[] } | undefined)?.parameterAddresses;
     const origin = Array.isArray(addrs) ? originOf(addrs[2]) : null;
     const names = fit.data.xNames;
+    const absorbed = fit.data.roles.absorb.map((k) => k.name);
     // The header rule and the names are those of x (readYX), so a new_x with x's header matches it.
     const header = isHeaderRow(cells[0]);
     let map: number[];
+    let keyMap: number[] = [];
+    if (absorbed.length > 0 && !header) {
+      fail(`with absorb= new_x needs a header row naming its columns, ${absorbed.join(" and ")} among them (each row's fixed effect is added to its prediction)`);
+    }
     if (header) {
       const given = xColumnNames(fit.data.yName, cells[0]);
       map = names.map((name) => {
@@ -64,12 +69,22 @@ export function predictTable(y: unknown, x: unknown, newX: unknown, opts: unknow
         if (i < 0) fail(`new_x has no column ${cut(name)}; its header names are ${given.map((g) => cut(g)).join(", ")}; give new_x the same columns as x`);
         return i;
       });
+      keyMap = absorbed.map((name) => {
+        const i = matchName(name, given);
+        if (i < 0) fail(`new_x has no column ${cut(name)}: with absorb=${absorbed.join(",")} each row's fixed effect is added to its prediction, so new_x needs the ${absorbed.join(" and ")} column${absorbed.length === 1 ? "" : "s"} with the same header as in x`);
+        return i;
+      });
+      // other role columns of x (cluster=, weights=, time=, …) may come along and are not read
+      const known = [...names, ...fit.data.columnNames];
       given.forEach((g) => {
-        if (matchName(g, names) < 0) fail(`new_x column ${quote(g)} is not a column of x; did you mean ${cut(nearest(g, names) ?? "")}? (x has ${names.map((n) => cut(n)).join(", ")})`);
+        if (matchName(g, known) < 0) fail(`new_x column ${quote(g)} is not a column of x; did you mean ${cut(nearest(g, names) ?? "")}? (x has ${names.map((n) => cut(n)).join(", ")})`);
       });
     } else {
       if (cells[0].length !== names.length) fail(`new_x has ${count(cells[0].length, "column")} but x has ${names.length} (${names.join(", ")}); give new_x the same columns, in the same order, or add a header row to match them by name`);
       map = names.map((_, j) => j);
+    }
+    if (o.interval !== "none" && fit.absorbed > 0) {
+      unavailable(`interval=${o.interval} is not offered with absorb=: the uncertainty of the estimated fixed effects is not computed here, so an interval would be too narrow; use interval=none`);
     }
     const cov = fit.covariance(seTypeOf(o), o.lags);
     const first = header ? 1 : 0;
@@ -78,8 +93,10 @@ export function predictTable(y: unknown, x: unknown, newX: unknown, opts: unknow
     const startRow = (origin?.row ?? 1) + first;
     for (let i = first; i < cells.length; i++) {
       try {
-        const x0 = designRow(fit, cells[i], map, `new_x row ${startRow + i - first}`);
-        const p = predictRow(fit, x0, o.retransform, o.interval, o.level, cov);
+        const rowLabel = `new_x row ${startRow + i - first}`;
+        const x0 = designRow(fit, cells[i], map, rowLabel);
+        const effect = fit.absorbedEffect(keyMap.map((c) => keyText(cells[i][c])), rowLabel);
+        const p = predictRow(fit, x0, o.retransform, o.interval, o.level, cov, effect);
         body.push(width === 1 ? [num(p.value)] : [num(p.value), num(p.lower), num(p.upper)]);
       } catch (e) {
         if (!(e instanceof ElxProblem)) throw e;
@@ -94,6 +111,19 @@ export function predictTable(y: unknown, x: unknown, newX: unknown, opts: unknow
 }
 
 const HETERO_TESTS: readonly HeteroTest[] = ["bp", "bp-original", "white", "white-special"];
+
+/**
+ * The residual tests (Breusch–Pagan, White, Jarque–Bera, RESET) are those of unweighted least
+ * squares; with fixed effects they read the residuals of the full model (effects included) and, for
+ * Breusch–Pagan and White, the regressors without the absorbed indicators.
+ */
+function residualTestFit(y: unknown, x: unknown, o: Options, invocation: unknown, what: string): OlsFit {
+  const fit = olsFor(y, x, o, invocation, what);
+  if (fit.data.roles.weights) {
+    fail(`${what}: the residual tests here assume unweighted least squares, and weights= makes the fit weighted; run the test without weights= (or read the robust errors, which allow any spread)`);
+  }
+  return fit;
+}
 
 function memoTest(fit: OlsFit, key: string, run: (f: OlsFit) => TestResult): TestResult {
   return fit.memo(`test:${key}`, () => run(fit));
@@ -113,14 +143,14 @@ export function heteroValue(y: unknown, x: unknown, test: unknown, opts: unknown
       if (!hit) fail(`test ${quote(String(test).trim())} is not known; did you mean ${nearest(t, HETERO_TESTS)}? (tests: ${HETERO_TESTS.join(", ")})`);
       which = hit;
     }
-    const fit = olsFor(y, x, o, invocation, "ELX.HETEROTEST");
+    const fit = residualTestFit(y, x, o, invocation, "ELX.HETEROTEST");
     return [[num(memoTest(fit, which, (f) => heteroTest(f, which)).pValue)]];
   });
 }
 
 export function normalValue(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
   return guarded(() => {
-    const fit = olsFor(y, x, options(opts), invocation, "ELX.NORMALTEST");
+    const fit = residualTestFit(y, x, options(opts), invocation, "ELX.NORMALTEST");
     return [[num(memoTest(fit, "jb", jarqueBera).pValue)]];
   });
 }
@@ -128,7 +158,7 @@ export function normalValue(y: unknown, x: unknown, opts: unknown, invocation: u
 export function testsTable(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
   return guarded(() => {
     const o = options(opts);
-    const fit = olsFor(y, x, o, invocation, "ELX.TESTS");
+    const fit = residualTestFit(y, x, o, invocation, "ELX.TESTS");
     const runs: [string, string, (f: OlsFit) => TestResult][] = [
       ["Breusch–Pagan (Koenker, studentized)", "bp", breuschPaganKoenker],
       ["Breusch–Pagan (original)", "bp-original", breuschPaganOriginal],
@@ -166,6 +196,8 @@ export function formCheckTable(y: unknown, x: unknown, opts: unknown, invocation
   return guarded(() => {
     const o = options(opts);
     if (o.estimator === "ppml") fail("ELX.FORMCHECK compares least-squares fits of y in logs and in levels; drop estimator=ppml");
+    if (o.absorb.length > 0) fail("ELX.FORMCHECK is not offered with absorb= yet (Box–Cox and the PE test are computed here for fits without fixed effects): run it without absorb=, or compare the forms by the RESET row of ELX.TESTS, which absorbs the fixed effects");
+    if (o.weights !== null) fail("ELX.FORMCHECK compares unweighted least-squares fits; weights= makes the fit weighted: run it without weights=");
     if (o.zeros === "shift" || o.zeros === "ihs") fail(`ELX.FORMCHECK compares plain logs with levels; zeros=${o.zeros} changes the log, so Box–Cox does not apply: use zeros=stop or zeros=drop on data with y above zero`);
     const [yo, xo] = originsOf(invocation);
     const get = (form: Form): OlsFit => getOlsFit({ y, x, options: { ...o, form }, yOrigin: yo ?? null, xOrigin: xo ?? null }, "ELX.FORMCHECK");

@@ -12,6 +12,9 @@ import { elasticity, percentEffect } from "../engine/elasticity";
 import { readRange, asMatrix, CellIssue, numericTextAdvice, uniqueNames } from "../engine/intake";
 import type { OlsFit } from "../engine/fit";
 import type { PpmlFit } from "../engine/ppml";
+import { fewClustersNote, negativeVarianceReason } from "../engine/panelCovariance";
+import type { Covariance } from "../engine/covariance";
+import type { Model } from "../engine/fit";
 import { guarded, hostError, intervalHeaders, num, options, originsOf, table, safe, type Cell, type Table } from "./host";
 
 /** Fit for a cell function whose first two parameters are y and x. */
@@ -32,22 +35,23 @@ export function fitTable(y: unknown, x: unknown, opts: unknown, invocation: unkn
     const fit = fitFor(y, x, o, invocation);
     const cov = fit.covariance(seTypeOf(o), o.lags);
     const se = fit.standardErrors(cov);
-    const crit = fit.criticalValue(o.level);
+    const crit = fit.criticalValue(o.level, cov);
     // An exact fit's standard errors are rounding noise: t and p would be huge numbers and zeros.
     const exact = fit.estimator === "ols" && fit.isExact() ? hostError("na", `${fit.exactReason()}; that leaves t and p undefined`) : null;
     const body: Table = fit.terms.map((t, j) => {
       const b = fit.coef[j];
       const tstat = b / se[j];
-      const why = se[j] === 0 ? "the standard error is zero (exact fit), so t and p are undefined" : undefined;
+      const negative = cov.negative?.includes(j) ? negativeVarianceReason(t.name) : undefined;
+      const why = negative ?? (se[j] === 0 ? "the standard error is zero (exact fit), so t and p are undefined" : undefined);
       return [
         t.name,
         fit.termLabel(t),
         num(b),
-        num(se[j]),
+        num(se[j], negative),
         exact ?? num(tstat, why),
-        exact ?? num(fit.pValue(tstat), why),
-        num(b - crit * se[j]),
-        num(b + crit * se[j]),
+        exact ?? num(fit.pValue(tstat, cov), why),
+        num(b - crit * se[j], negative),
+        num(b + crit * se[j], negative),
       ];
     });
     return table(["Term", "Transform", "Coefficient", `Std. error (${cov.label})`, fit.info.statistic, "p-value", ...intervalHeaders(o.level)], body, o);
@@ -84,7 +88,8 @@ export function elasticitiesTable(y: unknown, x: unknown, opts: unknown, invocat
         return [name, fit.termLabel(t), "", "", "", "", BINARY_NOTE];
       }
       const r = elasticity(fit, j, cov, o.level, o.at);
-      return [name, fit.termLabel(t), num(r.estimate), num(r.se), num(r.lower), num(r.upper), r.at];
+      const negative = cov.negative?.includes(fit.coefIndex(j)) ? negativeVarianceReason(name) : undefined;
+      return [name, fit.termLabel(t), num(r.estimate), num(r.se, negative), num(r.lower, negative), num(r.upper, negative), r.at];
     });
     return table(["Term", "Transform", "Elasticity", `Std. error (${cov.label})`, ...intervalHeaders(o.level), "Evaluated at"], body, o);
   });
@@ -123,7 +128,9 @@ function collinearityRows(fit: OlsFit): [string, Cell][] {
   const vif = varianceInflation(fit);
   const rows: [string, Cell][] = [];
   if (vif === null) {
-    rows.push(["Largest VIF", hostError("na", "VIFs are defined for a model with an intercept (intercept=true)")]);
+    rows.push(["Largest VIF", hostError("na", fit.absorbed > 0
+      ? "VIFs are not computed with absorb=: their centred definition needs an intercept, which the fixed effects replace"
+      : "VIFs are defined for a model with an intercept (intercept=true)")]);
   } else {
     rows.push(["Largest VIF", num(Math.max(...vif))]);
     vif.forEach((v, j) => rows.push([`VIF: ${fit.data.xNames[j]}`, num(v)]));
@@ -196,21 +203,76 @@ function leftOutRows(d: Dataset): [string, Cell][] {
   return rows;
 }
 
+/**
+ * SUMMARY's rows for the role columns: the fixed effects absorbed (values per key, absorbed parameters,
+ * connected components of two keys), the rows they left out (singletons; PPML's values with y = 0 in
+ * every row), the weights and the rows they left out, and the clusters of a clustered covariance with
+ * the df of its t; empty for a fit without any of these.
+ */
+function panelRows(fit: Model, cov: Covariance): [string, Cell][] {
+  const d = fit.data;
+  const rows: [string, Cell][] = [];
+  const keys = d.roles.absorb;
+  if (keys.length > 0) {
+    const ab = fit.absorber;
+    rows.push(["Fixed effects absorbed", keys.map((k) => `${k.name} (${k.labels.length} values)`).join(" and ")]);
+    rows.push(["Absorbed parameters", fit.absorbed]);
+    if (keys.length === 2 && ab) rows.push(["Connected components of the two keys", ab.components]);
+    rows.push(["Rows left out: singletons (a value in one row only)", d.leftOutSingleton]);
+    if (fit.info.exponentialMean) {
+      rows.push([`Values left out: ${d.yName} = 0 in every row (no finite effect)`, d.allZeroValues]);
+      rows.push([`Rows left out: those values' rows`, d.leftOutAllZero]);
+    }
+  }
+  if (d.roles.weightsName !== null) {
+    rows.push(["Weights", d.roles.weightsName]);
+    rows.push(["Rows left out: zero or negative weight", d.leftOutWeight]);
+  }
+  if (cov.type === "cluster" && cov.groups) {
+    const names = d.roles.cluster.map((c) => c.name);
+    const parts = names.map((n, m) => `${n}: ${cov.groups![m]}`);
+    if (names.length === 2 && cov.groups.length > 2) parts.push(`pairs: ${cov.groups[2]}`);
+    rows.push(["Clusters", parts.join("; ")]);
+  }
+  if (cov.df !== undefined) rows.push([`Degrees of freedom of ${fit.info.statistic}`, fit.info.statistic === "z" ? "normal (z)" : cov.df]);
+  return rows;
+}
+
+/** The caution row: the general caution, then what fixed effects and clusters do not do. */
+function cautionText(fit: Model, cov: Covariance): string {
+  const parts = [CAUTION];
+  if (fit.data.roles.absorb.length > 0) {
+    parts.push(`Fixed effects remove only differences that stay the same over the rows of each ${fit.data.roles.absorb.map((k) => k.name).join(" and each ")} (such as a store's location); whatever changes within them (promotions, competitors) still confounds the estimates.`);
+  }
+  if (cov.type === "cluster") {
+    parts.push("Clustered errors assume rows in different clusters are independent.");
+    const few = fewClusters(fit, cov);
+    if (few) parts.push(few);
+  }
+  return parts.join(" ");
+}
+
+/** The message for a clustered covariance with fewer than FEW_CLUSTERS clusters in some cluster= column (null otherwise). */
+export function fewClusters(fit: Model, cov: Covariance): string | null {
+  return cov.type === "cluster" ? fewClustersNote(fit.data.roles.cluster.map((c) => c.name), cov.groups) : null;
+}
+
 function ppmlSummaryRows(fit: PpmlFit, o: Options): [string, Cell][] {
   const s = fit.statistics();
   const cov = fit.covariance(seTypeOf(o), o.lags);
   return [
-    ["Form", `${o.form}${fit.intercept ? "" : ", no intercept"}`],
+    ["Form", `${o.form}${fit.intercept || fit.absorbed > 0 ? "" : ", no intercept"}`],
     ["Estimator", "PPML (Poisson pseudo-maximum likelihood, mean exp(x'b), y in levels)"],
     ["Std. errors", cov.label],
     ["Observations used", fit.n],
     ...leftOutRows(fit.data),
+    ...panelRows(fit, cov),
     [`Zeros kept in ${fit.data.yName}`, s.zerosKept],
     ["Deviance", num(s.deviance)],
     ["Pseudo R² (squared correlation of y and fitted)", num(s.pseudoRSquared, "pseudo R² is undefined: the fitted values do not vary")],
     ["Pearson dispersion", num(s.dispersion)],
     ["Iterations", s.iterations],
-    ["Caution", CAUTION],
+    ["Caution", cautionText(fit, cov)],
   ];
 }
 
@@ -227,12 +289,14 @@ export function summaryTable(y: unknown, x: unknown, opts: unknown, invocation: 
     const scale = g.kind === "level" ? "y" : g.kind === "log" ? "log y" : g.kind === "shift" ? `log(y+${g.c})` : "asinh(y)";
     const noF = "no regressor besides the intercept, or an exact fit: the F test is undefined";
     const rows: [string, Cell][] = [
-      ["Form", `${o.form}${fit.intercept ? "" : ", no intercept"}`],
+      ["Form", `${o.form}${fit.intercept || fit.absorbed > 0 ? "" : ", no intercept"}`],
       ["Std. errors", cov.label],
       ["Fit statistics on the scale of", scale],
       ["Observations used", fit.n],
       ...leftOutRows(fit.data),
-      ["R²", num(s.rSquared, "R² is undefined: y does not vary")],
+      ...panelRows(fit, cov),
+      [fit.absorbed > 0 ? "R² (full model, fixed effects included)" : "R²", num(s.rSquared, "R² is undefined: y does not vary")],
+      ...(fit.absorbed > 0 ? [["Within R² (after absorbing the fixed effects)", num(s.withinRSquared, "the within R² is undefined: y does not vary within the fixed effects")] as [string, Cell]] : []),
       ["Adjusted R²", num(s.adjRSquared, "adjusted R² is undefined: y does not vary")],
       ["Residual std. error", num(s.sigma)],
       ["F statistic", s.fStatistic === null ? hostError("na", noF) : num(s.fStatistic)],
@@ -243,7 +307,7 @@ export function summaryTable(y: unknown, x: unknown, opts: unknown, invocation: 
       ...retransformRows(fit),
       ...collinearityRows(fit),
       ...ppmlContrastRows(fit, o, y, x, invocation),
-      ["Caution", CAUTION],
+      ["Caution", cautionText(fit, cov)],
     ];
     return table(["Statistic", "Value"], rows, o);
   });

@@ -562,3 +562,68 @@ export function fitAbsorbed(absorber: Absorber, y: Float64Array, X: Float64Array
     absorber,
   };
 }
+
+export interface RecoveredEffects {
+  /** One array per key: the effect of each value (code). */
+  effects: Float64Array[];
+  /** Two keys: the connected component of each value of each key (one key: all 0). */
+  components: Int32Array[];
+}
+
+/**
+ * The absorbed effects of each value from the fitted effects d_i (the fitted value minus x_i'b on the
+ * fitted scale): one key, α_g = the mean of d over g's rows; two keys, d_i = α_g + γ_t solved by
+ * alternating means (α from d − γ, then γ from d − α) until no effect moves by more than `tol`
+ * times max|d|. Under two keys only α_g + γ_t is identified, and only for values in one connected
+ * component of the graph of the two keys; `components` tells which.
+ */
+export function recoverEffects(keys: { codes: Int32Array; levels: number }[], d: Float64Array, tol = ABSORB_TOL, maxIter = 100 * ABSORB_MAX_ITER): RecoveredEffects {
+  const n = d.length;
+  const mean = (codes: Int32Array, levels: number, v: (i: number) => number): Float64Array => {
+    const s = new Float64Array(levels);
+    const c = new Float64Array(levels);
+    for (let i = 0; i < n; i++) {
+      s[codes[i]] += v(i);
+      c[codes[i]]++;
+    }
+    for (let g = 0; g < levels; g++) s[g] = c[g] > 0 ? s[g] / c[g] : 0;
+    return s;
+  };
+  if (keys.length === 1) {
+    const [a] = keys;
+    return { effects: [mean(a.codes, a.levels, (i) => d[i])], components: [new Int32Array(a.levels)] };
+  }
+  const [a, b] = keys;
+  let scale = 0;
+  for (let i = 0; i < n; i++) scale = Math.max(scale, Math.abs(d[i]));
+  let alpha: Float64Array = new Float64Array(a.levels);
+  let gamma: Float64Array = new Float64Array(b.levels);
+  for (let it = 0; it < maxIter; it++) {
+    const alphaNew = mean(a.codes, a.levels, (i) => d[i] - gamma[b.codes[i]]);
+    const gammaNew = mean(b.codes, b.levels, (i) => d[i] - alphaNew[a.codes[i]]);
+    let change = 0;
+    for (let g = 0; g < a.levels; g++) change = Math.max(change, Math.abs(alphaNew[g] - alpha[g]));
+    for (let t = 0; t < b.levels; t++) change = Math.max(change, Math.abs(gammaNew[t] - gamma[t]));
+    alpha = alphaNew;
+    gamma = gammaNew;
+    if (change <= tol * Math.max(scale, 1e-300)) break;
+  }
+  // components by union–find over the rows (edges between a value of each key)
+  const parent = new Int32Array(a.levels + b.levels);
+  for (let i = 0; i < parent.length; i++) parent[i] = i;
+  const find = (x: number): number => {
+    while (parent[x] !== x) {
+      parent[x] = parent[parent[x]];
+      x = parent[x];
+    }
+    return x;
+  };
+  for (let i = 0; i < n; i++) {
+    const ra = find(a.codes[i]);
+    const rb = find(a.levels + b.codes[i]);
+    if (ra !== rb) parent[ra] = rb;
+  }
+  const ca = Int32Array.from({ length: a.levels }, (_, g) => find(g));
+  const cb = Int32Array.from({ length: b.levels }, (_, t) => find(a.levels + t));
+  return { effects: [alpha, gamma], components: [ca, cb] };
+}

@@ -261,6 +261,8 @@ export interface Covariance {
   negative?: number[];
   /** Lag length used, for HAC. */
   lags?: number;
+  /** Clusters per cluster= column (two-way: then the distinct pairs), or the periods of DK. */
+  groups?: number[];
   /** Label for output headers: "HC3", "HAC, 4 lags". */
   label: string;
 }
@@ -276,6 +278,7 @@ export function originalUnits(W: Float64Array, scale: Float64Array, unit: number
 /** The standard error of coefficient j: √W_jj·unit/‖x_j‖. */
 export function standardError(c: Covariance, j: number): number {
   const k = c.scale.length;
+  if (c.negative && c.negative.includes(j)) return NaN; // a two-way cluster variance below zero
   return (Math.sqrt(Math.max(0, c.W[j * k + j])) / c.scale[j]) * c.unit;
 }
 

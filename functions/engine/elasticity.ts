@@ -62,7 +62,7 @@ export function elasticity(fit: Model, column: number, cov: Covariance, level: n
   const idx = fit.coefIndex(column);
   const b = fit.coef[idx];
   const se = standardError(cov, idx);
-  const crit = fit.criticalValue(level);
+  const crit = fit.criticalValue(level, cov);
   const { factor, at: where } = elasticityFactor(fit, column, at);
   const lo = (b - crit * se) * factor;
   const hi = (b + crit * se) * factor;
@@ -91,7 +91,7 @@ export function percentEffect(fit: Model, column: number, cov: Covariance, level
   const b = fit.coef[idx];
   const se = standardError(cov, idx);
   const V = se * se;
-  const crit = fit.criticalValue(level);
+  const crit = fit.criticalValue(level, cov);
   // expm1 keeps digits for small coefficients
   return {
     term: fit.terms[idx],

@@ -53,9 +53,16 @@ export function estimatorOf(o: Options): EstimatorEntry {
   return ESTIMATORS[o.estimator];
 }
 
-/** The covariance type in force: the one asked for, else cluster when cluster= is given, else the estimator's default. */
+/**
+ * The covariance type in force: the one asked for, else cluster when cluster= is given, else the
+ * estimator's default — HC1 in place of a default HC2/HC3 when two keys are absorbed, where each
+ * row's exact leverage is not available.
+ */
 export function seTypeOf(o: Options): SeType {
-  return o.se ?? (o.cluster.length > 0 ? "cluster" : ESTIMATORS[o.estimator].defaultSe);
+  if (o.se) return o.se;
+  if (o.cluster.length > 0) return "cluster";
+  const d = ESTIMATORS[o.estimator].defaultSe;
+  return o.absorb.length === 2 && (d === "HC2" || d === "HC3") ? "HC1" : d;
 }
 
 /** Refuses a covariance type the estimator does not offer, listing the ones it does. */

@@ -4,7 +4,7 @@
  * Like a results object in statsmodels, expensive parts (leverages, each covariance type, medians)
  * are computed on first use and memoised, without side effects on other fields.
  */
-import { count, fail, unavailable } from "./problems";
+import { count, fail, quote, unavailable } from "./problems";
 import { leastSquares, type Dependency, type QrFit } from "./leastSquares";
 import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, leastSquaresInput, originalUnits, standardError, type Covariance, type CovarianceInput } from "./covariance";
 import { normalised, scaled, workingUnit } from "./scaling";
@@ -13,7 +13,7 @@ import { fisherSf, studentQuantile, studentTwoSided } from "./distributions";
 import type { SeType } from "./options";
 import { requireSeType, type EstimatorInfo } from "./estimators";
 import { clusterCovariance, driscollKraay, panelClassical, panelHac, panelHc, type PanelCovariance, type ScoreModel } from "./panelCovariance";
-import { fitAbsorbed, prepareAbsorption, type Absorber } from "./absorb";
+import { fitAbsorbed, prepareAbsorption, recoverEffects, type Absorber, type RecoveredEffects } from "./absorb";
 
 export const INTERCEPT = "(Intercept)";
 
@@ -111,7 +111,7 @@ export abstract class Model {
   covariance(type: SeType, lags: number | null = null): Covariance {
     requireSeType(this.info, type);
     const L = type === "HAC" ? lags ?? defaultLags(this.n) : 0;
-    const key = type === "HAC" ? `HAC${L}` : type;
+    const key = type === "HAC" ? `HAC${L}` : type === "DK" ? `DK${lags ?? ""}` : type;
     let c = this.covCache.get(key);
     if (!c) {
       let W: Float64Array;
@@ -123,7 +123,7 @@ export abstract class Model {
         // panel covariances come in the coefficients' units of the factorised columns: back to W
         const k = this.k;
         W = Float64Array.from(panel.V, (v, i) => v * scale[Math.floor(i / k)] * scale[i % k]);
-        c = { type, W, scale, unit, V: originalUnits(W, scale, unit), df: panel.df === this.dfResid ? undefined : panel.df, negative: panel.negative, lags: panel.lags, label: panel.label };
+        c = { type, W, scale, unit, V: originalUnits(W, scale, unit), df: panel.df === this.dfResid ? undefined : panel.df, negative: panel.negative, lags: panel.lags, groups: panel.groups, label: panel.label };
         this.covCache.set(key, c);
         return c;
       }
@@ -180,6 +180,49 @@ export abstract class Model {
     const w = this.data.roles.weights;
     if (w) out = Float64Array.from(out, (v, i) => v * Math.sqrt(w[i]));
     return out;
+  }
+
+  /**
+   * The absorbed effects of the values seen in the fit, recovered from the fitted effects (fitted
+   * value minus x'b on the scale of the linear predictor: OLS the transformed y, PPML log μ̂).
+   */
+  private recovered(): RecoveredEffects {
+    return this.memo("recoveredEffects", () => {
+      const f = this.fitted;
+      const b = this.coef;
+      const X = this.design;
+      const expo = this.info.exponentialMean;
+      const d = Float64Array.from(f, (v, i) => {
+        let s = expo ? Math.log(v) : v;
+        for (let j = 0; j < X.length; j++) s -= b[j] * X[j][i];
+        return s;
+      });
+      return recoverEffects(this.data.roles.absorb.map((k) => ({ codes: k.codes, levels: k.labels.length })), d);
+    });
+  }
+
+  /**
+   * What the fixed effects add to x0'b for a new row with these values of the absorbed keys (key text,
+   * in absorb= order): α_g, or α_g + γ_t; a value not seen among the rows used (or, under two keys, a
+   * pair from two unconnected parts of the data) has no estimated effect and is refused, named.
+   */
+  absorbedEffect(values: readonly (string | null)[], rowLabel: string): number {
+    const keys = this.data.roles.absorb;
+    if (keys.length === 0) return 0;
+    const r = this.recovered();
+    const codes = keys.map((k, m) => {
+      const v = values[m];
+      if (v === null) fail(`${rowLabel}: ${k.name} is blank; give a value of ${k.name} seen in the fit (its fixed effect is added to the prediction)`);
+      const c = k.labels.indexOf(v);
+      if (c < 0) fail(`${rowLabel}: ${k.name} ${quote(v)} was not among the rows fitted, so its fixed effect is unknown: predict only for values of ${k.name} in the data (or leave ${k.name} out of absorb=)`);
+      return c;
+    });
+    if (keys.length === 2 && r.components[0][codes[0]] !== r.components[1][codes[1]]) {
+      fail(`${rowLabel}: ${keys[0].name} ${quote(values[0] as string)} and ${keys[1].name} ${quote(values[1] as string)} lie in parts of the data that share no row, so their effects cannot be added: predict for a pair connected through the rows fitted`);
+    }
+    let s = 0;
+    codes.forEach((c, m) => (s += r.effects[m][c]));
+    return s;
   }
 
   /** The unit of the covariances computed on `qr`: standard errors are √W times it (OLS: y's scale). */

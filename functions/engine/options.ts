@@ -227,8 +227,8 @@ export function parseOptions(text: unknown): Options {
       }
     }
   }
-  // lags= only changes HAC errors: given with any other se it would be silently ignored.
-  if (o.lags !== null && o.se !== "HAC") fail(`lags=${o.lags} applies only to se=HAC (Newey–West errors)${o.se ? `, not se=${o.se}` : "; the default errors are HC3 (HC1 for ppml)"}: add se=HAC, or remove lags=`);
+  // lags= only changes HAC and Driscoll–Kraay errors: given with any other se it would be silently ignored.
+  if (o.lags !== null && o.se !== "HAC" && o.se !== "DK") fail(`lags=${o.lags} applies only to se=HAC (Newey–West errors) and se=DK (Driscoll–Kraay)${o.se ? `, not se=${o.se}` : "; the default errors are HC3 (HC1 for ppml)"}: add se=HAC, or remove lags=`);
   return o;
 }
 

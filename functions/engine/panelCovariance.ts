@@ -222,7 +222,9 @@ export function clusterCovariance(m: ScoreModel, clusters: ClusterKey[], nestedA
   for (const q of parts) for (let j = 0; j < k * k; j++) M[j] += q.sign * q.c * q.M[j];
   const V = sandwich(m.qr, M);
   const G = Math.min(...coded.map((c) => c.levels));
-  const label = coded.length === 1 ? `cluster (${coded[0].name}, ${coded[0].levels} clusters)` : `cluster (${coded[0].name} × ${coded[1].name})`;
+  const label = coded.length === 1
+    ? `cluster: ${coded[0].name}, ${coded[0].levels} clusters`
+    : `cluster: ${coded[0].name} (${coded[0].levels}) × ${coded[1].name} (${coded[1].levels})`;
   return { V, df: G - 1, label, negative: negatives(V, k), groups, factors: parts.map((q) => q.c) };
 }
 
@@ -336,6 +338,17 @@ export function driscollKraay(m: ScoreModel, periods: Int32Array | null, lags: n
     }
   }
   return { V: sandwich(m.qr, M), df: dfResid(m), label: `Driscoll–Kraay, ${L} lag${L === 1 ? "" : "s"}`, negative: [], lags: L, groups: [T] };
+}
+
+/** Fewer clusters than this make cluster-robust errors unreliable (Cameron and Miller 2015; common practice). */
+export const FEW_CLUSTERS = 30;
+
+/** A caution for cluster columns with fewer than FEW_CLUSTERS clusters (null when every column has enough). */
+export function fewClustersNote(names: readonly string[], groups: readonly number[] | undefined): string | null {
+  if (!groups) return null;
+  const few = names.map((n, m) => ({ n, g: groups[m] })).filter((c) => c.g < FEW_CLUSTERS);
+  if (few.length === 0) return null;
+  return `Few clusters: ${few.map((c) => `${c.n} has ${c.g}`).join(", ")}; with fewer than about ${FEW_CLUSTERS} clusters the clustered errors tend to be too small (Cameron and Miller 2015; common practice), so read p-values and intervals with care.`;
 }
 
 /** The reason to show (as #N/A) for a term whose two-way cluster variance came out negative. */

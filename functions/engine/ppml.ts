@@ -26,17 +26,19 @@ import { Model } from "./fit";
 import { LOG, type Dataset, type Transform } from "./transforms";
 import type { CovarianceInput } from "./covariance";
 import type { EstimatorInfo } from "./estimators";
+import { ppmlAbsorbed } from "./ppmlAbsorbed";
+import type { ScoreModel } from "./panelCovariance";
 
 /** Convergence tolerance on the relative change of the deviance and of the coefficients. */
 export const PPML_TOL = 1e-12;
 export const PPML_MAX_ITER = 200;
 
-function deviance(y: Float64Array, mu: Float64Array): number {
+function deviance(y: Float64Array, mu: Float64Array, w: Float64Array | null = null): number {
   let d = 0;
   for (let i = 0; i < y.length; i++) {
     const yi = y[i];
     const m = mu[i];
-    d += yi > 0 ? yi * Math.log(yi / m) - (yi - m) : m;
+    d += (w ? w[i] : 1) * (yi > 0 ? yi * Math.log(yi / m) - (yi - m) : m);
   }
   return 2 * d;
 }
@@ -53,7 +55,7 @@ export interface PpmlStatistics {
 export const PPML_INFO: EstimatorInfo = Object.freeze({
   id: "ppml",
   title: "PPML",
-  seTypes: ["HC1", "HC0", "classical"],
+  seTypes: ["HC1", "HC0", "classical", "cluster"],
   defaultSe: "HC1",
   logsY: false,
   negativeY: false,
@@ -76,9 +78,45 @@ export class PpmlFit extends Model {
   readonly iterations: number;
   readonly devianceValue: number;
 
-  /** @param maxIter iteration limit (tests lower it to reach the non-convergence message) */
+  /** The PPML scores of a fit with fixed effects (null without them: the base class builds them). */
+  private readonly absorbedScores: ScoreModel | null = null;
+
+  /**
+   * @param maxIter iteration limit (tests lower it to reach the non-convergence message)
+   *
+   * With weights= each row's pseudo-likelihood term is multiplied by its weight (R's glm(weights =)):
+   * the working weights are w·μ, the scores w·x(y − μ̂). With absorb= the fit is ppmlAbsorbed's (no
+   * intercept of its own; the rows whose absorbed value has y = 0 throughout and the singletons are
+   * already left out by prepare).
+   */
   constructor(data: Dataset, intercept: boolean, maxIter = PPML_MAX_ITER) {
-    super(data, intercept);
+    const keys = data.roles.absorb;
+    super(data, intercept && keys.length === 0);
+    const wts = data.roles.weights;
+    if (keys.length > 0) {
+      const r = ppmlAbsorbed({
+        y: data.y,
+        X: this.design,
+        names: this.terms.map((t) => t.name),
+        yName: data.yName,
+        keys: keys.map((k) => ({ name: k.name, codes: k.codes })),
+        weights: wts,
+        maxIter,
+      });
+      if (r.n !== this.n) throw new Error("PPML rows left out after prepare");
+      this.beta = r.coef;
+      this.mu = r.mu;
+      this.iterations = r.iterations;
+      this.devianceValue = r.deviance;
+      this.absorbed = r.absorbed;
+      this.absorber = r.absorber;
+      this.qr = r.scores.qr;
+      let ssr = 0;
+      for (let i = 0; i < this.n; i++) ssr += r.scores.u[i] * r.scores.u[i];
+      this.absorbedScores = { ...r.scores, rowNumbers: data.rowNumbers };
+      this.covInput = { columns: r.scores.X, factor: r.scores.qr, scores: r.scores.u, ssr, dfResid: this.dfResid, rowNumbers: data.rowNumbers };
+      return;
+    }
     // With an intercept PPML is equivariant to the units of y (y·s moves the intercept by log s and
     // nothing else), so y of extreme magnitude is fitted divided by a power of two and the intercept,
     // μ̂ and the deviance are put back afterwards; the iterations then start near the answer.
@@ -94,7 +132,7 @@ export class PpmlFit extends Model {
     let mu: Float64Array = Float64Array.from(y, (v) => v + 0.1);
     let eta: Float64Array = Float64Array.from(mu, Math.log);
     let beta: Float64Array = new Float64Array(k);
-    let dev = deviance(y, mu);
+    let dev = deviance(y, mu, wts);
     let iter = 0;
     let converged = false;
     const A: Float64Array[] = X.map(() => new Float64Array(n));
@@ -103,7 +141,7 @@ export class PpmlFit extends Model {
     const explain = (): never => unavailable("the weighted design lost rank during PPML iterations (a regressor separates the zeros): check regressors that are zero wherever y is above zero");
     for (iter = 1; iter <= maxIter; iter++) {
       for (let i = 0; i < n; i++) {
-        const s = Math.sqrt(mu[i]);
+        const s = Math.sqrt((wts ? wts[i] : 1) * mu[i]);
         z[i] = (eta[i] + (y[i] - mu[i]) / mu[i]) * s;
         for (let j = 0; j < k; j++) A[j][i] = X[j][i] * s;
       }
@@ -111,13 +149,13 @@ export class PpmlFit extends Model {
       let next: Float64Array = Float64Array.from(lastQr.coef);
       let newEta = linear(X, next);
       let newMu = Float64Array.from(newEta, Math.exp);
-      let newDev = deviance(y, newMu);
+      let newDev = deviance(y, newMu, wts);
       // Step halving when the deviance is not finite or rises (as R's glm.fit does).
       for (let h = 0; h < 40 && iter > 1 && (!Number.isFinite(newDev) || newDev > dev * (1 + 1e-12)); h++) {
         next = Float64Array.from(next, (v, j) => (v + beta[j]) / 2);
         newEta = linear(X, next);
         newMu = Float64Array.from(newEta, Math.exp);
-        newDev = deviance(y, newMu);
+        newDev = deviance(y, newMu, wts);
       }
       if (!Number.isFinite(newDev)) break;
       let change = 0;
@@ -149,12 +187,13 @@ export class PpmlFit extends Model {
     this.devianceValue = dev;
     // The factor at the converged μ̂ carries the covariances: weighted design √μ̂·X, Pearson residuals.
     for (let i = 0; i < n; i++) {
-      const s = Math.sqrt(mu[i]);
+      const s = Math.sqrt((wts ? wts[i] : 1) * mu[i]);
       z[i] = (eta[i] + (yOwn[i] - mu[i]) / mu[i]) * s;
       for (let j = 0; j < k; j++) A[j][i] = X[j][i] * s;
     }
     const q = leastSquares(A, z).qr ?? explain();
-    const pearson = Float64Array.from(yOwn, (v, i) => (v - mu[i]) / Math.sqrt(mu[i]));
+    // √w·(y − μ̂)/√μ̂: with the columns √(wμ̂)·x the score of a row is w·x(y − μ̂)
+    const pearson = Float64Array.from(yOwn, (v, i) => ((wts ? Math.sqrt(wts[i]) : 1) * (v - mu[i])) / Math.sqrt(mu[i]));
     let ssr = 0;
     for (let i = 0; i < n; i++) ssr += pearson[i] * pearson[i];
     this.qr = q;
@@ -163,6 +202,11 @@ export class PpmlFit extends Model {
 
   covarianceInput(): CovarianceInput {
     return this.covInput;
+  }
+
+  /** With fixed effects: ppmlAbsorbed's scores (no exact leverage, so HC2/HC3 stay refused). */
+  protected scoreModel(): ScoreModel {
+    return this.absorbedScores ?? super.scoreModel();
   }
 
   /** Santos Silva and Tenreyro (2010): a combination zero where y > 0 and one-signed where y = 0. */

@@ -128,7 +128,7 @@ export function ppmlAbsorbed(input: PpmlAbsorbedInput): PpmlAbsorbedFit {
   const w = input.weights ? keepRows(input.weights, keep) : null;
   const coded = input.keys.map((c) => ({ name: c.name, ...recode(c.codes, keep) }));
   coded.forEach((c) => {
-    if (c.levels === 1) fail(`${c.name} has one value in the rows used, so absorbing it is only an intercept: remove it from absorb=`);
+    if (c.levels === 1) fail(`${c.name} has the same value in every row used, so absorbing it is only an intercept: remove it from absorb=`);
   });
   const base = new Absorber(coded, null);
   const a = base.absorbed;

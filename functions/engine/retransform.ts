@@ -44,6 +44,9 @@ export function retransformFactor(fit: OlsFit, how: Retransform): number {
   const g = fit.data.yTransform;
   if (g.kind === "level") return 1;
   if (how === "none") return 1;
+  if (fit.data.roles.weights) {
+    unavailable("the retransformation factors here (Duan's smearing, exp(s²/2)) assume unweighted least squares, and weights= makes the fit weighted: use retransform=none (the median-type prediction exp(x'b)), or fit without weights=");
+  }
   fit.requireResidualVariation("the retransformation factor");
   if (g.kind === "asinh") {
     if (how === "normal") return normalFactor(fit);
@@ -85,9 +88,13 @@ export interface Prediction {
 /**
  * The prediction for one transformed design row x0 and, when asked, its interval.
  * @param cov covariance for interval=mean (the chosen se); the individual interval uses the classical one
+ * @param effect the absorbed fixed effects of the row (Model.absorbedEffect), added to x0'b
  */
-export function predictRow(fit: AnyFit, x0: Float64Array, how: Retransform, interval: "none" | "mean" | "individual", level: number, cov: Covariance): Prediction {
-  let m = 0;
+export function predictRow(fit: AnyFit, x0: Float64Array, how: Retransform, interval: "none" | "mean" | "individual", level: number, cov: Covariance, effect = 0): Prediction {
+  if (interval !== "none" && fit.absorbed > 0) {
+    unavailable(`interval=${interval} is not offered with absorb=: the uncertainty of the estimated fixed effects is not computed here, so an interval would be too narrow; use interval=none`);
+  }
+  let m = effect;
   for (let j = 0; j < x0.length; j++) m += fit.coef[j] * x0[j];
   const value = toLevels(fit, m, how);
   if (interval === "none") return { value, lower: NaN, upper: NaN };

@@ -66,8 +66,8 @@ describe("the largest lag length", () => {
 
 describe("lags= without se=HAC", () => {
   it.each([
-    ["lags=4", "lags=4 applies only to se=HAC (Newey–West errors); the default errors are HC3 (HC1 for ppml): add se=HAC, or remove lags="],
-    ["se=HC1; lags=4", "lags=4 applies only to se=HAC (Newey–West errors), not se=HC1: add se=HAC, or remove lags="],
+    ["lags=4", "lags=4 applies only to se=HAC (Newey–West errors) and se=DK (Driscoll–Kraay); the default errors are HC3 (HC1 for ppml): add se=HAC, or remove lags="],
+    ["se=HC1; lags=4", "lags=4 applies only to se=HAC (Newey–West errors) and se=DK (Driscoll–Kraay), not se=HC1: add se=HAC, or remove lags="],
   ])("%s is refused instead of silently ignored", (opts, message) => {
     for (const id of ["FIT", "ELASTICITIES", "SUMMARY"]) expect(err(call(reg, id, Y, X, opts)).message).toBe(message);
   });

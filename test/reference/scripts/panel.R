@@ -260,13 +260,99 @@ ppml_cases <- list(
             list("state", "region", c("state", "year")), w = "emp")
 )
 
+# ---- PREDICT under fixed effects ------------------------------------------------------------------
+# predict(lm(y ~ x + factor(key1) [+ factor(key2)]), newdata) and predict(glm(..., quasipoisson),
+# newdata, type = "response") at new rows whose key values were seen in the fit; keys are given as
+# the codes the cells use (firm: first appearance, year: ascending), x at chosen values.
+predict_case <- function(name, source, d, y, x, fe, newdata, ppml = FALSE) {
+  f <- as.formula(paste(y, "~", paste(c(x, paste0("factor(", fe, ")")), collapse = " + ")))
+  m <- if (ppml) {
+    m0 <- glm(f, family = quasipoisson, data = d, control = ctl)
+    glm(f, family = quasipoisson, data = d, control = ctl, start = coef(m0))
+  } else lm(f, data = d)
+  p <- if (ppml) predict(m, newdata = newdata, type = "response") else predict(m, newdata = newdata)
+  code_of <- function(v, key) {
+    if (key == "year") as.integer(factor(v, levels = sort(unique(d[[key]])))) - 1L
+    else as.integer(factor(v, levels = unique(d[[key]]))) - 1L
+  }
+  list(name = scalar(name), source = scalar(source), ppml = scalar(ppml), y = d[[y]],
+       x = lapply(setNames(x, x), function(v) d[[v]]),
+       keys = lapply(setNames(fe, fe), function(v) code_of(d[[v]], v)),
+       new_x = lapply(setNames(x, x), function(v) newdata[[v]]),
+       new_keys = lapply(setNames(fe, fe), function(v) code_of(newdata[[v]], v)),
+       predicted = unname(p))
+}
+grun_new <- data.frame(firm = c(1, 3, 7, 10), year = c(1935, 1940, 1947, 1954),
+                       lvalue = c(7.5, 6.0, 5.2, 4.4), lcapital = c(6.0, 4.1, 3.3, 2.0))
+predict_cases <- list(
+  predict_case("grunfeld_predict_oneway", "plm::Grunfeld", grun, "ly", c("lvalue", "lcapital"), "firm", grun_new),
+  predict_case("grunfeld_predict_twoway", "plm::Grunfeld", grun, "ly", c("lvalue", "lcapital"), c("firm", "year"), grun_new),
+  predict_case("grunfeld_predict_ppml_oneway", "plm::Grunfeld", grun, "inv", c("lvalue", "lcapital"), "firm", grun_new, ppml = TRUE)
+)
+
+# ---- residual tests under fixed effects, and weighted PPML without fixed effects ----------------
+# Breusch-Pagan and White on the residuals of lm(y ~ x + factor(g)) with the regressors x (not the
+# indicators) as the variance's explanatory variables: lmtest::bptest(m, varformula, data,
+# studentize = TRUE | FALSE); White: varformula with squares and cross-products; RESET
+# lmtest::resettest(m, power = 2:3, type = "fitted") (the auxiliary regression keeps the indicators);
+# Jarque-Bera n/6 (S^2 + (K - 3)^2 / 4) with moments of residuals(m) (n denominators).
+suppressPackageStartupMessages(library(lmtest))
+tests_case <- function(name, source, d, y, x, fe) {
+  f <- as.formula(paste(y, "~", paste(c(x, paste0("factor(", fe, ")")), collapse = " + ")))
+  m <- lm(f, data = d)
+  vf <- as.formula(paste("~", paste(x, collapse = " + ")))
+  sq <- paste0("I(", x, "^2)")
+  cr <- combn(x, 2, function(p) paste0("I(", p[1], "*", p[2], ")"))
+  wf <- as.formula(paste("~", paste(c(x, sq, cr), collapse = " + ")))
+  bp <- bptest(m, vf, data = d)
+  bpo <- bptest(m, vf, data = d, studentize = FALSE)
+  wh <- bptest(m, wf, data = d)
+  rs <- resettest(m, power = 2:3, type = "fitted")
+  e <- residuals(m); n <- length(e); e <- e - mean(e)
+  S <- mean(e^3) / mean(e^2)^1.5; K <- mean(e^4) / mean(e^2)^2
+  jb <- n / 6 * (S^2 + (K - 3)^2 / 4)
+  list(name = scalar(name), source = scalar(source), y = d[[y]], x = lapply(setNames(x, x), function(v) d[[v]]),
+       keys = lapply(setNames(fe, fe), function(v) codes0(d[[v]])),
+       bp = c(unname(bp$statistic), unname(bp$p.value)), bp_original = c(unname(bpo$statistic), unname(bpo$p.value)),
+       white = c(unname(wh$statistic), unname(wh$p.value)), reset = c(unname(rs$statistic), unname(rs$p.value)),
+       jb = c(jb, pchisq(jb, 2, lower.tail = FALSE)))
+}
+tests_cases <- list(tests_case("grunfeld_tests_oneway", "plm::Grunfeld", grun, "ly", c("lvalue", "lcapital"), "firm"))
+# glm(y ~ x, quasipoisson, weights = w): coefficients, HC0/HC1 (vcovHC), classical (vcov: Pearson
+# dispersion with the prior weights), cluster vcovCL(type = "HC1") (G/(G-1) (n-1)/(n-k))
+ppml_weighted_plain <- local({
+  d <- prod_d
+  m0 <- glm(gsp ~ lpcap + lpc + unemp, family = quasipoisson, data = d, weights = emp, control = ctl)
+  m <- glm(gsp ~ lpcap + lpc + unemp, family = quasipoisson, data = d, weights = emp, control = ctl, start = coef(m0))
+  list(name = scalar("produc_ppml_weighted_plain"), source = scalar("plm::Produc, weights emp"), y = d$gsp,
+       x = list(lpcap = d$lpcap, lpc = d$lpc, unemp = d$unemp), weights = d$emp, region = d$region,
+       coefficients = unname(coef(m)),
+       se = list(HC0 = unname(sqrt(diag(vcovHC(m, type = "HC0")))), HC1 = unname(sqrt(diag(vcovHC(m, type = "HC1")))),
+                 classical = unname(sqrt(diag(vcov(m)))),
+                 cluster_region = unname(sqrt(diag(vcovCL(m, cluster = ~region, type = "HC1"))))))
+})
+
+# classical errors of PPML with fixed effects: sqrt(diag(vcov(glm(y ~ x + factor(g), quasipoisson))))
+# (Pearson dispersion on n - rank df)
+ppml_classical <- local({
+  f <- inv ~ lvalue + lcapital + factor(firm)
+  m0 <- glm(f, family = quasipoisson, data = grun, control = ctl)
+  m <- glm(f, family = quasipoisson, data = grun, control = ctl, start = coef(m0))
+  list(name = scalar("grunfeld_ppml_oneway"), se = unname(sqrt(diag(vcov(m)))[c("lvalue", "lcapital")]),
+       dispersion = scalar(summary(m)$dispersion))
+})
+
 out <- list(
   generated_by = scalar("Rscript test/reference/scripts/panel.R"),
   r_version = scalar(R.version.string),
   packages = list(sandwich = scalar(as.character(packageVersion("sandwich"))), plm = scalar(as.character(packageVersion("plm"))),
                   estimatr = scalar(as.character(packageVersion("estimatr"))), MASS = scalar(as.character(packageVersion("MASS")))),
   ols = cases,
-  ppml = ppml_cases
+  ppml = ppml_cases,
+  predict = predict_cases,
+  tests = tests_cases,
+  ppml_weighted_plain = ppml_weighted_plain,
+  ppml_classical = ppml_classical
 )
 writeLines(to_json(out), out_path)
 cat("wrote", out_path, "\n")
