@@ -174,7 +174,7 @@ describe("the preview workbook", () => {
     const at = { parameterAddresses: [`Sales!C1:C${N + 1}`, `Sales!D1:H${N + 1}`] };
     const pooled = engine("ELASTICITIES", Y, xp, "zeros=drop; cluster=Branch", at) as unknown[][];
     const fe = engine("ELASTICITIES", Y, xp, "zeros=drop; absorb=Branch; cluster=Branch", at) as unknown[][];
-    expect(pooled[0][3]).toBe("Std. error (cluster (Branch, 12 clusters))");
+    expect(pooled[0][3]).toMatch(/cluster.*Branch, 12 clusters/);
     sameTable(await block(74, 13, pooled.length, pooled[0].length), pooled, "pooled ELASTICITIES at M74");
     sameTable(await block(81, 13, fe.length, fe[0].length), fe, "fixed-effects ELASTICITIES at M81");
     // the fixed-effects price elasticity differs from the pooled one (store effects correlated with price)
