@@ -481,8 +481,8 @@ async function instrumentSection(truth) {
     out("  is unavailable. The data hold the instrument (FlourCost) for when it is.");
     return;
   }
-  await formula(F("IVCHECK", ivOpts), "IVCHECK", [XIVy(), XIV.cells, ivOpts], yx);
-  const iv = await formula(F("ELASTICITIES", ivOpts), "ELASTICITIES", [XIVy(), XIV.cells, ivOpts], yx);
+  await formula(F("IVCHECK", ivOpts), "IVCHECK", [Y.cells, XIV.cells, ivOpts], yx);
+  const iv = await formula(F("ELASTICITIES", ivOpts), "ELASTICITIES", [Y.cells, XIV.cells, ivOpts], yx);
   const ols = await call("ELASTICITIES", [Y.cells, XP.cells, olsOpts], [Y.address, XP.address], "section 9 OLS");
   const a = elasticityOf(ols, "Price");
   const b = elasticityOf(iv, "Price");
@@ -500,11 +500,6 @@ async function instrumentSection(truth) {
     "data were made so; in real data it is an argument about the business (a flour cost that also",
     "changes what rivals charge would break it). 2SLS intervals are wider: the price of removing the bias.",
   ]);
-}
-
-/** y of the whole sheet (the same as Y; a function so the 2SLS calls read the same cells). */
-function XIVy() {
-  return Y.cells;
 }
 
 async function changeSection(truth) {
