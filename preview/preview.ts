@@ -17,16 +17,32 @@ const g = globalThis as unknown as Record<string, unknown>;
 const book = g.ElxPreviewWorkbook as Workbook;
 const sheet = book.activeSheet;
 
-/** The formulas on the demo sheet: label above, formula below, in column I. */
-export const DEMO_FORMULAS: { at: string; label: string; formula: string }[] = [
-  { at: "I2", label: "Coefficients: log-log, HC3, weeks with zero sales left out", formula: '=ELX.FIT(C1:C1249, D1:G1249, "zeros=drop")' },
-  { at: "I9", label: "Elasticities at the means, with intervals", formula: '=ELX.ELASTICITIES(C1:C1249, D1:G1249, "zeros=drop")' },
-  { at: "I16", label: "Price elasticity, one number", formula: '=ELX.ELASTICITY(C1:C1249, D1:G1249, "Price", "zeros=drop")' },
-  { at: "I19", label: "Percent effect of a promotion week", formula: '=ELX.EFFECTS(C1:C1249, D1:G1249, "zeros=drop")' },
-  { at: "I23", label: "Zeros and blanks per column", formula: "=ELX.ZEROS(C1:G1249)" },
-  { at: "I32", label: "Specification tests", formula: '=ELX.TESTS(C1:C1249, D1:G1249, "zeros=drop")' },
-  { at: "I41", label: "What a plain log does with the zero weeks", formula: "=ELX.FIT(C1:C1249, D1:G1249)" },
-  { at: "I44", label: "Fit summary", formula: '=ELX.SUMMARY(C1:C1249, D1:G1249, "zeros=drop")' },
+/** Options of the panel formulas: store fixed effects and errors clustered by store. */
+const FE = "zeros=drop; absorb=Branch; cluster=Branch";
+/** 2SLS with the flour cost index as the instrument for Price (x D:J: Period is named so it is not a regressor). */
+const IV = `${FE}; time=Period; estimator=2sls; endogenous=Price; instruments=FlourCost`;
+/** The four stores a rival opens near (rows 2..417): periods, one series per store, HC1 errors. */
+const TIME = "zeros=drop; time=Period; panel=Branch; se=HC1";
+
+/**
+ * The formulas on the demo sheet: label above, formula below, in column M (the data fill A:K).
+ * A formula whose function is not registered in this build (`needs`) is left out.
+ */
+export const DEMO_FORMULAS: { at: string; label: string; formula: string; needs?: string }[] = [
+  { at: "M2", label: "Coefficients: log-log, HC3, weeks with zero sales left out", formula: '=ELX.FIT(C1:C1249, D1:G1249, "zeros=drop")' },
+  { at: "M9", label: "Elasticities at the means, with intervals", formula: '=ELX.ELASTICITIES(C1:C1249, D1:G1249, "zeros=drop")' },
+  { at: "M16", label: "Price elasticity, one number", formula: '=ELX.ELASTICITY(C1:C1249, D1:G1249, "Price", "zeros=drop")' },
+  { at: "M19", label: "Percent effect of a promotion week", formula: '=ELX.EFFECTS(C1:C1249, D1:G1249, "zeros=drop")' },
+  { at: "M23", label: "Zeros and blanks per column", formula: "=ELX.ZEROS(C1:G1249)" },
+  { at: "M32", label: "Specification tests", formula: '=ELX.TESTS(C1:C1249, D1:G1249, "zeros=drop")' },
+  { at: "M41", label: "What a plain log does with the zero weeks", formula: "=ELX.FIT(C1:C1249, D1:G1249)" },
+  { at: "M44", label: "Fit summary", formula: '=ELX.SUMMARY(C1:C1249, D1:G1249, "zeros=drop")' },
+  { at: "M74", label: "Pooled over the 12 stores, errors clustered by store (Branch)", formula: '=ELX.ELASTICITIES(C1:C1249, D1:H1249, "zeros=drop; cluster=Branch")' },
+  { at: "M81", label: "Store fixed effects (absorb=Branch), errors clustered by store", formula: `=ELX.ELASTICITIES(C1:C1249, D1:H1249, "${FE}")` },
+  { at: "M88", label: "Two-stage least squares, FlourCost as the instrument for Price", formula: `=ELX.ELASTICITIES(C1:C1249, D1:J1249, "${IV}")`, needs: "IVCHECK" },
+  { at: "M95", label: "Is FlourCost a strong instrument? (first stage, Wu–Hausman)", formula: `=ELX.IVCHECK(C1:C1249, D1:J1249, "${IV}")`, needs: "IVCHECK" },
+  { at: "M103", label: "Rival stores (rows 2–417): elasticities over 52-week windows, store effects in each", formula: `=ELX.ROLLING(C1:C417, D1:I417, 52, "${TIME}; absorb=Branch; step=13")`, needs: "ROLLING" },
+  { at: "M112", label: "Rival stores: did the model change in week 61?", formula: `=ELX.BREAKTEST(C1:C417, D1:I417, 61, "${TIME}")`, needs: "BREAKTEST" },
 ];
 
 /** Seeded synthetic data for the benchmark: Units on Price, Footfall, Promo, Income (invented). */
@@ -79,6 +95,7 @@ async function start(): Promise<void> {
     book.loadValues(sheet, 1, 1, [columns, ...(demo.rows as CellValue[][])]);
     const inputs: { row: number; column: number; input: string }[] = [];
     for (const f of DEMO_FORMULAS) {
+      if (f.needs && !book.registry.has(f.needs)) continue;
       const p = parseAddress(f.at);
       if (!p.ok) continue;
       inputs.push({ row: p.value.top - 1, column: p.value.left, input: f.label });

@@ -3,7 +3,9 @@
  * Demo data for Elasticell: "Harrow & Crumb", an invented regional bakery chain.
  *
  * Writes data/demo.json and data/demo.csv: 12 stores x 104 weeks of one product line (sourdough
- * loaves), columns Store, Week, Units, Price, Footfall, Promo, Income. The numbers are simulated
+ * loaves), columns Store, Week, Units, Price, Footfall, Promo, Income, Branch, Period, FlourCost,
+ * Rival. Branch and Period repeat Store and Week beside the regressors (role columns must sit inside
+ * the x block: D:H holds the regressors and Branch, D:I adds Period, D:J adds FlourCost). The numbers are simulated
  * from a known model (recorded under "truth" in the JSON) so that the demo can put estimates next
  * to the values that generated them. Invented data: for the demo and simulation checks only.
  *
@@ -12,15 +14,38 @@
  *   node scripts/make-demo-data.js --seed 7   (another draw of the same design)
  *
  * The model, per store s and week t:
- *   Units = exp(a_s + e_price_s * log Price + e_foot * log Footfall + b_promo * Promo
- *               + e_income * log Income + u_st) * G_st, rounded to whole loaves
+ *   Units = exp(a_s + e_st * log Price + e_foot * log Footfall + b_promo * Promo
+ *               + e_income * log Income + r_st + u_st) * G_st, rounded to whole loaves
+ *   e_st   the store's price elasticity e_s (spread about -0.9 to -2.0, mean exactly -1.4), and
+ *          e_s - 1.0 from week 61 at the four stores a rival bakery opens near (Northgate,
+ *          Riverside, Millbrook, Eastcliff; Rival = 1 there): their customers can buy elsewhere,
+ *          so they become more price-sensitive (more negative). r_st = -0.1 (fewer loaves at the
+ *          reference price of 3 pounds) plus the term that keeps the elasticity change from
+ *          shifting the level there, else 0.
+ *   a_s    store constant, including a location effect L_s (sd 0.25) that also raises the log
+ *          shelf price by 0.35 L_s: busy stores sell more and charge more, so a pooled fit mixes
+ *          the store differences into the price slope and fixed effects by store remove them.
  *   u_st   a store-level demand shock, AR(1) over weeks (rho 0.7)
  *   G_st   gamma noise with mean 1 whose coefficient of variation grows with the expected level
  *          (right-skewed, heteroskedastic, multiplicative)
  * Price is not set independently of demand: at each store's price review (every 8 weeks) the
- * manager raises the shelf price after weeks of strong sales and cuts it after weak ones, so
- * Price is correlated with the demand shock u (endogeneity on purpose). Temporary markdowns,
- * a chain-wide price rise in week 53 and the display promotions are set without regard to demand.
+ * manager raises the shelf price after weeks of strong sales and cuts it after weak ones, and each
+ * week adds a busy-week surcharge that follows last week's demand shock (log price + 0.8 u_s,t-1),
+ * so Price is correlated with the demand shock u (endogeneity on purpose). FlourCost, a wholesale
+ * flour cost index per store and week (regional level x chain market path AR(1) 0.9 x store wiggle
+ * AR(1) 0.6), moves the weekly price list (pass-through elasticity 0.5) and nothing else: it does
+ * not enter demand, so it is a valid, strong instrument for Price by construction. Temporary
+ * markdowns, a chain-wide price rise in week 53 and the display promotions are set without regard
+ * to demand.
+ * True values (seed 20240607): chain elasticity -1.4 before the rival; -1.3988 at the eight stores
+ * without one; -1.5438 averaged over the 1,213 rows a log-log fit with zeros=drop uses (the target
+ * of the pooled, fixed-effects and 2SLS estimates); Northgate -0.878 before week 61, -1.878 from it.
+ * Measured on this draw with R (lm, AER::ivreg, sandwich::vcovCL HC1 by Store, t with 11 df):
+ * pooled OLS -0.667 (interval -1.064 to -0.271), store fixed effects -1.091 (-1.438 to -0.744, misses
+ * the truth: prices react to demand), 2SLS with FlourCost and store fixed effects -1.404 (-1.979 to
+ * -0.829, covers it); first-stage F of log FlourCost 260.8 (classical, with store effects), Wu-Hausman
+ * p 0.0028. Northgate alone: Chow F at week 61 p 0.0004, sup-F (trim 0.15) p 0.0009 with the most
+ * likely break at week 58; Westmoor (no rival) Chow p 0.13.
  * Closures (refurbishment, flood, snow, burst water main, staff shortage) give zero Units and a
  * zero Footfall count; two delivery failures give stock-out weeks with zero Units but normal
  * footfall; three cells are blank (till and counter faults).
@@ -102,6 +127,26 @@ const TRUTH = {
   intercept: 1.05, // mean of the store constants a_s of the log-log equation
 };
 const REFERENCE_PRICE = 3.0; // pounds; see the store constants below
+// Store location: busy high-street stores sell more at any price and also charge more (a store
+// effect correlated with price, which fixed effects by store remove).
+const LOCATION_DEMAND = 0.25; // sd of the location effect on log expected Units
+const LOCATION_PRICE = 0.35; // log shelf price moves by this times the (demand-scale) location effect
+// Wholesale flour cost index (100 = the chain's contract price), per store and week: each store's
+// regional mill sets a level, a chain-wide market path moves every week (AR(1)), and each store's
+// deliveries add their own AR(1) wiggle. The price list is indexed to it weekly, with this
+// pass-through elasticity; it enters the price and nothing else (no effect on demand).
+const FLOUR_PASS_THROUGH = 0.5;
+const FLOUR_MARKET_RHO = 0.9;
+const FLOUR_MARKET_SD = 0.035;
+const FLOUR_LOCAL_RHO = 0.6;
+const FLOUR_LOCAL_SD = 0.05;
+// A rival bakery opens near four stores in the second year: from week RIVAL_WEEK their customers
+// can buy elsewhere, so their price elasticity becomes more negative by RIVAL_SHIFT, and their
+// sales at the reference price fall by RIVAL_LEVEL (log units).
+const RIVAL_STORES = ["Northgate", "Riverside", "Millbrook", "Eastcliff"];
+const RIVAL_WEEK = 61;
+const RIVAL_SHIFT = -1.0;
+const RIVAL_LEVEL = -0.1;
 const DEMAND_RHO = 0.7; // AR(1) persistence of the weekly demand shock
 const DEMAND_SD = 0.06; // innovation sd of the demand shock (log units)
 const NOISE_CV_AT_300 = 0.11; // coefficient of variation of G at an expected 300 loaves
@@ -128,15 +173,17 @@ STORES.forEach((s, i) => {
 const stores = STORES.map((name, i) => {
   const income = round(100 * Math.exp(0.13 * rnd.normal()), 1);
   // richer areas carry higher shelf prices (a between-store association, not a cause)
-  const basePrice = 3.1 * Math.exp(0.35 * Math.log(income / 100) + 0.07 * rnd.normal());
+  const location = LOCATION_DEMAND * rnd.normal();
+  const basePrice = 3.1 * Math.exp(0.35 * Math.log(income / 100) + LOCATION_PRICE * location + 0.07 * rnd.normal());
   // Store constant of the log-log equation. The term -(e_s - mean e)·log(REFERENCE_PRICE) makes
   // every store sell about the same at the reference price whatever its own elasticity, so the
   // spread of elasticities does not turn into an unmodelled store-level shift; the remaining
   // store effect (sd 0.04) is small on purpose.
-  const constant = TRUTH.intercept + 0.04 * rnd.normal()
+  const constant = TRUTH.intercept + 0.04 * rnd.normal() + location
     - (pricePerStore[name] - TRUTH.price) * Math.log(REFERENCE_PRICE);
   const footScale = Math.exp(0.08 * rnd.normal());
-  return { name, index: i, income, basePrice, constant, footScale, elasticity: pricePerStore[name] };
+  const flourLevel = 100 * Math.exp(0.06 * rnd.normal());
+  return { name, index: i, income, basePrice, constant, footScale, elasticity: pricePerStore[name], location, flourLevel };
 });
 // Centre the store constants exactly on TRUTH.intercept (so the recorded truth is exact).
 {
@@ -197,10 +244,28 @@ function season(week) {
   return f;
 }
 
+// Chain-wide wholesale flour market path (log deviation from the contract price), AR(1).
+const flourMarket = [];
+{
+  let m = (FLOUR_MARKET_SD / Math.sqrt(1 - FLOUR_MARKET_RHO * FLOUR_MARKET_RHO)) * rnd.normal();
+  for (let t = 1; t <= WEEKS; t++) {
+    m = FLOUR_MARKET_RHO * m + FLOUR_MARKET_SD * rnd.normal();
+    flourMarket[t] = m;
+  }
+}
+// Busy-week pricing: each week the manager adds a surcharge that follows last week's demand shock
+// (log price moves by this times u of the week before), on top of the 8-weekly reviews.
+const BUSY_RESPONSE = 0.8;
+const hasRival = (store, week) => RIVAL_STORES.includes(store) && week >= RIVAL_WEEK;
+
 // ---------- simulation ----------
-const header = ["Store", "Week", "Units", "Price", "Footfall", "Promo", "Income"];
+// Columns H and I repeat Store and Week as Branch and Period beside the regressors, so that one x
+// block holds the regressors and the key columns that absorb=, cluster= and time= name: D:H for
+// fixed effects and clusters, D:I with the periods for windows and breaks, D:J with FlourCost for 2SLS.
+const header = ["Store", "Week", "Units", "Price", "Footfall", "Promo", "Income", "Branch", "Period", "FlourCost", "Rival"];
 const rows = [];
 for (const st of stores) {
+  let flourLocal = (FLOUR_LOCAL_SD / Math.sqrt(1 - FLOUR_LOCAL_RHO * FLOUR_LOCAL_RHO)) * rnd.normal();
   let u = (DEMAND_SD / Math.sqrt(1 - DEMAND_RHO * DEMAND_RHO)) * rnd.normal();
   const uHist = [];
   let shelf = Math.round(st.basePrice * 20) / 20; // regular shelf price, whole 5p steps
@@ -219,9 +284,14 @@ for (const st of stores) {
       shelf = Math.max(1.95, Math.round(shelf * 20) / 20);
     }
     if (t === 53) shelf = Math.round(shelf * 1.06 * 20) / 20; // chain-wide cost pass-through
+    // wholesale flour cost index and the weekly cost-indexed price list
+    flourLocal = FLOUR_LOCAL_RHO * flourLocal + FLOUR_LOCAL_SD * rnd.normal();
+    const flour = round(st.flourLevel * Math.exp(flourMarket[t] + flourLocal), 1);
+    const lastShock = uHist.length ? uHist[uHist.length - 1] : 0;
+    const listed = shelf * Math.pow(flour / 100, FLOUR_PASS_THROUGH) * Math.exp(BUSY_RESPONSE * lastShock);
     // temporary markdown weeks, independent of demand
-    let price = shelf;
-    if (rnd.uniform() < 0.12) price = shelf * (1 - (0.1 + 0.1 * rnd.uniform()));
+    let price = listed;
+    if (rnd.uniform() < 0.12) price = listed * (1 - (0.1 + 0.1 * rnd.uniform()));
     price = round(Math.max(1.5, price - 0.01), 2); // shelf prices end in ...4 or ...9 pence
 
     // local income index, revised each quarter
@@ -237,7 +307,12 @@ for (const st of stores) {
     const closed = isClosed(st.name, t);
     const stockout = isStockout(st.name, t);
 
-    const logMean = st.constant + st.elasticity * Math.log(price) + TRUTH.footfall * Math.log(footfall)
+    const rival = hasRival(st.name, t) ? 1 : 0;
+    const elasticityNow = st.elasticity + rival * RIVAL_SHIFT;
+    // the rival's level effect is set at the reference price, so the elasticity change does not
+    // turn into a shift of its own: -(shift)·log(REFERENCE_PRICE) as for the store constants
+    const logMean = st.constant + rival * (RIVAL_LEVEL - RIVAL_SHIFT * Math.log(REFERENCE_PRICE))
+      + elasticityNow * Math.log(price) + TRUTH.footfall * Math.log(footfall)
       + TRUTH.promo * promo + TRUTH.income * Math.log(income) + u;
     const level = Math.exp(logMean);
     let cv = NOISE_CV_AT_300 * Math.pow(level / 300, NOISE_CV_POWER);
@@ -263,11 +338,18 @@ for (const st of stores) {
       isBlank(st.name, t, "Footfall") ? null : round(footfall, 1),
       promoOut,
       income,
+      st.name,
+      t,
+      flour,
+      rival,
     ]);
   }
 }
 
 const zeroUnits = rows.filter((r) => r[2] === 0).length;
+const usedElasticities = rows
+  .filter((r) => r[2] > 0 && r[3] !== null && r[4] !== null && r[4] > 0)
+  .map((r) => pricePerStore[r[0]] + (r[10] === 1 ? RIVAL_SHIFT : 0));
 const out = {
   name: "Harrow & Crumb sourdough sales (simulated)",
   description:
@@ -304,7 +386,38 @@ const out = {
     pricing:
       "regular price reviewed every 8 weeks per store: +10p after four weeks of average demand " +
       "shock above 0.03, -10p below -0.03, else a random 5p move with probability 0.3; +6% in " +
-      "week 53 at every store; markdown weeks (10-20% off) with probability 0.12 independent of demand",
+      "week 53 at every store; each week the listed price is the regular price times " +
+      `(FlourCost/100)^${FLOUR_PASS_THROUGH} times exp(${BUSY_RESPONSE} x last week's demand shock); ` +
+      "markdown weeks (10-20% off) with probability 0.12 independent of demand",
+    location: {
+      meaning: "store location effect L_s (sd " + LOCATION_DEMAND + "): adds L_s to the store constant and " +
+        LOCATION_PRICE + " L_s to the log shelf price, so busy stores sell more and charge more",
+      perStore: Object.fromEntries(stores.map((s) => [s.name, round(s.location, 4)])),
+    },
+    flourCost: {
+      meaning: "wholesale flour cost index per store and week (100 = contract price): store level times " +
+        "exp(chain market path + store wiggle); it moves Price (pass-through elasticity " + FLOUR_PASS_THROUGH +
+        ") and has no effect on demand, so it is a valid instrument for Price by construction",
+      passThrough: FLOUR_PASS_THROUGH,
+      market: { ar1: FLOUR_MARKET_RHO, innovationSd: FLOUR_MARKET_SD },
+      local: { ar1: FLOUR_LOCAL_RHO, innovationSd: FLOUR_LOCAL_SD },
+      storeLevel: Object.fromEntries(stores.map((s) => [s.name, round(s.flourLevel, 2)])),
+    },
+    busyWeekResponse: BUSY_RESPONSE,
+    rival: {
+      meaning: "a rival bakery opens near these stores from week " + RIVAL_WEEK + " (Rival = 1 from then): " +
+        "their price elasticity changes by " + RIVAL_SHIFT + " (more price-sensitive) and their log expected " +
+        "Units at the reference price by " + RIVAL_LEVEL,
+      stores: RIVAL_STORES,
+      fromWeek: RIVAL_WEEK,
+      elasticityShift: RIVAL_SHIFT,
+      levelShift: RIVAL_LEVEL,
+      pricePerStoreAfter: Object.fromEntries(RIVAL_STORES.map((s) => [s, round(pricePerStore[s] + RIVAL_SHIFT, 3)])),
+    },
+    // The true elasticity averaged over the rows a log-log fit with zeros=drop uses (Units > 0,
+    // Footfall > 0, no blank): the target of a pooled, fixed-effects or 2SLS price elasticity here.
+    priceRowAverage: round(usedElasticities.reduce((a, v) => a + v, 0) / usedElasticities.length, 4),
+    priceWithoutRival: round(STORES.filter((s) => !RIVAL_STORES.includes(s)).reduce((a, s) => a + pricePerStore[s], 0) / (STORES.length - RIVAL_STORES.length), 4),
   },
   counts: {
     rows: rows.length,
@@ -316,8 +429,10 @@ const out = {
   stockouts: STOCKOUTS.map(([store, week, reason]) => ({ store, week, reason })),
   blanks: BLANKS.map(([store, week, column, reason]) => ({ store, week, column, reason })),
   sheetLayout:
-    "columns A..G = Store, Week, Units, Price, Footfall, Promo, Income; row 1 headers; rows 2..1249 data " +
-    "(stores in the order listed, weeks 1..104 within each store)",
+    "columns A..K = Store, Week, Units, Price, Footfall, Promo, Income, Branch, Period, FlourCost, Rival; " +
+    "row 1 headers; rows 2..1249 data (stores in the order listed, weeks 1..104 within each store); " +
+    "Branch and Period repeat Store and Week beside the regressors so that the x blocks D:H (fixed " +
+    "effects, clusters), D:I (with periods) and D:J (with the instrument) hold the columns the role options name",
   columns: header,
   rows,
 };

@@ -16,10 +16,11 @@ const README_SHOTS = path.join(ROOT, "assets", "screenshots");
 
 /**
  * From a loaded preview page: checks the demo ranges with zeros left out, then writes the whole page
- * (preview.png) and the whole pane at its full height (pane.png) into dir.
+ * (preview.png) and the whole pane at its full height (pane.png) into dir; then the pane's assumptions
+ * on the panel block D1:J1249 with store fixed effects and clusters (pane-panel.png).
  * @param {import("playwright-core").Page} page
  * @param {string} dir
- * @returns {Promise<string[]>} the two files written
+ * @returns {Promise<string[]>} the three files written
  */
 async function takeScreenshots(page, dir) {
   fs.mkdirSync(dir, { recursive: true });
@@ -46,7 +47,30 @@ async function takeScreenshots(page, dir) {
     pane.style.height = "auto";
   });
   await page.locator("#elx-pane").screenshot({ path: files[1] });
+  // The panel story: x with Branch, Period and FlourCost, store fixed effects and errors clustered
+  // by store; the pane's assumptions (and, when registered, 2SLS and the rolling path) below.
+  await page.fill("#elx-x", "Sales!D1:J1249");
+  await run(page);
+  await page.selectOption("#elx-absorb", "Branch");
+  await page.selectOption("#elx-cluster", "Branch");
+  const iv = await page.evaluate(() => Array.from(document.querySelectorAll("#elx-instrument option")).some((o) => o.value === "FlourCost"));
+  if (iv) await page.selectOption("#elx-instrument", "FlourCost");
+  await run(page);
+  files.push(path.join(dir, "pane-panel.png"));
+  await page.locator("#elx-assume").screenshot({ path: files[2] });
+  // Put the pane back as the other tests expect it.
+  if (iv) await page.selectOption("#elx-instrument", "");
+  await page.selectOption("#elx-absorb", "");
+  await page.selectOption("#elx-cluster", "");
+  await page.fill("#elx-x", "Sales!D1:G1249");
   return files;
+}
+
+/** Presses the pane's check button and waits for the run to finish. */
+async function run(page) {
+  const before = await page.evaluate(() => window.ElxPane.completedRuns);
+  await page.click("#elx-run");
+  await page.waitForFunction((b) => window.ElxPane.completedRuns > b, before, { timeout: 30000 });
 }
 
 async function main() {

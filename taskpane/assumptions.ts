@@ -50,7 +50,7 @@ export function formAssumptions(form: Form, estimator: Estimator, se: string): P
   } else {
     out.push({ heading: "What it assumes", text: `Errors add to y in its own units; y is linear in ${xLog ? "the logs of the regressors" : "the regressors"}. Predictions need no retransformation, but a spread that grows with the level is common in sales data and shows as a fan in the residual picture.` });
   }
-  out.push({ heading: "Standard errors", text: `${se} errors. ${se === "classical" ? "Classical errors assume the spread is the same in every row; the robust ones (HC3) do not." : se === "HAC" ? "HAC errors allow for spread that changes and for correlation between nearby rows in sheet order (weekly data)." : "Robust to a spread that changes across rows; they do not allow for correlation between rows (use se=HAC for weekly series)."}` });
+  out.push({ heading: "Standard errors", text: `${se} errors. ${se === "classical" ? "Classical errors assume the spread is the same in every row; the robust ones (HC3) do not." : se === "HAC" ? "HAC errors allow for spread that changes and for correlation between nearby rows in sheet order (weekly data)." : se === "cluster" ? "Clustered errors allow any correlation between the rows of one cluster (see below)." : "Robust to a spread that changes across rows; they do not allow for correlation between rows (use se=HAC for weekly series)."}` });
   return out;
 }
 

@@ -232,3 +232,40 @@ export function intervalPlot(rows: IntervalRow[], title: string, levelLabel: str
   const desc = rows.map((r) => `${r.term}: ${shortNumber(r.estimate)} (${levelLabel} interval ${shortNumber(r.lower)} to ${shortNumber(r.upper)})`).join("; ");
   return svg(w, h, title, desc || "no elasticities", parts.join(""));
 }
+
+/** One window of a rolling fit: where it is drawn (its middle period or row) and its estimate with a band. */
+export interface PathPoint {
+  at: number;
+  estimate: number;
+  lower: number;
+  upper: number;
+}
+
+/**
+ * An estimate's path over rolling windows: the band (lower to upper) shaded, the estimates joined by
+ * a line, and, when given, a dashed vertical line at a break.
+ */
+export function pathPlot(points: PathPoint[], title: string, xLabel: string, yLabel: string, breakAt: number | null = null): string {
+  const w = 340;
+  const h = 200;
+  const xs = points.map((p) => p.at);
+  const ys = points.flatMap((p) => [p.lower, p.upper, p.estimate]);
+  const xd: [number, number] = [Math.min(...xs), Math.max(...xs)];
+  if (xd[0] === xd[1]) xd[1] = xd[0] + 1;
+  let [lo, hi] = [Math.min(...ys), Math.max(...ys)];
+  const pad = (hi - lo) * 0.08 || 1;
+  lo -= pad;
+  hi += pad;
+  const f = frame(w, h, xd, [lo, hi]);
+  const parts: string[] = [axes(f, xLabel, yLabel)];
+  const band = [...points.map((p) => `${f.x(p.at).toFixed(1)},${f.y(p.upper).toFixed(1)}`), ...points.slice().reverse().map((p) => `${f.x(p.at).toFixed(1)},${f.y(p.lower).toFixed(1)}`)].join(" ");
+  parts.push(`<polygon points="${band}" fill="${POINT}" fill-opacity="0.22" stroke="none"/>`);
+  parts.push(`<polyline points="${points.map((p) => `${f.x(p.at).toFixed(1)},${f.y(p.estimate).toFixed(1)}`).join(" ")}" fill="none" stroke="${ACCENT}" stroke-width="1.6"/>`);
+  for (const p of points) parts.push(`<circle cx="${f.x(p.at).toFixed(1)}" cy="${f.y(p.estimate).toFixed(1)}" r="2.4" fill="${ACCENT}"/>`);
+  if (breakAt !== null && breakAt >= xd[0] && breakAt <= xd[1]) {
+    const bx = f.x(breakAt).toFixed(1);
+    parts.push(`<line x1="${bx}" x2="${bx}" y1="${f.top}" y2="${h - f.bottom}" stroke="${INK}" stroke-width="1" stroke-dasharray="3 2"/>`);
+  }
+  const desc = points.map((p) => `at ${shortNumber(p.at)}: ${shortNumber(p.estimate)} (${shortNumber(p.lower)} to ${shortNumber(p.upper)})`).join("; ");
+  return svg(w, h, title, desc || "no windows", parts.join(""));
+}

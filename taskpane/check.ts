@@ -15,7 +15,8 @@ export type Estimator = "ols" | "ppml";
 
 export interface ColumnCheck {
   name: string;
-  role: "y" | "x";
+  /** "key": a role column (fixed effects, clusters, periods, weights, instrument): not a regressor, never logged. */
+  role: "y" | "x" | "key";
   /** Numbers (and TRUE/FALSE) among the data rows. */
   values: number;
   blank: number;
@@ -61,6 +62,8 @@ export interface CheckInput {
   x: RangeSnapshot;
   form: Form;
   estimator: Estimator;
+  /** Names of x columns that the chosen options give a role (keys, weights, instrument). */
+  roles?: Set<string>;
 }
 
 /** Rows per chunk of the row pass (about 10 ms of work each on this machine's pane at 5 columns). */
@@ -182,8 +185,9 @@ export async function checkData(input: CheckInput, progress: (fraction: number) 
   const logX = input.form === "log-log" || input.form === "level-log";
 
   const width = k + 1;
+  const roleSet = input.roles ?? new Set<string>();
   const cols: ColumnCheck[] = names.map((name, j) => ({
-    name, role: j === 0 ? "y" : "x", values: 0, blank: 0, text: 0, errors: 0, zeros: 0, negatives: 0, zerosUsable: 0, negativesUsable: 0,
+    name, role: j === 0 ? "y" : roleSet.has(name) ? "key" : "x", values: 0, blank: 0, text: 0, errors: 0, zeros: 0, negatives: 0, zerosUsable: 0, negativesUsable: 0,
     binary: true, constant: true, logged: false, textRows: [], errorRows: [],
   }));
   const first = new Float64Array(width).fill(NaN);
@@ -208,6 +212,11 @@ export async function checkData(input: CheckInput, progress: (fraction: number) 
         const t = j === 0 ? yt[i + y0]?.[0] : xt[i + x0]?.[j - 1];
         const kind = cellKind(v, t);
         const c = cols[j];
+        if (c.role === "key" && (kind === 0 || kind === 2)) {
+          // a key holds text or numbers; only a blank or an error leaves the row out
+          c.values++;
+          continue;
+        }
         if (kind !== 0) {
           ok = false;
           if (kind === 1) c.blank++;
@@ -245,8 +254,9 @@ export async function checkData(input: CheckInput, progress: (fraction: number) 
   // Which columns a plain log takes: y under a log-y OLS form; x columns under a log x side unless binary.
   let loggedMask = 0;
   cols.forEach((c, j) => {
-    c.binary = c.binary && c.values > 0;
-    c.logged = j === 0 ? logY : logX && !c.binary;
+    c.binary = c.binary && c.values > 0 && c.role !== "key";
+    if (c.role === "key") c.constant = false;
+    c.logged = c.role === "key" ? false : j === 0 ? logY : logX && !c.binary;
     if (c.logged && !wide) loggedMask |= 1 << j;
   });
   let lost = 0;

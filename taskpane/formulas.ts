@@ -13,6 +13,8 @@ export interface BlockItem {
   id: string;
   /** Extra arguments between x and the options text, already written as formula text. */
   extra?: string[];
+  /** Options text of this formula when it differs from the block's (windows and breaks take their own). */
+  options?: string;
   /** Rows and columns to keep free for the result (the pane takes the shape the function returns for these columns and options, also when it returns an error today). */
   height: number;
   width: number;
@@ -54,7 +56,7 @@ export function buildBlock(spec: BlockSpec): FormulaBlock {
   let width = 1;
   for (const item of spec.items) {
     cells.push({ row, column: 0, content: item.label });
-    cells.push({ row: row + 1, column: 0, content: formulaText(item.id, spec.y, spec.x, spec.options, item.extra) });
+    cells.push({ row: row + 1, column: 0, content: formulaText(item.id, spec.y, spec.x, item.options ?? spec.options, item.extra) });
     row += 1 + Math.max(1, item.height) + 1;
     width = Math.max(width, item.width);
   }

@@ -11,9 +11,10 @@
 import css from "./pane.css";
 import { engineValues, Host, hostRunner, type RangeSnapshot } from "./host";
 import { checkData, yieldToPage, type CheckResult, type Estimator, type Form } from "./check";
-import { intervalPlot, quantilePlot, residualPlot, shortNumber, type IntervalRow } from "./charts";
+import { intervalPlot, normalQuantile, pathPlot, quantilePlot, residualPlot, shortNumber, type IntervalRow, type PathPoint } from "./charts";
 import { CAUTIONS, formAssumptions, smearingNote, testReadings } from "./assumptions";
 import { buildBlock, type BlockItem } from "./formulas";
+import { detectRoles, instrumentParagraph, keySentence, optionSafe, roleAssumptions, roleColumns, roleOptions, type ColumnRoles, type RoleChoices } from "./roles";
 import { formatAddress } from "./address";
 // Types only: the pane reads the functions' published object at run time, never their modules.
 import type { ElasticellApi, ElasticitiesView, Outcome } from "../functions/paneApi";
@@ -32,14 +33,24 @@ export interface Choices {
   se: string;
   zeros: string;
   level: string;
+  /** Option words of the role choices (absorb=, cluster=, weights=, time=, the 2SLS words): see taskpane/roles.ts. */
+  roles?: string[];
 }
 
-/** The options text for the chosen controls (estimator only when not the default). */
+/**
+ * The options text for the chosen controls (estimator only when not the default). A cluster= choice
+ * writes se=cluster in place of the chosen se; under 2SLS, HC2 and HC3 become HC1 (2SLS offers
+ * classical, HC0, HC1, cluster, HAC and DK).
+ */
 export function optionsText(c: Choices, override: Partial<Choices> = {}): string {
   const o = { ...c, ...override };
+  const roles = o.roles ?? [];
   const parts = [`form=${o.form}`];
   if (o.estimator === "ppml") parts.push("estimator=ppml");
-  parts.push(`se=${o.se}`, `zeros=${o.zeros}`, `level=${o.level}`);
+  const twoStage = roles.includes("estimator=2sls") && o.estimator !== "ppml";
+  const se = roles.some((w) => w.startsWith("cluster=")) ? "cluster" : twoStage && (o.se === "HC2" || o.se === "HC3") ? "HC1" : o.se;
+  parts.push(`se=${se}`, `zeros=${o.zeros}`, `level=${o.level}`);
+  for (const w of roles) if (w !== "estimator=2sls" || twoStage) parts.push(w);
   return parts.join("; ");
 }
 
@@ -102,7 +113,16 @@ const TEMPLATE = `
       <select id="elx-se"><option>HC3</option><option>HC1</option><option>HC0</option><option>HC2</option><option value="classical">classical</option><option value="HAC">HAC (weekly series)</option></select></div>
     <div><label for="elx-level">Interval level</label>
       <select id="elx-level"><option value="0.9">90%</option><option value="0.95" selected>95%</option><option value="0.99">99%</option></select></div>
+    <div><label for="elx-absorb">Fixed effects (absorb)</label>
+      <select id="elx-absorb"><option value="">none</option></select></div>
+    <div><label for="elx-cluster">Cluster errors by</label>
+      <select id="elx-cluster"><option value="">none</option></select></div>
+    <div><label for="elx-weights">Weights</label>
+      <select id="elx-weights"><option value="">none</option></select></div>
+    <div><label for="elx-instrument">Instrument for the price</label>
+      <select id="elx-instrument"><option value="">none (least squares)</option></select></div>
   </div>
+  <p id="elx-roles-note" class="elx-muted">Fixed effects, clusters, weights and an instrument are columns of x; the pane lists them after the first check.</p>
   <button type="button" id="elx-run" class="elx-primary">Check ranges and model</button>
   <div id="elx-status" class="elx-status" role="status" aria-live="polite"></div>
   <progress id="elx-progress" class="elx-hidden" max="1" value="0" aria-label="Progress of the check"></progress>
@@ -126,6 +146,10 @@ const TEMPLATE = `
 <section id="elx-assume" class="elx-hidden" aria-labelledby="elx-h-assume">
   <h2 id="elx-h-assume">What this form assumes</h2>
   <div id="elx-assume-body"></div>
+</section>
+<section id="elx-change" class="elx-hidden" aria-labelledby="elx-h-change">
+  <h2 id="elx-h-change">Change over time</h2>
+  <div id="elx-change-body"></div>
 </section>
 <section id="elx-write" aria-labelledby="elx-h-write">
   <h2 id="elx-h-write">Put the formulas in the sheet</h2>
@@ -168,8 +192,8 @@ export class Pane {
     root.innerHTML = TEMPLATE;
     const q = (id: string) => root.querySelector(`#${id}`) as HTMLElement;
     this.el = Object.fromEntries(
-      ["elx-y", "elx-x", "elx-form", "elx-estimator", "elx-zeros", "elx-se", "elx-level", "elx-run", "elx-status", "elx-progress", "elx-check", "elx-check-body", "elx-verdict", "elx-verdict-body", "elx-write-what",
-        "elx-choices", "elx-choices-body", "elx-pictures", "elx-pictures-body", "elx-assume", "elx-assume-body", "elx-target", "elx-write-btn", "elx-write-msg", "elx-y-sel", "elx-x-sel"]
+      ["elx-y", "elx-x", "elx-form", "elx-estimator", "elx-zeros", "elx-se", "elx-level", "elx-absorb", "elx-cluster", "elx-weights", "elx-instrument", "elx-roles-note", "elx-run", "elx-status", "elx-progress", "elx-check", "elx-check-body", "elx-verdict", "elx-verdict-body", "elx-write-what",
+        "elx-choices", "elx-choices-body", "elx-pictures", "elx-pictures-body", "elx-assume", "elx-assume-body", "elx-change", "elx-change-body", "elx-target", "elx-write-btn", "elx-write-msg", "elx-y-sel", "elx-x-sel"]
         .map((id) => [id, q(id)]),
     );
     this.el["elx-y-sel"].addEventListener("click", () => void this.useSelection("elx-y"));
@@ -197,9 +221,129 @@ export class Pane {
     return this.el[id] as HTMLInputElement;
   }
 
+  /** The key columns, weight and instrument candidates of the last x read. */
+  columnRoles: ColumnRoles = { keys: [], numeric: [], price: null, costs: [] };
+
+  roleChoices(): RoleChoices {
+    const v = (id: string) => (this.el[id] as HTMLSelectElement).value;
+    return { absorb: v("elx-absorb"), cluster: v("elx-cluster"), weights: v("elx-weights"), instrument: this.twoStageRegistered() ? v("elx-instrument") : "" };
+  }
+
   choices(): Choices {
     const v = (id: string) => (this.el[id] as HTMLInputElement | HTMLSelectElement).value;
-    return { form: v("elx-form") as Form, estimator: v("elx-estimator") as Estimator, se: v("elx-se"), zeros: v("elx-zeros"), level: v("elx-level") };
+    return { form: v("elx-form") as Form, estimator: v("elx-estimator") as Estimator, se: v("elx-se"), zeros: v("elx-zeros"), level: v("elx-level"), roles: roleOptions(this.roleChoices(), this.columnRoles) };
+  }
+
+  /** Whether this build of the functions fits two-stage least squares (ELX.IVCHECK is registered). */
+  twoStageRegistered(): boolean {
+    const e = engine();
+    return !!e && typeof e.functions.IVCHECK === "function";
+  }
+
+  /** Whether this build registers a cell function (ROLLING, BREAKTEST, IVCHECK). */
+  registered(id: string): boolean {
+    const e = engine();
+    return !!e && typeof e.functions[id] === "function";
+  }
+
+  /**
+   * Windows and breaks for the checked options, when x holds a period column (time=): windows of 52
+   * periods (half the periods when there are fewer than 104), moved on by a quarter of that; the
+   * unit of a panel is the absorbed or clustered key. HC1 errors: in a short window one row can alone
+   * determine a fixed effect, where HC3 is undefined. Breaks pool the units (no absorb=, no cluster=).
+   */
+  windowPlan(): { window: number; step: number; time: string; middle: number; rolling: string; breaks: string } | null {
+    const s = this.state;
+    if (!s || s.choices.estimator !== "ols") return null;
+    const words = s.choices.roles ?? [];
+    const time = words.find((w) => w.startsWith("time="))?.slice(5);
+    if (!time) return null;
+    const key = this.columnRoles.keys.find((k) => k.name === time);
+    const periods = key?.distinct ?? 0;
+    if (periods < 8 || key?.middle === undefined) return null;
+    const window = periods >= 104 ? 52 : Math.max(4, Math.floor(periods / 2));
+    const step = Math.max(1, Math.round(window / 4));
+    const unit = words.find((w) => w.startsWith("absorb="))?.slice(7) ?? words.find((w) => w.startsWith("cluster="))?.slice(8);
+    const keep = words.filter((w) => !/^(cluster|estimator|endogenous|instruments)=/.test(w) && w !== "estimator=2sls");
+    const panel = unit ? [`panel=${unit}`] : [];
+    const rolling = optionsText(s.choices, { se: "HC1", roles: [...keep, ...panel, `step=${step}`] });
+    const breaks = optionsText(s.choices, { se: "HC1", roles: [...keep.filter((w) => !w.startsWith("absorb=")), ...panel] });
+    return { window, step, time, middle: key.middle, rolling, breaks };
+  }
+
+  /**
+   * The price (or first) elasticity's path over rolling windows with its band, and the break test's
+   * reading, when ROLLING and BREAKTEST are registered and x holds a period column. The tables are
+   * read by position in their decided layout (From, To, Observations, then Elasticity and Std. error
+   * per term; tests in rows 1–3 with the p-value in column 4 and the break in column 5).
+   */
+  private renderChange(eng: EngineApi): void {
+    const w = this.windowPlan();
+    if (!w || !this.registered("ROLLING")) return;
+    const s = this.state as RunState;
+    const view = eng.elasticitiesView(s.yCells, s.xCells, optionsText(s.choices), ...this.origins());
+    if (!view.ok) return;
+    const terms = view.value.items;
+    let j = terms.findIndex((t) => !t.binary && /price/i.test(t.term));
+    if (j < 0) j = terms.findIndex((t) => !t.binary);
+    if (j < 0) return;
+    const term = terms[j].term;
+    const level = Number(s.choices.level);
+    const z = normalQuantile(1 - (1 - level) / 2);
+    const roll = this.callFor(eng, "ROLLING", w.rolling, [w.window]);
+    const t = roll.ok ? table2d(roll.value) : null;
+    const points: PathPoint[] = [];
+    let failed = 0;
+    for (const row of t ? t.slice(1) : []) {
+      const [from, to] = row;
+      if (typeof from !== "number" || typeof to !== "number") continue;
+      const b = row[3 + 2 * j];
+      const se = row[4 + 2 * j];
+      if (typeof b === "number" && typeof se === "number" && Number.isFinite(b) && Number.isFinite(se)) points.push({ at: (from + to) / 2, estimate: b, lower: b - z * se, upper: b + z * se });
+      else failed++;
+    }
+    let reading = "";
+    let breakAt: number | null = null;
+    if (this.registered("BREAKTEST")) {
+      // the sup-F row searches every break whatever the second argument; the middle period is given
+      // because without it a time column makes the last period the second regime
+      const br = this.callFor(eng, "BREAKTEST", w.breaks, [w.middle]);
+      const bt = br.ok ? table2d(br.value) : null;
+      const sup = bt?.[3];
+      if (sup && typeof sup[3] === "number") {
+        breakAt = typeof sup[4] === "number" ? sup[4] : null;
+        reading = `Break test over the pooled rows (${w.breaks}): sup-F ${pText(sup[3])}${breakAt !== null ? `, the most likely break from ${w.time} ${breakAt}` : ""}. A break found by searching marks where the fitted relation changed most, not why.`;
+      } else reading = `The break test did not run: ${br.ok ? "no result" : br.message}.`;
+    }
+    const lv = percent(level);
+    const html = (points.length >= 2
+      ? `<figure id="elx-rolling">${pathPlot(points, `${term} elasticity over ${w.window}-period windows`, `Middle of the window (${w.time})`, "Elasticity", breakAt)}<figcaption>Each dot is the ${esc(term)} elasticity fitted on ${w.window} consecutive periods of ${esc(w.time)} (moved on by ${w.step}); the band is the estimate ± ${esc(shortNumber(z))} standard errors (about ${esc(lv)}, HC1).${breakAt !== null ? " The dashed line is the most likely break." : ""}${failed ? ` ${failed} window${failed === 1 ? "" : "s"} could not be fitted (see ELX.ROLLING).` : ""}</figcaption></figure>`
+      : `<p>No path to draw: ${roll.ok ? "fewer than two windows could be fitted" : esc(roll.message)}.</p>`) +
+      (reading ? `<p id="elx-break-reading">${esc(reading)}</p>` : "") +
+      `<p class="elx-muted">Windows that straddle a change mix the two regimes, so the path turns gradually; each window has fewer rows, so its band is wider. Associations, not causes: a change may come from a rival, a new range or a change in how the data were recorded.</p>`;
+    this.show("elx-change", html);
+  }
+
+  /** Fills the role lists from the x columns (keeping a choice that is still there). */
+  private fillRoles(roles: ColumnRoles): void {
+    this.columnRoles = roles;
+    const fill = (id: string, none: string, names: string[], pick = "") => {
+      const sel = this.el[id] as HTMLSelectElement;
+      const keep = sel.value;
+      sel.innerHTML = `<option value="">${esc(none)}</option>` + names.filter(optionSafe).map((n) => `<option value="${esc(n)}">${esc(n)}</option>`).join("");
+      sel.value = names.includes(keep) ? keep : pick;
+    };
+    const keys = roles.keys.map((k) => k.name);
+    fill("elx-absorb", "none", keys);
+    fill("elx-cluster", "none", keys);
+    fill("elx-weights", "none", roles.numeric.filter((n) => n !== roles.price));
+    // Cost-like names first; any other numeric column can be chosen by hand.
+    const others = roles.numeric.filter((n) => n !== roles.price && !roles.costs.includes(n));
+    fill("elx-instrument", "none (least squares)", roles.price && this.twoStageRegistered() ? [...roles.costs, ...others] : []);
+    const note = this.el["elx-roles-note"];
+    note.textContent = roles.keys.length
+      ? `Key columns in x: ${roles.keys.map((k) => `${k.name} (${k.distinct} values)`).join(", ")}. Choose them for fixed effects or clusters.`
+      : "No key column (text, or whole numbers with few values) in x: fixed effects and clusters need one.";
   }
 
   private status(text: string): void {
@@ -236,7 +380,7 @@ export class Pane {
     this.busy = true;
     this.root.setAttribute("aria-busy", "true");
     try {
-      for (const s of ["elx-verdict", "elx-check", "elx-choices", "elx-pictures", "elx-assume"]) this.el[s].classList.add("elx-hidden");
+      for (const s of ["elx-verdict", "elx-check", "elx-choices", "elx-pictures", "elx-assume", "elx-change"]) this.el[s].classList.add("elx-hidden");
       this.el["elx-write-msg"].textContent = "";
       // Until this run's check passes, nothing may be written for the previous ranges.
       this.state = null;
@@ -258,9 +402,12 @@ export class Pane {
         return;
       }
       const tRead = performance.now();
+      this.fillRoles(detectRoles(x.value));
       const choices = this.choices();
       step("Checking the data…", 0.05);
-      const check = await checkData({ y: y.value, x: x.value, form: choices.form, estimator: choices.estimator }, (f) => step("Checking the data…", 0.05 + 0.25 * f));
+      const check = await checkData({ y: y.value, x: x.value, form: choices.form, estimator: choices.estimator, roles: roleColumns(this.roleChoices(), this.columnRoles) }, (f) => step("Checking the data…", 0.05 + 0.25 * f));
+      const keys = keySentence(this.columnRoles);
+      if (keys) check.sentences.push({ severity: "note", text: keys });
       if (stale()) return;
       this.renderCheck(check, y.value, x.value);
       const tCheck = performance.now();
@@ -298,6 +445,10 @@ export class Pane {
         step("Running the specification tests…", 0.88);
         await yieldToPage();
         this.renderAssumptions(eng);
+        step("Fitting the rolling windows…", 0.94);
+        await yieldToPage();
+        if (stale()) return;
+        this.renderChange(eng);
       }
       const tEnd = performance.now();
       this.lastTimings = { read: tRead - t0, check: tCheck - tRead, pictures: tPictures - tCheck, choices: tChoices - tPictures, assumptions: tEnd - tChoices, total: tEnd - t0 };
@@ -336,7 +487,7 @@ export class Pane {
 
   private renderCheck(c: CheckResult, y: RangeSnapshot, x: RangeSnapshot): void {
     const head = `<p class="elx-muted">y ${esc(y.address)}, x ${esc(x.address)}${y.clipped || x.clipped ? " (cut to the sheet's used cells)" : ""}: ${fmt(c.rows)} data rows, ${fmt(c.usable)} usable.</p>`;
-    const rows = c.columns.map((col) => `<tr><th scope="row">${esc(col.name)}${col.role === "y" ? " (y)" : ""}</th><td>${fmt(col.values)}</td><td>${fmt(col.blank + col.text + col.errors)}</td><td>${fmt(col.zeros)}</td><td>${fmt(col.negatives)}</td><td>${col.binary ? "binary" : col.logged ? "log" : "levels"}</td></tr>`).join("");
+    const rows = c.columns.map((col) => `<tr><th scope="row">${esc(col.name)}${col.role === "y" ? " (y)" : ""}</th><td>${fmt(col.values)}</td><td>${fmt(col.blank + col.text + col.errors)}</td><td>${fmt(col.zeros)}</td><td>${fmt(col.negatives)}</td><td>${col.role === "key" ? "key / role" : col.binary ? "binary" : col.logged ? "log" : "levels"}</td></tr>`).join("");
     const tableHtml = c.columns.length === 0 ? "" : `<div class="elx-table-wrap"><table id="elx-check-table" class="elx-compact"><caption>Per column, over the data rows</caption><thead><tr><th scope="col">Column</th><th scope="col">Values</th><th scope="col">Blank, text or error</th><th scope="col">Zeros</th><th scope="col">Below zero</th><th scope="col">Taken as</th></tr></thead><tbody>${rows}</tbody></table></div>`;
     const label = { problem: "Problem:", warning: "Warning:", note: "Note:" };
     const sentences = `<ul class="elx-sentences" id="elx-sentences">${c.sentences.map((s) => `<li class="elx-${s.severity}"><span class="elx-tag">${label[s.severity]}</span>${esc(s.text)}</li>`).join("")}</ul>`;
@@ -447,7 +598,9 @@ export class Pane {
   private renderAssumptions(eng: EngineApi): void {
     const s = this.state as RunState;
     const c = s.choices;
-    const paras = formAssumptions(c.form, c.estimator, c.se);
+    // the errors in force: a cluster= choice writes se=cluster, 2SLS turns HC2/HC3 into HC1
+    const se = /(?:^|; )se=([^;]+)/.exec(optionsText(c))?.[1] ?? c.se;
+    const paras = formAssumptions(c.form, c.estimator, se);
     let tests = "";
     if (c.estimator === "ols") {
       const r = this.callFor(eng, "TESTS", optionsText(c));
@@ -461,7 +614,45 @@ export class Pane {
     } else {
       tests = "<p>The specification tests (ELX.TESTS) are for the least-squares forms; the pictures above show the least-squares residuals for comparison.</p>";
     }
-    this.show("elx-assume", paras.map((p) => `<h3>${esc(p.heading)}</h3><p>${esc(p.text)}</p>`).join("") + tests);
+    const roles = this.roleChoices();
+    paras.push(...roleAssumptions(roles, this.columnRoles));
+    const iv = this.instrumentHtml(eng);
+    this.show("elx-assume", paras.map((p) => `<h3>${esc(p.heading)}</h3><p>${esc(p.text)}</p>`).join("") + iv + tests);
+  }
+
+  /**
+   * When x holds a price column and a plausible cost column (or one chosen by hand): what an
+   * instrument must satisfy, and, when two-stage least squares is in this build, the price
+   * elasticity by least squares (x without the instrument column) and by 2SLS side by side.
+   */
+  private instrumentHtml(eng: EngineApi): string {
+    const s = this.state as RunState;
+    const r = this.columnRoles;
+    const chosen = this.roleChoices().instrument;
+    const cost = chosen || r.costs[0];
+    if (!r.price || !cost) return "";
+    const registered = this.twoStageRegistered();
+    const para = instrumentParagraph(r.price, cost, registered);
+    let html = `<section id="elx-instrument-section"><h3>${esc(para.heading)}</h3><p>${esc(para.text)}</p>`;
+    if (registered && chosen) {
+      const c = s.choices;
+      const ivOpts = optionsText(c, { estimator: "ols" });
+      const olsOpts = optionsText(c, { estimator: "ols", roles: (c.roles ?? []).filter((w) => !/^(estimator|endogenous|instruments)=/.test(w)) });
+      // least squares on x without the instrument column (it is not a regressor)
+      const header = s.xCells[0] ?? [];
+      const j = header.findIndex((h) => typeof h === "string" && h.trim() === chosen);
+      const xOls = j < 0 ? s.xCells : s.xCells.map((row) => row.filter((_, k) => k !== j));
+      const a = eng.elasticitiesView(s.yCells, xOls, olsOpts, null, null);
+      const b = eng.elasticitiesView(s.yCells, s.xCells, ivOpts, null, null);
+      const row = (label: string, v: Outcome<ElasticitiesView>) => {
+        const it = v.ok ? v.value.items.find((i) => i.term === r.price) : undefined;
+        return `<tr data-estimator="${esc(label)}"><th scope="row">${esc(label)}</th>${it ? [it.estimate, it.lower, it.upper].map((n) => `<td>${esc(cellText(n))}</td>`).join("") : `<td colspan="3">${esc(v.ok ? "no price term" : v.message)}</td>`}</tr>`;
+      };
+      const lv = percent(Number(c.level));
+      html += `<div class="elx-table-wrap"><table id="elx-iv-table" class="elx-compact"><caption>${esc(r.price)} elasticity, least squares against 2SLS with ${esc(cost)}</caption><thead><tr><th scope="col">Estimator</th><th scope="col">Elasticity</th><th scope="col">Low (${esc(lv)})</th><th scope="col">High (${esc(lv)})</th></tr></thead><tbody>${row("least squares", a)}${row("2SLS", b)}</tbody></table></div>`;
+      html += `<p class="elx-muted">2SLS intervals are wider: that is the price of removing the bias, not a worse fit. ELX.IVCHECK in the written block gives the first-stage F and the Wu–Hausman test.</p>`;
+    }
+    return html + "</section>";
   }
 
   /**
@@ -499,15 +690,19 @@ export class Pane {
   }
 
   /** The functions the writer will put in the sheet for the checked ranges and options. */
-  private plannedItems(): { id: string; label: string; optional?: boolean }[] {
+  private plannedItems(): PlannedItem[] {
     const s = this.state as RunState;
-    const out: { id: string; label: string; optional?: boolean }[] = [
+    const out: PlannedItem[] = [
       { id: "FIT", label: "Coefficients (ELX.FIT)" },
       { id: "ELASTICITIES", label: "Elasticities (ELX.ELASTICITIES)" },
     ];
     if (s.choices.estimator === "ols" && s.check.columns.some((col) => col.role === "x" && col.binary) && s.choices.form.startsWith("log")) out.push({ id: "EFFECTS", label: "Percent effects of binary columns (ELX.EFFECTS)" });
     if (s.choices.estimator === "ols") out.push({ id: "TESTS", label: "Specification tests (ELX.TESTS)" });
     out.push({ id: "SUMMARY", label: "Fit summary (ELX.SUMMARY)" });
+    if ((s.choices.roles ?? []).includes("estimator=2sls") && s.choices.estimator === "ols" && this.twoStageRegistered()) out.push({ id: "IVCHECK", label: "Instrument check (ELX.IVCHECK)" });
+    const w = this.windowPlan();
+    if (w && this.registered("ROLLING")) out.push({ id: "ROLLING", label: `Elasticities over ${w.window}-period windows (ELX.ROLLING)`, extra: [String(w.window)], values: [w.window], options: w.rolling });
+    if (w && this.registered("BREAKTEST")) out.push({ id: "BREAKTEST", label: `Did the model change? Chow and Wald at ${w.time} ${w.middle}, the middle period (put the period of a known change in the third argument); sup-F searches every break (ELX.BREAKTEST)`, extra: [String(w.middle)], values: [w.middle], options: w.breaks });
     return out;
   }
 
@@ -524,13 +719,13 @@ export class Pane {
    * data now, on the same data with the zero rows left out, and on a stand-in of the same columns (so
    * that a formula that fails today still gets the room of the result it gives once the data are fixed).
    */
-  private room(eng: EngineApi, id: string, opts: string, standIn: { y: unknown[][]; x: unknown[][] }): { height: number; width: number; now: Outcome<unknown> } {
+  private room(eng: EngineApi, id: string, opts: string, standIn: { y: unknown[][]; x: unknown[][] }, extra: unknown[] = []): { height: number; width: number; now: Outcome<unknown> } {
     const shape = (r: Outcome<unknown>) => {
       const t = r.ok ? table2d(r.value) : null;
       return t ? { height: t.length, width: Math.max(...t.map((row) => row.length)) } : null;
     };
-    const now = this.callFor(eng, id, opts);
-    const shapes = [shape(now), shape(this.callFor(eng, id, opts.replace(/zeros=\w+/, "zeros=drop"))), shape(eng.call(id, standIn.y, standIn.x, opts, null))].filter((v): v is { height: number; width: number } => v !== null);
+    const now = this.callFor(eng, id, opts, extra);
+    const shapes = [shape(now), shape(this.callFor(eng, id, opts.replace(/zeros=\w+/, "zeros=drop"), extra)), shape(eng.call(id, standIn.y, standIn.x, ...extra, opts, null))].filter((v): v is { height: number; width: number } => v !== null);
     return { height: Math.max(1, ...shapes.map((v) => v.height)), width: Math.max(1, ...shapes.map((v) => v.width)), now };
   }
 
@@ -557,9 +752,9 @@ export class Pane {
     const items: BlockItem[] = [];
     const failing: { id: string; message: string }[] = [];
     for (const p of this.plannedItems()) {
-      const r = this.room(eng, p.id, opts, standIn);
+      const r = this.room(eng, p.id, p.options ?? opts, standIn, p.values ?? []);
       if (!r.now.ok) failing.push({ id: p.id, message: r.now.message });
-      items.push({ id: p.id, label: p.label, height: r.height, width: r.width });
+      items.push({ id: p.id, label: p.label, height: r.height, width: r.width, extra: p.extra, options: p.options });
     }
     const yName = s.check.columns[0]?.name ?? "y";
     const xNames = s.check.columns.slice(1).map((col) => col.name).join(", ");
@@ -591,6 +786,15 @@ export class Pane {
       (there as HTMLElement).focus();
     }
   }
+}
+
+/** A formula the writer plans: its id, label, extra arguments (as formula text and as values) and own options. */
+interface PlannedItem {
+  id: string;
+  label: string;
+  extra?: string[];
+  values?: unknown[];
+  options?: string;
 }
 
 /** The ways out offered when a log meets zeros under the chosen options. */

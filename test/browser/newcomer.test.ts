@@ -234,8 +234,8 @@ describe("the formula writer (item 7)", () => {
   it("reserves the room of the results the formulas give once the data are fixed, and says they return errors now", async () => {
     await openPreview();
     await readmeSteps(); // zeros=stop: every formula returns #VALUE! on these data
-    const msg = await write("R2");
-    expect(msg).toMatch(/^Written at Sales!R2:[A-Z]+\d+: 5 formulas \(ELX\.FIT, ELX\.ELASTICITIES, ELX\.EFFECTS, ELX\.TESTS, ELX\.SUMMARY\), but all of them return an error for these ranges and options now: /);
+    const msg = await write("W2");
+    expect(msg).toMatch(/^Written at Sales!W2:[A-Z]+\d+: 5 formulas \(ELX\.FIT, ELX\.ELASTICITIES, ELX\.EFFECTS, ELX\.TESTS, ELX\.SUMMARY\), but all of them return an error for these ranges and options now: /);
     const stop = engine("FIT", Y, X, OPTS("stop"), INVOCATION) as HostError;
     expect(msg).toContain(stop.message);
     expect(msg).not.toContain("with room for their results.");
@@ -278,10 +278,10 @@ describe("the formula writer (item 7)", () => {
 describe("the sheet view and the pane's tables (item 8)", () => {
   it("draws long text only over empty cells: a label stops at the next non-empty cell", async () => {
     await openPreview();
-    // I1 holds a long label; put something in K1, two cells to its right.
-    await page.evaluate(() => (window as any).ElxPreview.setInput("K1", "note"));
+    // M1 holds a long label; put something in O1, two cells to its right.
+    await page.evaluate(() => (window as any).ElxPreview.setInput("O1", "note"));
     const r = await page.evaluate(() => {
-      const td = document.querySelector('td[data-a="I1"]') as HTMLElement;
+      const td = document.querySelector('td[data-a="M1"]') as HTMLElement;
       const walker = document.createTreeWalker(td, NodeFilter.SHOW_TEXT);
       const text = walker.nextNode() as Text;
       const range = document.createRange();
@@ -291,10 +291,10 @@ describe("the sheet view and the pane's tables (item 8)", () => {
       for (let el: HTMLElement | null = text.parentElement; el && !el.classList.contains("pv-scroll"); el = el.parentElement) {
         if (getComputedStyle(el).overflowX !== "visible") right = Math.min(right, el.getBoundingClientRect().right);
       }
-      return { right, next: (document.querySelector('td[data-a="K1"]') as HTMLElement).getBoundingClientRect().left, over: (document.querySelector('td[data-a="J1"]') as HTMLElement).getBoundingClientRect().left };
+      return { right, next: (document.querySelector('td[data-a="O1"]') as HTMLElement).getBoundingClientRect().left, over: (document.querySelector('td[data-a="N1"]') as HTMLElement).getBoundingClientRect().left };
     });
     expect(r.right).toBeLessThanOrEqual(r.next + 0.5);
-    // …and still runs over the empty J1.
+    // …and still runs over the empty N1.
     expect(r.right).toBeGreaterThan(r.over);
   });
 

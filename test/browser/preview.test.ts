@@ -27,7 +27,8 @@ const SHOTS = path.join(ROOT, "test-output", "screenshots");
 const { takeScreenshots } = require("../../scripts/screenshots.js") as { takeScreenshots: (page: Page, dir: string) => Promise<string[]> };
 const demo = JSON.parse(fs.readFileSync(path.join(ROOT, "data", "demo.json"), "utf8")) as { columns: string[]; rows: unknown[][] };
 
-// The demo sheet as the preview lays it out: A..G = Store, Week, Units, Price, Footfall, Promo, Income; row 1 headers.
+// The demo sheet as the preview lays it out: A..K = Store, Week, Units, Price, Footfall, Promo, Income,
+// Branch, Period, FlourCost, Rival; row 1 headers; the formulas in column M.
 const N = demo.rows.length;
 const Y = [[demo.columns[2]], ...demo.rows.map((r) => [r[2]])];
 const X = [demo.columns.slice(3, 7), ...demo.rows.map((r) => r.slice(3, 7))];
@@ -149,23 +150,45 @@ describe("the preview workbook", () => {
     expect(await cell("C2")).toBe(demo.rows[0][2]);
     expect(await cell(`G${N + 1}`)).toBe(demo.rows[N - 1][6]);
     const fit = engine("FIT", Y, X, "zeros=drop", INVOCATION) as unknown[][];
-    sameTable(await block(2, 9, fit.length, fit[0].length), fit, "FIT at I2");
+    sameTable(await block(2, 13, fit.length, fit[0].length), fit, "FIT at M2");
     const el = engine("ELASTICITIES", Y, X, "zeros=drop", INVOCATION) as unknown[][];
-    sameTable(await block(9, 9, el.length, el[0].length), el, "ELASTICITIES at I9");
+    sameTable(await block(9, 13, el.length, el[0].length), el, "ELASTICITIES at M9");
     const one = engine("ELASTICITY", Y, X, "Price", "zeros=drop", INVOCATION) as unknown[][];
-    sameTable([[await cell("I16")]], one, "ELASTICITY at I16");
-    const zeros = engine("ZEROS", [demo.columns.slice(2), ...demo.rows.map((r) => r.slice(2))], null) as unknown[][];
-    sameTable(await block(23, 9, zeros.length, zeros[0].length), zeros, "ZEROS at I23");
+    sameTable([[await cell("M16")]], one, "ELASTICITY at M16");
+    const zeros = engine("ZEROS", [demo.columns.slice(2, 7), ...demo.rows.map((r) => r.slice(2, 7))], null) as unknown[][];
+    sameTable(await block(23, 13, zeros.length, zeros[0].length), zeros, "ZEROS at M23");
     const summary = engine("SUMMARY", Y, X, "zeros=drop", INVOCATION) as unknown[][];
-    sameTable(await block(44, 9, summary.length, 2), summary, "SUMMARY at I44");
+    sameTable(await block(44, 13, summary.length, 2), summary, "SUMMARY at M44");
     // The plain log stops at the zero weeks with the engine's own message.
     const plain = engine("FIT", Y, X, null, INVOCATION) as HostError;
     expect(plain).toBeInstanceOf(HostError);
-    expect(await cell("I41")).toEqual({ code: plain.code, message: plain.message });
+    expect(await cell("M41")).toEqual({ code: plain.code, message: plain.message });
     // Cells show the numbers in a short general format.
-    const shownText = await page.evaluate(() => (window as any).ElxPreview.shown("K4"));
+    const shownText = await page.evaluate(() => (window as any).ElxPreview.shown("O4"));
     expect(shownText).toBe(shown(fit[2][2]));
-    expect(await page.locator('td[data-a="K4"]').textContent()).toBe(shown(fit[2][2]));
+    expect(await page.locator('td[data-a="O4"]').textContent()).toBe(shown(fit[2][2]));
+  });
+
+  it("shows the panel story: pooled against store fixed effects, clustered by store, equal to the engine's values", async () => {
+    const xp = [demo.columns.slice(3, 8), ...demo.rows.map((r) => r.slice(3, 8))];
+    const at = { parameterAddresses: [`Sales!C1:C${N + 1}`, `Sales!D1:H${N + 1}`] };
+    const pooled = engine("ELASTICITIES", Y, xp, "zeros=drop; cluster=Branch", at) as unknown[][];
+    const fe = engine("ELASTICITIES", Y, xp, "zeros=drop; absorb=Branch; cluster=Branch", at) as unknown[][];
+    expect(pooled[0][3]).toMatch(/cluster.*Branch, 12 clusters/);
+    sameTable(await block(74, 13, pooled.length, pooled[0].length), pooled, "pooled ELASTICITIES at M74");
+    sameTable(await block(81, 13, fe.length, fe[0].length), fe, "fixed-effects ELASTICITIES at M81");
+    // the fixed-effects price elasticity differs from the pooled one (store effects correlated with price)
+    expect(Math.abs((fe[1][2] as number) - (pooled[1][2] as number))).toBeGreaterThan(0.2);
+    // The instrument and change-over-time formulas are on the sheet only when this build registers them.
+    const ids = await page.evaluate(() => [...(window as any).ElxPreviewWorkbook.registry.keys()]);
+    const input = (a: string) => page.evaluate((x) => (window as any).ElxPreview.input(x), a);
+    expect(await input("M88")).toBe(ids.includes("IVCHECK") ? '=ELX.ELASTICITIES(C1:C1249, D1:J1249, "zeros=drop; absorb=Branch; cluster=Branch; time=Period; estimator=2sls; endogenous=Price; instruments=FlourCost")' : null);
+    expect(await input("M103")).toBe(ids.includes("ROLLING") ? '=ELX.ROLLING(C1:C417, D1:I417, 52, "zeros=drop; time=Period; panel=Branch; se=HC1; absorb=Branch; step=13")' : null);
+    if (ids.includes("IVCHECK")) {
+      const xi = [demo.columns.slice(3, 10), ...demo.rows.map((r) => r.slice(3, 10))];
+      const iv = engine("ELASTICITIES", Y, xi, "zeros=drop; absorb=Branch; cluster=Branch; time=Period; estimator=2sls; endogenous=Price; instruments=FlourCost", { parameterAddresses: [`Sales!C1:C${N + 1}`, `Sales!D1:J${N + 1}`] }) as unknown[][];
+      sameTable(await block(88, 13, iv.length, iv[0].length), iv, "2SLS ELASTICITIES at M88");
+    }
   });
 
   it("selects with the mouse (click, shift-click) and the keyboard (shift+arrow), as the name box shows", async () => {
@@ -179,23 +202,23 @@ describe("the preview workbook", () => {
   });
 
   it("recalculates when an analyst edits a formula's options in the formula bar", async () => {
-    await selectInGrid("I2");
+    await selectInGrid("M2");
     await expect(page.inputValue("#pv-formula")).resolves.toBe('=ELX.FIT(C1:C1249, D1:G1249, "zeros=drop")');
-    const before = await cell("L4");
+    const before = await cell("P4");
     await page.fill("#pv-formula", '=ELX.FIT(C1:C1249, D1:G1249, "zeros=drop; se=HC1; level=0.9")');
     await page.press("#pv-formula", "Enter");
     const fit = engine("FIT", Y, X, "zeros=drop; se=HC1; level=0.9", INVOCATION) as unknown[][];
     expect(fit[0][3]).toBe("Std. error (HC1)");
-    expect(await cell("L2")).toBe("Std. error (HC1)");
+    expect(await cell("P2")).toBe("Std. error (HC1)");
     expect(fit[0][6]).toBe("Low (90%)");
-    expect(await cell("O2")).toBe(fit[0][6]);
-    sameTable(await block(2, 9, fit.length, fit[0].length), fit, "edited FIT at I2");
-    expect(await cell("L4")).not.toBe(before);
-    expect(await page.locator('td[data-a="L2"]').textContent()).toBe("Std. error (HC1)");
+    expect(await cell("S2")).toBe(fit[0][6]);
+    sameTable(await block(2, 13, fit.length, fit[0].length), fit, "edited FIT at M2");
+    expect(await cell("P4")).not.toBe(before);
+    expect(await page.locator('td[data-a="P2"]').textContent()).toBe("Std. error (HC1)");
     // Put the demo formula back for the tests that follow.
     await page.fill("#pv-formula", '=ELX.FIT(C1:C1249, D1:G1249, "zeros=drop")');
     await page.press("#pv-formula", "Enter");
-    expect(await cell("L2")).toBe("Std. error (HC3)");
+    expect(await cell("P2")).toBe("Std. error (HC3)");
   });
 });
 
@@ -254,25 +277,28 @@ describe("the pane on the demo data", () => {
   });
 
   it("refuses to write the formula block over occupied cells, then writes it at the offered place", async () => {
-    await page.fill("#elx-target", "I2");
+    await page.fill("#elx-target", "M2");
     const before = await page.evaluate(() => (window as any).ElxPane.completedWrites);
     await page.click("#elx-write-btn");
     await page.waitForFunction((b) => (window as any).ElxPane.completedWrites > b, before);
     const refusal = await page.textContent("#elx-refusal");
-    expect(refusal).toMatch(/^Nothing was written: the block needs I2:P\d+ \(\d+ rows × 8 columns\) and I2, J2, K2, L2, M2 and more are not empty\. R2 is free\.$/);
+    const m = /^Nothing was written: the block needs M2:T\d+ \(\d+ rows × 8 columns\) and M2, N2, O2, P2, Q2 and more are not empty\. ([A-Z]+)2 is free\.$/.exec(refusal ?? "");
+    expect(m).not.toBeNull();
+    const free = (m as RegExpExecArray)[1];
+    const freeColumn = [...free].reduce((a, ch) => 26 * a + ch.charCodeAt(0) - 64, 0);
     // The sheet is unchanged.
-    expect(await page.evaluate(() => (window as any).ElxPreview.input("I2"))).toBe('=ELX.FIT(C1:C1249, D1:G1249, "zeros=drop")');
-    expect(await page.evaluate(() => (window as any).ElxPreview.input("I1"))).toBe("Coefficients: log-log, HC3, weeks with zero sales left out");
-    // Accept the offer: the block lands at R2 and its formulas evaluate live.
+    expect(await page.evaluate(() => (window as any).ElxPreview.input("M2"))).toBe('=ELX.FIT(C1:C1249, D1:G1249, "zeros=drop")');
+    expect(await page.evaluate(() => (window as any).ElxPreview.input("M1"))).toBe("Coefficients: log-log, HC3, weeks with zero sales left out");
+    // Accept the offer: the block lands at the free cell and its formulas evaluate live.
     await page.click("#elx-write-there");
     await page.waitForFunction((b) => (window as any).ElxPane.completedWrites > b + 1, before);
-    expect(await page.locator("#elx-write-msg").textContent()).toContain("Written at Sales!R2:");
+    expect(await page.locator("#elx-write-msg").textContent()).toContain(`Written at Sales!${free}2:`);
     const opts = "form=log-log; se=HC3; zeros=drop; level=0.95";
-    expect(await page.evaluate(() => (window as any).ElxPreview.input("R5"))).toBe(`=ELX.FIT(Sales!$C$1:$C$1249, Sales!$D$1:$G$1249, "${opts}")`);
+    expect(await page.evaluate((f) => (window as any).ElxPreview.input(`${f}5`), free)).toBe(`=ELX.FIT(Sales!$C$1:$C$1249, Sales!$D$1:$G$1249, "${opts}")`);
     const fit = engine("FIT", Y, X, opts, INVOCATION) as unknown[][];
-    sameTable(await block(5, 18, fit.length, fit[0].length), fit, "written FIT at R5");
-    // Writing again at R2 is refused: the block is there now.
-    await page.fill("#elx-target", "R2");
+    sameTable(await block(5, freeColumn, fit.length, fit[0].length), fit, "written FIT at row 5 of the block");
+    // Writing again there is refused: the block is there now.
+    await page.fill("#elx-target", `${free}2`);
     await page.click("#elx-write-btn");
     await page.waitForFunction((b) => (window as any).ElxPane.completedWrites > b + 2, before);
     expect(await page.locator("#elx-refusal").textContent()).toContain("Nothing was written");
@@ -319,6 +345,89 @@ describe("the pane on the demo data", () => {
   });
 });
 
+describe("the pane's panel choices: key columns, fixed effects, clusters, the instrument", () => {
+  const XP = [demo.columns.slice(3, 8), ...demo.rows.map((r) => r.slice(3, 8))];
+  it("names the key column, writes absorb= and cluster= into the options and shows the engine's values", async () => {
+    await setRanges("Sales!C1:C1249", "Sales!D1:H1249", "drop");
+    await runCheck();
+    expect(await page.locator("#elx-roles-note").textContent()).toBe("Key columns in x: Branch (12 values). Choose them for fixed effects or clusters.");
+    expect(await page.locator("#elx-sentences").textContent()).toContain("Branch (text, 12 values) looks like a key column");
+    await page.selectOption("#elx-absorb", "Branch");
+    await page.selectOption("#elx-cluster", "Branch");
+    await runCheck();
+    const opts = "form=log-log; se=cluster; zeros=drop; level=0.95; absorb=Branch; cluster=Branch";
+    const el = engine("ELASTICITIES", Y, XP, opts, { parameterAddresses: [`Sales!C1:C${N + 1}`, `Sales!D1:H${N + 1}`] }) as unknown[][];
+    const first = await page.locator("#elx-pictures table tbody tr").first().locator("td").first().textContent();
+    expect(first).toBe(String(Number((el[1][2] as number).toPrecision(3))).replace("-", "−"));
+    const assume = await page.locator("#elx-assume-body").textContent();
+    expect(assume).toContain("That removes only differences between them that do not change over time");
+    expect(assume).toContain("Here G = 12. With fewer than about 30 clusters these errors are themselves unreliable");
+    // The writer puts the same options in the formulas, and they evaluate to the engine's values.
+    await page.fill("#elx-target", "AH2");
+    const before = await page.evaluate(() => (window as any).ElxPane.completedWrites);
+    await page.click("#elx-write-btn");
+    await page.waitForFunction((b) => (window as any).ElxPane.completedWrites > b, before);
+    expect(await page.evaluate(() => (window as any).ElxPreview.input("AH5"))).toBe(`=ELX.FIT(Sales!$C$1:$C$1249, Sales!$D$1:$H$1249, "${opts}")`);
+    const fit = engine("FIT", Y, XP, opts, { parameterAddresses: [`Sales!C1:C${N + 1}`, `Sales!D1:H${N + 1}`] }) as unknown[][];
+    sameTable(await block(5, 34, fit.length, fit[0].length), fit, "written fixed-effects FIT at AH5");
+    // Weights: the chosen column is written as weights= and the pane shows the weighted fit's elasticity.
+    await page.selectOption("#elx-weights", "Footfall");
+    await runCheck();
+    const wOpts = `${opts}; weights=Footfall`;
+    const wel = engine("ELASTICITIES", Y, XP, wOpts, { parameterAddresses: [`Sales!C1:C${N + 1}`, `Sales!D1:H${N + 1}`] }) as unknown[][];
+    expect(await page.textContent("#elx-write-what")).toContain(`"${wOpts}"`);
+    const wFirst = await page.locator("#elx-pictures table tbody tr").first().locator("td").first().textContent();
+    expect(wFirst).toBe(String(Number((wel[1][2] as number).toPrecision(3))).replace("-", "−"));
+    expect(await page.locator("#elx-assume-body").textContent()).toContain("weights=Footfall counts each row in proportion to Footfall");
+    await page.selectOption("#elx-weights", "");
+    await page.selectOption("#elx-absorb", "");
+    await page.selectOption("#elx-cluster", "");
+  });
+
+  it("with a price and a cost column says what an instrument must satisfy", async () => {
+    await setRanges("Sales!C1:C1249", "Sales!D1:J1249", "drop");
+    await runCheck();
+    await page.selectOption("#elx-absorb", "Branch");
+    await runCheck();
+    expect(await page.locator("#elx-roles-note").textContent()).toBe("Key columns in x: Branch (12 values), Period (104 values). Choose them for fixed effects or clusters.");
+    const text = await page.locator("#elx-instrument-section").textContent();
+    expect(text).toContain("A cost column such as FlourCost can serve as an instrument for Price");
+    expect(text).toContain("no direct effect on demand");
+    expect(text).toContain("No test can prove the second condition");
+    // With a period column (Period, written as time=) the pane draws the path over rolling windows
+    // and the break test's reading, when this build registers ROLLING and BREAKTEST.
+    const rolling = await page.evaluate(() => typeof (window as any).Elasticell.functions.ROLLING === "function");
+    expect(await page.locator("#elx-rolling").count()).toBe(rolling ? 1 : 0);
+    if (rolling) expect(await page.locator("#elx-break-reading").textContent()).toMatch(/^Break test over the pooled rows \(form=log-log; se=HC1; zeros=drop; level=0\.95; time=Period; panel=Branch\): sup-F p/);
+    const registered = await page.evaluate(() => typeof (window as any).Elasticell.functions.IVCHECK === "function");
+    const offered = await page.locator("#elx-instrument option").allTextContents();
+    if (!registered) {
+      expect(text).toContain("not in this build of the functions");
+      expect(offered).toEqual(["none (least squares)"]);
+    } else {
+      expect(offered[1]).toBe("FlourCost");
+      await page.selectOption("#elx-instrument", "FlourCost");
+      await runCheck();
+      expect(await page.locator("#elx-iv-table tbody tr").count()).toBe(2);
+      await page.selectOption("#elx-instrument", "");
+    }
+    if (rolling) {
+      // The writer adds ROLLING and BREAKTEST with their own options (HC1, the panel unit, the step).
+      await runCheck();
+      await page.fill("#elx-target", "AR2");
+      const before = await page.evaluate(() => (window as any).ElxPane.completedWrites);
+      await page.click("#elx-write-btn");
+      await page.waitForFunction((b) => (window as any).ElxPane.completedWrites > b, before);
+      const written = await page.evaluate(() => Array.from((window as any).ElxPreviewWorkbook.activeSheet.cells.values()).map((c: any) => c.input).filter((t: any) => typeof t === "string" && /^=ELX\.(ROLLING|BREAKTEST)\(Sales/.test(t)));
+      expect(written).toEqual([
+        '=ELX.ROLLING(Sales!$C$1:$C$1249, Sales!$D$1:$J$1249, 52, "form=log-log; se=HC1; zeros=drop; level=0.95; absorb=Branch; time=Period; panel=Branch; step=13")',
+        '=ELX.BREAKTEST(Sales!$C$1:$C$1249, Sales!$D$1:$J$1249, 53, "form=log-log; se=HC1; zeros=drop; level=0.95; time=Period; panel=Branch")',
+      ]);
+    }
+    await page.selectOption("#elx-absorb", "");
+  });
+});
+
 describe("accessibility, screenshots and network", () => {
   it("has no serious or critical axe-core violations in the pane", async () => {
     await setRanges("Sales!C1:C1249", "Sales!D1:G1249", "drop");
@@ -338,7 +447,7 @@ describe("accessibility, screenshots and network", () => {
   it("takes the README's pictures of the preview and of the pane (the steps of npm run screenshots) into test-output/screenshots", async () => {
     for (const f of ["preview.png", "pane.png"]) fs.rmSync(path.join(SHOTS, f), { force: true });
     const files = await takeScreenshots(page, SHOTS);
-    expect(files).toEqual([path.join(SHOTS, "preview.png"), path.join(SHOTS, "pane.png")]);
+    expect(files).toEqual([path.join(SHOTS, "preview.png"), path.join(SHOTS, "pane.png"), path.join(SHOTS, "pane-panel.png")]);
     for (const f of files) expect(fs.statSync(f).size).toBeGreaterThan(20000);
   });
 

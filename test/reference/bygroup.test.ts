@@ -288,9 +288,11 @@ describe("BYGROUP groups that cannot be fitted carry reasons; the others still c
   });
 
   it("a group whose y is all zero under ppml (demo: the zero-sales weeks relabelled 'closed')", () => {
-    const p = demoPanel(["Price", "Promo"]);
+    // Price only: in the zero weeks of this draw Promo is 0 as well, so a Promo column would equal y
+    // there and be refused for that reason first.
+    const p = demoPanel(["Price"]);
     p.keys = p.keys.map((k, i) => (p.y[i] === 0 ? "closed" : k));
-    const { t, failed } = checkAgainstSingleGroups(p, "estimator=ppml", "demo ppml closed", ["Promo"]);
+    const { t, failed } = checkAgainstSingleGroups(p, "estimator=ppml", "demo ppml closed");
     expect([...failed.keys()]).toEqual(["closed"]);
     const closed = failed.get("closed") as unknown[];
     expect(closed[1]).toBe(32);
