@@ -11,6 +11,41 @@ import { transformLabel } from "./engine/transforms";
 import { readYX, type Origin } from "./engine/intake";
 import { elasticity } from "./engine/elasticity";
 import { fewClustersNote } from "./engine/panelCovariance";
+import { testRows, testsFit } from "./cells/diagnostics";
+
+/** One specification test as the pane reads it: its p-value and reading, or why it is not available. */
+export interface TestItem {
+  name: string;
+  statistic: number | null;
+  df: number[];
+  pValue: number | null;
+  rejected: boolean | null;
+  reading: string;
+}
+
+/** The tests of ELX.TESTS as numbers and sentences, from the same cached fit and memoised tests. */
+export function testsView(y: unknown[][], x: unknown[][], optionsText: string | null, yOrigin: Origin | null = null, xOrigin: Origin | null = null): Outcome<TestItem[]> {
+  return outcome(() => {
+    const o = parseOptions(optionsText);
+    const inv = { parameterAddresses: [] as string[] };
+    const fit = yOrigin || xOrigin ? testsFitAt(y, x, o, yOrigin, xOrigin) : testsFit(y, x, o, inv);
+    return testRows(fit).map(({ label, result, problem }) => result
+      ? { name: label, statistic: result.statistic, df: result.df, pValue: result.pValue, rejected: result.pValue < 0.05, reading: result.reading }
+      : { name: label, statistic: null, df: [], pValue: null, rejected: null, reading: problem ? problem.message : "" });
+  });
+}
+
+/** testsFit with the sheet origins the pane knows (so row numbers in messages are sheet rows). */
+function testsFitAt(y: unknown[][], x: unknown[][], o: ReturnType<typeof parseOptions>, yOrigin: Origin | null, xOrigin: Origin | null) {
+  const addr = (p: Origin | null) => (p ? `${columnLetters(p.column)}${p.row}` : "");
+  return testsFit(y, x, o, { parameterAddresses: [addr(yOrigin), addr(xOrigin)] });
+}
+
+function columnLetters(c: number): string {
+  let s = "";
+  for (let n = c; n > 0; n = Math.floor((n - 1) / 26)) s = String.fromCharCode(65 + ((n - 1) % 26)) + s;
+  return s;
+}
 
 export type Outcome<T> = { ok: true; value: T } | { ok: false; message: string; kind: "value" | "na" };
 
@@ -137,6 +172,7 @@ export interface ElasticellApi {
   call(id: string, ...args: unknown[]): Outcome<unknown>;
   fitView: typeof fitView;
   elasticitiesView: typeof elasticitiesView;
+  testsView: typeof testsView;
   readColumns: typeof readColumns;
   cacheStats: typeof cacheStats;
 }

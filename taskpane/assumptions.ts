@@ -55,16 +55,23 @@ export function formAssumptions(form: Form, estimator: Estimator, se: string): P
 }
 
 /** Sentences from the ELX.TESTS table (rows: Test, Statistic, df, p-value, Reading). */
-export function testReadings(table: unknown[][] | null, error: string | null): string[] {
-  if (!table) return [`The specification tests could not be run for these ranges: ${error ?? "no fit"}.`];
-  const out: string[] = [];
-  for (const row of table.slice(1)) {
-    const [name, , , p, reading] = row;
-    if (typeof name !== "string") continue;
-    const pText = typeof p === "number" && Number.isFinite(p) ? (p < 0.0001 ? "p < 0.0001" : `p = ${p.toFixed(4)}`) : "p not available";
-    out.push(`${name}: ${pText}${typeof reading === "string" && reading !== "" ? `, ${reading}` : ""}.`);
-  }
-  return out;
+/** One specification test as the pane receives it (globalThis.Elasticell.testsView). */
+export interface TestReadingItem {
+  name: string;
+  pValue: number | null;
+  rejected: boolean | null;
+  reading: string;
+}
+
+/** Sentences from the tests of ELX.TESTS, read as numbers (never from a spilled table's columns). */
+export function testReadings(items: TestReadingItem[] | null, error: string | null): string[] {
+  if (!items) return [`The specification tests could not be run for these ranges: ${error ?? "no fit"}.`];
+  return items.map((t) => {
+    const p = t.pValue;
+    const pText = p !== null && Number.isFinite(p) ? (p < 0.0001 ? "p < 0.0001" : `p = ${p.toFixed(4)}`) : "p not available";
+    const verdict = t.rejected === null ? "" : t.rejected ? "rejected: " : "not rejected: ";
+    return `${t.name}: ${pText}${t.reading !== "" ? `, ${verdict}${t.reading}` : ""}.`;
+  });
 }
 
 /** The cautions shown wherever results are shown (the product owner's rule 5). */

@@ -603,8 +603,8 @@ export class Pane {
     const paras = formAssumptions(c.form, c.estimator, se);
     let tests = "";
     if (c.estimator === "ols") {
-      const r = this.callFor(eng, "TESTS", optionsText(c));
-      const readings = testReadings(r.ok ? table2d(r.value) : null, r.ok ? null : r.message);
+      const r = eng.testsView(s.yCells, s.xCells, optionsText(c), ...this.origins());
+      const readings = testReadings(r.ok ? r.value : null, r.ok ? null : r.message);
       tests = `<h3>What the tests say for these data now</h3><ul class="elx-cautions" id="elx-tests">${readings.map((t) => `<li>${esc(t)}</li>`).join("")}</ul>`;
       const sm = c.form.startsWith("log") ? this.callFor(eng, "SMEARING", optionsText(c)) : null;
       if (sm && sm.ok) {

@@ -157,27 +157,46 @@ export function normalValue(y: unknown, x: unknown, opts: unknown, invocation: u
   });
 }
 
+/** One row of ELX.TESTS: the test's label, and its result or the problem that stopped it. */
+export interface TestRow {
+  label: string;
+  result: TestResult | null;
+  problem: ElxProblem | null;
+}
+
+/** The tests of ELX.TESTS on a fit, in its order (each memoised in the fit). */
+export function testRows(fit: OlsFit): TestRow[] {
+  const runs: [string, string, (f: OlsFit) => TestResult][] = [
+    ["Breusch–Pagan (Koenker, studentized)", "bp", breuschPaganKoenker],
+    ["Breusch–Pagan (original)", "bp-original", breuschPaganOriginal],
+    ["White", "white", white],
+    ["White (special form)", "white-special", whiteSpecial],
+    ["Jarque–Bera", "jb", jarqueBera],
+    ["RESET (fitted², fitted³)", "reset", reset],
+  ];
+  return runs.map(([label, key, run]) => {
+    try {
+      return { label, result: memoTest(fit, key, run), problem: null };
+    } catch (e) {
+      if (!(e instanceof ElxProblem)) throw e;
+      return { label, result: null, problem: e };
+    }
+  });
+}
+
+/** The fit ELX.TESTS reads (least squares without weights), for the pane's typed view too. */
+export function testsFit(y: unknown, x: unknown, o: Options, invocation: unknown): OlsFit {
+  return residualTestFit(y, x, o, invocation, "ELX.TESTS");
+}
+
 export function testsTable(y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
   return guarded(() => {
     const o = options(opts);
-    const fit = residualTestFit(y, x, o, invocation, "ELX.TESTS");
-    const runs: [string, string, (f: OlsFit) => TestResult][] = [
-      ["Breusch–Pagan (Koenker, studentized)", "bp", breuschPaganKoenker],
-      ["Breusch–Pagan (original)", "bp-original", breuschPaganOriginal],
-      ["White", "white", white],
-      ["White (special form)", "white-special", whiteSpecial],
-      ["Jarque–Bera", "jb", jarqueBera],
-      ["RESET (fitted², fitted³)", "reset", reset],
-    ];
-    const body: Table = runs.map(([label, key, run]) => {
-      try {
-        const r = memoTest(fit, key, run);
-        return [label, num(r.statistic), r.df.length === 1 ? r.df[0] : r.df.join(", "), num(r.pValue), `${r.pValue < 0.05 ? "rejected" : "not rejected"}: ${r.reading}`];
-      } catch (e) {
-        if (!(e instanceof ElxProblem)) throw e;
-        const err = toHostError(e);
-        return [label, err, err, err, e.message];
-      }
+    const fit = testsFit(y, x, o, invocation);
+    const body: Table = testRows(fit).map(({ label, result: r, problem }) => {
+      if (r) return [label, num(r.statistic), r.df.length === 1 ? r.df[0] : r.df.join(", "), num(r.pValue), `${r.pValue < 0.05 ? "rejected" : "not rejected"}: ${r.reading}`];
+      const err = toHostError(problem);
+      return [label, err, err, err, (problem as ElxProblem).message];
     });
     return table(["Test", "Statistic", "df", "p-value", "Reading at the 5% level"], body, o);
   });
