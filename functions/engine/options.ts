@@ -229,10 +229,6 @@ export function parseOptions(text: unknown): Options {
   }
   // lags= only changes HAC and Driscoll–Kraay errors: given with any other se it would be silently ignored.
   if (o.lags !== null && o.se !== "HAC" && o.se !== "DK") fail(`lags=${o.lags} applies only to se=HAC (Newey–West errors) and se=DK (Driscoll–Kraay)${o.se ? `, not se=${o.se}` : "; the default errors are HC3 (HC1 for ppml)"}: add se=HAC, or remove lags=`);
-  // cluster= chooses clustered errors; beside another se= it would be silently ignored.
-  if (o.cluster.length > 0 && o.se !== null && o.se !== "cluster") {
-    fail(`cluster=${o.cluster.map((c) => cut(c)).join(",")} asks for errors clustered by ${o.cluster.length === 1 ? "that column" : "those columns"}, but se=${o.se} is also given: use se=cluster (or leave se= out), or remove cluster=`);
-  }
   return o;
 }
 
