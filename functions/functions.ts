@@ -10,7 +10,7 @@
 import { effectsTable, elasticitiesTable, elasticityValue, fitTable, summaryTable, zerosTable } from "./cells/regression";
 import { byGroupTable } from "./cells/groups";
 import { breakTestTable, rollingTable } from "./cells/time";
-import { fitView, elasticitiesView, testsView, makeCaller, cacheStats, readColumns, type CellFunction, type ElasticellApi } from "./paneApi";
+import { fitView, elasticitiesView, testsView, rollingView, breakView, makeCaller, cacheStats, readColumns, type CellFunction, type ElasticellApi } from "./paneApi";
 import { formCheckTable, heteroValue, normalValue, predictTable, smearingValue, testsTable } from "./cells/diagnostics";
 import { ivCheckTable } from "./cells/iv";
 
@@ -197,6 +197,8 @@ const published: ElasticellApi = {
   fitView,
   elasticitiesView,
   testsView,
+  rollingView,
+  breakView,
   readColumns,
   cacheStats,
 };

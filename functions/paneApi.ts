@@ -12,6 +12,53 @@ import { readYX, type Origin } from "./engine/intake";
 import { elasticity } from "./engine/elasticity";
 import { fewClustersNote } from "./engine/panelCovariance";
 import { testRows, testsFit } from "./cells/diagnostics";
+import { getWindows, windowLength } from "./engine/rolling";
+import { getBreakTest } from "./engine/breakTest";
+
+/** One window of ELX.ROLLING as numbers: its span, rows, and each term's elasticity and error. */
+export interface WindowItem {
+  from: string | number;
+  to: string | number;
+  rows: number;
+  /** Per term (in `terms` order): null where the window could not be fitted or the term is binary. */
+  estimates: (number | null)[];
+  errors: (number | null)[];
+  problem: string | null;
+}
+
+/** ELX.ROLLING's windows as numbers, from the same cached window set as the cells. */
+export function rollingView(y: unknown[][], x: unknown[][], window: number, optionsText: string | null, yOrigin: Origin | null = null, xOrigin: Origin | null = null): Outcome<{ terms: string[]; windows: WindowItem[] }> {
+  return outcome(() => {
+    const o = parseOptions(optionsText);
+    const r = getWindows(y, x, windowLength(window, o), o, yOrigin, xOrigin);
+    const se = seTypeOf(o);
+    const windows = r.windows.map((w): WindowItem => {
+      const none = r.xNames.map(() => null);
+      const fit = w.fit;
+      if (!fit) return { from: w.window.from, to: w.window.to, rows: w.rows, estimates: none, errors: none, problem: w.problem ? w.problem.message : "not fitted" };
+      let cov: ReturnType<typeof fit.covariance>;
+      try {
+        cov = fit.covariance(se, o.lags);
+      } catch (e) {
+        if (!(e instanceof ElxProblem)) throw e;
+        return { from: w.window.from, to: w.window.to, rows: fit.n, estimates: none, errors: none, problem: e.message };
+      }
+      const est = r.xNames.map((_, j) => (fit.data.binary[j] ? null : elasticity(fit, j, cov, o.level, o.at)));
+      return { from: w.window.from, to: w.window.to, rows: fit.n, estimates: est.map((e) => (e ? e.estimate : null)), errors: est.map((e) => (e ? e.se : null)), problem: null };
+    });
+    return { terms: r.xNames, windows };
+  });
+}
+
+/** ELX.BREAKTEST's search for an unknown break as numbers: sup-F, its p-value and the most likely start. */
+export function breakView(y: unknown[][], x: unknown[][], at: unknown, optionsText: string | null, yOrigin: Origin | null = null, xOrigin: Origin | null = null): Outcome<{ supF: { statistic: number; pValue: number; start: string | number } | null; problem: string | null }> {
+  return outcome(() => {
+    const o = parseOptions(optionsText);
+    const r = getBreakTest(y, x, at, o, yOrigin, xOrigin);
+    if (!r.search) return { supF: null, problem: r.searchProblem ? r.searchProblem.message : "the search did not run" };
+    return { supF: { statistic: r.search.statistic, pValue: r.search.pValue, start: r.searchStart }, problem: null };
+  });
+}
 
 /** One specification test as the pane reads it: its p-value and reading, or why it is not available. */
 export interface TestItem {
@@ -173,6 +220,8 @@ export interface ElasticellApi {
   fitView: typeof fitView;
   elasticitiesView: typeof elasticitiesView;
   testsView: typeof testsView;
+  rollingView: typeof rollingView;
+  breakView: typeof breakView;
   readColumns: typeof readColumns;
   cacheStats: typeof cacheStats;
 }

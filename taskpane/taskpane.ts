@@ -273,9 +273,8 @@ export class Pane {
 
   /**
    * The price (or first) elasticity's path over rolling windows with its band, and the break test's
-   * reading, when ROLLING and BREAKTEST are registered and x holds a period column. The tables are
-   * read by position in their decided layout (From, To, Observations, then Elasticity and Std. error
-   * per term; tests in rows 1–3 with the p-value in column 4 and the break in column 5).
+   * reading, when ROLLING and BREAKTEST are registered and x holds a period column, read through the
+   * typed views rollingView and breakView (never by a table's column positions).
    */
   private renderChange(eng: EngineApi): void {
     const w = this.windowPlan();
@@ -290,30 +289,28 @@ export class Pane {
     const term = terms[j].term;
     const level = Number(s.choices.level);
     const z = normalQuantile(1 - (1 - level) / 2);
-    const roll = this.callFor(eng, "ROLLING", w.rolling, [w.window]);
-    const t = roll.ok ? table2d(roll.value) : null;
+    const roll = eng.rollingView(s.yCells, s.xCells, w.window, w.rolling, ...this.origins());
     const points: PathPoint[] = [];
     let failed = 0;
-    for (const row of t ? t.slice(1) : []) {
-      const [from, to] = row;
+    for (const win of roll.ok ? roll.value.windows : []) {
+      const { from, to } = win;
       if (typeof from !== "number" || typeof to !== "number") continue;
-      const b = row[3 + 2 * j];
-      const se = row[4 + 2 * j];
-      if (typeof b === "number" && typeof se === "number" && Number.isFinite(b) && Number.isFinite(se)) points.push({ at: (from + to) / 2, estimate: b, lower: b - z * se, upper: b + z * se });
+      const b = win.estimates[j];
+      const se = win.errors[j];
+      if (b !== null && se !== null && Number.isFinite(b) && Number.isFinite(se)) points.push({ at: (from + to) / 2, estimate: b, lower: b - z * se, upper: b + z * se });
       else failed++;
     }
     let reading = "";
     let breakAt: number | null = null;
     if (this.registered("BREAKTEST")) {
-      // the sup-F row searches every break whatever the second argument; the middle period is given
-      // because without it a time column makes the last period the second regime
-      const br = this.callFor(eng, "BREAKTEST", w.breaks, [w.middle]);
-      const bt = br.ok ? table2d(br.value) : null;
-      const sup = bt?.[3];
-      if (sup && typeof sup[3] === "number") {
-        breakAt = typeof sup[4] === "number" ? sup[4] : null;
-        reading = `Break test over the pooled rows (${w.breaks}): sup-F ${pText(sup[3])}${breakAt !== null ? `, the most likely break from ${w.time} ${breakAt}` : ""}. A break found by searching marks where the fitted relation changed most, not why.`;
-      } else reading = `The break test did not run: ${br.ok ? "no result" : br.message}.`;
+      // the sup-F search runs over every break whatever the second argument; the middle period is
+      // given because without it a time column makes the last period the second regime
+      const br = eng.breakView(s.yCells, s.xCells, w.middle, w.breaks, ...this.origins());
+      const sup = br.ok ? br.value.supF : null;
+      if (sup) {
+        breakAt = typeof sup.start === "number" ? sup.start : null;
+        reading = `Break test over the pooled rows (${w.breaks}): sup-F ${pText(sup.pValue)}${breakAt !== null ? `, the most likely break from ${w.time} ${breakAt}` : ""}. A break found by searching marks where the fitted relation changed most, not why.`;
+      } else reading = `The break test did not run: ${br.ok ? br.value.problem ?? "no result" : br.message}.`;
     }
     const lv = percent(level);
     const html = (points.length >= 2

@@ -42,3 +42,41 @@ describe("testsView: the tests of ELX.TESTS as numbers", () => {
     if (!v.ok) expect(v.message).toMatch(/assume unweighted least squares/);
   });
 });
+
+describe("rollingView and breakView: ELX.ROLLING and ELX.BREAKTEST as numbers", () => {
+  type Views = {
+    rollingView: (...a: unknown[]) => { ok: true; value: { terms: string[]; windows: { from: unknown; to: unknown; rows: number; estimates: (number | null)[]; errors: (number | null)[] }[] } } | { ok: false; message: string };
+    breakView: (...a: unknown[]) => { ok: true; value: { supF: { statistic: number; pValue: number; start: unknown } | null } } | { ok: false; message: string };
+  };
+  const api = (globalThis as { Elasticell?: Views }).Elasticell as Views;
+  // the four rival stores come first in the demo sheet (rows 2–417): one series per Branch
+  const head = ["Price", "Footfall", "Promo", "Income", "Branch", "Period"];
+  const Y4 = Y.slice(0, 417);
+  const X4 = [head, ...demo.rows.slice(0, 416).map((r) => head.map((c) => r[col(c)]))];
+
+  it("every window's elasticity and error equal the ELX.ROLLING cells", () => {
+    const opts = "zeros=drop; absorb=Branch; time=Period; panel=Branch; step=13; se=HC1";
+    const t = call(reg, "ROLLING", Y4, X4, 52, opts) as unknown[][];
+    const v = api.rollingView(Y4, X4, 52, opts);
+    if (!v.ok) throw new Error(v.message);
+    const rows = t.slice(1).filter((r) => typeof r[0] === "number");
+    expect(v.value.windows.length).toBe(rows.length);
+    v.value.windows.forEach((w, i) => {
+      expect([w.from, w.to, w.rows]).toEqual(rows[i].slice(0, 3));
+      v.value.terms.forEach((_, j) => {
+        if (w.estimates[j] === null) return;
+        expect(w.estimates[j]).toBe(rows[i][3 + 2 * j]);
+        expect(w.errors[j]).toBe(rows[i][4 + 2 * j]);
+      });
+    });
+  });
+
+  it("the sup-F row's statistic, p-value and most likely start equal the ELX.BREAKTEST cells", () => {
+    const opts = "zeros=drop; time=Period; panel=Branch; se=HC1";
+    const t = call(reg, "BREAKTEST", Y4, X4, 61, opts) as unknown[][];
+    const sup = t.find((r) => String(r[0]).startsWith("sup-F")) as unknown[];
+    const v = api.breakView(Y4, X4, 61, opts);
+    if (!v.ok || !v.value.supF) throw new Error("no sup-F in the view");
+    expect([v.value.supF.statistic, v.value.supF.pValue, v.value.supF.start]).toEqual([sup[1], sup[3], sup[4]]);
+  });
+});
