@@ -11,24 +11,15 @@ import { parseOptions } from "../../functions/engine/options";
 import { auxiliary, breuschPaganKoenker, breuschPaganOriginal, onFitDesign, REUSE_CONDITION } from "../../functions/engine/specTests";
 import type { OlsFit } from "../../functions/engine/fit";
 import { chiSquareSf } from "../../functions/engine/distributions";
+import { Rng } from "../simulation/rng";
 
 function breuschPaganOriginalDirectP(a: { rss: number; tss: number; kept: number }): number {
   return chiSquareSf((a.tss - a.rss) / 2, a.kept - 1);
 }
 
-function rng(seed: number): () => number {
-  let s = seed >>> 0;
-  return () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
 function data(n: number, seed: number, spread: number): { y: unknown[][]; x: unknown[][] } {
-  const r = rng(seed);
+  const g = new Rng(seed);
+  const r = () => g.next();
   const y: unknown[][] = [["Units"]];
   const x: unknown[][] = [["Price", "Footfall", "Income"]];
   for (let i = 0; i < n; i++) {
