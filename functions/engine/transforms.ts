@@ -254,11 +254,23 @@ function negativeAdvice(names: string[], yName: string | null, o: Options, also 
 }
 
 /**
+ * Math.log of raw.y and of each column of raw.x (regressors, then instruments), row by row, computed
+ * beforehand by a caller that prepares many subsets of the same cells (rolling windows). A null
+ * entry is logged here. The values are the ones this function would compute itself; they are used
+ * only where a column's transform is the plain log and no row was left out on the way.
+ */
+export interface Prelogged {
+  y: Float64Array | null;
+  x: (Float64Array | null)[];
+}
+
+/**
  * Decides each column's transform, applies the zero policy and transforms in place.
  * @param raw the columns from intake (mutated: transformed and compacted)
  * @param o parsed options (form, levels, zeros, shift, estimator)
+ * @param logs the same rows already logged, when the caller has them (see Prelogged)
  */
-export function prepare(raw: RawData, o: Options): Dataset {
+export function prepare(raw: RawData, o: Options, logs: Prelogged | null = null): Dataset {
   const info = estimatorOf(o);
   const logY = info.logsY && o.form.startsWith("log-");
   const logX = o.form.endsWith("-log");
@@ -419,9 +431,14 @@ export function prepare(raw: RawData, o: Options): Dataset {
   const xMeans = x.slice(0, kx).map(mean);
   let yZerosUsed = 0;
   for (let i = 0; i < n; i++) if (y[i] === 0) yZerosUsed++;
-  if (yTransform.kind !== "level") transformInPlace(y, yTransform);
+  // the caller's logs apply only while the rows are still raw's rows (nothing dropped or compacted)
+  const ly = logs && y === raw.y && yTransform.kind === "log" ? logs.y : null;
+  if (ly) y.set(ly);
+  else if (yTransform.kind !== "level") transformInPlace(y, yTransform);
   x.forEach((c, j) => {
-    if (xT[j].kind !== "level") transformInPlace(c, xT[j]);
+    const lx = logs && c === allX[j] && xT[j].kind === "log" ? logs.x[j] ?? null : null;
+    if (lx) c.set(lx);
+    else if (xT[j].kind !== "level") transformInPlace(c, xT[j]);
   });
   const regressors = x.slice(0, kx);
   const xNames = raw.xNames.slice();
