@@ -577,15 +577,13 @@ function checkShape(data: Dataset, k: number, intercept: boolean): void {
   }
   // Constant regressors: a clearer message than the rank check's.
   data.x.forEach((c, j) => {
-    let min = Infinity;
-    let max = -Infinity;
-    for (let i = 0; i < c.length; i++) {
-      if (c[i] < min) min = c[i];
-      if (c[i] > max) max = c[i];
-    }
-    if (min === max) {
+    // constant when every value equals the first (the scan stops at the first that differs)
+    const first = c[0];
+    let i = 1;
+    while (i < c.length && c[i] === first) i++;
+    if (i === c.length) {
       if (intercept) fail(`${data.xNames[j]} has the same value in every row used, so it cannot be told apart from the intercept: remove it from x`);
-      if (min === 0) fail(`${data.xNames[j]} is zero in every row used: remove it from x`);
+      if (first === 0) fail(`${data.xNames[j]} is zero in every row used: remove it from x`);
     }
   });
 }
