@@ -323,7 +323,8 @@ export class OlsFit extends Model {
     const terms = this.terms;
     const w = data.roles.weights;
     this.yUnit = workingUnit(data.y);
-    const y = scaled(data.y, this.yUnit);
+    // plain least squares reads y without writing it: no copy when it needs no rescaling (v·1 = v)
+    const y = this.yUnit === 1 && keys.length === 0 && !w ? data.y : scaled(data.y, this.yUnit);
     if (keys.length > 0) {
       const prep = prepareAbsorption(keys.map((k) => ({ name: k.name, codes: k.codes })), w);
       const fe = fitAbsorbed(prep.absorber, y, this.design, terms.map((t) => t.name));

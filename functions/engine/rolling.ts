@@ -100,8 +100,8 @@ function subsetRaw(raw: RawData, idx: Int32Array): RawData {
     for (let i = 0; i < m; i++) out[i] = c[idx[i]];
     return out;
   };
-  const rowNumbers = new Int32Array(m);
-  for (let i = 0; i < m; i++) rowNumbers[i] = raw.rowNumbers[idx[i]];
+  const rowNumbers = run ? raw.rowNumbers.slice(idx[0], idx[0] + m) : new Int32Array(m);
+  if (!run) for (let i = 0; i < m; i++) rowNumbers[i] = raw.rowNumbers[idx[i]];
   return {
     ...raw,
     y: pick(raw.y),
