@@ -88,14 +88,18 @@ function logsOnce(raw: RawData, o: Options): Prelogged | null {
   return { y: logY ? log(raw.y) : null, x: raw.x.map((c) => (logX ? log(c) : null)) };
 }
 
-/** The rows at positions idx of the raw data, as a separate call on those rows would read them. */
-function subsetRaw(raw: RawData, idx: Int32Array): RawData {
+/**
+ * The rows at positions idx of the raw data, as a separate call on those rows would read them.
+ * @param views y and x as views of raw's columns where the rows are consecutive (only for prepare()
+ *   with logs, which then never writes into them)
+ */
+function subsetRaw(raw: RawData, idx: Int32Array, views: boolean): RawData {
   const m = idx.length;
   // windows of rows are runs of consecutive positions: a plain copy (Float64Array.from with a
   // mapping function is many times slower than a loop or a slice)
   const run = isRun(idx);
   const pick = (c: Float64Array) => {
-    if (run) return c.slice(idx[0], idx[0] + m);
+    if (run) return views ? c.subarray(idx[0], idx[0] + m) : c.slice(idx[0], idx[0] + m);
     const out = new Float64Array(m);
     for (let i = 0; i < m; i++) out[i] = c[idx[i]];
     return out;
@@ -141,7 +145,7 @@ export function fitWindows(y: unknown, x: unknown, length: number, o: Options, y
       if (rows === 0) fail("no usable row in these periods");
       const part = (c: Float64Array | null) => (c ? viewOrGather(c, window.rows) : null);
       const windowLogs = logs ? { y: part(logs.y), x: logs.x.map(part) } : null;
-      const data = prepare(subsetRaw(raw, window.rows), o, windowLogs);
+      const data = prepare(subsetRaw(raw, window.rows, windowLogs !== null), o, windowLogs);
       return { window, rows, fit: build(data, o) as AnyFit, problem: null };
     } catch (e) {
       if (!(e instanceof ElxProblem)) throw e;
