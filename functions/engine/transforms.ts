@@ -439,18 +439,19 @@ export function prepare(raw: RawData, o: Options, logs: Prelogged | null = null)
   const xMeans = x.slice(0, kx).map(mean);
   let yZerosUsed = 0;
   for (let i = 0; i < n; i++) if (y[i] === 0) yZerosUsed++;
-  // The caller's logs apply only while the rows are still raw's rows (nothing dropped or compacted);
-  // a column still raw's own is then the caller's too, and is copied before it is transformed.
+  // The caller's logs apply only while the rows are still raw's rows (nothing dropped or compacted),
+  // and are used as given (a dataset's columns are only read after this); a column still raw's own
+  // is then the caller's too, and is copied before it is transformed.
   const own = (c: Float64Array, original: Float64Array) => (logs && c === original ? c.slice() : c);
   const ly = logs && y === raw.y && yTransform.kind === "log" ? logs.y : null;
-  if (ly) y = ly.slice();
+  if (ly) y = ly;
   else {
     y = own(y, raw.y);
     if (yTransform.kind !== "level") transformInPlace(y, yTransform);
   }
   x = x.map((c, j) => {
     const lx = logs && c === allX[j] && xT[j].kind === "log" ? logs.x[j] ?? null : null;
-    if (lx) return lx.slice();
+    if (lx) return lx;
     const out = own(c, allX[j]);
     if (xT[j].kind !== "level") transformInPlace(out, xT[j]);
     return out;
