@@ -323,7 +323,8 @@ export class OlsFit extends Model {
     const terms = this.terms;
     const w = data.roles.weights;
     this.yUnit = workingUnit(data.y);
-    const y = scaled(data.y, this.yUnit);
+    // plain least squares reads y without writing it: no copy when it needs no rescaling (v·1 = v)
+    const y = this.yUnit === 1 && keys.length === 0 && !w ? data.y : scaled(data.y, this.yUnit);
     if (keys.length > 0) {
       const prep = prepareAbsorption(keys.map((k) => ({ name: k.name, codes: k.codes })), w);
       const fe = fitAbsorbed(prep.absorber, y, this.design, terms.map((t) => t.name));
@@ -577,15 +578,13 @@ function checkShape(data: Dataset, k: number, intercept: boolean): void {
   }
   // Constant regressors: a clearer message than the rank check's.
   data.x.forEach((c, j) => {
-    let min = Infinity;
-    let max = -Infinity;
-    for (let i = 0; i < c.length; i++) {
-      if (c[i] < min) min = c[i];
-      if (c[i] > max) max = c[i];
-    }
-    if (min === max) {
+    // constant when every value equals the first (the scan stops at the first that differs)
+    const first = c[0];
+    let i = 1;
+    while (i < c.length && c[i] === first) i++;
+    if (i === c.length) {
       if (intercept) fail(`${data.xNames[j]} has the same value in every row used, so it cannot be told apart from the intercept: remove it from x`);
-      if (min === 0) fail(`${data.xNames[j]} is zero in every row used: remove it from x`);
+      if (first === 0) fail(`${data.xNames[j]} is zero in every row used: remove it from x`);
     }
   });
 }

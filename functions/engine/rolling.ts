@@ -12,7 +12,7 @@
  * expanding the first row stays and the end moves on.
  */
 import { readYX, subsetRoles, type Origin, type RawData } from "./intake";
-import { prepare } from "./transforms";
+import { prepare, type Prelogged } from "./transforms";
 import { estimatorOf } from "./estimators";
 import { ElxProblem, RowList, fail } from "./problems";
 import { modelKey, type Options } from "./options";
@@ -56,20 +56,56 @@ export function windowLength(arg: unknown, o: Options): number {
   return w;
 }
 
-/** The rows at positions idx of the raw data, as a separate call on those rows would read them. */
-function subsetRaw(raw: RawData, idx: Int32Array): RawData {
+/** Whether positions idx are consecutive (windows of rows always are). */
+function isRun(idx: Int32Array): boolean {
+  const m = idx.length;
+  return m > 0 && idx[m - 1] - idx[0] === m - 1;
+}
+
+/** The values of c at positions idx: a view of c when they are consecutive, else a gathered copy. */
+function viewOrGather(c: Float64Array, idx: Int32Array): Float64Array {
+  const m = idx.length;
+  if (isRun(idx)) return c.subarray(idx[0], idx[0] + m);
+  const out = new Float64Array(m);
+  for (let i = 0; i < m; i++) out[i] = c[idx[i]];
+  return out;
+}
+
+/**
+ * Math.log of every usable row of y and of the regressors, once for all windows, when the form logs
+ * them (the log of a value does not depend on the window; which columns a window logs, its zero
+ * policy, binary columns and means are still decided in prepare() on the window's own rows).
+ */
+function logsOnce(raw: RawData, o: Options): Prelogged | null {
+  const logY = estimatorOf(o).logsY && o.form.startsWith("log-");
+  const logX = o.form.endsWith("-log");
+  if (!logY && !logX) return null;
+  const log = (c: Float64Array) => {
+    const out = new Float64Array(c.length);
+    for (let i = 0; i < c.length; i++) out[i] = Math.log(c[i]);
+    return out;
+  };
+  return { y: logY ? log(raw.y) : null, x: raw.x.map((c) => (logX ? log(c) : null)) };
+}
+
+/**
+ * The rows at positions idx of the raw data, as a separate call on those rows would read them.
+ * @param views y and x as views of raw's columns where the rows are consecutive (only for prepare()
+ *   with logs, which then never writes into them)
+ */
+function subsetRaw(raw: RawData, idx: Int32Array, views: boolean): RawData {
   const m = idx.length;
   // windows of rows are runs of consecutive positions: a plain copy (Float64Array.from with a
   // mapping function is many times slower than a loop or a slice)
-  const run = m > 0 && idx[m - 1] - idx[0] === m - 1;
+  const run = isRun(idx);
   const pick = (c: Float64Array) => {
-    if (run) return c.slice(idx[0], idx[0] + m);
+    if (run) return views ? c.subarray(idx[0], idx[0] + m) : c.slice(idx[0], idx[0] + m);
     const out = new Float64Array(m);
     for (let i = 0; i < m; i++) out[i] = c[idx[i]];
     return out;
   };
-  const rowNumbers = new Int32Array(m);
-  for (let i = 0; i < m; i++) rowNumbers[i] = raw.rowNumbers[idx[i]];
+  const rowNumbers = run ? raw.rowNumbers.slice(idx[0], idx[0] + m) : new Int32Array(m);
+  if (!run) for (let i = 0; i < m; i++) rowNumbers[i] = raw.rowNumbers[idx[i]];
   return {
     ...raw,
     y: pick(raw.y),
@@ -102,11 +138,14 @@ export function fitWindows(y: unknown, x: unknown, length: number, o: Options, y
     ? periodWindows(periodsOfKey(time, raw.rowNumbers, raw.roles.panel), spec, k)
     : rowWindows(raw.rowNumbers, spec, k);
   const build = estimatorOf(o).build;
+  const logs = logsOnce(raw, o);
   const windows = layout.windows.map((window): WindowFitResult => {
     const rows = window.rows.length;
     try {
       if (rows === 0) fail("no usable row in these periods");
-      const data = prepare(subsetRaw(raw, window.rows), o);
+      const part = (c: Float64Array | null) => (c ? viewOrGather(c, window.rows) : null);
+      const windowLogs = logs ? { y: part(logs.y), x: logs.x.map(part) } : null;
+      const data = prepare(subsetRaw(raw, window.rows, windowLogs !== null), o, windowLogs);
       return { window, rows, fit: build(data, o) as AnyFit, problem: null };
     } catch (e) {
       if (!(e instanceof ElxProblem)) throw e;

@@ -254,11 +254,26 @@ function negativeAdvice(names: string[], yName: string | null, o: Options, also 
 }
 
 /**
- * Decides each column's transform, applies the zero policy and transforms in place.
- * @param raw the columns from intake (mutated: transformed and compacted)
- * @param o parsed options (form, levels, zeros, shift, estimator)
+ * Math.log of raw.y and of each column of raw.x (regressors, then instruments), row by row, computed
+ * beforehand by a caller that prepares many subsets of the same cells (rolling windows). A null
+ * entry is logged here. The values are the ones this function would compute itself; they are used
+ * only where a column's transform is the plain log and no row was left out on the way. With them,
+ * raw.y and raw.x may be views of the caller's columns: prepare() then reads them and writes only
+ * into copies of its own.
  */
-export function prepare(raw: RawData, o: Options): Dataset {
+export interface Prelogged {
+  y: Float64Array | null;
+  x: (Float64Array | null)[];
+}
+
+/**
+ * Decides each column's transform, applies the zero policy and transforms in place.
+ * @param raw the columns from intake (mutated: transformed and compacted; with logs, y and x are
+ *   left as they are)
+ * @param o parsed options (form, levels, zeros, shift, estimator)
+ * @param logs the same rows already logged, when the caller has them (see Prelogged)
+ */
+export function prepare(raw: RawData, o: Options, logs: Prelogged | null = null): Dataset {
   const info = estimatorOf(o);
   const logY = info.logsY && o.form.startsWith("log-");
   const logX = o.form.endsWith("-log");
@@ -331,6 +346,11 @@ export function prepare(raw: RawData, o: Options): Dataset {
       fail(`${offenders.join("; ")}; ${advice.join("; ")}`);
     }
     if (o.zeros === "drop") {
+      if (logs) {
+        // raw's columns are the caller's: compact copies
+        y = y.slice();
+        x = x.map((c) => c.slice());
+      }
       const n0 = y.length;
       const kept = new Int32Array(n0);
       let w = 0;
@@ -419,9 +439,22 @@ export function prepare(raw: RawData, o: Options): Dataset {
   const xMeans = x.slice(0, kx).map(mean);
   let yZerosUsed = 0;
   for (let i = 0; i < n; i++) if (y[i] === 0) yZerosUsed++;
-  if (yTransform.kind !== "level") transformInPlace(y, yTransform);
-  x.forEach((c, j) => {
-    if (xT[j].kind !== "level") transformInPlace(c, xT[j]);
+  // The caller's logs apply only while the rows are still raw's rows (nothing dropped or compacted),
+  // and are used as given (a dataset's columns are only read after this); a column still raw's own
+  // is then the caller's too, and is copied before it is transformed.
+  const own = (c: Float64Array, original: Float64Array) => (logs && c === original ? c.slice() : c);
+  const ly = logs && y === raw.y && yTransform.kind === "log" ? logs.y : null;
+  if (ly) y = ly;
+  else {
+    y = own(y, raw.y);
+    if (yTransform.kind !== "level") transformInPlace(y, yTransform);
+  }
+  x = x.map((c, j) => {
+    const lx = logs && c === allX[j] && xT[j].kind === "log" ? logs.x[j] ?? null : null;
+    if (lx) return lx;
+    const out = own(c, allX[j]);
+    if (xT[j].kind !== "level") transformInPlace(out, xT[j]);
+    return out;
   });
   const regressors = x.slice(0, kx);
   const xNames = raw.xNames.slice();
