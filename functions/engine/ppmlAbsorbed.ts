@@ -4,8 +4,8 @@
  *
  * Each IRLS step (McCullagh and Nelder 1989, §2.5) demeans the working response z = η + (y − μ)/μ and
  * the regressors with the working weights ω = w·μ (the weighted within transformation of Correia,
- * Guimarães and Zylkin 2020, "Fast Poisson estimation with high-dimensional fixed effects", Stata
- * Journal 20(1)), regresses √ω·z̃ on √ω·X̃ with the engine's QR, and takes the new linear predictor as
+ * Guimarães and Zylkin 2020, "Fast Poisson estimation with high-dimensional fixed effects"),
+ * regresses √ω·z̃ on √ω·X̃ with the engine's QR, and takes the new linear predictor as
  * η = z − ẽ (the working residual of the full model equals that of the demeaned one). If the deviance
  * rises, η is halved back towards the previous one (every such η is again x'b + fixed effects).
  * Converged when the relative change of the deviance is below PPML_TOL and the largest relative

@@ -165,8 +165,6 @@ ols_case <- function(name, source, d, y, x, fe, clusters, unit, time, w = NULL, 
     er <- lm_robust(pf, data = d, fixed_effects = !!fef, clusters = d[[cl1]], se_type = "CR0")
     V0 <- vcovCL(m, cluster = as.formula(paste("~", cl1)), type = "HC0", cadjust = FALSE)
     check(close_to(er$std.error[x], sqrt_diag(V0, x), 1e-8), paste(name, "estimatr CR0"))
-    ers <- lm_robust(pf, data = d, fixed_effects = !!fef, clusters = d[[cl1]], se_type = "stata")
-    out$estimatr_stata_over_ours <- unname(ers$std.error[x] / cl_out[[cl1]]$se)
   }
   out$plm_checked <- scalar(is.null(w))
   out
@@ -356,5 +354,4 @@ out <- list(
 )
 writeLines(to_json(out), out_path)
 cat("wrote", out_path, "\n")
-for (cc in cases) if (!is.null(cc$estimatr_stata_over_ours)) cat(cc$name, "estimatr stata / ours:", format(cc$estimatr_stata_over_ours, digits = 8), "\n")
 for (cc in cases) if (!is.null(cc$plm_vcovNW_matches_hac_within)) cat(cc$name, "plm::vcovNW equals HAC within units:", cc$plm_vcovNW_matches_hac_within, "\n")
