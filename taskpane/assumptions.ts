@@ -74,7 +74,7 @@ export function testReadings(items: TestReadingItem[] | null, error: string | nu
   });
 }
 
-/** The cautions shown wherever results are shown (the product owner's rule 5). */
+/** The cautions shown wherever results are shown: associations, not causes; prices react to demand; sample and data quality; the decision stays with the analyst. */
 export const CAUTIONS: string[] = [
   "These are associations, not causes: a coefficient says how y moved with x in these rows, not what a change of x would do.",
   "Price often responds to demand (prices raised after strong weeks, cut after weak ones), which biases a price elasticity from sales data; an estimate here is not a clean demand response.",

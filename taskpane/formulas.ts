@@ -29,7 +29,7 @@ export interface BlockSpec {
   items: BlockItem[];
 }
 
-/** The caution written under every block (the product owner's rule 5). */
+/** The caution written under every block: associations, not causes; prices react to demand; the decision stays with the analyst. */
 export const CAUTION_LINE =
   "Caution: these are associations, not causes; prices often respond to demand; results depend on the sample and the data's quality; decisions stay with the analyst and their organisation's review.";
 

@@ -5,8 +5,37 @@ import { ElxProblem } from "../engine/problems";
 import { elasticity } from "../engine/elasticity";
 import { breuschPaganKoenker } from "../engine/specTests";
 import type { OlsFit } from "../engine/fit";
+import type { AnyFit } from "../engine/model";
+import type { Options, SeType } from "../engine/options";
+import type { Covariance } from "../engine/covariance";
 import { guarded, hostError, num, options, originsOf, table, safe, type Cell, type Table } from "./host";
 import { BINARY_NOTE } from "./regression";
+
+/**
+ * Elasticity and Std. error cells, term by term, of one fit of a segment (a BYGROUP group, a ROLLING
+ * window): a binary term's cells are empty (with a pointer when it is binary only in this `part`),
+ * and a covariance that cannot be computed puts its error value in every term's cells.
+ */
+export function elasticityCells(fit: AnyFit, terms: number, se: SeType, o: Options, binaryEverywhere: boolean[], part: string): Cell[] {
+  const out: Cell[] = [];
+  let cov: Covariance | null = null;
+  let covProblem: Cell | null = null;
+  try {
+    cov = fit.covariance(se, o.lags);
+  } catch (e) {
+    if (!(e instanceof ElxProblem)) throw e;
+    covProblem = hostError(e.kind, e.message);
+  }
+  for (let j = 0; j < terms; j++) {
+    if (fit.data.binary[j]) out.push(binaryEverywhere[j] ? "" : `binary in this ${part}: see ELX.EFFECTS`, "");
+    else if (!cov) out.push(covProblem as Cell, covProblem as Cell);
+    else {
+      const r = elasticity(fit, j, cov, o.level, o.at);
+      out.push(num(r.estimate), num(r.se));
+    }
+  }
+  return out;
+}
 
 export function byGroupTable(keys: unknown, y: unknown, x: unknown, opts: unknown, invocation: unknown): Table {
   return guarded(() => {
@@ -35,22 +64,7 @@ export function byGroupTable(keys: unknown, y: unknown, x: unknown, opts: unknow
         return row;
       }
       row[1] = fit.n;
-      let cov: ReturnType<typeof fit.covariance> | null = null;
-      let covProblem: Cell | null = null;
-      try {
-        cov = fit.covariance(se, o.lags);
-      } catch (e) {
-        if (!(e instanceof ElxProblem)) throw e;
-        covProblem = hostError(e.kind, e.message);
-      }
-      g.xNames.forEach((_, j) => {
-        if (fit.data.binary[j]) row.push(binaryEverywhere[j] ? "" : `binary in this group: see ELX.EFFECTS`, "");
-        else if (!cov) row.push(covProblem as Cell, covProblem as Cell);
-        else {
-          const r = elasticity(fit, j, cov, o.level, o.at);
-          row.push(num(r.estimate), num(r.se));
-        }
-      });
+      row.push(...elasticityCells(fit, g.xNames.length, se, o, binaryEverywhere, "group"));
       if (fit.estimator === "ppml") row.push(num(fit.statistics().pseudoRSquared)); // narrows the fit's type
       else {
         row.push(num(fit.statistics().rSquared, "R² is undefined: y does not vary in this group"));

@@ -3,10 +3,11 @@ import { getWindows, windowLength } from "../engine/rolling";
 import { getBreakTest, type BreakTestResult } from "../engine/breakTest";
 import { seTypeOf } from "../engine/estimators";
 import { ElxProblem } from "../engine/problems";
-import { elasticity, EVERYWHERE } from "../engine/elasticity";
+import { EVERYWHERE } from "../engine/elasticity";
 import type { Options } from "../engine/options";
 import { guarded, hostError, levelLabel, num, options, originsOf, table, type Cell, type Table } from "./host";
 import { BINARY_NOTE } from "./regression";
+import { elasticityCells } from "./groups";
 
 /** A note row of a table `width` wide: a label, then cells, then blanks. */
 function noteRow(width: number, cells: Cell[]): Cell[] {
@@ -32,22 +33,7 @@ export function rollingTable(y: unknown, x: unknown, windowArg: unknown, opts: u
       const fit = w.fit;
       if (!fit) return noteRow(width, [...row, `cannot fit: ${(w.problem as ElxProblem).message}`]);
       row[2] = fit.n;
-      let cov: ReturnType<typeof fit.covariance> | null = null;
-      let covProblem: Cell | null = null;
-      try {
-        cov = fit.covariance(se, o.lags);
-      } catch (e) {
-        if (!(e instanceof ElxProblem)) throw e;
-        covProblem = hostError(e.kind, e.message);
-      }
-      r.xNames.forEach((_, j) => {
-        if (fit.data.binary[j]) row.push(binaryEverywhere[j] ? "" : "binary in this window: see ELX.EFFECTS", "");
-        else if (!cov) row.push(covProblem as Cell, covProblem as Cell);
-        else {
-          const e = elasticity(fit, j, cov, o.level, o.at);
-          row.push(num(e.estimate), num(e.se));
-        }
-      });
+      row.push(...elasticityCells(fit, r.xNames.length, se, o, binaryEverywhere, "window"));
       return row;
     });
     const unit = r.layout.unit === "periods" ? "period" : "row";

@@ -104,7 +104,7 @@ function baseOptions(c: Case, estimator = "ols"): string {
 }
 
 /** FIT's coefficient and standard-error columns, the header of the latter. */
-function fit(c: Case, opts: string, order?: number[]): { b: number[]; se: unknown[]; header: string; t: unknown[][] } {
+function fitCase(c: Case, opts: string, order?: number[]): { b: number[]; se: unknown[]; header: string; t: unknown[][] } {
   const roles: string[] = [];
   for (const m of opts.matchAll(/(?:cluster|panel|time)=([^;]+)/g)) if (!/^(cluster|DK|HAC)$/.test(m[1].trim())) roles.push(...m[1].split(",").map((v) => v.trim()));
   const { Y, X } = sheet(c, order, roles);
@@ -122,7 +122,7 @@ describe.each(OLS.map((c) => [c.name, c] as const))("%s through the cells", (_na
 
   test(`slopes (1e-10) and classical, HC0..HC3 errors (1e-9): R lm + sandwich::vcovHC on ${c.source}`, () => {
     for (const [type, se] of Object.entries(c.se)) {
-      const f = fit(c, `${base}; se=${type}`);
+      const f = fitCase(c, `${base}; se=${type}`);
       expectAll(f.b, c.coefficients, 1e-10, `${c.name} slopes`);
       expectAll(f.se, se, 1e-9, `${c.name} ${type}`);
       expect(f.t.map((r) => r[0]).slice(1)).toEqual(Object.keys(c.x)); // no intercept shown
@@ -131,7 +131,7 @@ describe.each(OLS.map((c) => [c.name, c] as const))("%s through the cells", (_na
 
   test(`cluster one- and two-way (1e-9), header names the clusters: sandwich::vcovCL on ${c.source}`, () => {
     for (const cl of Object.values(c.cluster)) {
-      const f = fit(c, `${base}; cluster=${cl.clusters.join(",")}`);
+      const f = fitCase(c, `${base}; cluster=${cl.clusters.join(",")}`);
       const negative = cl.variance.map((v) => v < 0);
       cl.se.forEach((s, j) => {
         if (negative[j]) expect(errorOf(f.se[j]).message).toMatch(/came out negative/);
@@ -144,10 +144,10 @@ describe.each(OLS.map((c) => [c.name, c] as const))("%s through the cells", (_na
 
   test(`HAC within panels and Driscoll–Kraay (1e-9): sandwich::vcovPL on ${c.source}`, () => {
     for (const [L, se] of Object.entries(c.hac_within ?? {})) {
-      expectAll(fit(c, `${base}; se=HAC; panel=${c.unit}; lags=${L}`).se, se, 1e-9, `${c.name} HAC within, ${L} lags`);
+      expectAll(fitCase(c, `${base}; se=HAC; panel=${c.unit}; lags=${L}`).se, se, 1e-9, `${c.name} HAC within, ${L} lags`);
     }
     for (const [L, se] of Object.entries(c.driscoll_kraay ?? {})) {
-      expectAll(fit(c, `${base}; se=DK; time=${c.time}; lags=${L}`).se, se, 1e-9, `${c.name} DK, ${L} lags`);
+      expectAll(fitCase(c, `${base}; se=DK; time=${c.time}; lags=${L}`).se, se, 1e-9, `${c.name} DK, ${L} lags`);
     }
   });
 
@@ -166,7 +166,7 @@ describe.each(OLS.map((c) => [c.name, c] as const))("%s through the cells", (_na
     const { Y, X } = sheet(c, undefined, cl.clusters);
     const opts = `${base}; cluster=${cl.clusters.join(",")}`;
     const e = table(call(reg, "ELASTICITIES", Y, X, opts));
-    const f = fit(c, opts);
+    const f = fitCase(c, opts);
     e.slice(1).forEach((r, j) => {
       const ratio = (r[2] as number) / f.b[j];
       if (cl.variance[j] >= 0) expectClose(r[3], (f.se[j] as number) * Math.abs(ratio), 1e-12, 0, "elasticity error");
@@ -178,7 +178,7 @@ describe.each(PPML.map((c) => [c.name, c] as const))("%s (PPML with fixed effect
   const base = baseOptions(c, "ppml");
   test(`slopes (1e-10), HC0 and HC1 (1e-9), z statistics: R glm(quasipoisson) + vcovHC on ${c.source}`, () => {
     for (const [type, se] of Object.entries(c.se)) {
-      const f = fit(c, `${base}; se=${type}`);
+      const f = fitCase(c, `${base}; se=${type}`);
       expectAll(f.b, c.coefficients, 1e-10, `${c.name} slopes`);
       expectAll(f.se, se, 1e-9, `${c.name} ${type}`);
       expect(f.t[0][4]).toBe("z");
@@ -187,7 +187,7 @@ describe.each(PPML.map((c) => [c.name, c] as const))("%s (PPML with fixed effect
 
   test(`cluster (1e-9): sandwich::vcovCL on ${c.source}`, () => {
     for (const cl of Object.values(c.cluster)) {
-      const f = fit(c, `${base}; cluster=${cl.clusters.join(",")}`);
+      const f = fitCase(c, `${base}; cluster=${cl.clusters.join(",")}`);
       cl.se.forEach((s, j) => {
         if (cl.variance[j] < 0) expect(errorOf(f.se[j]).message).toMatch(/came out negative/);
         else expectClose(f.se[j], s, 1e-9, 0, `${c.name} cluster ${cl.clusters.join("+")}[${j}]`);
@@ -208,7 +208,7 @@ describe.each(PPML.map((c) => [c.name, c] as const))("%s (PPML with fixed effect
 describe("PPML with fixed effects, classical errors: sqrt(diag(vcov(glm(inv ~ lvalue + lcapital + factor(firm), quasipoisson)))), plm::Grunfeld", () => {
   test("Pearson dispersion on n − k − a df (1e-9); SUMMARY's dispersion row equals summary(m)$dispersion (1e-9)", () => {
     const c = PPML.find((p) => p.name === "grunfeld_ppml_oneway") as Case;
-    const f = fit(c, `${baseOptions(c, "ppml")}; se=classical`);
+    const f = fitCase(c, `${baseOptions(c, "ppml")}; se=classical`);
     expectAll(f.se, ref.ppml_classical.se, 1e-9, "classical");
     const { Y, X } = sheet(c);
     const s = table(call(reg, "SUMMARY", Y, X, baseOptions(c, "ppml")));
@@ -265,8 +265,8 @@ describe("identities through the cells (Grunfeld, plm::Grunfeld data)", () => {
 
   test("absorb=firm equals the indicator columns of factors=firm: slopes and classical, HC0, HC1 and year-clustered errors (1e-10)", () => {
     for (const se of ["classical", "HC0", "HC1", "HC3", "cluster; cluster=year"]) {
-      const a = fit(c, `form=level-level; absorb=firm; se=${se}`);
-      const f = fit(c, `form=level-level; factors=firm; se=${se}`);
+      const a = fitCase(c, `form=level-level; absorb=firm; se=${se}`);
+      const f = fitCase(c, `form=level-level; factors=firm; se=${se}`);
       // factors=: the intercept first, then the slopes, then the indicator terms
       expectAll(a.b, f.b.slice(1, 3), 1e-10, `slopes ${se}`);
       expectAll(a.se, f.se.slice(1, 3) as number[], 1e-10, `errors ${se}`);
@@ -275,8 +275,8 @@ describe("identities through the cells (Grunfeld, plm::Grunfeld data)", () => {
 
   test("two-way: absorb=firm,year equals factors=firm,year (slopes, classical and HC1 1e-10)", () => {
     for (const se of ["classical", "HC1"]) {
-      const a = fit(c2, `form=level-level; absorb=firm,year; se=${se}`);
-      const f = fit(c2, `form=level-level; factors=firm,year; se=${se}`);
+      const a = fitCase(c2, `form=level-level; absorb=firm,year; se=${se}`);
+      const f = fitCase(c2, `form=level-level; factors=firm,year; se=${se}`);
       expectAll(a.b, f.b.slice(1, 3), 1e-10, `slopes ${se}`);
       expectAll(a.se, f.se.slice(1, 3) as number[], 1e-10, `errors ${se}`);
     }
@@ -288,8 +288,8 @@ describe("identities through the cells (Grunfeld, plm::Grunfeld data)", () => {
     const order = Array.from({ length: n }, (_, i) => (i * 37 + 11) % n);
     expect(new Set(order).size).toBe(n);
     for (const opts of ["se=HC1", "cluster=firm,year", "se=DK; time=year"]) {
-      const a = fit(c2, `form=level-level; absorb=firm,year; ${opts}`);
-      const b = fit(c2, `form=level-level; absorb=firm,year; ${opts}`, order);
+      const a = fitCase(c2, `form=level-level; absorb=firm,year; ${opts}`);
+      const b = fitCase(c2, `form=level-level; absorb=firm,year; ${opts}`, order);
       expectAll(b.b, a.b, 1e-10, `slopes ${opts}`);
       expectAll(b.se, a.se as number[], 1e-10, `errors ${opts}`);
     }
