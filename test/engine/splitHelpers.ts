@@ -101,7 +101,12 @@ export function worst(s: ColumnFitResult, r: Numbers): Record<string, number> {
     standardErrors: m(s.standardErrors, r.standardErrors),
     t: m(s.t, r.t),
     p: m(s.p, r.p),
-    intervals: Math.max(m(s.lower, r.lower), m(s.upper, r.upper)),
+    // an interval's end near zero (b ≈ q·se) is the difference of two numbers: measured on the
+    // scale of |b| + q·se = max(|low|, |high|), the size of the numbers it is computed from
+    intervals: s.lower.reduce((w, v, j) => {
+      const size = Math.max(Math.abs(r.lower[j]), Math.abs(r.upper[j]));
+      return Math.max(w, Math.abs(v - r.lower[j]) / size, Math.abs(s.upper[j] - r.upper[j]) / size);
+    }, 0),
     rss: rel(s.rss, r.rss),
     rSquared: rel(s.rSquared, r.rSquared),
   };
