@@ -72,7 +72,7 @@ export function newPartState(): PartState {
 }
 
 /** The step kinds a part understands (see the answer types below). */
-export type SplitOpKind = "append" | "scan" | "prepare" | "norms" | "factor" | "residuals" | "refineStart" | "refineStep" | "refineApply" | "center" | "passes" | "bpSolve" | "auxDesign" | "auxDrop" | "clear";
+export type SplitOpKind = "reserve" | "append" | "scan" | "prepare" | "norms" | "factor" | "residuals" | "refineStart" | "refineStep" | "refineApply" | "center" | "passes" | "bpSolve" | "auxDesign" | "auxDrop" | "clear";
 
 /** What applyPartOp gives back: the answer (structured-cloneable) and the buffers that may move with it. */
 export interface PartAnswer {
@@ -135,7 +135,7 @@ export interface PrepareAnswer {
 }
 
 export interface NormsAnswer {
-  /** Per column: Σx², max|x|, Σ(x/max|x|)². */
+  /** Per column: Σx², max|x|, Σ(x/max|x|)² (NaN where Σx² alone is safe: see norms). */
   sumSq: number[];
   maxAbs: number[];
   scaledSumSq: number[];
@@ -198,6 +198,30 @@ function grow(state: PartState, need: number, kx: number): void {
   state.rawX = x;
   state.issue = issue;
   state.index = index;
+}
+
+/** Room for `rows` rows of `kx` x columns, so that appending never copies the rows already held. */
+function reserve(state: PartState, op: PartOp): PartAnswer {
+  const kx = op.kx as number;
+  if (state.kx < 0) state.kx = kx;
+  if (state.kx !== kx) throw new Error(`the part holds ${state.kx} x columns, not ${kx}`);
+  const need = op.rows as number;
+  if (need > state.rawY.length) {
+    const keep = state.rows;
+    const y = new Float64Array(need);
+    y.set(state.rawY.subarray(0, keep));
+    const x = Array.from({ length: kx }, (_, j) => {
+      const c = new Float64Array(need);
+      if (state.rawX[j]) c.set(state.rawX[j].subarray(0, keep));
+      return c;
+    });
+    const issue = new Uint8Array(need);
+    issue.set(state.issue.subarray(0, keep));
+    const index = new Int32Array(need);
+    index.set(state.index.subarray(0, keep));
+    Object.assign(state, { rawY: y, rawX: x, issue, index });
+  }
+  return { answer: { rows: state.rows, capacity: state.rawY.length } };
 }
 
 function append(state: PartState, op: PartOp): PartAnswer {
@@ -382,9 +406,14 @@ function designOf(state: PartState, op: PartOp): PartDesign {
   return d;
 }
 
-/** Σx² in the order leastSquares.ts norm2 sums it, with max|x| and Σ(x/max|x|)² for the overflow-safe combination. */
+/**
+ * Σx² in the order leastSquares.ts norm2 sums it, and max|x|; Σ(x/max|x|)² (NaN when not computed)
+ * only where this part's Σx² could take the total out of [1e-280, 1e280] (at or below 1e-280, or at
+ * or above 1e280/parts): the driver then combines the scaled sums, as norm2 rescales.
+ */
 function norms(state: PartState, op: PartOp): PartAnswer {
   const d = designOf(state, op);
+  const parts = (op.parts as number | undefined) ?? 1;
   const sumSq: number[] = [];
   const mx: number[] = [];
   const scaledSumSq: number[] = [];
@@ -397,8 +426,9 @@ function norms(state: PartState, op: PartOp): PartAnswer {
       const b = Math.abs(v);
       if (b > m) m = b;
     }
-    let t = 0;
-    if (m > 0) {
+    let t = NaN;
+    if (m > 0 && !(s > 1e-280 && s < 1e280 / parts)) {
+      t = 0;
       for (let i = 0; i < a.length; i++) {
         const v = a[i] / m;
         t += v * v;
@@ -735,6 +765,7 @@ function auxDrop(state: PartState, op: PartOp): PartAnswer {
 /** Applies one step to the part it holds. Data problems come back in the answers (the driver words them). */
 export function applyPartOp(state: PartState, op: PartOp): PartAnswer {
   switch (op.kind as SplitOpKind) {
+    case "reserve": return reserve(state, op);
     case "append": return append(state, op);
     case "scan": return scan(state, op);
     case "prepare": return prepare(state, op);
