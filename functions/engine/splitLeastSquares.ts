@@ -61,13 +61,17 @@ export interface PartState {
   x: Float64Array[] | null;
   rowIndex: Int32Array | null;
   designs: Record<string, PartDesign>;
+  /** What "prepare" did (its parameters and answer), so that a fit with the same transforms reuses the rows. */
+  prepared: { key: string; answer: PrepareAnswer } | null;
+  /** The last "scan" (its parameters and answer): after "prepare" the storage no longer holds the raw rows. */
+  scanned: { key: string; answer: ScanAnswer } | null;
 }
 
 /** A new, empty part. */
 export function newPartState(): PartState {
   return {
     rows: 0, kx: -1, rawY: new Float64Array(0), rawX: [], issue: new Uint8Array(0), index: new Int32Array(0),
-    n: 0, y: null, x: null, rowIndex: null, designs: {},
+    n: 0, y: null, x: null, rowIndex: null, designs: {}, prepared: null, scanned: null,
   };
 }
 
@@ -265,6 +269,12 @@ function ensureColumns(state: PartState, kx: number): void {
 function scan(state: PartState, op: PartOp): PartAnswer {
   const firstRow = op.firstRow as number;
   const kx = op.kx as number;
+  const key = JSON.stringify([kx, firstRow]);
+  if (state.y) {
+    // the rows were transformed in place by an earlier fit: what they held then
+    if (state.scanned?.key !== key) throw new Error("this part's rows were already transformed for a fit: append them again");
+    return { answer: state.scanned.answer };
+  }
   ensureColumns(state, kx);
   const rows = state.rows;
   const unusable = new RowList();
@@ -313,6 +323,7 @@ function scan(state: PartState, op: PartOp): PartAnswer {
     usable, blank, notNumber, unusableRows: unusable.toRuns(), badCells, binary, sameAsY,
     nonPositive: np.map((c) => ({ zeros: c.zeros, negatives: c.negatives, zeroRows: c.zeroRows.toRuns(), negativeRows: c.negativeRows.toRuns() })),
   };
+  state.scanned = { key, answer };
   return { answer };
 }
 
@@ -328,8 +339,15 @@ function prepare(state: PartState, op: PartOp): PartAnswer {
   const intercept = op.intercept as boolean;
   const firstRow = op.firstRow as number;
   const kx = op.kx as number;
-  // the rows are transformed in place (no second copy of a big range): one fit per part's rows
-  if (state.y) throw new Error("this part's rows were already prepared for a fit: append them again for another fit");
+  // The rows are transformed in place (no second copy of a big range): a part's rows serve fits with
+  // the same transforms and rows (another se= or level); other transforms need the rows again.
+  const key = JSON.stringify([kx, logY, logged, drop, intercept, firstRow]);
+  if (state.y) {
+    if (state.prepared?.key !== key) throw new Error("this part's rows were already transformed for a fit with other transforms: append them again for this one");
+    const d = state.designs.fit;
+    state.designs = { fit: { X: d.X, y: state.y, blocks: null, resid: null, r: null, f: null } };
+    return { answer: state.prepared.answer };
+  }
   ensureColumns(state, kx);
   const { rawY, rawX, issue, index } = state;
   const droppedRows = new RowList();
@@ -388,6 +406,7 @@ function prepare(state: PartState, op: PartOp): PartAnswer {
     xMax.push(maxAbs(c));
   }
   const answer: PrepareAnswer = { n, dropped, droppedNegative, droppedRows: droppedRows.toRuns(), first, constant, yMax: maxAbs(y), xMax };
+  state.prepared = { key, answer };
   return { answer };
 }
 
