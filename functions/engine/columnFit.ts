@@ -532,6 +532,7 @@ export async function columnFit(
     const j = bad % k;
     fail(`the fit gives a number that is not finite for ${bad === shown.length - 1 ? "R²" : terms[j]} (a standard error of zero, or values too extreme for double precision): check the data for extreme or repeated values`);
   }
+  await rounds.all(() => ({ kind: "release" }));
   const sample = joinSamples(passes.map((a) => a.sample));
   const result: ColumnFitResult = {
     rowsRead, n, leftOut, terms, coefficients, standardErrors, t, p, lower, upper,

@@ -76,7 +76,7 @@ export function newPartState(): PartState {
 }
 
 /** The step kinds a part understands (see the answer types below). */
-export type SplitOpKind = "reserve" | "append" | "scan" | "prepare" | "norms" | "factor" | "residuals" | "refineStart" | "refineStep" | "refineApply" | "center" | "passes" | "bpSolve" | "auxDesign" | "auxDrop" | "clear";
+export type SplitOpKind = "reserve" | "append" | "scan" | "prepare" | "norms" | "factor" | "residuals" | "refineStart" | "refineStep" | "refineApply" | "center" | "passes" | "bpSolve" | "auxDesign" | "auxDrop" | "release" | "clear";
 
 /** What applyPartOp gives back: the answer (structured-cloneable) and the buffers that may move with it. */
 export interface PartAnswer {
@@ -500,6 +500,7 @@ function residuals(state: PartState, op: PartOp): PartAnswer {
     d.resid = resid;
     d.r = null;
     d.f = null;
+    d.blocks = null; // k reflector entries per row: freed as soon as the refinement is over
   }
   let rss = 0;
   for (let i = 0; i < n; i++) rss += resid[i] * resid[i];
@@ -799,6 +800,12 @@ export function applyPartOp(state: PartState, op: PartOp): PartAnswer {
     case "bpSolve": return bpSolve(state, op);
     case "auxDesign": return auxDesign(state, op);
     case "auxDrop": return auxDrop(state, op);
+    case "release": {
+      // what a finished fit leaves: the tests' designs, the residuals and reflectors (the rows stay)
+      const fit = state.designs.fit;
+      if (fit) state.designs = { fit: { X: fit.X, y: state.y as Float64Array, blocks: null, resid: null, r: null, f: null } };
+      return { answer: { rows: state.rows } };
+    }
     case "clear": {
       Object.assign(state, newPartState());
       return { answer: { rows: 0 } };
