@@ -7,8 +7,8 @@
  */
 import type { ColumnChunk, ColumnFitSpec } from "../engine/columnFitTypes";
 import { ElxProblem, fail } from "../engine/problems";
-import { columnFit } from "./engineLink";
-import { FitCancelled, isCancelled, startPool, type PoolOptions, type StoppableExecutor } from "./pool";
+import { appendOp, columnFit, FitCancelled, isFitCancelled } from "./engineLink";
+import { messageOf, startPool, type PoolOptions, type StoppableExecutor } from "./pool";
 import type { BigFitOpenOptions, BigFitSession, BigOutcome } from "./types";
 
 /** How a session starts its workers (the page's defaults unless a test or Node caller says otherwise). */
@@ -24,9 +24,9 @@ export function shareBounds(rows: number, parts: number): number[] {
 }
 
 /** A column's rows [from, to) ready to move: the array itself when it is all of its own buffer, else a copy. */
-function movable(column: Float64Array, from: number, to: number, whole: boolean): Float64Array {
+function movable<T extends Float64Array | Uint8Array>(column: T, from: number, to: number, whole: boolean): T {
   if (whole && column.byteOffset === 0 && column.byteLength === column.buffer.byteLength) return column;
-  return column.slice(from, to);
+  return column.slice(from, to) as T;
 }
 
 export async function openBigFit(options: BigFitStartOptions): Promise<BigFitSession> {
@@ -48,7 +48,7 @@ export async function openBigFit(options: BigFitStartOptions): Promise<BigFitSes
     if (cancelled) throw new FitCancelled();
     if (closed) fail("This big fit was closed: start a new one.");
     const n = chunk && chunk.y instanceof Float64Array ? chunk.y.length : -1;
-    if (n < 0 || !Array.isArray(chunk.x) || chunk.x.some((c) => !(c instanceof Float64Array) || c.length !== n)) {
+    if (n < 0 || !Array.isArray(chunk.x) || chunk.x.some((c) => !(c instanceof Float64Array) || c.length !== n) || (chunk.issues != null && !(chunk.issues instanceof Uint8Array && chunk.issues.length === n))) {
       fail("A block of rows read from the range has columns of different lengths: read the range again.");
     }
     if (columns === null) columns = chunk.x.length;
@@ -65,9 +65,10 @@ export async function openBigFit(options: BigFitStartOptions): Promise<BigFitSes
       const whole = from === first && to === first + n;
       const y = movable(chunk.y, from - first, to - first, whole);
       const x = chunk.x.map((c) => movable(c, from - first, to - first, whole));
+      const issues = chunk.issues ? movable(chunk.issues, from - first, to - first, whole) : undefined;
       const transfer: ArrayBuffer[] = [];
-      for (const a of [y, ...x]) if (a.buffer instanceof ArrayBuffer && !transfer.includes(a.buffer)) transfer.push(a.buffer);
-      sends.push(executor.send(p, { kind: "append", chunk: { rowStart: from, y, x } }, start.workers > 0 ? transfer : []));
+      for (const a of [y, ...x, ...(issues ? [issues] : [])]) if (a.buffer instanceof ArrayBuffer && !transfer.includes(a.buffer)) transfer.push(a.buffer);
+      sends.push(executor.send(p, appendOp({ rowStart: from, y, x, issues }), start.workers > 0 ? transfer : []));
     }
     await Promise.all(sends);
   };
@@ -97,9 +98,9 @@ export async function openBigFit(options: BigFitStartOptions): Promise<BigFitSes
         })();
         return await Promise.race([run, stop]);
       } catch (e) {
-        if (cancelled || isCancelled(e)) return CANCELLED;
+        if (cancelled || isFitCancelled(e)) return CANCELLED;
         if (e instanceof ElxProblem) return { ok: false, cancelled: false, message: e.message };
-        const why = e instanceof Error ? e.message : String(e);
+        const why = messageOf(e);
         return { ok: false, cancelled: false, message: `The fit stopped unexpectedly (${why}). Nothing was written; try again, and if it happens again, report it with the range's size.` };
       } finally {
         fitting = false;
