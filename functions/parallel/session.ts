@@ -12,7 +12,7 @@ import { machineWorkers, messageOf, startPool, type PoolOptions, type StoppableE
 import type { BigFitOpenOptions, BigFitSession, BigOutcome } from "./types";
 
 /** How a session starts its workers (the page's defaults unless a test or Node caller says otherwise). */
-export type BigFitStartOptions = BigFitOpenOptions & Pick<PoolOptions, "spawn" | "startTimeoutMs">;
+export type BigFitStartOptions = BigFitOpenOptions & Pick<PoolOptions, "spawn" | "startTimeoutMs" | "keepWarm">;
 
 /** Rows [from, to) of one part's share, ready to send. */
 interface Piece {
@@ -47,7 +47,7 @@ export async function openBigFit(options: BigFitStartOptions): Promise<BigFitSes
   if (!(Number.isInteger(rows) && rows >= 1)) fail("There are no data rows below the header to fit: choose a range with a header row and at least one row of numbers.");
   // Never more workers than rows.
   const wanted = options.workers === undefined ? undefined : Math.min(Math.max(0, Math.floor(options.workers)), rows);
-  const start = await startPool({ workers: wanted === undefined ? Math.min(machineWorkers(), rows) : wanted, spawn: options.spawn, startTimeoutMs: options.startTimeoutMs, localParts: 1 });
+  const start = await startPool({ workers: wanted === undefined ? Math.min(machineWorkers(), rows) : wanted, spawn: options.spawn, startTimeoutMs: options.startTimeoutMs, keepWarm: options.keepWarm, localParts: 1 });
   const executor: StoppableExecutor = start.executor;
   const parts = executor.parts;
   const bounds = shareBounds(rows, parts);
@@ -55,6 +55,7 @@ export async function openBigFit(options: BigFitStartOptions): Promise<BigFitSes
   let cancelled = false;
   let closed = false;
   let fitting = false;
+  let fitted = false;
   let onCancel: (() => void) | null = null;
   // Each part receives its rows in order (the engine keeps them in the order they arrive, and the
   // picture's rows and the rows named in messages follow it): a piece that arrives before the rows
@@ -136,7 +137,10 @@ export async function openBigFit(options: BigFitStartOptions): Promise<BigFitSes
       if (cancelled) return CANCELLED;
       if (closed) return { ok: false, cancelled: false, message: "This big fit was closed: start a new one." };
       if (fitting) return { ok: false, cancelled: false, message: "A fit is already running for this range: wait for it or press Cancel." };
+      // the parts transform their rows in place (logs) as they fit them: one fit per reading
+      if (fitted) return { ok: false, cancelled: false, message: "These rows have been fitted once already: to fit them again (other options), read the range again." };
       fitting = true;
+      fitted = true;
       const stop = new Promise<BigOutcome>((resolve) => {
         onCancel = () => resolve(CANCELLED);
       });

@@ -13,7 +13,7 @@ import * as fs from "fs";
 import { appendColumns, columnFit, equalShares, localExecutor } from "../../functions/engine/columnFit";
 import type { ColumnChunk, ColumnFitResult, ColumnFitSpec } from "../../functions/engine/columnFitTypes";
 import { nodeSpawner, WORKER_BUNDLE, type NodeWorkerPort } from "../../functions/parallel/nodeWorker";
-import { startPool } from "../../functions/parallel/pool";
+import { closeIdleWorkers, startPool, type SpawnWorker } from "../../functions/parallel/pool";
 import { openBigFit, shareBounds } from "../../functions/parallel/session";
 import { Rng } from "../simulation/rng";
 
@@ -242,6 +242,40 @@ describe("the big-fit session", () => {
     } finally {
       session.close();
     }
+  });
+
+  it("closed sessions leave their workers warm for the next: no new thread, the same numbers, rows cleared", async () => {
+    const base = nodeSpawner();
+    let spawned = 0;
+    const spawn: SpawnWorker = (i) => {
+      spawned++;
+      return base(i);
+    };
+    try {
+      const results: ColumnFitResult[] = [];
+      for (let round = 0; round < 2; round++) {
+        const session = await openBigFit({ rows: N, workers: 2, spawn, keepWarm: true });
+        expect(session.workers).toBe(2);
+        for (const c of chunks(800)) await session.append(c);
+        const out = await session.fit(SPEC);
+        session.close();
+        if (!out.ok) throw new Error(out.message);
+        results.push(out.value);
+      }
+      expect(spawned).toBe(2);
+      // the second session's parts held only its own rows: the same n, the same numbers
+      expect(worstDifference(results[1], results[0])).toBe(0);
+    } finally {
+      closeIdleWorkers();
+    }
+  });
+
+  it("a second fit of the same reading is refused with a sentence (the parts transform their rows as they fit)", async () => {
+    const session = await openBigFit({ rows: N, workers: 0 });
+    for (const c of chunks(1000)) await session.append(c);
+    expect((await session.fit(SPEC)).ok).toBe(true);
+    expect(await session.fit({ ...SPEC, se: "HC1" })).toMatchObject({ ok: false, cancelled: false, message: expect.stringMatching(/fitted once already.*read the range again/) });
+    session.close();
   });
 
   describe("bad input", () => {
