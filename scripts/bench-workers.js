@@ -11,7 +11,8 @@
  *   node scripts/bench-workers.js --runs 5             runs per case (default 5 at 10^5, 3 at 10^6)
  *   node scripts/bench-workers.js --workers 4          worker counts 1..4 (default: the cores, at most 8)
  *
- * `npm run bench` runs it after scripts/bench.js. Every run is a fresh child process (so each peak
+ * `npm run bench` runs it before scripts/bench.js (so `npm run bench -- --only fit` still passes its
+ * options to bench.js); ELX_BENCH_WORKERS=0 skips it there. Every run is a fresh child process (so each peak
  * memory figure is that run's own), and the cases are interleaved run by run (in-thread, 1, 2, …
  * workers, then again), so a busy machine slows them alike. Timed: the fit, from the rows sitting in
  * their parts to the result (logs, QR and the merge of the parts' triangles, classical and HC3
@@ -193,7 +194,8 @@ if (process.argv[2] === "--child") {
     process.exit(1);
   });
 } else if (require.main === module) {
-  main();
+  if (process.env.ELX_BENCH_WORKERS === "0") process.stdout.write("workers benchmark skipped (ELX_BENCH_WORKERS=0)\n");
+  else main();
 }
 
 module.exports = { benchWorkers };
