@@ -158,9 +158,12 @@ function columnNorms(answers: NormsAnswer[], k: number): Float64Array {
     if (m === 0) continue;
     let t = 0;
     for (const a of answers) {
-      if (a.maxAbs[j] === 0) continue;
-      const r = a.maxAbs[j] / m;
-      t += a.scaledSumSq[j] * (r * r);
+      const mp = a.maxAbs[j];
+      if (mp === 0) continue;
+      // a part whose own Σx² was safe sent no scaled sum: Σ(x/max)² = Σx²/max² then
+      const tp = Number.isNaN(a.scaledSumSq[j]) ? a.sumSq[j] / (mp * mp) : a.scaledSumSq[j];
+      const r = mp / m;
+      t += tp * (r * r);
     }
     scale[j] = m * Math.sqrt(t);
   }
@@ -187,7 +190,7 @@ function sumParts(hi: number[], lo: number[]): number {
  */
 async function splitLeastSquares(rounds: Rounds, design: string, k: number, unit: number, refineWhenNeeded: boolean): Promise<SplitLs> {
   const k1 = k + 1;
-  const norms = await rounds.all<NormsAnswer>(() => ({ kind: "norms", design }));
+  const norms = await rounds.all<NormsAnswer>(() => ({ kind: "norms", design, parts: rounds.exec.parts }));
   const scale = columnNorms(norms, k);
   for (let j = 0; j < k; j++) if (scale[j] === 0) return { qr: null, dependent: { column: j, on: [] } };
   const inv = Float64Array.from(scale, (s) => 1 / s);
@@ -423,14 +426,13 @@ export async function columnFit(
   if (!ls.qr) return explainDependency(ls.dependent, terms);
   const qr = ls.qr;
   const df = n - k;
-  if (!(qr.rss > EXACT_FIT * qr.sumY2)) {
-    unavailable(`the fit is exact (every residual is zero up to rounding): ${spec.yName} is an exact linear combination of the regressors (an x column may be ${spec.yName} itself or in other units, or ${spec.yName} was computed from them), so standard errors, t, p and the tests are undefined: fit y as it was measured`);
-  }
+  // an exact fit's residuals are rounding noise: t, p and the tests are undefined (fit.ts isExact)
+  const exact = qr.rss > EXACT_FIT * qr.sumY2 ? "" : `the fit is exact (every residual is zero up to rounding): ${spec.yName} is an exact linear combination of the regressors, which usually means it was computed from them or that an x column is ${spec.yName} in another form; that leaves t, p and the tests undefined`;
 
   // 4. The second passes: R²'s mean, the HC meat, the Breusch–Pagan sums, the sample of rows.
   const hc = spec.se === "classical" ? null : spec.se;
   const eUnit = unitOfMax(qr.maxResid);
-  const reuse = spec.intercept && !qr.refined && qr.condition < REUSE_CONDITION && xUnits.every((u) => u === 1);
+  const reuse = !exact && spec.intercept && !qr.refined && qr.condition < REUSE_CONDITION && xUnits.every((u) => u === 1);
   const stride = Math.max(1, Math.ceil(n / SAMPLE_ROWS));
   const offsets: number[] = [];
   let at = 0;
@@ -503,7 +505,8 @@ export async function columnFit(
   } else {
     const centred = await rounds.all<{ ss: number }>(() => ({ kind: "center", design: "fit", mean }));
     tss = centred.reduce((s, a) => s + a.ss, 0);
-    if (kx > 0) {
+    if (exact) bpNote = exact;
+    else if (kx > 0) {
       try {
         await auxiliaryBp(rounds, xUnits, eUnit, n, bpResult);
       } catch (e) {
@@ -518,17 +521,18 @@ export async function columnFit(
   const coefficients = Array.from(qr.coef, (v) => (yUnit === 1 ? v : v * yUnit));
   const standardErrors = coefficients.map((_, j) => (Math.sqrt(Math.max(0, W[j * k + j])) / qr.scale[j]) * yUnit);
   const crit = studentQuantile(0.5 + spec.level / 2, df);
-  const t = coefficients.map((b, j) => b / standardErrors[j]);
-  const p = t.map((v) => studentTwoSided(v, df));
+  const t = coefficients.map((b, j) => (exact ? NaN : b / standardErrors[j]));
+  const p = t.map((v) => (exact ? NaN : studentTwoSided(v, df)));
   const lower = coefficients.map((b, j) => b - crit * standardErrors[j]);
   const upper = coefficients.map((b, j) => b + crit * standardErrors[j]);
   const rSquared = tss > 0 ? 1 - qr.rss / tss : NaN;
-  const shown = [...coefficients, ...standardErrors, ...t, ...p, ...lower, ...upper, rSquared];
+  const shown = [...coefficients, ...standardErrors, ...(exact ? coefficients : t), ...(exact ? coefficients : p), ...lower, ...upper, rSquared];
   const bad = shown.findIndex((v) => !Number.isFinite(v));
   if (bad >= 0) {
     const j = bad % k;
     fail(`the fit gives a number that is not finite for ${bad === shown.length - 1 ? "R²" : terms[j]} (a standard error of zero, or values too extreme for double precision): check the data for extreme or repeated values`);
   }
+  await rounds.all(() => ({ kind: "release" }));
   const sample = joinSamples(passes.map((a) => a.sample));
   const result: ColumnFitResult = {
     rowsRead, n, leftOut, terms, coefficients, standardErrors, t, p, lower, upper,
@@ -536,6 +540,7 @@ export async function columnFit(
     condition: qr.condition, refined: qr.refined, parts: P,
   };
   if (bp === null) result.breuschPaganNote = bpNote;
+  if (exact) result.exact = exact;
   return result;
 }
 

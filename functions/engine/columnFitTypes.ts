@@ -89,4 +89,10 @@ export interface ColumnFitResult {
   condition: number;
   refined: boolean;
   parts: number;
+  /**
+   * Set when the fit is exact (every residual zero up to rounding): why, in the analyst's words. t
+   * and p are then NaN, which must not be shown: show this reason in their place (as ELX.FIT shows
+   * #N/A there); Breusch–Pagan is null.
+   */
+  exact?: string;
 }

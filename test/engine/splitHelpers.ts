@@ -10,6 +10,7 @@ import { appendColumns, columnFit, localExecutor } from "../../functions/engine/
 import type { ColumnFitResult, ColumnFitSpec } from "../../functions/engine/columnFitTypes";
 import { ElxProblem } from "../../functions/engine/problems";
 import { Rng } from "../simulation/rng";
+import { chiSquareSf, studentTwoSided } from "../../functions/engine/distributions";
 
 /** The numbers a split fit returns, from the single-thread engine on the same rows. */
 export interface Numbers {
@@ -101,7 +102,12 @@ export function worst(s: ColumnFitResult, r: Numbers): Record<string, number> {
     standardErrors: m(s.standardErrors, r.standardErrors),
     t: m(s.t, r.t),
     p: m(s.p, r.p),
-    intervals: Math.max(m(s.lower, r.lower), m(s.upper, r.upper)),
+    // an interval's end near zero (b ≈ q·se) is the difference of two numbers: measured on the
+    // scale of |b| + q·se = max(|low|, |high|), the size of the numbers it is computed from
+    intervals: s.lower.reduce((w, v, j) => {
+      const size = Math.max(Math.abs(r.lower[j]), Math.abs(r.upper[j]));
+      return Math.max(w, Math.abs(v - r.lower[j]) / size, Math.abs(s.upper[j] - r.upper[j]) / size);
+    }, 0),
     rss: rel(s.rss, r.rss),
     rSquared: rel(s.rSquared, r.rSquared),
   };
@@ -115,3 +121,44 @@ export function worst(s: ColumnFitResult, r: Numbers): Record<string, number> {
 export function spec(yName: string, xNames: string[], over: Partial<ColumnFitSpec> = {}): ColumnFitSpec {
   return { yName, xNames, form: "log-log", zeros: "stop", se: "HC3", level: 0.95, intercept: true, ...over };
 }
+
+/** |d log p / d log x| of p = f(x), by central differences: how much p magnifies its statistic's last bits. */
+export function pCondition(f: (x: number) => number, x: number): number {
+  const h = 1e-5;
+  const a = f(x * (1 + h));
+  const b = f(x * (1 - h));
+  return a > 0 && b > 0 ? Math.abs(Math.log(a) - Math.log(b)) / (2 * h) : Infinity;
+}
+
+/**
+ * Asserts that a split fit agrees with the single-thread numbers: coefficients, RSS, R² and the
+ * Breusch–Pagan statistic to 1e-12 relative; standard errors, t and intervals to 1e-12 or κ·ε where
+ * the design's condition κ makes that larger (two backward-stable factorisations differ there by
+ * about κ·ε: Higham 2002, Accuracy and Stability of Numerical Algorithms, ch. 19–20); p-values to
+ * that tolerance times their condition number. Records the worst differences in `record`.
+ */
+export function agree(s: ColumnFitResult, one: Numbers, record: Record<string, number> = {}): void {
+  const w = worst(s, one);
+  const kappaEps = Math.max(1e-12, s.condition * Number.EPSILON);
+  // Breusch–Pagan of a fit that needed refinement (or has κ ≥ 1e6) comes from its auxiliary
+  // regression on the same ill-conditioned columns, solved once without refinement in both engines
+  // (as R's lm.fit): its RSS carries about κ·ε of rounding, and the statistic n·R²_aux magnifies
+  // that by 1/R²_aux. Elsewhere it reuses the fit's factor and agrees to 1e-12.
+  const auxNoise = s.breuschPagan && (s.refined || s.condition >= 1e6) ? kappaEps / (s.breuschPagan.statistic / s.n) : 0;
+  const limits: Record<string, number> = { coefficients: 1e-12, rss: 1e-12, rSquared: 1e-12, bpStatistic: Math.max(1e-12, auxNoise), standardErrors: kappaEps, t: kappaEps, intervals: kappaEps };
+  for (const [q, lim] of Object.entries(limits)) {
+    if (w[q] === undefined) continue;
+    record[q] = Math.max(record[q] ?? 0, w[q]);
+    expect({ q, v: w[q], ok: w[q] <= lim }).toEqual({ q, v: w[q], ok: true });
+  }
+  s.p.forEach((pv, j) => {
+    const k = pCondition((t) => studentTwoSided(t, s.dfResid), Math.abs(one.t[j]));
+    expect(rel(pv, one.p[j])).toBeLessThanOrEqual(Math.max(1e-12, kappaEps) * Math.max(1, k));
+  });
+  if (one.bp) {
+    expect(s.breuschPagan).not.toBeNull();
+    const k = pCondition((v) => chiSquareSf(v, s.breuschPagan!.df), one.bp.statistic);
+    expect(rel(s.breuschPagan!.p, one.bp.p)).toBeLessThanOrEqual(Math.max(1e-12, auxNoise) * Math.max(1, k));
+  } else expect(s.breuschPagan).toBeNull();
+}
+
