@@ -270,12 +270,20 @@ describe("the big-fit session", () => {
     }
   });
 
-  it("a second fit of the same reading is refused with a sentence (the parts transform their rows as they fit)", async () => {
-    const session = await openBigFit({ rows: N, workers: 0 });
-    for (const c of chunks(1000)) await session.append(c);
-    expect((await session.fit(SPEC)).ok).toBe(true);
-    expect(await session.fit({ ...SPEC, se: "HC1" })).toMatchObject({ ok: false, cancelled: false, message: expect.stringMatching(/fitted once already.*read the range again/) });
-    session.close();
+  it("a second fit of one reading: another se= gives the engine's numbers; another form is refused with a sentence", async () => {
+    const session = await openBigFit({ rows: N, workers: 2, spawn: nodeSpawner() });
+    try {
+      for (const c of chunks(1000)) await session.append(c);
+      expect((await session.fit(SPEC)).ok).toBe(true);
+      const hc1 = await session.fit({ ...SPEC, se: "HC1", level: 0.9 });
+      if (!hc1.ok) throw new Error(hc1.message);
+      const local = localExecutor(2);
+      await appendColumns(local, y.slice(), x.map((c) => c.slice()), equalShares(N, 2), 1000);
+      expect(worstDifference(hc1.value, await columnFit(local, { ...SPEC, se: "HC1", level: 0.9 }))).toBeLessThanOrEqual(1e-12);
+      expect(await session.fit({ ...SPEC, form: "log-level" })).toMatchObject({ ok: false, cancelled: false, message: expect.stringMatching(/another form.*read the range again/) });
+    } finally {
+      session.close();
+    }
   });
 
   describe("bad input", () => {
