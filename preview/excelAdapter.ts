@@ -94,8 +94,18 @@ export class RangeProxy extends Proxy {
     if (!a || !sheet) return;
     this.data.address = addressText(sheet.name, a);
     const need = (p: string) => this.wanted.has(p) || this.wanted.has("*");
-    if (need("values") || need("valueTypes") || need("formulas")) {
-      if ((a.bottom - a.top + 1) * (a.right - a.left + 1) > 5_000_000) throw new Error("The request payload size has exceeded the limit.");
+    const wantValues = need("values");
+    const wantTypes = need("valueTypes");
+    const wantFormulas = need("formulas");
+    if (wantValues || wantTypes || wantFormulas) {
+      const cells = (a.bottom - a.top + 1) * (a.right - a.left + 1);
+      if (cells > 5_000_000) throw new Error("The request payload size has exceeded the limit.");
+      // The response's worst case: a double as JSON text takes up to 24 bytes with its separator, a
+      // value type about 10, a formula as long as its text (numbers: as their value).
+      const reads = this.context.book.reads;
+      reads.requests++;
+      reads.largestCells = Math.max(reads.largestCells, cells);
+      reads.largestBytes = Math.max(reads.largestBytes, cells * ((wantValues ? 24 : 0) + (wantTypes ? 10 : 0) + (wantFormulas ? 24 : 0)));
       const values: unknown[][] = [];
       const types: string[][] = [];
       const formulas: unknown[][] = [];
@@ -116,17 +126,26 @@ export class RangeProxy extends Proxy {
             vr.push(v);
             tr.push(typeof v === "number" ? "Double" : typeof v === "boolean" ? "Boolean" : "String");
           }
-          fr.push(cell && cell.input !== null ? (cell.input.startsWith("=") ? cell.input : v) : "");
+          if (wantFormulas) fr.push(cell && cell.input !== null ? (cell.input.startsWith("=") ? cell.input : v) : "");
         }
-        values.push(vr);
-        types.push(tr);
-        formulas.push(fr);
+        if (wantValues) values.push(vr);
+        if (wantTypes) types.push(tr);
+        if (wantFormulas) formulas.push(fr);
       }
-      this.data.values = values;
-      this.data.valueTypes = types;
-      this.data.formulas = formulas;
+      if (wantValues) this.data.values = values;
+      if (wantTypes) this.data.valueTypes = types;
+      if (wantFormulas) this.data.formulas = formulas;
     }
   }
+}
+
+/** What a worksheet change handler receives (the part the pane reads). */
+export interface ChangeEvent {
+  type: "WorksheetChanged";
+  address: string;
+  worksheetId: string;
+  changeType: string;
+  source: "Local";
 }
 
 export class SheetProxy extends Proxy {
@@ -143,6 +162,31 @@ export class SheetProxy extends Proxy {
     const p = parseAddress(address);
     if (!p.ok) throw new Error(`getRange: ${p.message}`);
     return new RangeProxy(this.context, this, { ...p.value, sheet: null });
+  }
+  /**
+   * The worksheet's change event: handlers run after cells of this sheet are typed or cleared (not
+   * after recalculation). add() registers at the next sync; remove() on its result unregisters.
+   */
+  get onChanged(): { add(handler: (e: ChangeEvent) => Promise<unknown> | void): { remove(): void; context: PreviewContext } } {
+    const ctx = this.context;
+    const target = this.sheet;
+    return {
+      add(handler) {
+        let off: (() => void) | null = null;
+        ctx.queueWrite(() => {
+          off = ctx.book.onEdit((sheet, area) => {
+            if (sheet !== target()) return;
+            void handler({ type: "WorksheetChanged", address: formatAddress({ ...area, sheet: null }), worksheetId: sheet.name, changeType: "RangeEdited", source: "Local" });
+          });
+        });
+        return {
+          context: ctx,
+          remove() {
+            ctx.queueWrite(() => off?.());
+          },
+        };
+      },
+    };
   }
   getUsedRangeOrNullObject(valuesOnly?: boolean): RangeProxy {
     void valuesOnly;
