@@ -2,7 +2,8 @@
  * Build: dist/functions.js (the custom functions bundle, registers every function through the global
  * CustomFunctions.associate and touches no DOM while loading), dist/functions.json (generated from the
  * JSDoc by the metadata plugin, never written by hand), dist/taskpane.html (+ taskpane.js, the shared
- * runtime page) and dist/manifest.xml.
+ * runtime page), dist/fitWorker.js (the fit worker: the engine modules only, no cell functions, no
+ * host registration, no DOM; started by the pane with new Worker) and dist/manifest.xml.
  */
 const path = require("path");
 const webpack = require("webpack");
@@ -37,6 +38,8 @@ module.exports = (env, argv) => ({
     // The preview workbook (not part of the add-in): host stand-ins first, the sheet view last.
     "office-stub": "./preview/officeStub.ts",
     preview: "./preview/preview.ts",
+    // The fit worker: a page of its own, listed in no HtmlWebpackPlugin's chunks.
+    fitWorker: "./functions/parallel/fitWorker.ts",
   },
   output: { path: path.resolve(__dirname, "dist"), filename: "[name].js", clean: true },
   resolve: { extensions: [".ts", ".js"] },

@@ -21,6 +21,8 @@ const TYPES = {
   ".svg": "image/svg+xml",
   ".txt": "text/plain; charset=utf-8",
   ".map": "application/json; charset=utf-8",
+  // WebAssembly.instantiateStreaming accepts only this type
+  ".wasm": "application/wasm",
 };
 
 /** A plain-text answer with a status code (no body for HEAD). */

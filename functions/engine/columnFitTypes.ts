@@ -17,6 +17,8 @@ export interface ColumnFitSpec {
   /** Interval level, 0.95 unless the analyst chose another. */
   level: number;
   intercept: boolean;
+  /** Sheet row of the first data row, for the rows named in messages (default 1: data rows counted from 1). */
+  firstRow?: number;
 }
 
 /**
@@ -28,6 +30,12 @@ export interface ColumnChunk {
   rowStart: number;
   y: Float64Array;
   x: Float64Array[];
+  /**
+   * Optional, per row: why the row is not usable as read (0 usable, 1 a blank cell, 2 or more text,
+   * a logical, an error or a non-finite number; the codes of intake.ts CellIssue). Without it, a row
+   * with NaN counts as blank and one with ±Infinity as not a number.
+   */
+  issues?: Uint8Array;
 }
 
 /** A serialisable step applied to one part's rows where the part lives (a worker or this thread). */

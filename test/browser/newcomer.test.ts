@@ -470,7 +470,10 @@ describe("the pane page without the host, and the pages' protections (item 10)",
     await p.waitForFunction(() => (window as any).ElxPreview && (window as any).ElxPane, null, { timeout: 20000 });
     const policy = await p.evaluate(() => (document.querySelector('meta[http-equiv="Content-Security-Policy"]') as HTMLMetaElement | null)?.content ?? "");
     expect(policy).toMatch(/default-src 'none'/);
-    expect(policy).toMatch(/script-src 'self';/);
+    // WebAssembly may be compiled ('wasm-unsafe-eval' does not allow eval of script text); workers from this origin only
+    expect(policy).toMatch(/script-src 'self' 'wasm-unsafe-eval';/);
+    expect(policy).toMatch(/worker-src 'self';/);
+    expect(policy).not.toMatch(/'unsafe-eval'/);
     const blocked = await p.evaluate(async () => {
       const seen: string[] = [];
       document.addEventListener("securitypolicyviolation", (e) => seen.push(e.violatedDirective));
@@ -485,7 +488,9 @@ describe("the pane page without the host, and the pages' protections (item 10)",
     await p.close();
     const pane = fs.readFileSync(path.join(DIST, "taskpane.html"), "utf8");
     const panePolicy = /http-equiv="?Content-Security-Policy"?\s+content="([^"]+)"/.exec(pane)?.[1] ?? "";
-    expect(panePolicy).toMatch(/script-src 'self' https:\/\/appsforoffice\.microsoft\.com/);
+    expect(panePolicy).toMatch(/script-src 'self' 'wasm-unsafe-eval' https:\/\/appsforoffice\.microsoft\.com/);
+    expect(panePolicy).toMatch(/worker-src 'self';/);
+    expect(panePolicy).not.toMatch(/'unsafe-eval'/);
     expect(panePolicy).not.toMatch(/script-src[^;]*'unsafe-inline'/);
     expect(panePolicy).toMatch(/object-src 'none'/);
   });

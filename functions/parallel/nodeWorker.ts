@@ -1,0 +1,55 @@
+/**
+ * Fit workers as Node worker threads running the built browser bundle dist/fitWorker.js unchanged:
+ * a few lines of adapter give the thread the Web Worker's `self`, `postMessage` and
+ * `addEventListener("message")`, then load the bundle. Used by the Jest tests and the benchmark
+ * (scripts/bench-workers.js) to run the real multi-threaded path in Node. Never bundled for the page.
+ */
+import * as os from "os";
+import * as path from "path";
+import { Worker } from "worker_threads";
+import { machineWorkers, type SpawnWorker, type WorkerPort } from "./pool";
+
+/** dist/fitWorker.js of this repository. */
+export const WORKER_BUNDLE = path.resolve(__dirname, "../../dist/fitWorker.js");
+
+/** What runs first in the thread: the Web Worker's global names over the thread's message port. */
+const ADAPTER = `
+const { parentPort, workerData } = require("worker_threads");
+const listeners = [];
+globalThis.self = globalThis;
+globalThis.postMessage = (message, transfer) => parentPort.postMessage(message, transfer);
+globalThis.addEventListener = (type, fn) => { if (type === "message") listeners.push(fn); };
+parentPort.on("message", (data) => { for (const fn of listeners) fn({ data }); });
+require(workerData.bundle);
+`;
+
+/** The machine's cores as Node sees them, capped as for the page. */
+export function nodeMachineWorkers(): number {
+  const cores = typeof (os as { availableParallelism?: () => number }).availableParallelism === "function" ? (os as { availableParallelism: () => number }).availableParallelism() : os.cpus().length;
+  return machineWorkers(cores);
+}
+
+/** Worker threads loading `bundle` (default dist/fitWorker.js; run `npm run build` first). */
+export function nodeSpawner(bundle = WORKER_BUNDLE): SpawnWorker {
+  return () => {
+    const worker = new Worker(ADAPTER, { eval: true, workerData: { bundle } });
+    let onMessage: (data: unknown) => void = () => undefined;
+    let onError: (message: string) => void = () => undefined;
+    worker.on("message", (data) => onMessage(data));
+    worker.on("error", (e) => onError(e instanceof Error ? e.message : String(e)));
+    worker.on("messageerror", () => onError("a message from the worker could not be read"));
+    worker.on("exit", (code) => onError(`the worker thread ended (exit code ${code})`));
+    const port: WorkerPort = {
+      post: (m, t) => worker.postMessage(m, t),
+      listen: (m, e) => {
+        onMessage = m;
+        onError = e;
+      },
+      terminate: () => {
+        onError = () => undefined;
+        void worker.terminate();
+      },
+    };
+    return port;
+  };
+}
