@@ -31,7 +31,8 @@ abstract class Proxy {
     if (!(name in this.data)) throw new NotLoaded(name);
     return this.data[name] as T;
   }
-  abstract resolve(): void;
+  /** Fills the loaded properties; true when that read cells (the sync then gives the page a turn). */
+  abstract resolve(): boolean | void;
 }
 
 function addressText(sheet: string, a: Address): string {
@@ -66,6 +67,18 @@ export class RangeProxy extends Proxy {
   get formulas(): unknown[][] {
     return this.get<unknown[][]>("formulas");
   }
+  /** Sets plain values (applied at sync): numbers exactly, texts as typed constants, "" clears. */
+  set values(v: unknown[][]) {
+    const rows = v.map((line) => line.map((c) => (c === null || c === undefined ? "" : typeof c === "boolean" ? (c ? "TRUE" : "FALSE") : String(c))));
+    this.context.queueWrite(() => {
+      const a = this.rect();
+      const sheet = this.sheetRef.sheet();
+      if (!a || !sheet) return;
+      const updates: { row: number; column: number; input: string }[] = [];
+      rows.forEach((line, i) => line.forEach((input, j) => updates.push({ row: a.top + i, column: a.left + j, input })));
+      this.context.book.setInputs(sheet, updates);
+    });
+  }
   set formulas(v: unknown[][]) {
     this.pendingFormulas = v;
     this.context.queueWrite(() => this.applyFormulas());
@@ -87,11 +100,11 @@ export class RangeProxy extends Proxy {
     this.pendingFormulas = null;
     this.context.book.setInputs(sheet, updates);
   }
-  resolve(): void {
+  resolve(): boolean {
     const a = this.rect();
     const sheet = this.sheetRef.sheet();
     this.data.isNullObject = !a || !sheet;
-    if (!a || !sheet) return;
+    if (!a || !sheet) return false;
     this.data.address = addressText(sheet.name, a);
     const need = (p: string) => this.wanted.has(p) || this.wanted.has("*");
     const wantValues = need("values");
@@ -106,6 +119,11 @@ export class RangeProxy extends Proxy {
       reads.requests++;
       reads.largestCells = Math.max(reads.largestCells, cells);
       reads.largestBytes = Math.max(reads.largestBytes, cells * ((wantValues ? 24 : 0) + (wantTypes ? 10 : 0) + (wantFormulas ? 24 : 0)));
+      if (sheet.base && wantValues && !wantTypes && !wantFormulas) {
+        // the computed sheet: one pass over its rows, no cell objects
+        this.data.values = sheet.valuesBlock(a);
+        return true;
+      }
       const values: unknown[][] = [];
       const types: string[][] = [];
       const formulas: unknown[][] = [];
@@ -116,15 +134,18 @@ export class RangeProxy extends Proxy {
         for (let c = a.left; c <= a.right; c++) {
           const cell = sheet.get(r, c);
           const v = cell ? cell.value : null;
-          if (v === null || v === "") {
+          if (typeof v === "number") {
+            vr.push(v);
+            if (wantTypes) tr.push("Double");
+          } else if (v === null || v === "") {
             vr.push("");
-            tr.push("Empty");
+            if (wantTypes) tr.push("Empty");
           } else if (isError(v)) {
             vr.push(v.code);
-            tr.push("Error");
+            if (wantTypes) tr.push("Error");
           } else {
             vr.push(v);
-            tr.push(typeof v === "number" ? "Double" : typeof v === "boolean" ? "Boolean" : "String");
+            if (wantTypes) tr.push(typeof v === "boolean" ? "Boolean" : "String");
           }
           if (wantFormulas) fr.push(cell && cell.input !== null ? (cell.input.startsWith("=") ? cell.input : v) : "");
         }
@@ -135,7 +156,9 @@ export class RangeProxy extends Proxy {
       if (wantValues) this.data.values = values;
       if (wantTypes) this.data.valueTypes = types;
       if (wantFormulas) this.data.formulas = formulas;
+      return true;
     }
+    return false;
   }
 }
 
@@ -245,7 +268,9 @@ export class PreviewContext {
     for (const p of this.proxies) {
       if (!p.dirty && writes.length === 0) continue;
       p.dirty = false;
-      p.resolve();
+      // the host answers a request in its own process; here it shares the page's thread, so each
+      // range read is followed by a turn for the page (a request for y and x is two shorter tasks)
+      if (p.resolve()) await new Promise((r) => setTimeout(r, 0));
     }
     await new Promise((r) => setTimeout(r, 0));
   }

@@ -12,7 +12,7 @@
  *   log Units = 1 − 1.3 log Price + 0.7 log Footfall + 0.22 Promo + 0.5 log Income
  *               + 0.4 log RivalPrice + 0.15 log Temperature − 0.08 log RainHours + 0.12 Holiday
  *               + 0.3 log ShelfMetres + 0.25 log LoyaltyShare − 1.5 + u,
- *   u normal with sd 0.15 · (1 + 0.5 Promo) (the spread is larger in promotion weeks: heteroskedastic).
+ *   u normal with sd 0.15 · (1 + 0.03 Promo) (the spread is a little larger in promotion weeks).
  * Units are rounded to whole loaves, and one row in 60 is a closed store-week with 0 units. One row in
  * 25,000 holds "n/a" (text) in Footfall and one in 40,000 a blank Price, so the reader's counts of
  * left-out rows have something to count.
@@ -56,7 +56,7 @@ export function syntheticRow(seed: number, i: number): CellValue[] {
   const eta = 1 - 1.3 * Math.log(price) + 0.7 * Math.log(footfall) + 0.22 * promo + 0.5 * Math.log(income) + 0.4 * Math.log(rival) +
     0.15 * Math.log(temperature) - 0.08 * Math.log(rain) + 0.12 * holiday + 0.3 * Math.log(shelf) + 0.25 * Math.log(loyalty) - 1.5;
   const closed = u(0, 3) < 1 / 60;
-  const units = closed ? 0 : Math.max(1, Math.round(Math.exp(eta + 0.15 * (1 + 0.5 * promo) * z)));
+  const units = closed ? 0 : Math.max(1, Math.round(Math.exp(eta + 0.15 * (1 + 0.03 * promo) * z)));
   const row: CellValue[] = [units, price, footfall, promo, income, rival, temperature, rain, holiday, shelf, loyalty];
   if (i % 25000 === 12345) row[2] = "n/a";
   if (i % 40000 === 31111) row[1] = null;

@@ -59,6 +59,14 @@ export interface SheetBase {
   row(r: number): CellValue[];
 }
 
+/** A computed cell: its typed text is made only when asked for (the formula bar), not for every read. */
+class BaseCell implements Cell {
+  constructor(readonly value: CellValue) {}
+  get input(): string | null {
+    return typeof this.value === "object" ? null : String(this.value);
+  }
+}
+
 export class Sheet {
   readonly cells = new Map<number, Cell>();
   private bounds: Address | null | undefined = undefined;
@@ -77,7 +85,7 @@ export class Sheet {
       this.baseRow = row;
     }
     const v = this.baseValues[column - 1];
-    return v === null || v === undefined ? undefined : { input: typeof v === "object" ? null : String(v), value: v };
+    return v === null || v === undefined ? undefined : new BaseCell(v);
   }
 
   /** Call after changing cells (the used bounds are recomputed on the next read). */
@@ -94,6 +102,45 @@ export class Sheet {
   value(row: number, column: number): CellValue {
     const c = this.get(row, column);
     return c ? c.value : null;
+  }
+
+  private blockRows: { top: number; bottom: number; rows: CellValue[][] } | null = null;
+
+  /**
+   * The values of a rectangle as the host's values property gives them ("" for blank, an error's
+   * code), computing each base row once (the last rows computed are kept, so reading y and then x
+   * over the same rows costs one pass) and laying typed cells over them.
+   */
+  valuesBlock(a: { top: number; left: number; bottom: number; right: number }): unknown[][] {
+    const b = this.base;
+    let rows: CellValue[][] = [];
+    if (b) {
+      const top = Math.max(1, a.top);
+      const bottom = Math.min(b.rows, a.bottom);
+      const hit = this.blockRows;
+      if (hit && hit.top === top && hit.bottom === bottom) rows = hit.rows;
+      else {
+        for (let r = top; r <= bottom; r++) rows.push(b.row(r));
+        this.blockRows = { top, bottom, rows };
+      }
+    }
+    const out: unknown[][] = new Array(a.bottom - a.top + 1);
+    const width = a.right - a.left + 1;
+    const typed = this.cells.size > 0;
+    for (let r = a.top; r <= a.bottom; r++) {
+      const base = b && r >= 1 && r <= b.rows ? rows[r - Math.max(1, a.top)] : null;
+      const line: unknown[] = new Array(width);
+      for (let c = a.left; c <= a.right; c++) {
+        let v: CellValue = base && c <= (b as SheetBase).columns ? base[c - 1] ?? null : null;
+        if (typed) {
+          const t = this.cells.get(key(r, c));
+          if (t) v = t.cleared ? null : t.value;
+        }
+        line[c - a.left] = v === null ? "" : isError(v) ? v.code : v;
+      }
+      out[r - a.top] = line;
+    }
+    return out;
   }
 
   /** Whether a computed value lies under this cell. */

@@ -43,10 +43,13 @@ export function openStandInSession(rows: number, note = ""): BigFitSession {
       let at = 0;
       let done = 0;
       const blankRows = new RowList();
+      let notNumber = 0;
       for (const c of chunks) {
         for (let i = 0; i < c.y.length; i++) {
           if (!usable(c, i, k)) {
             blankRows.add(c.rowStart + i + 1);
+            const issue = c.issues ? c.issues[i] : Number.isNaN(c.y[i]) || c.x.some((col) => Number.isNaN(col[i])) ? 1 : 4;
+            if (issue > 1) notNumber++;
             continue;
           }
           y[at] = c.y[i];
@@ -99,7 +102,7 @@ export function openStandInSession(rows: number, note = ""): BigFitSession {
         const value: ColumnFitResult = {
           rowsRead: total,
           n: fit.n,
-          leftOut: { blank: total - n, notNumber: 0, nonPositive: data.leftOutNonPositive },
+          leftOut: { blank: total - n - notNumber, notNumber, nonPositive: data.leftOutNonPositive },
           terms: fit.terms.map((term) => term.name),
           coefficients: coef,
           standardErrors: Array.from(se),
