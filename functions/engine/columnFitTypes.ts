@@ -81,9 +81,18 @@ export interface ColumnFitResult {
   rSquared: number;
   /** Studentized Breusch–Pagan on the fit's own regressors, or null when it cannot be computed. */
   breuschPagan: { statistic: number; df: number; p: number } | null;
+  /** Why the Breusch–Pagan test could not be computed, in the analyst's words (when breuschPagan is null). */
+  breuschPaganNote?: string;
   /** At most a few thousand evenly spaced rows' fitted values and residuals, for the picture. */
+  /** `rows`: each sampled row's 0-based index among the data rows (as ColumnChunk.rowStart counts them). */
   sample: { fitted: Float64Array; residuals: Float64Array; rows: Int32Array };
   condition: number;
   refined: boolean;
   parts: number;
+  /**
+   * Set when the fit is exact (every residual zero up to rounding): why, in the analyst's words. t
+   * and p are then NaN, which must not be shown: show this reason in their place (as ELX.FIT shows
+   * #N/A there); Breusch–Pagan is null.
+   */
+  exact?: string;
 }

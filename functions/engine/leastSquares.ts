@@ -67,7 +67,7 @@ export interface Dependency {
   on: number[];
 }
 
-function norm2(a: Float64Array): number {
+export function norm2(a: Float64Array): number {
   let s = 0;
   for (let i = 0; i < a.length; i++) s += a[i] * a[i];
   if (s > 1e-280 && s < 1e280) return Math.sqrt(s);
@@ -83,7 +83,7 @@ function norm2(a: Float64Array): number {
 }
 
 /** Reflectors of one block, kept only when the solution is to be refined. */
-interface BlockReflectors {
+export interface BlockReflectors {
   start: number;
   rows: number;
   tau: Float64Array;
@@ -95,7 +95,7 @@ interface BlockReflectors {
  * Row-blocked Householder QR of the scaled design [X/scale | y].
  * T (row-major (k+1)×(k+1)) receives R in its leading k×k block and Qᵀy in its column k.
  */
-function blockedQr(X: Float64Array[], y: Float64Array, inv: Float64Array, keep: BlockReflectors[] | null): Float64Array {
+export function blockedQr(X: Float64Array[], y: Float64Array, inv: Float64Array, keep: BlockReflectors[] | null): Float64Array {
   const k = X.length;
   const k1 = k + 1;
   const n = y.length;
@@ -223,7 +223,7 @@ export function leastSquares(X: Float64Array[], y: Float64Array, refineWhenNeede
 }
 
 /** κ₁(R) = ‖R‖₁‖R⁻¹‖₁ of the column-scaled design. */
-function conditionEstimate(R: Float64Array, Rinv: Float64Array, k: number): number {
+export function conditionEstimate(R: Float64Array, Rinv: Float64Array, k: number): number {
   let a = 0;
   let b = 0;
   for (let j = 0; j < k; j++) {
@@ -241,7 +241,7 @@ function conditionEstimate(R: Float64Array, Rinv: Float64Array, k: number): numb
 
 // Error-free transformations for double-double residuals (Dekker 1971; Ogita, Rump and Oishi 2005).
 const SPLIT = 134217729; // 2^27 + 1
-function twoProdErr(a: number, b: number, p: number): number {
+export function twoProdErr(a: number, b: number, p: number): number {
   let t = SPLIT * a;
   const ah = t - (t - a);
   const al = a - ah;
@@ -252,7 +252,7 @@ function twoProdErr(a: number, b: number, p: number): number {
 }
 
 /** out_i = y_i − r_i − Σ_j b_j x_ij for every row, accumulated in double-double. */
-function augmentedResidual(X: Float64Array[], y: Float64Array, r: Float64Array | null, coef: Float64Array, out: Float64Array): void {
+export function augmentedResidual(X: Float64Array[], y: Float64Array, r: Float64Array | null, coef: Float64Array, out: Float64Array): void {
   const n = y.length;
   const k = X.length;
   for (let i = 0; i < n; i++) {
@@ -296,7 +296,7 @@ function dot2(a: Float64Array, b: Float64Array): number {
  * Applies the orthogonal factor of the blocked QR to the (k + n)-vector [top; v]: Pᵀ (forward) or P.
  * The blocked QR reduces [0; X] to [R; 0], so P acts on k leading "triangle" rows and the n data rows.
  */
-function applyQ(blocks: BlockReflectors[], k: number, top: Float64Array, v: Float64Array, forward: boolean): void {
+export function applyQ(blocks: BlockReflectors[], k: number, top: Float64Array, v: Float64Array, forward: boolean): void {
   const nb = blocks.length;
   for (let s = 0; s < nb; s++) {
     const blk = blocks[forward ? s : nb - 1 - s];
@@ -380,7 +380,7 @@ export function upperInverse(R: Float64Array, k: number): Float64Array {
  * Which earlier columns column j depends on: with unit columns, column j ≈ Σ_i c_i col_i where
  * R[0:j,0:j] c = R[0:j, j]; keep the coefficients that matter.
  */
-function dependencyOf(R: Float64Array, k: number, j: number): number[] {
+export function dependencyOf(R: Float64Array, k: number, j: number): number[] {
   const c = new Float64Array(j);
   for (let i = j - 1; i >= 0; i--) {
     let s = R[i * k + j];

@@ -35,6 +35,13 @@ export function unavailable(message: string): never {
 /** How many runs of consecutive rows a RowList keeps; its count stays exact beyond them. */
 const KEEP_RUNS = 1000;
 
+/** A RowList as plain data: runs start…end and the exact number of rows. */
+export interface RowRuns {
+  starts: number[];
+  ends: number[];
+  total: number;
+}
+
 /**
  * Sheet rows in ascending order, kept as runs of consecutive rows (2–469 is one run), with an exact
  * count. At most KEEP_RUNS runs are stored, so a list over a million scattered rows stays small; the
@@ -73,6 +80,34 @@ export class RowList {
       for (let v = this.starts[r]; v <= this.ends[r] && out.length < max; v++) out.push(v);
     }
     return out;
+  }
+
+  /** The list as plain data (runs and exact count), to send between threads; see fromRuns. */
+  toRuns(): RowRuns {
+    return { starts: this.starts.slice(), ends: this.ends.slice(), total: this.total };
+  }
+
+  /**
+   * The union of lists sent as runs (each over its own rows: no row in two of them), in ascending
+   * order, adjacent runs joined, at most KEEP_RUNS runs kept; the count is the exact sum.
+   */
+  static fromRuns(lists: readonly RowRuns[]): RowList {
+    const l = new RowList();
+    const runs: [number, number][] = [];
+    for (const r of lists) {
+      for (let i = 0; i < r.starts.length; i++) runs.push([r.starts[i], r.ends[i]]);
+      l.total += r.total;
+    }
+    runs.sort((a, b) => a[0] - b[0]);
+    for (const [a, b] of runs) {
+      const n = l.ends.length;
+      if (n > 0 && l.ends[n - 1] >= a - 1) l.ends[n - 1] = Math.max(l.ends[n - 1], b);
+      else if (n < KEEP_RUNS) {
+        l.starts.push(a);
+        l.ends.push(b);
+      }
+    }
+    return l;
   }
 
   /** A list of rows given in any order (duplicates counted once). */

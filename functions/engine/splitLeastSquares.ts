@@ -1,39 +1,814 @@
 /**
- * The per-part steps of a least-squares fit split by rows (see columnFit.ts for the driver).
- * Skeleton: the op kinds and their answers; bodies follow.
+ * Least squares split by rows: the steps each part applies to the rows it holds, and the merge of the
+ * parts' triangles. The driver (columnFit.ts) sends the steps; a part lives in a Web Worker or in this
+ * thread, so every step is a plain, structured-cloneable object (PartOp) and every answer carries only
+ * numbers, plain objects and typed arrays.
+ *
+ * The method is the tall-skinny QR (Demmel, Grigori, Hoemmen and Langou 2012, "Communication-optimal
+ * parallel and sequential QR and LU factorizations", SIAM J. Sci. Comput. 34(1)): part p factors its
+ * rows [X_p/scale | y_p] by the same row-blocked Householder QR as the single-thread engine
+ * (leastSquares.ts blockedQr, starting from a zero triangle) into T_p = [R_p | Qᵀ_p y_p]; the merge
+ * stacks the P triangles and reduces them by Householder reflections, taking T_0 as the running
+ * triangle and the other tops as k-row blocks (the sequential TSQR step again, so one part gives the
+ * single-thread factor bit for bit). Every step is orthogonal, so the merged R is the R of a backward
+ * stable Householder QR of the whole design, without forming XᵀX.
+ *
+ * Refinement across parts (Björck 1967, as leastSquares.ts refine): the stacked problem is
+ * [0; X] with P·k zero top rows (k per part) above the data rows. Its orthogonal factor is
+ * M·diag(P_0 … P_{P−1}): each part applies its own reflectors to its k top entries and its rows
+ * (applyQ on the part), the merge applies its reflectors to the P stacked tops (applyQ in the driver).
+ * The residual's top entries are kept by the driver per part; the data rows' residuals stay in the part.
+ *
+ * Second passes (residuals, R², leverage, the HC meat, the Breusch–Pagan sums) are sums over rows:
+ * each part returns its partial sums and the driver adds them in part order.
  */
 import type { ColumnChunk, PartOp } from "./columnFitTypes";
+import { applyQ, augmentedResidual, blockedQr, twoProdErr, type BlockReflectors, type QrFit } from "./leastSquares";
+import { BLOCK, forEachQBlock, LEVERAGE_TOL } from "./covariance";
+import { axpyBlock, dotBlock } from "./blocks";
+import { RowList, type RowRuns } from "./problems";
+
+/** Codes of ColumnChunk.issues and of a part's rows: usable, blank, not a number. */
+const USABLE = 0;
+const BLANK = 1;
+const NOT_NUMBER = 2;
+
+/** One design held by a part: its columns, its response, and what the steps left there. */
+interface PartDesign {
+  X: Float64Array[];
+  y: Float64Array;
+  blocks: BlockReflectors[] | null;
+  resid: Float64Array | null;
+  /** Refinement: the running residual r and the correction f of the data rows. */
+  r: Float64Array | null;
+  f: Float64Array | null;
+}
 
 /** The state of one part's rows where the part lives (a worker or this thread). */
 export interface PartState {
   /** Rows appended (all of them, usable or not). */
   rows: number;
-  [field: string]: unknown;
+  /** x columns (fixed by the first chunk; −1 before it). */
+  kx: number;
+  /** Storage of the rows as appended: raw y, x, issue code and data row index (capacity ≥ rows). */
+  rawY: Float64Array;
+  rawX: Float64Array[];
+  issue: Uint8Array;
+  index: Int32Array;
+  /** After "prepare": the usable rows, transformed (views of the storage), and their data row indices. */
+  n: number;
+  y: Float64Array | null;
+  x: Float64Array[] | null;
+  rowIndex: Int32Array | null;
+  designs: Record<string, PartDesign>;
 }
 
 /** A new, empty part. */
 export function newPartState(): PartState {
-  return { rows: 0 };
+  return {
+    rows: 0, kx: -1, rawY: new Float64Array(0), rawX: [], issue: new Uint8Array(0), index: new Int32Array(0),
+    n: 0, y: null, x: null, rowIndex: null, designs: {},
+  };
 }
 
-/** The op kinds a part understands. */
-export type SplitOpKind = "append" | "scan" | "prepare" | "norms" | "factor" | "passes" | "refine" | "auxiliary" | "clear";
+/** The step kinds a part understands (see the answer types below). */
+export type SplitOpKind = "append" | "scan" | "prepare" | "norms" | "factor" | "residuals" | "refineStart" | "refineStep" | "refineApply" | "center" | "passes" | "bpSolve" | "auxDesign" | "auxDrop" | "clear";
 
-/** What applyPartOp gives back: the answer (structured-cloneable) and the buffers to move with it. */
+/** What applyPartOp gives back: the answer (structured-cloneable) and the buffers that may move with it. */
 export interface PartAnswer {
   answer: unknown;
   transfer?: ArrayBuffer[];
 }
 
-/** Appends a chunk's rows to a part (its buffers are copied into the part's storage). */
+/** The buffers of a chunk, to move with an append step instead of copying them. */
+export function chunkBuffers(chunk: ColumnChunk): ArrayBuffer[] {
+  const out = new Set<ArrayBuffer>();
+  out.add(chunk.y.buffer as ArrayBuffer);
+  for (const c of chunk.x) out.add(c.buffer as ArrayBuffer);
+  if (chunk.issues) out.add(chunk.issues.buffer as ArrayBuffer);
+  return [...out];
+}
+
+/** The step that appends a chunk's rows to a part (the part copies them into its storage). */
 export function appendOp(chunk: ColumnChunk): PartOp {
   return { kind: "append", rowStart: chunk.rowStart, y: chunk.y, x: chunk.x, issues: chunk.issues ?? null };
 }
 
-/** Applies one step to the part it holds. Throws ElxProblem for data the analyst must fix. */
+// ---------------------------------------------------------------------------------------------
+// Answers
+
+/** Counts of a column's values ≤ 0 among the usable rows, with their sheet rows. */
+export interface NonPositiveCounts {
+  zeros: number;
+  negatives: number;
+  zeroRows: RowRuns;
+  negativeRows: RowRuns;
+}
+
+export interface ScanAnswer {
+  usable: number;
+  blank: number;
+  notNumber: number;
+  /** Sheet rows of every row not usable (blank or not a number). */
+  unusableRows: RowRuns;
+  /** Per column (y first, then x): rows whose value is not a number (for the "no usable row" message). */
+  badCells: number[];
+  /** Per x column: every usable value is 0 or 1. */
+  binary: boolean[];
+  /** Per x column: equal to y in every usable row. */
+  sameAsY: boolean[];
+  /** y, then every x column. */
+  nonPositive: NonPositiveCounts[];
+}
+
+export interface PrepareAnswer {
+  n: number;
+  dropped: number;
+  droppedNegative: number;
+  droppedRows: RowRuns;
+  /** Per x column: the first value and whether every value of the part equals it (NaN, true when n = 0). */
+  first: number[];
+  constant: boolean[];
+  /** max|y| and max|x_j| of the transformed rows (for the units of the scaled y and of the tests). */
+  yMax: number;
+  xMax: number[];
+}
+
+export interface NormsAnswer {
+  /** Per column: Σx², max|x|, Σ(x/max|x|)². */
+  sumSq: number[];
+  maxAbs: number[];
+  scaledSumSq: number[];
+}
+
+export interface ResidualsAnswer {
+  n: number;
+  rss: number;
+  maxAbs: number;
+  sumY: number;
+  sumY2: number;
+}
+
+export interface RefineStepAnswer {
+  top: Float64Array;
+  gHi: Float64Array;
+  gLo: Float64Array;
+}
+
+export interface PassesAnswer {
+  /** Σ(y − mean) for the mean's correction. */
+  corr: number;
+  /** The HC meat Σ ω z zᵀ (row-major k×k, upper triangle), or null. */
+  meat: Float64Array | null;
+  /** Sheet rows with leverage 1 under HC2/HC3. */
+  leverageOne: RowRuns;
+  /** Breusch–Pagan on the fit's factor: Σ_i x_ij v_i per column, and Σ v (v = e² in the test's unit). */
+  bpG: Float64Array | null;
+  bpSum: number;
+  sample: { fitted: Float64Array; residuals: Float64Array; rows: Int32Array };
+}
+
+export interface BpSolveAnswer {
+  g: Float64Array;
+  rss: number;
+  tss: number;
+  /** Σ(y − centre)² of the fit's y when a centre was given (else 0). */
+  ss: number;
+}
+
+// ---------------------------------------------------------------------------------------------
+// The steps
+
+function grow(state: PartState, need: number, kx: number): void {
+  if (need <= state.rawY.length) return;
+  const cap = Math.max(need, Math.ceil(state.rawY.length * 1.5), 1024);
+  const y = new Float64Array(cap);
+  y.set(state.rawY.subarray(0, state.rows));
+  const x: Float64Array[] = [];
+  for (let j = 0; j < kx; j++) {
+    const c = new Float64Array(cap);
+    if (state.rawX[j]) c.set(state.rawX[j].subarray(0, state.rows));
+    x.push(c);
+  }
+  const issue = new Uint8Array(cap);
+  issue.set(state.issue.subarray(0, state.rows));
+  const index = new Int32Array(cap);
+  index.set(state.index.subarray(0, state.rows));
+  state.rawY = y;
+  state.rawX = x;
+  state.issue = issue;
+  state.index = index;
+}
+
+function append(state: PartState, op: PartOp): PartAnswer {
+  const y = op.y as Float64Array;
+  const x = op.x as Float64Array[];
+  const issues = op.issues as Uint8Array | null;
+  const rowStart = op.rowStart as number;
+  if (state.y) throw new Error("rows cannot be appended to a part after it was prepared");
+  if (state.kx < 0) state.kx = x.length;
+  if (x.length !== state.kx) throw new Error(`a chunk has ${x.length} x columns, the part ${state.kx}`);
+  const m = y.length;
+  for (const c of x) if (c.length !== m) throw new Error("a chunk's columns differ in length");
+  const at = state.rows;
+  grow(state, at + m, state.kx);
+  state.rawY.set(y, at);
+  for (let j = 0; j < state.kx; j++) state.rawX[j].set(x[j], at);
+  for (let i = 0; i < m; i++) {
+    let code = issues ? (issues[i] === 0 ? USABLE : issues[i] === 1 ? BLANK : NOT_NUMBER) : USABLE;
+    if (code === USABLE) {
+      let v = y[i];
+      if (v - v !== 0) code = v !== v ? BLANK : NOT_NUMBER;
+      for (let j = 0; j < state.kx && code === USABLE; j++) {
+        v = x[j][i];
+        if (v - v !== 0) code = v !== v ? BLANK : NOT_NUMBER;
+      }
+    }
+    state.issue[at + i] = code;
+    state.index[at + i] = rowStart + i;
+  }
+  state.rows += m;
+  return { answer: { rows: state.rows } };
+}
+
+/** A part that never received a chunk still answers for every column (with no rows). */
+function ensureColumns(state: PartState, kx: number): void {
+  if (state.kx < 0) state.kx = kx;
+  if (state.kx !== kx) throw new Error(`the part holds ${state.kx} x columns, the fit names ${kx}`);
+  while (state.rawX.length < kx) state.rawX.push(new Float64Array(state.rawY.length));
+}
+
+function scan(state: PartState, op: PartOp): PartAnswer {
+  const firstRow = op.firstRow as number;
+  const kx = op.kx as number;
+  ensureColumns(state, kx);
+  const rows = state.rows;
+  const unusable = new RowList();
+  const badCells = new Array<number>(kx + 1).fill(0);
+  let usable = 0;
+  let blank = 0;
+  let notNumber = 0;
+  const binary = new Array<boolean>(kx).fill(true);
+  const sameAsY = new Array<boolean>(kx).fill(true);
+  const np = Array.from({ length: kx + 1 }, () => ({ zeros: 0, negatives: 0, zeroRows: new RowList(), negativeRows: new RowList() }));
+  const { rawY, rawX, issue, index } = state;
+  for (let i = 0; i < rows; i++) {
+    const row = firstRow + index[i];
+    if (issue[i] !== USABLE) {
+      if (issue[i] === BLANK) blank++;
+      else notNumber++;
+      unusable.add(row);
+      if (!(rawY[i] - rawY[i] === 0)) badCells[0]++;
+      for (let j = 0; j < kx; j++) if (!(rawX[j][i] - rawX[j][i] === 0)) badCells[j + 1]++;
+      continue;
+    }
+    usable++;
+    const yv = rawY[i];
+    if (yv === 0) {
+      np[0].zeros++;
+      np[0].zeroRows.add(row);
+    } else if (yv < 0) {
+      np[0].negatives++;
+      np[0].negativeRows.add(row);
+    }
+    for (let j = 0; j < kx; j++) {
+      const v = rawX[j][i];
+      if (v !== 0 && v !== 1) binary[j] = false;
+      if (v !== yv) sameAsY[j] = false;
+      const c = np[j + 1];
+      if (v === 0) {
+        c.zeros++;
+        c.zeroRows.add(row);
+      } else if (v < 0) {
+        c.negatives++;
+        c.negativeRows.add(row);
+      }
+    }
+  }
+  const answer: ScanAnswer = {
+    usable, blank, notNumber, unusableRows: unusable.toRuns(), badCells, binary, sameAsY,
+    nonPositive: np.map((c) => ({ zeros: c.zeros, negatives: c.negatives, zeroRows: c.zeroRows.toRuns(), negativeRows: c.negativeRows.toRuns() })),
+  };
+  return { answer };
+}
+
+/**
+ * Keeps the usable rows (and, under zeros=drop, those with every logged value > 0), in place, then
+ * logs y and the logged x columns as the cell path does (Math.log, column by column), and builds the
+ * fit's design: a column of ones when there is an intercept, then the x columns.
+ */
+function prepare(state: PartState, op: PartOp): PartAnswer {
+  const logY = op.logY as boolean;
+  const logged = op.logged as boolean[];
+  const drop = op.drop as boolean;
+  const intercept = op.intercept as boolean;
+  const firstRow = op.firstRow as number;
+  const kx = op.kx as number;
+  // the rows are transformed in place (no second copy of a big range): one fit per part's rows
+  if (state.y) throw new Error("this part's rows were already prepared for a fit: append them again for another fit");
+  ensureColumns(state, kx);
+  const { rawY, rawX, issue, index } = state;
+  const droppedRows = new RowList();
+  let dropped = 0;
+  let droppedNegative = 0;
+  let w = 0;
+  for (let i = 0; i < state.rows; i++) {
+    if (issue[i] !== USABLE) continue;
+    if (drop) {
+      let bad = logY && rawY[i] <= 0;
+      let negative = logY && rawY[i] < 0;
+      for (let j = 0; j < kx; j++) {
+        if (logged[j] && rawX[j][i] <= 0) {
+          bad = true;
+          if (rawX[j][i] < 0) negative = true;
+        }
+      }
+      if (bad) {
+        dropped++;
+        if (negative) droppedNegative++;
+        droppedRows.add(firstRow + index[i]);
+        continue;
+      }
+    }
+    if (w !== i) {
+      rawY[w] = rawY[i];
+      for (let j = 0; j < kx; j++) rawX[j][w] = rawX[j][i];
+      index[w] = index[i];
+    }
+    w++;
+  }
+  const n = w;
+  const y = rawY.subarray(0, n);
+  const x = rawX.slice(0, kx).map((c) => c.subarray(0, n));
+  if (logY) for (let i = 0; i < n; i++) y[i] = Math.log(y[i]);
+  x.forEach((c, j) => {
+    if (logged[j]) for (let i = 0; i < n; i++) c[i] = Math.log(c[i]);
+  });
+  state.n = n;
+  state.y = y;
+  state.x = x;
+  state.rowIndex = index.subarray(0, n);
+  const design: Float64Array[] = [];
+  if (intercept) design.push(new Float64Array(n).fill(1));
+  design.push(...x);
+  state.designs = { fit: { X: design, y, blocks: null, resid: null, r: null, f: null } };
+  const first: number[] = [];
+  const constant: boolean[] = [];
+  const xMax: number[] = [];
+  for (const c of x) {
+    const f = n > 0 ? c[0] : NaN;
+    let i = 1;
+    while (i < n && c[i] === f) i++;
+    first.push(f);
+    constant.push(i >= n);
+    xMax.push(maxAbs(c));
+  }
+  const answer: PrepareAnswer = { n, dropped, droppedNegative, droppedRows: droppedRows.toRuns(), first, constant, yMax: maxAbs(y), xMax };
+  return { answer };
+}
+
+function maxAbs(v: Float64Array): number {
+  let m = 0;
+  for (let i = 0; i < v.length; i++) {
+    const a = Math.abs(v[i]);
+    if (a > m) m = a;
+  }
+  return m;
+}
+
+function designOf(state: PartState, op: PartOp): PartDesign {
+  const d = state.designs[op.design as string];
+  if (!d) throw new Error(`the part holds no design ${String(op.design)}`);
+  return d;
+}
+
+/** Σx² in the order leastSquares.ts norm2 sums it, with max|x| and Σ(x/max|x|)² for the overflow-safe combination. */
+function norms(state: PartState, op: PartOp): PartAnswer {
+  const d = designOf(state, op);
+  const sumSq: number[] = [];
+  const mx: number[] = [];
+  const scaledSumSq: number[] = [];
+  for (const a of d.X) {
+    let s = 0;
+    let m = 0;
+    for (let i = 0; i < a.length; i++) {
+      const v = a[i];
+      s += v * v;
+      const b = Math.abs(v);
+      if (b > m) m = b;
+    }
+    let t = 0;
+    if (m > 0) {
+      for (let i = 0; i < a.length; i++) {
+        const v = a[i] / m;
+        t += v * v;
+      }
+    }
+    sumSq.push(s);
+    mx.push(m);
+    scaledSumSq.push(t);
+  }
+  const answer: NormsAnswer = { sumSq, maxAbs: mx, scaledSumSq };
+  return { answer };
+}
+
+/** The part's row-blocked Householder QR of [X/scale | y/unit] from a zero triangle: T, (k+1)×(k+1). */
+function factor(state: PartState, op: PartOp): PartAnswer {
+  const d = designOf(state, op);
+  const inv = op.inv as Float64Array;
+  const unit = (op.unit as number | undefined) ?? 1;
+  if (unit !== 1 && d === state.designs.fit && d.y === state.y) {
+    // the fit's y divided by a power of two (exact), as OlsFit does for extreme magnitudes
+    const yu = new Float64Array(d.y.length);
+    const s = 1 / unit;
+    for (let i = 0; i < yu.length; i++) yu[i] = d.y[i] * s;
+    d.y = yu;
+  }
+  const keep = op.keep ? ([] as BlockReflectors[]) : null;
+  const T = blockedQr(d.X, d.y, inv, keep);
+  d.blocks = keep;
+  return { answer: { T }, transfer: [T.buffer as ArrayBuffer] };
+}
+
+/** r = y − Σ b_j x_j (in the order of leastSquares.ts), kept in the part; the partial sums. */
+function residuals(state: PartState, op: PartOp): PartAnswer {
+  const d = designOf(state, op);
+  const coef = op.coef as Float64Array;
+  const n = d.y.length;
+  let resid = d.resid;
+  if (!op.refined) {
+    resid = new Float64Array(n);
+    resid.set(d.y);
+    for (let j = 0; j < d.X.length; j++) {
+      const bj = coef[j];
+      const xj = d.X[j];
+      for (let i = 0; i < n; i++) resid[i] -= bj * xj[i];
+    }
+    d.resid = resid;
+  } else {
+    resid = new Float64Array(n);
+    augmentedResidual(d.X, d.y, null, coef, resid); // the final residuals of the refinement
+    d.resid = resid;
+    d.r = null;
+    d.f = null;
+  }
+  let rss = 0;
+  for (let i = 0; i < n; i++) rss += resid[i] * resid[i];
+  let sumY = 0;
+  let sumY2 = 0;
+  for (let i = 0; i < n; i++) {
+    sumY += d.y[i];
+    sumY2 += d.y[i] * d.y[i];
+  }
+  const answer: ResidualsAnswer = { n, rss, maxAbs: maxAbs(resid), sumY, sumY2 };
+  return { answer };
+}
+
+/** Refinement, first step: r₀ = y − Xb in double-double. */
+function refineStart(state: PartState, op: PartOp): PartAnswer {
+  const d = designOf(state, op);
+  if (!d.blocks) throw new Error("refinement needs the part's reflectors (factor with keep)");
+  const n = d.y.length;
+  d.r = new Float64Array(n);
+  d.f = new Float64Array(n);
+  augmentedResidual(d.X, d.y, null, op.coef as Float64Array, d.r);
+  return { answer: { n } };
+}
+
+/** Σ a_i b_i in double-double, as (hi, lo). */
+function dot2Parts(a: Float64Array, b: Float64Array): [number, number] {
+  let hi = 0;
+  let lo = 0;
+  for (let i = 0; i < a.length; i++) {
+    const p = a[i] * b[i];
+    const pe = twoProdErr(a[i], b[i], p);
+    const s = hi + p;
+    const bb = s - hi;
+    lo += (hi - (s - bb)) + (p - bb) + pe;
+    hi = s;
+  }
+  return [hi, lo];
+}
+
+/**
+ * Refinement, one iteration's part-local half: f = y − r − Xb, the partial Xᵀr (double-double), and
+ * the part's reflectors applied forward to [−rTop_p; f]: answers the part's k top entries.
+ */
+function refineStep(state: PartState, op: PartOp): PartAnswer {
+  const d = designOf(state, op);
+  const k = d.X.length;
+  const r = d.r as Float64Array;
+  const f = d.f as Float64Array;
+  augmentedResidual(d.X, d.y, r, op.coef as Float64Array, f);
+  const rTop = op.rTop as Float64Array;
+  const top = new Float64Array(k);
+  for (let j = 0; j < k; j++) top[j] = -rTop[j];
+  const gHi = new Float64Array(k);
+  const gLo = new Float64Array(k);
+  for (let j = 0; j < k; j++) [gHi[j], gLo[j]] = dot2Parts(d.X[j], r);
+  applyQ(d.blocks as BlockReflectors[], k, top, f, true);
+  const answer: RefineStepAnswer = { top, gHi, gLo };
+  return { answer };
+}
+
+/** Refinement, the other half: the part's reflectors applied backward to [top_p; f] (the correction), r += f. */
+function refineApply(state: PartState, op: PartOp): PartAnswer {
+  const d = designOf(state, op);
+  const k = d.X.length;
+  const top = Float64Array.from(op.top as Float64Array);
+  const f = d.f as Float64Array;
+  const r = d.r as Float64Array;
+  applyQ(d.blocks as BlockReflectors[], k, top, f, false);
+  for (let i = 0; i < r.length; i++) r[i] += f[i];
+  return { answer: { top } };
+}
+
+/** Σ(y − mean) and Σ(y − mean)² of the design's response, for a two-pass mean and a centred sum of squares. */
+function center(state: PartState, op: PartOp): PartAnswer {
+  const d = designOf(state, op);
+  const mean = op.mean as number;
+  let corr = 0;
+  let ss = 0;
+  for (let i = 0; i < d.y.length; i++) {
+    const v = d.y[i] - mean;
+    corr += v;
+    ss += v * v;
+  }
+  return { answer: { corr, ss } };
+}
+
+/** A factor as covariance.ts reads it (rows of Q from X_s R⁻¹): only n, k, R and scale are used. */
+function factorView(n: number, k: number, R: Float64Array, scale: Float64Array): QrFit {
+  return { n, k, R, scale } as QrFit;
+}
+
+/**
+ * The second passes over the fit's rows, in one pass of Q's rows: the mean's correction Σ(y − m);
+ * the HC meat Σ ω_i z_i z_iᵀ with z_i = R⁻ᵀx_i and h_i = |z_i|² (as covariance.ts hcCovariance);
+ * the Breusch–Pagan sums on the fit's own design, v = (e/eUnit)² (as specTests.ts onFitDesign,
+ * residualSS's first solve); and the sample of rows for the picture.
+ */
+function passes(state: PartState, op: PartOp): PartAnswer {
+  const d = state.designs.fit;
+  const X = d.X;
+  const k = X.length;
+  const n = d.y.length;
+  const R = op.R as Float64Array;
+  const scale = op.scale as Float64Array;
+  const hc = op.hc as "HC0" | "HC1" | "HC2" | "HC3" | null;
+  const hc1 = op.hc1 as number;
+  const firstRow = op.firstRow as number;
+  const yUnit = op.yUnit as number;
+  const resid = d.resid as Float64Array;
+  const rowIndex = state.rowIndex as Int32Array;
+  const mean = op.mean as number;
+  let corr = 0;
+  for (let i = 0; i < n; i++) corr += d.y[i] - mean;
+
+  let meat: Float64Array | null = null;
+  const ones = new RowList();
+  if (hc) {
+    const needH = hc === "HC2" || hc === "HC3";
+    const lev = needH ? new Float64Array(BLOCK) : null;
+    meat = new Float64Array(k * k);
+    const M = meat;
+    const W = new Float64Array(k * BLOCK);
+    const w = new Float64Array(BLOCK);
+    forEachQBlock(X, factorView(n, k, R, scale), (start, m, Z) => {
+      if (lev) {
+        lev.fill(0, 0, m);
+        for (let j = 0; j < k; j++) {
+          const o = j * BLOCK;
+          for (let i = 0; i < m; i++) lev[i] += Z[o + i] * Z[o + i];
+        }
+      }
+      for (let i = 0; i < m; i++) {
+        const e = resid[start + i];
+        const e2 = e * e;
+        if (hc === "HC0") w[i] = e2;
+        else if (hc === "HC1") w[i] = e2 * hc1;
+        else {
+          const hi = (lev as Float64Array)[i];
+          if (hi >= 1 - LEVERAGE_TOL) {
+            ones.add(firstRow + rowIndex[start + i]);
+            w[i] = 0;
+          } else w[i] = hc === "HC2" ? e2 / (1 - hi) : e2 / ((1 - hi) * (1 - hi));
+        }
+      }
+      for (let a = 0; a < k; a++) {
+        const o = a * BLOCK;
+        for (let i = 0; i < m; i++) W[o + i] = w[i] * Z[o + i];
+      }
+      for (let a = 0; a < k; a++) {
+        for (let b = a; b < k; b++) M[a * k + b] += dotBlock(W, a * BLOCK, Z, b * BLOCK, m);
+      }
+    });
+  }
+
+  let bpG: Float64Array | null = null;
+  let bpSum = 0;
+  const eUnit = op.bpUnit as number | null;
+  if (eUnit !== null) {
+    // v = working(e)², as specTests.ts squaredResiduals; kept for the solves that follow
+    const inv = 1 / eUnit;
+    const v = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      const e = resid[i] * inv;
+      v[i] = e * e;
+    }
+    state.designs.bp = { X, y: v, blocks: null, resid: null, r: null, f: null };
+    bpG = columnSums(X, v);
+    for (let i = 0; i < n; i++) bpSum += v[i];
+  }
+
+  const stride = op.stride as number;
+  const offset = op.offset as number;
+  let first = (stride - (offset % stride)) % stride;
+  const count = first < n ? Math.floor((n - 1 - first) / stride) + 1 : 0;
+  const fitted = new Float64Array(count);
+  const res = new Float64Array(count);
+  const rows = new Int32Array(count);
+  for (let t = 0; t < count; t++, first += stride) {
+    const e = resid[first] * yUnit;
+    res[t] = e;
+    fitted[t] = (state.y as Float64Array)[first] - e; // ŷ = y − e in the transformed y's units
+    rows[t] = rowIndex[first];
+  }
+  const answer: PassesAnswer = { corr, meat, leverageOne: ones.toRuns(), bpG, bpSum, sample: { fitted, residuals: res, rows } };
+  return { answer, transfer: [fitted.buffer as ArrayBuffer, res.buffer as ArrayBuffer, rows.buffer as ArrayBuffer] };
+}
+
+/** Σ_i x_ij v_i per column, with the two partial sums of leastSquares.ts residualSS. */
+function columnSums(X: Float64Array[], v: Float64Array): Float64Array {
+  const n = v.length;
+  const g = new Float64Array(X.length);
+  for (let j = 0; j < X.length; j++) {
+    const col = X[j];
+    let s0 = 0;
+    let s1 = 0;
+    let i = 0;
+    for (; i + 1 < n; i += 2) {
+      s0 += col[i] * v[i];
+      s1 += col[i + 1] * v[i + 1];
+    }
+    if (i < n) s0 += col[i] * v[i];
+    g[j] = s0 + s1;
+  }
+  return g;
+}
+
+/**
+ * Breusch–Pagan on the fit's factor (corrected semi-normal equations, leastSquares.ts residualSS):
+ * r = v − Σ (c_j/scale_j) x_j; answers Xᵀr (for the correction), Σr² and Σ(v − mean)².
+ */
+function bpSolve(state: PartState, op: PartOp): PartAnswer {
+  const d = state.designs.bp;
+  if (!d) throw new Error("the Breusch–Pagan sums were not started");
+  const c = op.c as Float64Array;
+  const scale = op.scale as Float64Array;
+  const mean = op.mean as number;
+  const n = d.y.length;
+  const r = new Float64Array(n);
+  r.set(d.y);
+  for (let j = 0; j < d.X.length; j++) {
+    const b = c[j] / scale[j];
+    const col = d.X[j];
+    for (let i = 0; i < n; i++) r[i] -= b * col[i];
+  }
+  let rss = 0;
+  for (let i = 0; i < n; i++) rss += r[i] * r[i];
+  let tss = 0;
+  for (let i = 0; i < n; i++) tss += (d.y[i] - mean) * (d.y[i] - mean);
+  // R²'s centred sum of squares of the fit's y, in the same round when asked
+  let ss = 0;
+  if (op.center !== null && op.center !== undefined) {
+    const centre = op.center as number;
+    const fy = state.designs.fit.y;
+    for (let i = 0; i < fy.length; i++) {
+      const v = fy[i] - centre;
+      ss += v * v;
+    }
+  }
+  const answer: BpSolveAnswer = { g: op.wantG ? columnSums(d.X, r) : new Float64Array(0), rss, tss, ss };
+  return { answer };
+}
+
+/**
+ * The auxiliary design of a Breusch–Pagan test that cannot reuse the fit's factor (specTests.ts
+ * auxiliary): a column of ones and the x columns divided by their test units, with v = (e/eUnit)².
+ */
+function auxDesign(state: PartState, op: PartOp): PartAnswer {
+  const units = op.units as number[];
+  const eUnit = op.eUnit as number;
+  const n = state.n;
+  const x = state.x as Float64Array[];
+  const resid = state.designs.fit.resid as Float64Array;
+  const cols: Float64Array[] = [new Float64Array(n).fill(1)];
+  x.forEach((c, j) => {
+    const u = units[j];
+    if (u === 1) cols.push(c);
+    else {
+      const inv = 1 / u;
+      cols.push(Float64Array.from(c, (v) => v * inv));
+    }
+  });
+  const inv = 1 / eUnit;
+  const v = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const e = resid[i] * inv;
+    v[i] = e * e;
+  }
+  state.designs.aux = { X: cols, y: v, blocks: null, resid: null, r: null, f: null };
+  return { answer: { n } };
+}
+
+/** Leaves one column out of the auxiliary design (one that depends on earlier ones). */
+function auxDrop(state: PartState, op: PartOp): PartAnswer {
+  const d = designOf(state, { kind: "auxDrop", design: "aux" });
+  const drop = op.column as number;
+  d.X = d.X.filter((_, j) => j !== drop);
+  d.blocks = null;
+  d.resid = null;
+  return { answer: { k: d.X.length } };
+}
+
+/** Applies one step to the part it holds. Data problems come back in the answers (the driver words them). */
 export function applyPartOp(state: PartState, op: PartOp): PartAnswer {
-  switch (op.kind) {
+  switch (op.kind as SplitOpKind) {
+    case "append": return append(state, op);
+    case "scan": return scan(state, op);
+    case "prepare": return prepare(state, op);
+    case "norms": return norms(state, op);
+    case "factor": return factor(state, op);
+    case "residuals": return residuals(state, op);
+    case "refineStart": return refineStart(state, op);
+    case "refineStep": return refineStep(state, op);
+    case "refineApply": return refineApply(state, op);
+    case "center": return center(state, op);
+    case "passes": return passes(state, op);
+    case "bpSolve": return bpSolve(state, op);
+    case "auxDesign": return auxDesign(state, op);
+    case "auxDrop": return auxDrop(state, op);
+    case "clear": {
+      Object.assign(state, newPartState());
+      return { answer: { rows: 0 } };
+    }
     default:
       throw new Error(`unknown part step ${String(op.kind)}`);
   }
+}
+
+// ---------------------------------------------------------------------------------------------
+// The merge (in the driver's thread)
+
+/** The merged triangle of the parts and, when kept, the merge's reflectors on the stacked tops. */
+export interface Merged {
+  T: Float64Array;
+  /** Reflectors on the stacked tops of parts 1…P−1 (start = (p−1)·k), with part 0's top as the running triangle. */
+  blocks: BlockReflectors[] | null;
+}
+
+/**
+ * Stacks the parts' triangles T_p (row-major (k+1)×(k+1): R_p and Qᵀ_p y_p in rows 0…k−1) and
+ * reduces them by Householder reflections: T_0 is the running triangle, each further T_p's k rows a
+ * block reduced against it, exactly as blockedQr reduces a block of data rows (Demmel, Grigori,
+ * Hoemmen and Langou 2012, the TSQR reduction with a flat tree). One part: T_0 itself.
+ */
+export function mergeTriangles(Ts: readonly Float64Array[], k: number, keep: boolean): Merged {
+  const k1 = k + 1;
+  const T = Float64Array.from(Ts[0]);
+  const blocks: BlockReflectors[] | null = keep ? [] : null;
+  const m = k; // rows per block: the k top rows of a part's triangle
+  const C = new Float64Array(k1 * m);
+  for (let p = 1; p < Ts.length; p++) {
+    const S = Ts[p];
+    for (let c = 0; c < k1; c++) for (let i = 0; i < m; i++) C[c * m + i] = S[i * k1 + c];
+    const tau = new Float64Array(k);
+    for (let j = 0; j < k; j++) {
+      const oj = j * m;
+      const ss = dotBlock(C, oj, C, oj, m);
+      if (ss === 0) continue;
+      const rjj = T[j * k1 + j];
+      const alpha = Math.sqrt(rjj * rjj + ss);
+      const beta = rjj >= 0 ? -alpha : alpha;
+      const v0 = rjj - beta;
+      const t = (beta - rjj) / beta;
+      const iv0 = 1 / v0;
+      for (let i = 0; i < m; i++) C[oj + i] *= iv0;
+      T[j * k1 + j] = beta;
+      tau[j] = t;
+      for (let c = j + 1; c < k1; c++) {
+        const oc = c * m;
+        const w = t * dotBlock(C, oj, C, oc, m, T[j * k1 + c]);
+        T[j * k1 + c] -= w;
+        axpyBlock(C, oj, oc, m, w);
+      }
+    }
+    if (blocks) {
+      const v = new Float64Array(k * m);
+      for (let j = 0; j < k; j++) for (let i = 0; i < m; i++) v[j * m + i] = C[j * m + i];
+      blocks.push({ start: (p - 1) * k, rows: m, tau, v });
+    }
+  }
+  return { T, blocks };
 }

@@ -209,7 +209,7 @@ export function resolveColumn(term: unknown, names: readonly string[], what = "t
   return fail(`give the ${what} as a header name or a column number of x (${names.map((n) => cut(n)).join(", ")})`);
 }
 
-interface NonPositive {
+export interface NonPositive {
   zeros: number;
   negatives: number;
   zeroRows: RowList;
@@ -232,7 +232,7 @@ function nonPositive(col: Float64Array, rowNumbers: Int32Array): NonPositive {
 }
 
 /** "Price has 2 values that are zero or blank (rows 3, 4) and 1 negative value (row 7)". */
-function describeNonPositive(name: string, np: NonPositive): string {
+export function describeNonPositive(name: string, np: NonPositive): string {
   const parts: string[] = [];
   if (np.zeros > 0) parts.push(`${np.zeros === 1 ? "1 value that is zero or blank" : `${np.zeros} values that are zero or blank`} (${rowsPhrase(np.zeroRows)})`);
   if (np.negatives > 0) parts.push(`${count(np.negatives, "negative value")} (${rowsPhrase(np.negativeRows)})`);
