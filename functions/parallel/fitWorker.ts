@@ -2,23 +2,21 @@
  * The fit worker (dist/fitWorker.js): one part of a big fit, living in a Web Worker (or a Node
  * worker thread through nodeWorker.ts). It keeps one part state, applies each requested step with
  * the same engine code the page would run in its own thread, and answers every request by message
- * (protocol.ts): an exception becomes a "failure" message, never an uncaught error.
+ * (protocol.ts): an exception becomes a "failure" message, never an uncaught error. The buffers
+ * applyPartOp lists with its answer move to the page instead of being copied.
  *
  * The bundle holds the engine modules only: no cell functions, no host registration, no DOM.
  */
 import type { PartOp } from "../engine/columnFitTypes";
 import { ElxProblem } from "../engine/problems";
 import { newPartState, stepPart } from "./engineLink";
-import { transferables, type PartRequest, type WorkerMessage } from "./protocol";
+import type { PartRequest, WorkerMessage } from "./protocol";
 
 /** What the worker needs of its global scope: send a message, hear messages. */
 export interface WorkerScope {
   postMessage(message: WorkerMessage, transfer?: ArrayBuffer[]): void;
   addEventListener(type: "message", listener: (event: { data: unknown }) => void): void;
 }
-
-/** The least time between two progress messages of one step. */
-const PROGRESS_MS = 50;
 
 /** Serves part steps on a scope: one part state for the scope's life. Returns the message handler (for tests). */
 export function serveParts(scope: WorkerScope): (data: unknown) => void {
@@ -37,18 +35,11 @@ export function serveParts(scope: WorkerScope): (data: unknown) => void {
         scope.postMessage({ type: "answer", id, answer: null });
         return;
       }
-      let last = Date.now();
-      const progress = (rowsDone: number): void => {
-        const now = Date.now();
-        if (now - last < PROGRESS_MS) return;
-        last = now;
-        scope.postMessage({ type: "progress", id, rowsDone });
-      };
-      const answer = stepPart(state, op, progress);
-      scope.postMessage({ type: "answer", id, answer }, transferables(answer));
+      const { answer, transfer } = stepPart(state, op);
+      scope.postMessage({ type: "answer", id, answer }, transfer ?? []);
     } catch (e) {
       const problem = e instanceof ElxProblem;
-      const message = e instanceof Error ? e.message : String(e);
+      const message = e !== null && typeof e === "object" && typeof (e as Error).message === "string" ? (e as Error).message : String(e);
       try {
         scope.postMessage({ type: "failure", id, message, kind: problem ? (e as ElxProblem).kind : "internal" });
       } catch {

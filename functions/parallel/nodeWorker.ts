@@ -29,17 +29,25 @@ export function nodeMachineWorkers(): number {
   return machineWorkers(cores);
 }
 
+/** A worker thread's port, with the thread's end (its exit code) for callers that wait for it. */
+export interface NodeWorkerPort extends WorkerPort {
+  exited: Promise<number>;
+}
+
 /** Worker threads loading `bundle` (default dist/fitWorker.js; run `npm run build` first). */
-export function nodeSpawner(bundle = WORKER_BUNDLE): SpawnWorker {
+export function nodeSpawner(bundle = WORKER_BUNDLE, started?: NodeWorkerPort[]): SpawnWorker {
   return () => {
     const worker = new Worker(ADAPTER, { eval: true, workerData: { bundle } });
+    const exited = new Promise<number>((resolve) => worker.once("exit", resolve));
     let onMessage: (data: unknown) => void = () => undefined;
     let onError: (message: string) => void = () => undefined;
     worker.on("message", (data) => onMessage(data));
-    worker.on("error", (e) => onError(e instanceof Error ? e.message : String(e)));
+    // an Error from the thread may come from another realm: read its message by shape
+    worker.on("error", (e: unknown) => onError(e && typeof (e as Error).message === "string" ? (e as Error).message : String(e)));
     worker.on("messageerror", () => onError("a message from the worker could not be read"));
     worker.on("exit", (code) => onError(`the worker thread ended (exit code ${code})`));
-    const port: WorkerPort = {
+    const port: NodeWorkerPort = {
+      exited,
       post: (m, t) => worker.postMessage(m, t),
       listen: (m, e) => {
         onMessage = m;
@@ -50,6 +58,7 @@ export function nodeSpawner(bundle = WORKER_BUNDLE): SpawnWorker {
         void worker.terminate();
       },
     };
+    if (started) started.push(port);
     return port;
   };
 }

@@ -8,17 +8,22 @@
  * parts run in this thread instead, with a note saying why in the analyst's words.
  *
  * Cancel terminates the workers, which really stops their work, and rejects every pending send
- * with a FitCancelled error.
+ * with the engine's FitCancelled error (the driver's own, so it is recognised the same way).
  */
 import type { PartExecutor, PartOp } from "../engine/columnFitTypes";
 import { ElxProblem } from "../engine/problems";
-import { localExecutor } from "./engineLink";
+import { FitCancelled, localExecutor } from "./engineLink";
 import type { WorkerMessage } from "./protocol";
 
 /** The most workers used unless asked for more. */
 export const MAX_WORKERS = 8;
 /** How long a worker may take to load before the parts run in this thread. */
 export const START_TIMEOUT_MS = 15000;
+
+/** An error's message by its shape (errors from a worker or a DOMException may come from another realm). */
+export function messageOf(e: unknown): string {
+  return e !== null && typeof e === "object" && typeof (e as { message?: unknown }).message === "string" ? (e as Error).message : String(e);
+}
 
 /** A started worker as the pool sees it (a Web Worker, a Node worker thread, or a test's stand-in). */
 export interface WorkerPort {
@@ -31,18 +36,7 @@ export interface WorkerPort {
 /** Starts worker number `index`; may throw. */
 export type SpawnWorker = (index: number) => WorkerPort;
 
-/** The error every pending and later send rejects with once the fit is cancelled. */
-export class FitCancelled extends Error {
-  readonly cancelled = true;
-  constructor(message = "The fit was stopped (Cancel).") {
-    super(message);
-    this.name = "FitCancelled";
-  }
-}
-
-export function isCancelled(e: unknown): boolean {
-  return e instanceof FitCancelled || (typeof e === "object" && e !== null && (e as { cancelled?: unknown }).cancelled === true);
-}
+export { FitCancelled, isFitCancelled } from "./engineLink";
 
 /**
  * Workers for a machine with `cores` cores (default: the page's navigator.hardwareConcurrency; Node
@@ -79,7 +73,6 @@ interface Pending {
   part: number;
   resolve: (v: unknown) => void;
   reject: (e: unknown) => void;
-  onProgress?: (rowsDone: number) => void;
 }
 
 /** A PartExecutor over started workers, with cancel and close. */
@@ -115,7 +108,7 @@ export class WorkerPool implements PartExecutor {
         this.ports[part].post({ id, op }, transfer);
       } catch (e) {
         this.pending.delete(id);
-        reject(new Error(`the rows could not be handed to background worker ${part + 1}: ${e instanceof Error ? e.message : String(e)}`));
+        reject(new Error(`the rows could not be handed to background worker ${part + 1}: ${messageOf(e)}`));
       }
     });
   }
@@ -241,13 +234,14 @@ export async function startPool(options: PoolOptions = {}): Promise<PoolStart> {
   });
 
   const readiness: Promise<void>[] = [];
+  const timers: ReturnType<typeof setTimeout>[] = [];
   for (let i = 0; i < wanted; i++) {
     let port: WorkerPort;
     try {
       port = spawn(i);
     } catch (e) {
       stopAll();
-      return local(`a background worker could not be started: ${e instanceof Error ? e.message : String(e)}`);
+      return local(`a background worker could not be started: ${messageOf(e)}`);
     }
     ports.push(port);
     readiness.push(
@@ -259,6 +253,7 @@ export async function startPool(options: PoolOptions = {}): Promise<PoolStart> {
             reject(new Error(`a background worker did not load within ${Math.round(timeout / 1000)} s`));
           }
         }, timeout);
+        timers.push(timer);
         port.listen(
           (data) => {
             if (!settled && (data as WorkerMessage)?.type === "ready") {
@@ -281,8 +276,9 @@ export async function startPool(options: PoolOptions = {}): Promise<PoolStart> {
   try {
     await Promise.all(readiness);
   } catch (e) {
+    timers.forEach(clearTimeout);
     stopAll();
-    return local(e instanceof Error ? e.message : String(e));
+    return local(messageOf(e));
   }
   const pool = new WorkerPool(ports);
   return { executor: pool, workers: wanted, fallbackNote: "", pool };

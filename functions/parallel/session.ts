@@ -1,18 +1,26 @@
 /**
  * The big-fit session the pane drives (types.ts): the range's rows split into contiguous, equal
  * shares, one per part (a chunk that straddles a share boundary is cut there); chunks move to their
- * parts as they are read; fit runs the column-block driver over the parts with progress; cancel
+ * parts as they are read, each part's in row order whatever order they are read in; fit runs the column-block driver over the parts with progress; cancel
  * stops the workers at once. When workers are not wanted (workers = 0) or cannot start, the session
  * runs in this thread and says why in fallbackNote.
  */
-import type { ColumnChunk, ColumnFitSpec } from "../engine/columnFitTypes";
+import type { ColumnChunk, ColumnFitSpec, PartOp } from "../engine/columnFitTypes";
 import { ElxProblem, fail } from "../engine/problems";
-import { columnFit } from "./engineLink";
-import { FitCancelled, isCancelled, startPool, type PoolOptions, type StoppableExecutor } from "./pool";
+import { appendOp, columnFit, FitCancelled, isFitCancelled } from "./engineLink";
+import { machineWorkers, messageOf, startPool, type PoolOptions, type StoppableExecutor } from "./pool";
 import type { BigFitOpenOptions, BigFitSession, BigOutcome } from "./types";
 
 /** How a session starts its workers (the page's defaults unless a test or Node caller says otherwise). */
 export type BigFitStartOptions = BigFitOpenOptions & Pick<PoolOptions, "spawn" | "startTimeoutMs">;
+
+/** Rows [from, to) of one part's share, ready to send. */
+interface Piece {
+  from: number;
+  to: number;
+  op: PartOp;
+  transfer: ArrayBuffer[];
+}
 
 const CANCELLED: BigOutcome = { ok: false, cancelled: true, message: "The fit was stopped (Cancel); nothing was written." };
 
@@ -24,52 +32,95 @@ export function shareBounds(rows: number, parts: number): number[] {
 }
 
 /** A column's rows [from, to) ready to move: the array itself when it is all of its own buffer, else a copy. */
-function movable(column: Float64Array, from: number, to: number, whole: boolean): Float64Array {
+function movable<T extends Float64Array | Uint8Array>(column: T, from: number, to: number, whole: boolean): T {
   if (whole && column.byteOffset === 0 && column.byteLength === column.buffer.byteLength) return column;
-  return column.slice(from, to);
+  return column.slice(from, to) as T;
+}
+
+/** An ArrayBuffer (not a SharedArrayBuffer), by its tag: typed arrays may come from another realm. */
+function isArrayBuffer(b: ArrayBufferLike): b is ArrayBuffer {
+  return Object.prototype.toString.call(b) === "[object ArrayBuffer]";
 }
 
 export async function openBigFit(options: BigFitStartOptions): Promise<BigFitSession> {
   const rows = options.rows;
   if (!(Number.isInteger(rows) && rows >= 1)) fail("There are no data rows below the header to fit: choose a range with a header row and at least one row of numbers.");
-  const start = await startPool({ workers: options.workers, spawn: options.spawn, startTimeoutMs: options.startTimeoutMs, localParts: 1 });
+  // Never more workers than rows.
+  const wanted = options.workers === undefined ? undefined : Math.min(Math.max(0, Math.floor(options.workers)), rows);
+  const start = await startPool({ workers: wanted === undefined ? Math.min(machineWorkers(), rows) : wanted, spawn: options.spawn, startTimeoutMs: options.startTimeoutMs, localParts: 1 });
   const executor: StoppableExecutor = start.executor;
-  // Never more parts than rows.
-  const parts = Math.min(executor.parts, rows);
+  const parts = executor.parts;
   const bounds = shareBounds(rows, parts);
-  const appends: Promise<void>[] = [];
   let columns: number | null = null;
   let cancelled = false;
   let closed = false;
   let fitting = false;
   let onCancel: (() => void) | null = null;
+  // Each part receives its rows in order (the engine keeps them in the order they arrive, and the
+  // picture's rows and the rows named in messages follow it): a piece that arrives before the rows
+  // above it in its share waits here until they come, or until the fit starts.
+  const next = bounds.slice(0, parts);
+  const waiting: Piece[][] = Array.from({ length: parts }, () => []);
+  /** Every send to a part (each already has a handler, so none is reported unhandled; the fit awaits them all). */
+  const flights: Promise<unknown>[] = [];
+  /** The first chunk refused: the fit refuses too, rather than fit without those rows. */
+  let refused: string | null = null;
+
+  const dispatch = (p: number, piece: Piece): Promise<unknown> => {
+    const sent = executor.send(p, piece.op, start.workers > 0 ? piece.transfer : []);
+    sent.catch(() => undefined);
+    flights.push(sent);
+    next[p] = piece.to;
+    return sent;
+  };
 
   const appendOne = async (chunk: ColumnChunk): Promise<void> => {
     if (cancelled) throw new FitCancelled();
     if (closed) fail("This big fit was closed: start a new one.");
-    const n = chunk && chunk.y instanceof Float64Array ? chunk.y.length : -1;
-    if (n < 0 || !Array.isArray(chunk.x) || chunk.x.some((c) => !(c instanceof Float64Array) || c.length !== n)) {
-      fail("A block of rows read from the range has columns of different lengths: read the range again.");
+    try {
+      const n = chunk && chunk.y instanceof Float64Array ? chunk.y.length : -1;
+      if (n < 0 || !Array.isArray(chunk.x) || chunk.x.some((c) => !(c instanceof Float64Array) || c.length !== n) || (chunk.issues != null && !(chunk.issues instanceof Uint8Array && chunk.issues.length === n))) {
+        fail("A block of rows read from the range has columns of different lengths: read the range again.");
+      }
+      if (columns !== null && chunk.x.length !== columns) fail(`A block of rows read from the range has ${chunk.x.length} x columns where the first had ${columns}: read the range again.`);
+      const first = chunk.rowStart;
+      if (!(Number.isInteger(first) && first >= 0 && first + n <= rows)) {
+        fail(`A block of rows (${first + 1} to ${first + n}) lies outside the range's ${rows} data rows: read the range again.`);
+      }
+      // every piece checked before any moves, so a refused chunk leaves nothing behind
+      const pieces: { p: number; from: number; to: number }[] = [];
+      for (let p = 0; p < parts && n > 0; p++) {
+        const from = Math.max(first, bounds[p]);
+        const to = Math.min(first + n, bounds[p + 1]);
+        if (from >= to) continue;
+        if (from < next[p] || waiting[p].some((w) => w.from < to && from < w.to)) {
+          fail(`Rows ${first + 1} to ${first + n} of the range were handed over twice: read the range again.`);
+        }
+        pieces.push({ p, from, to });
+      }
+      if (columns === null) columns = chunk.x.length;
+      const sends: Promise<unknown>[] = [];
+      for (const { p, from, to } of pieces) {
+        const whole = from === first && to === first + n;
+        const y = movable(chunk.y, from - first, to - first, whole);
+        const x = chunk.x.map((c) => movable(c, from - first, to - first, whole));
+        const issues = chunk.issues ? movable(chunk.issues, from - first, to - first, whole) : undefined;
+        const transfer: ArrayBuffer[] = [];
+        for (const a of [y, ...x, ...(issues ? [issues] : [])]) if (isArrayBuffer(a.buffer) && !transfer.includes(a.buffer)) transfer.push(a.buffer);
+        const piece: Piece = { from, to, op: appendOp({ rowStart: from, y, x, issues }), transfer };
+        if (from !== next[p]) {
+          const at = waiting[p].findIndex((w) => w.from > from);
+          waiting[p].splice(at < 0 ? waiting[p].length : at, 0, piece);
+          continue;
+        }
+        sends.push(dispatch(p, piece));
+        while (waiting[p].length > 0 && waiting[p][0].from === next[p]) sends.push(dispatch(p, waiting[p].shift() as Piece));
+      }
+      await Promise.all(sends);
+    } catch (e) {
+      if (refused === null && e instanceof ElxProblem) refused = e.message;
+      throw e;
     }
-    if (columns === null) columns = chunk.x.length;
-    else if (chunk.x.length !== columns) fail(`A block of rows read from the range has ${chunk.x.length} x columns where the first had ${columns}: read the range again.`);
-    const first = chunk.rowStart;
-    if (!(Number.isInteger(first) && first >= 0 && first + n <= rows)) {
-      fail(`A block of rows (${first + 1} to ${first + n}) lies outside the range's ${rows} data rows: read the range again.`);
-    }
-    const sends: Promise<unknown>[] = [];
-    for (let p = 0; p < parts && n > 0; p++) {
-      const from = Math.max(first, bounds[p]);
-      const to = Math.min(first + n, bounds[p + 1]);
-      if (from >= to) continue;
-      const whole = from === first && to === first + n;
-      const y = movable(chunk.y, from - first, to - first, whole);
-      const x = chunk.x.map((c) => movable(c, from - first, to - first, whole));
-      const transfer: ArrayBuffer[] = [];
-      for (const a of [y, ...x]) if (a.buffer instanceof ArrayBuffer && !transfer.includes(a.buffer)) transfer.push(a.buffer);
-      sends.push(executor.send(p, { kind: "append", chunk: { rowStart: from, y, x } }, start.workers > 0 ? transfer : []));
-    }
-    await Promise.all(sends);
   };
 
   const session: BigFitSession = {
@@ -77,8 +128,8 @@ export async function openBigFit(options: BigFitStartOptions): Promise<BigFitSes
     fallbackNote: start.fallbackNote,
     append(chunk) {
       const done = appendOne(chunk);
-      // the fit waits for every append; an append's failure is reported by the fit as well
-      appends.push(done.catch(() => undefined));
+      // a caller that does not wait for the append still hears of a refusal from the fit
+      done.catch(() => undefined);
       return done;
     },
     async fit(spec: ColumnFitSpec, progress?: (rowsDone: number, rowsTotal: number) => void): Promise<BigOutcome> {
@@ -91,15 +142,18 @@ export async function openBigFit(options: BigFitStartOptions): Promise<BigFitSes
       });
       try {
         const run = (async (): Promise<BigOutcome> => {
-          await Promise.all(appends);
+          if (refused !== null) return { ok: false, cancelled: false, message: `${refused} (The fit needs every block of the range.)` };
+          // rows still waiting for the rows above them go now: the fit takes the rows appended so far
+          for (let p = 0; p < parts; p++) while (waiting[p].length > 0) dispatch(p, waiting[p].shift() as Piece);
+          await Promise.all(flights);
           const value = await columnFit(executor, spec, progress, () => cancelled);
           return { ok: true, value };
         })();
         return await Promise.race([run, stop]);
       } catch (e) {
-        if (cancelled || isCancelled(e)) return CANCELLED;
+        if (cancelled || isFitCancelled(e)) return CANCELLED;
         if (e instanceof ElxProblem) return { ok: false, cancelled: false, message: e.message };
-        const why = e instanceof Error ? e.message : String(e);
+        const why = messageOf(e);
         return { ok: false, cancelled: false, message: `The fit stopped unexpectedly (${why}). Nothing was written; try again, and if it happens again, report it with the range's size.` };
       } finally {
         fitting = false;
