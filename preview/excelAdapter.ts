@@ -7,6 +7,9 @@
 import { formatAddress, MAX_ROWS, parseAddress, quoteSheet, type Address } from "../taskpane/address";
 import { isError, type Sheet, type Workbook } from "./workbook";
 
+/** Rows of the computed sheet served per slice of the page's time (about 2 ms of work each). */
+const SLICE_ROWS = 1500;
+
 class NotLoaded extends Error {
   constructor(property: string) {
     super(`The property '${property}' is not available. Before reading the property's value, call the load method on the containing object and call "context.sync()" on the associated request context.`);
@@ -32,7 +35,7 @@ abstract class Proxy {
     return this.data[name] as T;
   }
   /** Fills the loaded properties; true when that read cells (the sync then gives the page a turn). */
-  abstract resolve(): boolean | void;
+  abstract resolve(): boolean | void | Promise<boolean>;
 }
 
 function addressText(sheet: string, a: Address): string {
@@ -100,7 +103,21 @@ export class RangeProxy extends Proxy {
     this.pendingFormulas = null;
     this.context.book.setInputs(sheet, updates);
   }
-  resolve(): boolean {
+  /**
+   * Values of the computed sheet, in slices of SLICE_ROWS rows with a turn for the page between
+   * them: the host answers a request in its own process, and here the work shares the page's thread.
+   */
+  private async resolveComputed(sheet: Sheet, a: Address): Promise<boolean> {
+    const out: unknown[][] = [];
+    for (let top = a.top; top <= a.bottom; top += SLICE_ROWS) {
+      const part = sheet.valuesBlock({ top, left: a.left, bottom: Math.min(a.bottom, top + SLICE_ROWS - 1), right: a.right });
+      for (const line of part) out.push(line);
+      if (top + SLICE_ROWS <= a.bottom) await new Promise((r) => setTimeout(r, 0));
+    }
+    this.data.values = out;
+    return true;
+  }
+  resolve(): boolean | Promise<boolean> {
     const a = this.rect();
     const sheet = this.sheetRef.sheet();
     this.data.isNullObject = !a || !sheet;
@@ -119,11 +136,7 @@ export class RangeProxy extends Proxy {
       reads.requests++;
       reads.largestCells = Math.max(reads.largestCells, cells);
       reads.largestBytes = Math.max(reads.largestBytes, cells * ((wantValues ? 24 : 0) + (wantTypes ? 10 : 0) + (wantFormulas ? 24 : 0)));
-      if (sheet.base && wantValues && !wantTypes && !wantFormulas) {
-        // the computed sheet: one pass over its rows, no cell objects
-        this.data.values = sheet.valuesBlock(a);
-        return true;
-      }
+      if (sheet.base && wantValues && !wantTypes && !wantFormulas) return this.resolveComputed(sheet, a);
       const values: unknown[][] = [];
       const types: string[][] = [];
       const formulas: unknown[][] = [];
@@ -270,7 +283,7 @@ export class PreviewContext {
       p.dirty = false;
       // the host answers a request in its own process; here it shares the page's thread, so each
       // range read is followed by a turn for the page (a request for y and x is two shorter tasks)
-      if (p.resolve()) await new Promise((r) => setTimeout(r, 0));
+      if (await p.resolve()) await new Promise((r) => setTimeout(r, 0));
     }
     await new Promise((r) => setTimeout(r, 0));
   }

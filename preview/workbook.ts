@@ -104,7 +104,8 @@ export class Sheet {
     return c ? c.value : null;
   }
 
-  private blockRows: { top: number; bottom: number; rows: CellValue[][] } | null = null;
+  /** Base rows computed lately, by their first and last row (reading y then x over the same rows computes them once). */
+  private readonly blockRows = new Map<string, CellValue[][]>();
 
   /**
    * The values of a rectangle as the host's values property gives them ("" for blank, an error's
@@ -117,11 +118,13 @@ export class Sheet {
     if (b) {
       const top = Math.max(1, a.top);
       const bottom = Math.min(b.rows, a.bottom);
-      const hit = this.blockRows;
-      if (hit && hit.top === top && hit.bottom === bottom) rows = hit.rows;
+      const k = `${top}:${bottom}`;
+      const hit = this.blockRows.get(k);
+      if (hit) rows = hit;
       else {
         for (let r = top; r <= bottom; r++) rows.push(b.row(r));
-        this.blockRows = { top, bottom, rows };
+        if (this.blockRows.size >= 16) this.blockRows.delete(this.blockRows.keys().next().value as string);
+        this.blockRows.set(k, rows);
       }
     }
     const out: unknown[][] = new Array(a.bottom - a.top + 1);

@@ -38,7 +38,7 @@ export function bigRefusal(c: BigChoices, cells: number): string | null {
   if (!BIG_SE.includes(c.se)) no.push(`${c.se} errors`);
   for (const w of c.roles) no.push(w);
   if (no.length === 0) return null;
-  return `These ranges hold ${fmt(cells)} cells, more than one formula carries, so the pane reads them in blocks; ranges this large take least squares with these choices: any form, zeros stop or drop (leave them out), classical or HC0–HC3 errors, any interval level. ${no.join(", ")} ${no.length === 1 ? "is" : "are"} not among them: choose from those, or use formulas (ELX.FIT and the others) on ranges of up to 25,000 rows × 10 columns, which stay the way for everything a call can carry`;
+  return `These ranges hold ${fmt(cells)} cells, more than one formula carries, so the pane reads them in blocks. Ranges this large take least squares with these choices: any form, zeros stop or drop (leave them out), classical or HC0–HC3 errors, any interval level; ${no.join(", ")} ${no.length === 1 ? "is" : "are"} not among them. Choose from those, or use formulas (ELX.FIT and the others) on ranges of up to 25,000 rows × 10 columns: formulas stay the way for everything a call can carry`;
 }
 
 export function specOf(c: BigChoices, plan: BigPlan): ColumnFitSpec {

@@ -9,7 +9,7 @@ import { openBigFit } from "../functions/parallel/session";
 import { openStandInSession } from "./standInSession";
 
 /** Whether the split engine's driver is complete in this build (the worker session is then used). */
-export const SPLIT_ENGINE_READY = false;
+export const SPLIT_ENGINE_READY = true;
 
 /** Options a test or the benchmark may set on globalThis.ElxBigFit: workers wanted, or the stand-in forced. */
 interface Overrides {
