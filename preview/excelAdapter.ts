@@ -8,7 +8,7 @@ import { formatAddress, MAX_ROWS, parseAddress, quoteSheet, type Address } from 
 import { isError, type Sheet, type Workbook } from "./workbook";
 
 /** Rows of the computed sheet served per slice of the page's time (about 2 ms of work each). */
-const SLICE_ROWS = 1500;
+const SLICE_ROWS = 1000;
 
 class NotLoaded extends Error {
   constructor(property: string) {

@@ -123,7 +123,8 @@ export class Sheet {
       if (hit) rows = hit;
       else {
         for (let r = top; r <= bottom; r++) rows.push(b.row(r));
-        if (this.blockRows.size >= 16) this.blockRows.delete(this.blockRows.keys().next().value as string);
+        // only the last slice is kept: rows kept longer outlive the young generation and cost a full collection later
+        this.blockRows.clear();
         this.blockRows.set(k, rows);
       }
     }

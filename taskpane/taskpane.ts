@@ -621,7 +621,11 @@ export class Pane {
     }
     const t1 = performance.now();
     this.big = r.run;
-    this.el["elx-big-body"].innerHTML = `<h3>Data check</h3>${talliesHtml(r.run.tallies, r.run.spec.form)}<h3>Fit</h3>${resultsHtml(r.run)}`;
+    // the check first, then (after a turn for the page) the results and pictures
+    this.el["elx-big-body"].innerHTML = `<h3>Data check</h3>${talliesHtml(r.run.tallies, r.run.spec.form)}<h3>Fit</h3><div id="elx-big-results"><p class="elx-muted">Drawing…</p></div>`;
+    await yieldToPage();
+    if (stale()) return;
+    (this.el["elx-big-body"].querySelector("#elx-big-results") as HTMLElement).innerHTML = resultsHtml(r.run);
     this.el["elx-big-write"].classList.remove("elx-hidden");
     this.el["elx-write-what"].textContent = formulasNote;
     const t2 = performance.now();

@@ -21,6 +21,8 @@ import { breuschPaganKoenker } from "../../functions/engine/specTests";
 import type { OlsFit } from "../../functions/engine/fit";
 
 // eslint-disable-next-line @typescript-eslint/no-var-requires
+const { takeBigScreenshots } = require("../../scripts/screenshots.js") as { takeBigScreenshots: (page: Page, dir: string) => Promise<string[]> };
+// eslint-disable-next-line @typescript-eslint/no-var-requires
 const { serve } = require("../../scripts/serve.js") as { serve: (o: { root: string; port?: number }) => Promise<{ url: string; close: () => Promise<void> }> };
 
 const ROOT = path.resolve(__dirname, "../..");
@@ -145,6 +147,9 @@ describe("a range past what a formula carries (200,000 rows × 11 columns)", () 
     // every request stayed under the host's limits: at most 100,000 cells, 2.5 MB of values
     expect(got.reads.largestCells).toBeLessThanOrEqual(100000);
     expect(got.reads.largestBytes).toBeLessThanOrEqual(2.5e6);
+    // the big path's pictures, into the ignored test-output/screenshots
+    const shots = await takeBigScreenshots(page, path.join(ROOT, "test-output", "screenshots"));
+    expect(shots.map((f) => path.basename(f))).toEqual(["preview-big.png", "pane-big.png"]);
     // the acceptance's bound on the page's responsiveness (a measurement, not a timing of the fit)
     expect(longest).toBeLessThan(50);
   }, 90000);
