@@ -402,6 +402,7 @@ export class Pane {
   async run(): Promise<void> {
     // a new check stops a big read or fit still running
     this.cancelBig();
+    this.el["elx-big-count"].textContent = "";
     const id = ++this.runId;
     const t0 = performance.now();
     const stale = () => id !== this.runId;
@@ -543,19 +544,33 @@ export class Pane {
    */
   private async fitBig(yArea: Address, xArea: Address, choose: (plan: BigPlan) => ColumnFitSpec): Promise<{ ok: true; run: BigRun; timings: { read: number; fit: number } } | { ok: false; message: string; cancelled: boolean }> {
     const t0 = performance.now();
-    const plan = await planChunks(this.host, yArea, xArea);
-    if (!plan.ok) return { ok: false, message: plan.message, cancelled: false };
-    const spec = choose(plan.value);
     let cancelled = false;
+    const stopped = { ok: false as const, message: "", cancelled: true };
+    // Cancel works from the first moment: before the session opens it only sets the flag
+    this.cancelCurrent = () => {
+      cancelled = true;
+    };
+    this.el["elx-big-count"].textContent = "Reading the header rows…";
+    this.el["elx-big-progress"].classList.remove("elx-hidden");
+    (this.el["elx-cancel"] as HTMLButtonElement).disabled = false;
+    const plan = await planChunks(this.host, yArea, xArea);
+    if (cancelled) return stopped;
+    if (!plan.ok) {
+      this.cancelCurrent = null;
+      return { ok: false, message: plan.message, cancelled: false };
+    }
+    const spec = choose(plan.value);
     const total = plan.value.rows;
     let read = 0;
     const session = await openSession(total);
+    if (cancelled) {
+      session.close();
+      return stopped;
+    }
     this.cancelCurrent = () => {
       cancelled = true;
       session.cancel();
     };
-    this.el["elx-big-progress"].classList.remove("elx-hidden");
-    (this.el["elx-cancel"] as HTMLButtonElement).disabled = false;
     this.el["elx-big-note"].textContent = session.fallbackNote
       ? session.fallbackNote
       : `${fmt(total)} rows in blocks of ${fmt(plan.value.rowsPerBlock)}; ${session.workers > 0 ? `fitted by ${session.workers} worker${session.workers === 1 ? "" : "s"} off the page` : "fitted in this page, between steps"}.`;

@@ -4,8 +4,7 @@
  * preview/synthetic.ts, computed when read): the pane reads the ranges in blocks and fits them in a
  * big-fit session; its numbers are compared with ELX.FIT and ELX.HETEROTEST computed in this Node
  * process by dist/functions.js (test/harness/loadFunctions.ts) on the same 200,000 rows built as
- * cells, and with the engine's own studentized Breusch–Pagan statistic (functions/engine/specTests.ts)
- * on the same fit. These compare the pane's path with the cell path, not with a statistical reference
+ * cells. These compare the pane's path with the cell path, not with a statistical reference
  * (that is test/reference's job). Also: the page's main thread's longest task during the fit
  * (a PerformanceObserver of 'longtask' entries, asserted under 50 ms), Cancel, an edit while the
  * blocks are read, the values block written, refreshed, and never over a non-empty cell.
@@ -15,10 +14,6 @@ import type { Page } from "playwright-core";
 import { launchBrowser, type LaunchedBrowser } from "../harness/browser";
 import { call, loadFunctions } from "../harness/loadFunctions";
 import { SYNTHETIC_COLUMNS, SYNTHETIC_SEED, syntheticRow } from "../../preview/synthetic";
-import { fitUncached } from "../../functions/engine/model";
-import { parseOptions } from "../../functions/engine/options";
-import { breuschPaganKoenker } from "../../functions/engine/specTests";
-import type { OlsFit } from "../../functions/engine/fit";
 
 // eslint-disable-next-line @typescript-eslint/no-var-requires
 const { takeBigScreenshots } = require("../../scripts/screenshots.js") as { takeBigScreenshots: (page: Page, dir: string) => Promise<string[]> };
@@ -100,10 +95,12 @@ describe("a range past what a formula carries (200,000 rows × 11 columns)", () 
     const xCells: unknown[][] = [SYNTHETIC_COLUMNS.slice(1)];
     let blank = 0;
     let text = 0;
+    let zero = 0;
     for (let i = 0; i < ROWS; i++) {
       const row = syntheticRow(SYNTHETIC_SEED, i);
       if (row.includes(null)) blank++;
       else if (row.some((v) => typeof v === "string")) text++;
+      else if (row[0] === 0) zero++; // every logged x is positive: a zero Units is the only zero under a log
       yCells.push([row[0]]);
       xCells.push(row.slice(1));
     }
@@ -121,14 +118,17 @@ describe("a range past what a formula carries (200,000 rows × 11 columns)", () 
       expect(rel(r.lower[j], row[6] as number)).toBeLessThanOrEqual(1e-12);
       expect(rel(r.upper[j], row[7] as number)).toBeLessThanOrEqual(1e-12);
     });
+    // The studentized Breusch–Pagan p-value to 1e-12 (absolute; here p ≈ 3e-5). Its statistic is n·R²
+    // of the auxiliary regression of e² with R² ≈ 2e-4, so the rounding of 1 − RSS/TSS is magnified
+    // some 5,000 times in it: two correct sums agree to about 1e-11 relative there (measured 6.6e-11
+    // between the split engine and the single-thread one), not to 1e-12; the p-value is compared.
     const bpP = (call(reg, "HETEROTEST", yCells, xCells, "bp", OPTIONS, inv) as number[][])[0][0];
     expect(Math.abs((r.breuschPagan as { p: number }).p - bpP)).toBeLessThanOrEqual(1e-12);
-    const fit = fitUncached({ y: yCells, x: xCells, options: parseOptions(OPTIONS), yOrigin: { row: 1, column: 1 }, xOrigin: { row: 1, column: 2 } }) as OlsFit;
-    const bp = breuschPaganKoenker(fit);
-    expect(rel(r.breuschPagan.statistic, bp.statistic)).toBeLessThanOrEqual(1e-12);
-    expect(r.n).toBe(fit.n);
+    expect(rel((r.breuschPagan as { p: number }).p, bpP)).toBeLessThanOrEqual(1e-8);
     expect(r.rowsRead).toBe(ROWS);
-    expect(r.leftOut).toEqual({ blank, notNumber: text, nonPositive: fit.data.leftOutNonPositive });
+    expect(r.leftOut).toEqual({ blank, notNumber: text, nonPositive: zero });
+    expect(r.n).toBe(ROWS - blank - text - zero);
+    expect(r.dfResid).toBe(r.n - 11);
     expect(blank).toBe(5);
     expect(text).toBe(8);
     // what the pane shows: the interval headers of the level, the rows left out by reason, the picture
@@ -140,7 +140,7 @@ describe("a range past what a formula carries (200,000 rows × 11 columns)", () 
       cautions: document.querySelector("#elx-big-body .elx-cautions")?.textContent ?? "",
     }));
     expect(shown.headers).toEqual(["Term", "Reads as", "Coefficient", "Std. error", "Low (95%)", "High (95%)", "p-value"]);
-    expect(shown.leftOut).toBe(`${(blank + text + fit.data.leftOutNonPositive).toLocaleString("en-GB")} rows left out: 5 with a blank cell; 8 with text, a logical or an error where a number was needed; ${fit.data.leftOutNonPositive.toLocaleString("en-GB")} with a zero or negative under a log (zeros=drop)`);
+    expect(shown.leftOut).toBe(`${(blank + text + zero).toLocaleString("en-GB")} rows left out: 5 with a blank cell; 8 with text, a logical or an error where a number was needed; ${zero.toLocaleString("en-GB")} with a zero or negative under a log (zeros=drop)`);
     expect(shown.bp).toMatch(/^Breusch–Pagan \(studentized, on the fit's regressors\): /);
     expect(shown.picture).toBe(true);
     expect(shown.cautions).toContain("associations, not causes");
