@@ -7,6 +7,9 @@
 import { formatAddress, MAX_ROWS, parseAddress, quoteSheet, type Address } from "../taskpane/address";
 import { isError, type Sheet, type Workbook } from "./workbook";
 
+/** Rows of the computed sheet served per slice of the page's time (about 2 ms of work each). */
+const SLICE_ROWS = 1000;
+
 class NotLoaded extends Error {
   constructor(property: string) {
     super(`The property '${property}' is not available. Before reading the property's value, call the load method on the containing object and call "context.sync()" on the associated request context.`);
@@ -31,7 +34,8 @@ abstract class Proxy {
     if (!(name in this.data)) throw new NotLoaded(name);
     return this.data[name] as T;
   }
-  abstract resolve(): void;
+  /** Fills the loaded properties; true when that read cells (the sync then gives the page a turn). */
+  abstract resolve(): boolean | void | Promise<boolean>;
 }
 
 function addressText(sheet: string, a: Address): string {
@@ -66,6 +70,18 @@ export class RangeProxy extends Proxy {
   get formulas(): unknown[][] {
     return this.get<unknown[][]>("formulas");
   }
+  /** Sets plain values (applied at sync): numbers exactly, texts as typed constants, "" clears. */
+  set values(v: unknown[][]) {
+    const rows = v.map((line) => line.map((c) => (c === null || c === undefined ? "" : typeof c === "boolean" ? (c ? "TRUE" : "FALSE") : String(c))));
+    this.context.queueWrite(() => {
+      const a = this.rect();
+      const sheet = this.sheetRef.sheet();
+      if (!a || !sheet) return;
+      const updates: { row: number; column: number; input: string }[] = [];
+      rows.forEach((line, i) => line.forEach((input, j) => updates.push({ row: a.top + i, column: a.left + j, input })));
+      this.context.book.setInputs(sheet, updates);
+    });
+  }
   set formulas(v: unknown[][]) {
     this.pendingFormulas = v;
     this.context.queueWrite(() => this.applyFormulas());
@@ -87,15 +103,40 @@ export class RangeProxy extends Proxy {
     this.pendingFormulas = null;
     this.context.book.setInputs(sheet, updates);
   }
-  resolve(): void {
+  /**
+   * Values of the computed sheet, in slices of SLICE_ROWS rows with a turn for the page between
+   * them: the host answers a request in its own process, and here the work shares the page's thread.
+   */
+  private async resolveComputed(sheet: Sheet, a: Address): Promise<boolean> {
+    const out: unknown[][] = [];
+    for (let top = a.top; top <= a.bottom; top += SLICE_ROWS) {
+      const part = sheet.valuesBlock({ top, left: a.left, bottom: Math.min(a.bottom, top + SLICE_ROWS - 1), right: a.right });
+      for (const line of part) out.push(line);
+      if (top + SLICE_ROWS <= a.bottom) await new Promise((r) => setTimeout(r, 0));
+    }
+    this.data.values = out;
+    return true;
+  }
+  resolve(): boolean | Promise<boolean> {
     const a = this.rect();
     const sheet = this.sheetRef.sheet();
     this.data.isNullObject = !a || !sheet;
-    if (!a || !sheet) return;
+    if (!a || !sheet) return false;
     this.data.address = addressText(sheet.name, a);
     const need = (p: string) => this.wanted.has(p) || this.wanted.has("*");
-    if (need("values") || need("valueTypes") || need("formulas")) {
-      if ((a.bottom - a.top + 1) * (a.right - a.left + 1) > 5_000_000) throw new Error("The request payload size has exceeded the limit.");
+    const wantValues = need("values");
+    const wantTypes = need("valueTypes");
+    const wantFormulas = need("formulas");
+    if (wantValues || wantTypes || wantFormulas) {
+      const cells = (a.bottom - a.top + 1) * (a.right - a.left + 1);
+      if (cells > 5_000_000) throw new Error("The request payload size has exceeded the limit.");
+      // The response's worst case: a double as JSON text takes up to 24 bytes with its separator, a
+      // value type about 10, a formula as long as its text (numbers: as their value).
+      const reads = this.context.book.reads;
+      reads.requests++;
+      reads.largestCells = Math.max(reads.largestCells, cells);
+      reads.largestBytes = Math.max(reads.largestBytes, cells * ((wantValues ? 24 : 0) + (wantTypes ? 10 : 0) + (wantFormulas ? 24 : 0)));
+      if (sheet.base && wantValues && !wantTypes && !wantFormulas) return this.resolveComputed(sheet, a);
       const values: unknown[][] = [];
       const types: string[][] = [];
       const formulas: unknown[][] = [];
@@ -106,27 +147,41 @@ export class RangeProxy extends Proxy {
         for (let c = a.left; c <= a.right; c++) {
           const cell = sheet.get(r, c);
           const v = cell ? cell.value : null;
-          if (v === null || v === "") {
+          if (typeof v === "number") {
+            vr.push(v);
+            if (wantTypes) tr.push("Double");
+          } else if (v === null || v === "") {
             vr.push("");
-            tr.push("Empty");
+            if (wantTypes) tr.push("Empty");
           } else if (isError(v)) {
             vr.push(v.code);
-            tr.push("Error");
+            if (wantTypes) tr.push("Error");
           } else {
             vr.push(v);
-            tr.push(typeof v === "number" ? "Double" : typeof v === "boolean" ? "Boolean" : "String");
+            if (wantTypes) tr.push(typeof v === "boolean" ? "Boolean" : "String");
           }
-          fr.push(cell && cell.input !== null ? (cell.input.startsWith("=") ? cell.input : v) : "");
+          if (wantFormulas) fr.push(cell && cell.input !== null ? (cell.input.startsWith("=") ? cell.input : v) : "");
         }
-        values.push(vr);
-        types.push(tr);
-        formulas.push(fr);
+        if (wantValues) values.push(vr);
+        if (wantTypes) types.push(tr);
+        if (wantFormulas) formulas.push(fr);
       }
-      this.data.values = values;
-      this.data.valueTypes = types;
-      this.data.formulas = formulas;
+      if (wantValues) this.data.values = values;
+      if (wantTypes) this.data.valueTypes = types;
+      if (wantFormulas) this.data.formulas = formulas;
+      return true;
     }
+    return false;
   }
+}
+
+/** What a worksheet change handler receives (the part the pane reads). */
+export interface ChangeEvent {
+  type: "WorksheetChanged";
+  address: string;
+  worksheetId: string;
+  changeType: string;
+  source: "Local";
 }
 
 export class SheetProxy extends Proxy {
@@ -143,6 +198,31 @@ export class SheetProxy extends Proxy {
     const p = parseAddress(address);
     if (!p.ok) throw new Error(`getRange: ${p.message}`);
     return new RangeProxy(this.context, this, { ...p.value, sheet: null });
+  }
+  /**
+   * The worksheet's change event: handlers run after cells of this sheet are typed or cleared (not
+   * after recalculation). add() registers at the next sync; remove() on its result unregisters.
+   */
+  get onChanged(): { add(handler: (e: ChangeEvent) => Promise<unknown> | void): { remove(): void; context: PreviewContext } } {
+    const ctx = this.context;
+    const target = this.sheet;
+    return {
+      add(handler) {
+        let off: (() => void) | null = null;
+        ctx.queueWrite(() => {
+          off = ctx.book.onEdit((sheet, area) => {
+            if (sheet !== target()) return;
+            void handler({ type: "WorksheetChanged", address: formatAddress({ ...area, sheet: null }), worksheetId: sheet.name, changeType: "RangeEdited", source: "Local" });
+          });
+        });
+        return {
+          context: ctx,
+          remove() {
+            ctx.queueWrite(() => off?.());
+          },
+        };
+      },
+    };
   }
   getUsedRangeOrNullObject(valuesOnly?: boolean): RangeProxy {
     void valuesOnly;
@@ -201,7 +281,9 @@ export class PreviewContext {
     for (const p of this.proxies) {
       if (!p.dirty && writes.length === 0) continue;
       p.dirty = false;
-      p.resolve();
+      // the host answers a request in its own process; here it shares the page's thread, so each
+      // range read is followed by a turn for the page (a request for y and x is two shorter tasks)
+      if (await p.resolve()) await new Promise((r) => setTimeout(r, 0));
     }
     await new Promise((r) => setTimeout(r, 0));
   }

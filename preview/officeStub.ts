@@ -38,11 +38,45 @@ g.CustomFunctions = {
 };
 
 g.Excel = {
-  async run<T>(batch: (context: PreviewContext) => Promise<T>): Promise<T> {
-    const context = new PreviewContext(book);
+  /** Excel.run(batch), or Excel.run(context, batch) to work in an earlier batch's context (removing an event handler). */
+  async run<T>(a: ((context: PreviewContext) => Promise<T>) | PreviewContext, b?: (context: PreviewContext) => Promise<T>): Promise<T> {
+    const context = a instanceof PreviewContext ? a : new PreviewContext(book);
+    const batch = (a instanceof PreviewContext ? b : a) as (context: PreviewContext) => Promise<T>;
     const result = await batch(context);
     await context.sync();
     return result;
+  },
+};
+
+/**
+ * The document's settings (Office.context.document.settings): a key-value store saved with the
+ * workbook. Here it lives as long as the page (and in sessionStorage, so a reload keeps it).
+ */
+const SETTINGS_KEY = "elx-preview-settings";
+const stored: Record<string, unknown> = (() => {
+  try {
+    return JSON.parse(sessionStorage.getItem(SETTINGS_KEY) ?? "{}") as Record<string, unknown>;
+  } catch {
+    return {};
+  }
+})();
+const settings = {
+  get(name: string): unknown {
+    return name in stored ? stored[name] : null;
+  },
+  set(name: string, value: unknown): void {
+    stored[name] = JSON.parse(JSON.stringify(value));
+  },
+  remove(name: string): void {
+    delete stored[name];
+  },
+  saveAsync(callback?: (r: { status: string }) => void): void {
+    try {
+      sessionStorage.setItem(SETTINGS_KEY, JSON.stringify(stored));
+    } catch {
+      // a page without storage keeps the settings in memory only
+    }
+    setTimeout(() => callback?.({ status: "succeeded" }), 0);
   },
 };
 
@@ -54,6 +88,8 @@ const ready = new Promise<void>((resolve) => {
 g.ElxPreviewReady = () => markReady();
 
 g.Office = {
+  context: { document: { settings } },
+  AsyncResultStatus: { Succeeded: "succeeded", Failed: "failed" },
   HostType: { Excel: "Excel" },
   PlatformType: { OfficeOnline: "OfficeOnline" },
   onReady(callback?: (info: { host: string; platform: string }) => void) {

@@ -3,8 +3,9 @@
  * a set of ELX formulas evaluated live by the real dist/functions.js, and the real pane beside it,
  * talking to the sheet through taskpane/host.ts and the in-page adapter (preview/excelAdapter.ts).
  *
- * Runs after office-stub.js, functions.js and taskpane.js. `?rows=100000` shows a synthetic sheet
- * of that many rows × 5 columns instead (for the benchmark, scripts/bench-pane.js).
+ * Runs after office-stub.js, functions.js and taskpane.js. `?rows=1000000` shows a seeded synthetic
+ * sheet of that many rows × 11 columns instead (preview/synthetic.ts; `&seed=7` draws another): its
+ * values are computed when read, never stored, and the pane fits it by its big-range path.
  */
 import css from "./preview.css";
 import demo from "../data/demo.json";
@@ -12,6 +13,10 @@ import { GridView } from "./grid";
 import { parseAddress } from "../taskpane/address";
 import { parseDelimited, sheetName } from "./importData";
 import type { CellValue, FunctionMetadata, Workbook } from "./workbook";
+import { SYNTHETIC_COLUMNS, SYNTHETIC_SEED, syntheticRow } from "./synthetic";
+
+/** Largest synthetic sheet: the host's last row less the header. */
+const MAX_SYNTHETIC_ROWS = 1_048_575;
 
 const g = globalThis as unknown as Record<string, unknown>;
 const book = g.ElxPreviewWorkbook as Workbook;
@@ -45,29 +50,6 @@ export const DEMO_FORMULAS: { at: string; label: string; formula: string; needs?
   { at: "M112", label: "Rival stores: did the model change in week 61?", formula: `=ELX.BREAKTEST(C1:C417, D1:I417, 61, "${TIME}")`, needs: "BREAKTEST" },
 ];
 
-/** Seeded synthetic data for the benchmark: Units on Price, Footfall, Promo, Income (invented). */
-function synthetic(rows: number): CellValue[][] {
-  let s = 20240607 >>> 0;
-  const u = () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return (((t ^ (t >>> 14)) >>> 0) + 1) / 4294967297;
-  };
-  const out: CellValue[][] = [["Units", "Price", "Footfall", "Promo", "Income"]];
-  for (let i = 0; i < rows; i++) {
-    const price = 2 + u();
-    const foot = 60 + 80 * u();
-    const promo = u() < 0.15 ? 1 : 0;
-    const income = 80 + 40 * u();
-    const mean = Math.exp(1 - 1.4 * Math.log(price) + 0.8 * Math.log(foot) + 0.25 * promo + 0.6 * Math.log(income) - 2);
-    const units = u() < 0.02 ? 0 : Math.round(mean * Math.exp(0.2 * (u() + u() + u() - 1.5)));
-    out.push([units, Math.round(price * 100) / 100, Math.round(foot * 10) / 10, promo, Math.round(income * 10) / 10]);
-  }
-  return out;
-}
-
 function place(at: string, input: string): { row: number; column: number; input: string } {
   const p = parseAddress(at);
   if (!p.ok) throw new Error(p.message);
@@ -87,9 +69,11 @@ async function start(): Promise<void> {
   const note = document.getElementById("pv-registered") as HTMLElement;
   note.textContent = `${book.registry.size} ELX functions registered by functions.js${missing.length ? `; listed but not registered: ${missing.join(", ")}` : ""}.`;
   if (big > 0) {
-    book.loadValues(sheet, 1, 1, synthetic(Math.min(big, 1_000_000)));
-    (document.getElementById("pv-title") as HTMLElement).textContent = `Synthetic sheet: ${big.toLocaleString("en-GB")} rows × 5 columns (benchmark)`;
-    book.setInputs(sheet, [place("H1", "Zeros per column"), place("H2", `=ELX.ZEROS(A1:E${big + 1})`)]);
+    const rows = Math.min(Math.floor(big), MAX_SYNTHETIC_ROWS);
+    const seed = Number(params.get("seed") ?? SYNTHETIC_SEED) >>> 0;
+    sheet.base = { rows: rows + 1, columns: SYNTHETIC_COLUMNS.length, row: (r) => (r === 1 ? SYNTHETIC_COLUMNS : syntheticRow(seed, r - 2)) };
+    sheet.touch();
+    (document.getElementById("pv-title") as HTMLElement).textContent = `Synthetic sheet: ${rows.toLocaleString("en-GB")} rows × ${SYNTHETIC_COLUMNS.length} columns of invented bakery-chain sales (seed ${seed}); y A1:A${rows + 1}, x B1:K${rows + 1}`;
   } else {
     const columns = demo.columns as string[];
     book.loadValues(sheet, 1, 1, [columns, ...(demo.rows as CellValue[][])]);

@@ -27,6 +27,8 @@ export interface Cell {
   spillFrom?: number;
   /** For a formula cell, the size of its result. */
   spill?: { rows: number; columns: number };
+  /** A cleared cell over a computed base value (it reads as blank). */
+  cleared?: boolean;
 }
 
 export type CellFunction = (...args: unknown[]) => unknown;
@@ -46,10 +48,45 @@ export function isError(v: unknown): v is ErrorValue {
   return !!v && typeof v === "object" && typeof (v as { code?: unknown }).code === "string" && (v as { code: string }).code.startsWith("#");
 }
 
+/**
+ * Values a sheet computes instead of storing (the synthetic big sheet): `rows` × `columns` from A1,
+ * each row produced on demand. Cells typed over it (formulas, values blocks, edits) take precedence.
+ */
+export interface SheetBase {
+  rows: number;
+  columns: number;
+  /** The values of one 1-based sheet row, columns 1..columns (null: blank). */
+  row(r: number): CellValue[];
+}
+
+/** A computed cell: its typed text is made only when asked for (the formula bar), not for every read. */
+class BaseCell implements Cell {
+  constructor(readonly value: CellValue) {}
+  get input(): string | null {
+    return typeof this.value === "object" ? null : String(this.value);
+  }
+}
+
 export class Sheet {
   readonly cells = new Map<number, Cell>();
   private bounds: Address | null | undefined = undefined;
+  private baseRow = -1;
+  private baseValues: CellValue[] = [];
+  /** Computed values under the typed cells, or null. */
+  base: SheetBase | null = null;
   constructor(public name: string) {}
+
+  /** A computed cell (null when the base has nothing there). */
+  private baseCell(row: number, column: number): Cell | undefined {
+    const b = this.base;
+    if (!b || row < 1 || row > b.rows || column < 1 || column > b.columns) return undefined;
+    if (row !== this.baseRow) {
+      this.baseValues = b.row(row);
+      this.baseRow = row;
+    }
+    const v = this.baseValues[column - 1];
+    return v === null || v === undefined ? undefined : new BaseCell(v);
+  }
 
   /** Call after changing cells (the used bounds are recomputed on the next read). */
   touch(): void {
@@ -57,12 +94,62 @@ export class Sheet {
   }
 
   get(row: number, column: number): Cell | undefined {
-    return this.cells.get(key(row, column));
+    const c = this.cells.get(key(row, column));
+    if (c !== undefined || !this.base) return c && c.cleared ? undefined : c;
+    return this.baseCell(row, column);
   }
 
   value(row: number, column: number): CellValue {
-    const c = this.cells.get(key(row, column));
+    const c = this.get(row, column);
     return c ? c.value : null;
+  }
+
+  /** Base rows computed lately, by their first and last row (reading y then x over the same rows computes them once). */
+  private readonly blockRows = new Map<string, CellValue[][]>();
+
+  /**
+   * The values of a rectangle as the host's values property gives them ("" for blank, an error's
+   * code), computing each base row once (the last rows computed are kept, so reading y and then x
+   * over the same rows costs one pass) and laying typed cells over them.
+   */
+  valuesBlock(a: { top: number; left: number; bottom: number; right: number }): unknown[][] {
+    const b = this.base;
+    let rows: CellValue[][] = [];
+    if (b) {
+      const top = Math.max(1, a.top);
+      const bottom = Math.min(b.rows, a.bottom);
+      const k = `${top}:${bottom}`;
+      const hit = this.blockRows.get(k);
+      if (hit) rows = hit;
+      else {
+        for (let r = top; r <= bottom; r++) rows.push(b.row(r));
+        // only the last slice is kept: rows kept longer outlive the young generation and cost a full collection later
+        this.blockRows.clear();
+        this.blockRows.set(k, rows);
+      }
+    }
+    const out: unknown[][] = new Array(a.bottom - a.top + 1);
+    const width = a.right - a.left + 1;
+    const typed = this.cells.size > 0;
+    for (let r = a.top; r <= a.bottom; r++) {
+      const base = b && r >= 1 && r <= b.rows ? rows[r - Math.max(1, a.top)] : null;
+      const line: unknown[] = new Array(width);
+      for (let c = a.left; c <= a.right; c++) {
+        let v: CellValue = base && c <= (b as SheetBase).columns ? base[c - 1] ?? null : null;
+        if (typed) {
+          const t = this.cells.get(key(r, c));
+          if (t) v = t.cleared ? null : t.value;
+        }
+        line[c - a.left] = v === null ? "" : isError(v) ? v.code : v;
+      }
+      out[r - a.top] = line;
+    }
+    return out;
+  }
+
+  /** Whether a computed value lies under this cell. */
+  hasBase(row: number, column: number): boolean {
+    return this.baseCell(row, column) !== undefined;
   }
 
   /** Bounds of the cells holding something (a value, a spilled value or an input), or null. */
@@ -76,6 +163,12 @@ export class Sheet {
     let left = Infinity;
     let bottom = -Infinity;
     let right = -Infinity;
+    if (this.base && this.base.rows > 0 && this.base.columns > 0) {
+      top = 1;
+      left = 1;
+      bottom = this.base.rows;
+      right = this.base.columns;
+    }
     for (const [k, c] of this.cells) {
       if (c.input === null && (c.value === null || c.value === "")) continue;
       const r = rowOf(k);
@@ -226,6 +319,20 @@ export class Workbook {
     this.listeners.push(f);
   }
 
+  private readonly editListeners: ((sheet: Sheet, area: Address) => void)[] = [];
+
+  /** Called when cells are typed or cleared (not when formulas recalculate): the host's worksheet change event. */
+  onEdit(f: (sheet: Sheet, area: Address) => void): () => void {
+    this.editListeners.push(f);
+    return () => {
+      const i = this.editListeners.indexOf(f);
+      if (i >= 0) this.editListeners.splice(i, 1);
+    };
+  }
+
+  /** Host read requests served (cells in the largest one, and its worst-case response size): what the chunked reader must keep small. */
+  readonly reads = { requests: 0, largestCells: 0, largestBytes: 0 };
+
   changed(): void {
     for (const f of this.listeners) f();
   }
@@ -234,10 +341,18 @@ export class Workbook {
   setInputs(sheet: Sheet, updates: { row: number; column: number; input: string }[]): void {
     for (const u of updates) {
       const k = key(u.row, u.column);
-      if (u.input === "") sheet.cells.delete(k);
-      else sheet.cells.set(k, { input: u.input, value: u.input.startsWith("=") ? null : literal(u.input) });
+      if (u.input === "") {
+        if (sheet.hasBase(u.row, u.column)) sheet.cells.set(k, { input: null, value: null, cleared: true });
+        else sheet.cells.delete(k);
+      } else sheet.cells.set(k, { input: u.input, value: u.input.startsWith("=") ? null : literal(u.input) });
     }
     sheet.touch();
+    if (updates.length > 0) {
+      const rows = updates.map((u) => u.row);
+      const cols = updates.map((u) => u.column);
+      const area: Address = { sheet: sheet.name, top: Math.min(...rows), left: Math.min(...cols), bottom: Math.max(...rows), right: Math.max(...cols) };
+      for (const f of [...this.editListeners]) f(sheet, area);
+    }
     this.recalc();
   }
 

@@ -1,7 +1,7 @@
 #!/usr/bin/env node
 /*
- * `npm run screenshots`: builds, then refreshes the README's pictures assets/screenshots/preview.png
- * and pane.png from the preview in headless Chromium (scripts/browser.js chooses which). The
+ * `npm run screenshots`: builds, then refreshes the README's pictures assets/screenshots/preview.png,
+ * pane.png, pane-panel.png, and the big-range path's preview-big.png and pane-big.png, from the preview in headless Chromium (scripts/browser.js chooses which). The
  * browser test takes the same pictures with the same steps (takeScreenshots) into the ignored
  * folder test-output/screenshots, so `npm test` never changes a tracked file.
  *   node scripts/screenshots.js [folder]     after a build: write the two pictures into folder
@@ -66,6 +66,36 @@ async function takeScreenshots(page, dir) {
   return files;
 }
 
+/**
+ * From a preview page on the synthetic sheet (preview.html?rows=N) whose pane has fitted the big
+ * ranges: the page with the big path's results (preview-big.png) and the pane's big section at its
+ * full height (pane-big.png).
+ * @param {import("playwright-core").Page} page
+ * @param {string} dir
+ * @returns {Promise<string[]>} the two files written
+ */
+async function takeBigScreenshots(page, dir) {
+  fs.mkdirSync(dir, { recursive: true });
+  const files = [path.join(dir, "preview-big.png"), path.join(dir, "pane-big.png")];
+  await page.evaluate(() => {
+    document.getElementById("elx-big").scrollIntoView();
+  });
+  await page.screenshot({ path: files[0] });
+  await page.locator("#elx-big").screenshot({ path: files[1] });
+  return files;
+}
+
+/** Fills the synthetic sheet's ranges, fits them and waits for the run to finish. */
+async function fitBig(page, rows) {
+  await page.fill("#elx-y", `A1:A${rows + 1}`);
+  await page.fill("#elx-x", `B1:K${rows + 1}`);
+  await page.selectOption("#elx-zeros", "drop");
+  await page.selectOption("#elx-se", "HC3");
+  const before = await page.evaluate(() => window.ElxPane.completedRuns);
+  await page.click("#elx-run");
+  await page.waitForFunction((b) => window.ElxPane.completedRuns > b, before, { timeout: 120000 });
+}
+
 /** Presses the pane's check button and waits for the run to finish. */
 async function run(page) {
   const before = await page.evaluate(() => window.ElxPane.completedRuns);
@@ -84,6 +114,11 @@ async function main() {
     await browser.page.goto(`${server.url}/preview.html`);
     await browser.page.waitForFunction(() => window.ElxPreview && window.ElxPane, null, { timeout: 20000 });
     const files = await takeScreenshots(browser.page, dir);
+    // the big-range path on the synthetic sheet
+    await browser.page.goto(`${server.url}/preview.html?rows=200000`);
+    await browser.page.waitForFunction(() => window.ElxPreview && window.ElxPane, null, { timeout: 60000 });
+    await fitBig(browser.page, 200000);
+    files.push(...(await takeBigScreenshots(browser.page, dir)));
     console.log(`Chromium: ${browser.choice.kind} (${browser.executablePath})`);
     for (const f of files) console.log(`wrote ${path.relative(process.cwd(), f)} (${fs.statSync(f).size} bytes)`);
   } finally {
@@ -99,4 +134,4 @@ if (require.main === module) {
   });
 }
 
-module.exports = { takeScreenshots, README_SHOTS };
+module.exports = { takeScreenshots, takeBigScreenshots, README_SHOTS };

@@ -167,6 +167,181 @@ export class Host {
     }).catch((e: unknown) => ({ ok: false, message: `Nothing was written: the host refused (${message(e)}).`, occupied: [], suggestion: null }) as WriteResult);
   }
 
+  /**
+   * Where a typed address lies once clipped to its sheet's used cells, without reading any value:
+   * what the pane needs to choose between one read and the chunked reader (taskpane/chunks.ts).
+   */
+  measure(text: string): Promise<Outcome<{ area: Address; requested: string; clipped: boolean }>> {
+    const parsed = parseAddress(text);
+    if (!parsed.ok) return Promise.resolve(parsed);
+    return this.guard(`"${text}"`, async (context) => {
+      const sheets = context.workbook.worksheets;
+      const sheet = parsed.value.sheet ? sheets.getItemOrNullObject(parsed.value.sheet) : sheets.getActiveWorksheet();
+      sheet.load("name");
+      await context.sync();
+      if (sheet.isNullObject) return { ok: false, message: `there is no sheet named "${parsed.value.sheet}" in this workbook` };
+      const used = sheet.getUsedRangeOrNullObject(true);
+      used.load("address");
+      await context.sync();
+      const area0: Address = { ...parsed.value, sheet: String(sheet.name) };
+      if (used.isNullObject) return { ok: false, message: `${formatAddress(area0)} is empty: the sheet ${String(sheet.name)} holds no values` };
+      const usedArea = hostAddress(used.address, "the used range");
+      const area = intersect(area0, usedArea);
+      if (!area) return { ok: false, message: `${formatAddress(area0)} is empty (the sheet's values lie in ${formatAddress({ ...usedArea, sheet: null })})` };
+      const clipped = area.top !== area0.top || area.bottom !== area0.bottom || area.left !== area0.left || area.right !== area0.right;
+      return { ok: true, value: { area, requested: text.trim(), clipped } };
+    });
+  }
+
+  /** The values only (no value types, no formulas) of several areas, in one request. */
+  readValues(areas: Address[]): Promise<Outcome<unknown[][][]>> {
+    return this.guard(areas.map((a) => formatAddress(a)).join(" and "), async (context) => {
+      const ranges = areas.map((a) => {
+        const r = context.workbook.worksheets.getItem(a.sheet as string).getRange(formatAddress(a, { sheet: false }));
+        r.load("values");
+        return r;
+      });
+      await context.sync();
+      return { ok: true, value: ranges.map((r) => r.values as unknown[][]) };
+    });
+  }
+
+  /**
+   * Watches the sheets for edits (the worksheet change event) until stop(): `changed()` gives the
+   * first edited address inside one of the areas, or null. Where the host has no change events,
+   * `watching` is false and the caller must check another way.
+   */
+  async watch(areas: Address[]): Promise<{ watching: boolean; changed: () => string | null; stop: () => Promise<void> }> {
+    let first: string | null = null;
+    const handles: { remove(): void; context?: unknown }[] = [];
+    try {
+      await this.run(async (context) => {
+        const names = [...new Set(areas.map((a) => a.sheet as string))];
+        for (const name of names) {
+          const sheet = context.workbook.worksheets.getItem(name) as unknown as { onChanged?: { add(h: (e: { address?: string }) => Promise<void>): { remove(): void; context?: unknown } } };
+          if (!sheet.onChanged) throw new Error("no change events");
+          handles.push(
+            sheet.onChanged.add(async (e) => {
+              if (first !== null) return;
+              const p = parseAddress(String(e.address ?? ""));
+              const hit = p.ok ? areas.find((a) => a.sheet === name && intersect({ ...p.value, sheet: name }, a)) : areas.find((a) => a.sheet === name);
+              if (hit) first = `${formatAddress({ sheet: name, top: p.ok ? p.value.top : hit.top, left: p.ok ? p.value.left : hit.left, bottom: p.ok ? p.value.bottom : hit.top, right: p.ok ? p.value.right : hit.left })}`;
+            }),
+          );
+        }
+        await context.sync();
+      });
+    } catch {
+      return { watching: false, changed: () => null, stop: async () => undefined };
+    }
+    return {
+      watching: true,
+      changed: () => first,
+      stop: async () => {
+        const excel = (globalThis as unknown as { Excel?: { run?: (c: unknown, b: (c: Excel.RequestContext) => Promise<void>) => Promise<void> } }).Excel;
+        for (const h of handles) {
+          try {
+            // a handler is removed in the context it was added in
+            if (h.context && excel?.run) await excel.run(h.context, async (c) => { h.remove(); await c.sync(); });
+            else h.remove();
+          } catch {
+            // the document may be closing: nothing left to stop
+          }
+        }
+      },
+    };
+  }
+
+  /** A document setting (saved with the workbook), or null. */
+  getSetting(name: string): unknown {
+    const s = documentSettings();
+    return s ? s.get(name) : null;
+  }
+
+  /** Sets and saves a document setting; false when the host has no document settings or the save failed. */
+  async setSetting(name: string, value: unknown): Promise<boolean> {
+    const s = documentSettings();
+    if (!s) return false;
+    s.set(name, value);
+    return new Promise((resolve) => s.saveAsync((r) => resolve(!r || String(r.status).toLowerCase() === "succeeded")));
+  }
+
+  /**
+   * Writes a block of plain values (numbers and texts; "" leaves a cell empty) with its top left at
+   * the anchor cell, under the same rule as writeBlock: only after checking, in the same batch, that
+   * every cell of the block is empty; otherwise nothing is written and a free place is offered.
+   */
+  writeValues(anchorText: string, rows: ValuesBlock): Promise<WriteResult> {
+    const height = rows.length;
+    const width = Math.max(1, ...rows.map((r) => r.length));
+    return this.run(async (context) => {
+      const target = await this.targetArea(context, anchorText, height, width);
+      if (!target.ok) return { ok: false, message: target.message, occupied: [], suggestion: null } as WriteResult;
+      const { sheet, area } = target.value;
+      const occupied = await this.occupiedIn(context, sheet, area, 6);
+      if (occupied.length > 0) {
+        const suggestion = await this.freePlace(context, sheet, area, { height, width, cells: [] });
+        const list = occupied.length > 5 ? `${occupied.slice(0, 5).join(", ")} and more` : occupied.join(", ");
+        return {
+          ok: false,
+          occupied,
+          suggestion,
+          message: `Nothing was written: the values block needs ${formatAddress(area, { sheet: false })} (${plural(height, "row")} × ${plural(width, "column")}) and ${list} ${occupied.length === 1 ? "is" : "are"} not empty.` + (suggestion ? ` ${suggestion} is free.` : " Choose another cell."),
+        } as WriteResult;
+      }
+      const range = sheet.getRange(formatAddress(area, { sheet: false }));
+      range.values = padded(rows, width);
+      if (typeof (range as { select?: unknown }).select === "function") range.select();
+      await context.sync();
+      return { ok: true, address: formatAddress(area) } as WriteResult;
+    }).catch((e: unknown) => ({ ok: false, message: `Nothing was written: the host refused (${message(e)}).`, occupied: [], suggestion: null }) as WriteResult);
+  }
+
+  /** Whether a values block still holds what the pane wrote (null), or why not, without writing. */
+  async stillOwn(area: Address, expected: ValuesBlock): Promise<string | null> {
+    const r = await this.rewriteOwn(area, expected, null);
+    return r.ok ? null : r.message;
+  }
+
+  /**
+   * Rewrites a values block this pane wrote, after checking, in the same request, that every cell
+   * still holds what was written there (numbers compared to the 15 significant digits a cell keeps
+   * when typed; texts exactly). When any differs, nothing is written and the cells are named.
+   */
+  rewriteOwn(area: Address, expected: ValuesBlock, next: ValuesBlock | null): Promise<WriteResult> {
+    return this.run(async (context) => {
+      const sheet = context.workbook.worksheets.getItemOrNullObject(area.sheet as string);
+      sheet.load("name");
+      await context.sync();
+      if (sheet.isNullObject) return { ok: false, message: `Nothing was written: the sheet ${area.sheet} of the block is gone.`, occupied: [], suggestion: null } as WriteResult;
+      const width = columnCount(area);
+      if (next && (next.length !== rowCount(area) || next.some((r) => r.length > width))) {
+        return { ok: false, message: `Nothing was written: the refreshed results need ${plural(next.length, "row")} × ${plural(Math.max(...next.map((r) => r.length)), "column")}, not the block's ${formatAddress(area)}. Write them as a new block.`, occupied: [], suggestion: null } as WriteResult;
+      }
+      const range = sheet.getRange(formatAddress(area, { sheet: false }));
+      range.load("values, formulas");
+      await context.sync();
+      const values = range.values as unknown[][];
+      const formulas = range.formulas as unknown as unknown[][];
+      const was = padded(expected, width);
+      const differs: string[] = [];
+      for (let i = 0; i < was.length; i++) {
+        for (let j = 0; j < width; j++) {
+          const f = formulas?.[i]?.[j];
+          const formula = typeof f === "string" && f.startsWith("=");
+          if ((formula || !sameCell(values?.[i]?.[j], was[i][j])) && differs.length < 6) differs.push(formatAddress(offsetCell({ ...area, sheet: null }, i, j)));
+        }
+      }
+      if (differs.length > 0) {
+        return { ok: false, occupied: differs, suggestion: null, message: `Nothing was written: ${differs.length > 5 ? `${differs.slice(0, 5).join(", ")} and more` : differs.join(", ")} no longer ${differs.length === 1 ? "holds" : "hold"} what the pane wrote there, so the block is not the pane's to overwrite. Clear the block and write a new one, or write the refreshed results elsewhere.` } as WriteResult;
+      }
+      if (!next) return { ok: true, address: formatAddress(area) } as WriteResult;
+      range.values = padded(next, width);
+      await context.sync();
+      return { ok: true, address: formatAddress(area) } as WriteResult;
+    }).catch((e: unknown) => ({ ok: false, message: `Nothing was written: the host refused (${message(e)}).`, occupied: [], suggestion: null }) as WriteResult);
+  }
+
   private async guard<T>(what: string, body: (context: Excel.RequestContext) => Promise<Outcome<T>>): Promise<Outcome<T>> {
     try {
       return await this.run(body);
@@ -245,6 +420,33 @@ export class Host {
     if (top + block.height - 1 <= MAX_ROWS) return formatAddress({ sheet: null, top, left: area.left, bottom: top, right: area.left });
     return null;
   }
+}
+
+/** A block of plain values: numbers, and texts ("" for an empty cell); rows may be shorter than the widest. */
+export type ValuesBlock = (string | number)[][];
+
+function padded(rows: ValuesBlock, width: number): (string | number)[][] {
+  return rows.map((r) => (r.length === width ? r : [...r, ...new Array<string>(width - r.length).fill("")]));
+}
+
+/** Whether a cell read back holds what was written (numbers to 15 significant digits, as a cell keeps them). */
+export function sameCell(now: unknown, written: string | number): boolean {
+  if (typeof written === "number") return typeof now === "number" && now.toPrecision(15) === written.toPrecision(15);
+  if (written === "") return now === "" || now === null || now === undefined;
+  return typeof now === "string" && now === written;
+}
+
+interface DocumentSettings {
+  get(name: string): unknown;
+  set(name: string, value: unknown): void;
+  saveAsync(callback: (r: { status: unknown } | undefined) => void): void;
+}
+
+/** The document's settings (Office.context.document.settings), when the host provides them. */
+function documentSettings(): DocumentSettings | null {
+  const o = (globalThis as unknown as { Office?: { context?: { document?: { settings?: DocumentSettings } } } }).Office;
+  const s = o?.context?.document?.settings;
+  return s && typeof s.get === "function" && typeof s.set === "function" ? s : null;
 }
 
 /** The host's runner: Excel.run, when the host (or the preview's stand-in) provides it. */

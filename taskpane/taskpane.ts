@@ -15,7 +15,11 @@ import { intervalPlot, normalQuantile, pathPlot, quantilePlot, residualPlot, sho
 import { CAUTIONS, formAssumptions, smearingNote, testReadings } from "./assumptions";
 import { buildBlock, type BlockItem } from "./formulas";
 import { detectRoles, instrumentParagraph, keySentence, optionSafe, roleAssumptions, roleColumns, roleOptions, type ColumnRoles, type RoleChoices } from "./roles";
-import { formatAddress } from "./address";
+import { formatAddress, parseAddress, rowCount, columnCount, type Address } from "./address";
+import { needsChunks, planChunks, readChunks, type BigPlan, type ColumnTally } from "./chunks";
+import { bigRefusal, REGISTRY_KEY, resultsHtml, specOf, specOptions, stamp, talliesHtml, valuesBlock, type BigChoices, type BigRun, type ValuesEntry } from "./bigResults";
+import { openSession } from "./bigSession";
+import type { ColumnFitResult, ColumnFitSpec } from "../functions/engine/columnFitTypes";
 // Types only: the pane reads the functions' published object at run time, never their modules.
 import type { ElasticellApi, ElasticitiesView, Outcome } from "../functions/paneApi";
 import type { Origin } from "../functions/engine/intake";
@@ -127,6 +131,32 @@ const TEMPLATE = `
   <div id="elx-status" class="elx-status" role="status" aria-live="polite"></div>
   <progress id="elx-progress" class="elx-hidden" max="1" value="0" aria-label="Progress of the check"></progress>
 </section>
+<section id="elx-big" class="elx-hidden" aria-labelledby="elx-h-big">
+  <h2 id="elx-h-big">A large range, read in blocks</h2>
+  <div id="elx-big-progress" class="elx-hidden">
+    <p id="elx-big-count" role="status" aria-live="polite"></p>
+    <label for="elx-big-read">Rows read</label> <progress id="elx-big-read" max="1" value="0"></progress>
+    <label for="elx-big-fit">Rows fitted</label> <progress id="elx-big-fit" max="1" value="0"></progress>
+    <p id="elx-big-note" class="elx-muted"></p>
+    <button type="button" id="elx-cancel">Cancel</button>
+  </div>
+  <div id="elx-big-body"></div>
+  <div id="elx-big-write" class="elx-hidden">
+    <h3>Put these results in the sheet as values</h3>
+    <p class="elx-muted">Writes the numbers above as plain values (they do not recalculate), headed by the ranges, the options, the rows used and left out and when they were computed. Only empty cells are used; refresh the block from the list below after the data change.</p>
+    <div class="elx-field">
+      <label for="elx-big-target">Top left cell of the values block</label>
+      <div class="elx-inline"><input id="elx-big-target" type="text" spellcheck="false" autocomplete="off" value="M2" />
+      <button type="button" id="elx-big-write-btn">Write values</button></div>
+    </div>
+  </div>
+  <div id="elx-big-msg" role="status" aria-live="polite"></div>
+</section>
+<section id="elx-blocks" class="elx-hidden" aria-labelledby="elx-h-blocks">
+  <h2 id="elx-h-blocks">Values blocks in this workbook</h2>
+  <div id="elx-blocks-body"></div>
+  <div id="elx-blocks-msg" role="status" aria-live="polite"></div>
+</section>
 <section id="elx-verdict" class="elx-hidden" aria-labelledby="elx-h-verdict">
   <h2 id="elx-h-verdict">These options refuse the data</h2>
   <div id="elx-verdict-body"></div>
@@ -193,7 +223,7 @@ export class Pane {
     const q = (id: string) => root.querySelector(`#${id}`) as HTMLElement;
     this.el = Object.fromEntries(
       ["elx-y", "elx-x", "elx-form", "elx-estimator", "elx-zeros", "elx-se", "elx-level", "elx-absorb", "elx-cluster", "elx-weights", "elx-instrument", "elx-roles-note", "elx-run", "elx-status", "elx-progress", "elx-check", "elx-check-body", "elx-verdict", "elx-verdict-body", "elx-write-what",
-        "elx-choices", "elx-choices-body", "elx-pictures", "elx-pictures-body", "elx-assume", "elx-assume-body", "elx-change", "elx-change-body", "elx-target", "elx-write-btn", "elx-write-msg", "elx-y-sel", "elx-x-sel"]
+        "elx-choices", "elx-choices-body", "elx-big", "elx-big-body", "elx-big-progress", "elx-big-count", "elx-big-read", "elx-big-fit", "elx-big-note", "elx-cancel", "elx-big-write", "elx-big-target", "elx-big-write-btn", "elx-big-msg", "elx-blocks", "elx-blocks-body", "elx-blocks-msg", "elx-pictures", "elx-pictures-body", "elx-assume", "elx-assume-body", "elx-change", "elx-change-body", "elx-target", "elx-write-btn", "elx-write-msg", "elx-y-sel", "elx-x-sel"]
         .map((id) => [id, q(id)]),
     );
     this.el["elx-y-sel"].addEventListener("click", () => void this.useSelection("elx-y"));
@@ -215,6 +245,12 @@ export class Pane {
     this.el["elx-target"].addEventListener("keydown", (e) => {
       if ((e as KeyboardEvent).key === "Enter") void this.write();
     });
+    this.el["elx-cancel"].addEventListener("click", () => this.cancelBig());
+    this.el["elx-big-write-btn"].addEventListener("click", () => void this.writeValues());
+    this.el["elx-big-target"].addEventListener("keydown", (e) => {
+      if ((e as KeyboardEvent).key === "Enter") void this.writeValues();
+    });
+    this.renderBlocks();
   }
 
   private input(id: string): HTMLInputElement {
@@ -364,6 +400,9 @@ export class Pane {
 
   /** Reads the ranges, checks them and draws everything; returns when all steps are done. */
   async run(): Promise<void> {
+    // a new check stops a big read or fit still running
+    this.cancelBig();
+    this.el["elx-big-count"].textContent = "";
     const id = ++this.runId;
     const t0 = performance.now();
     const stale = () => id !== this.runId;
@@ -390,6 +429,15 @@ export class Pane {
         this.status(this.refusal);
         return;
       }
+      // Past what a formula carries: the chunked path (taskpane/chunks.ts); else one read as always.
+      const [my, mx] = [await this.host.measure(yText), await this.host.measure(xText)];
+      if (stale()) return;
+      if (my.ok && mx.ok && needsChunks(my.value.area, mx.value.area)) {
+        clearTimeout(timer);
+        await this.runBig(my.value.area, mx.value.area, stale);
+        return;
+      }
+      this.el["elx-big"].classList.add("elx-hidden");
       step("Reading the ranges…", 0.02);
       const [y, x] = [await this.host.readAddress(yText), await this.host.readAddress(xText)];
       if (stale()) return;
@@ -463,6 +511,252 @@ export class Pane {
         this.root.setAttribute("aria-busy", "false");
         this.completedRuns++;
       }
+    }
+  }
+
+  /** The last big fit (for the values block, tests and the benchmark), and its timings. */
+  big: BigRun | null = null;
+  lastBigTimings: { read: number; check: number; fit: number; pictures: number; total: number; blocks: number } | null = null;
+  /** Why the last big run stopped ("" when it fitted). */
+  bigStopped = "";
+  completedRefreshes = 0;
+  private cancelCurrent: (() => void) | null = null;
+
+  /** Cancel: stops the reading and the fit; nothing is written. */
+  cancelBig(): void {
+    if (this.cancelCurrent) this.cancelCurrent();
+  }
+
+  private bigChoices(): BigChoices {
+    const c = this.choices();
+    return { form: c.form, estimator: c.estimator, se: c.se, zeros: c.zeros, level: c.level, roles: c.roles ?? [] };
+  }
+
+  private bigProgress(read: number, fitted: number, total: number): void {
+    (this.el["elx-big-read"] as HTMLProgressElement).value = total ? read / total : 0;
+    (this.el["elx-big-fit"] as HTMLProgressElement).value = total ? fitted / total : 0;
+    this.el["elx-big-count"].textContent = `Rows read: ${fmt(read)} of ${fmt(total)}; rows fitted: ${fmt(fitted)} of ${fmt(total)}.`;
+  }
+
+  /**
+   * Reads the ranges in blocks into a big-fit session and fits them, with progress and Cancel.
+   * Resolves with the run, or with the sentence saying why there is none (cancelled: Cancel).
+   */
+  private async fitBig(yArea: Address, xArea: Address, choose: (plan: BigPlan) => ColumnFitSpec): Promise<{ ok: true; run: BigRun; timings: { read: number; fit: number } } | { ok: false; message: string; cancelled: boolean }> {
+    const t0 = performance.now();
+    let cancelled = false;
+    const stopped = { ok: false as const, message: "", cancelled: true };
+    // Cancel works from the first moment: before the session opens it only sets the flag
+    this.cancelCurrent = () => {
+      cancelled = true;
+    };
+    this.el["elx-big-count"].textContent = "Reading the header rows…";
+    this.el["elx-big-progress"].classList.remove("elx-hidden");
+    (this.el["elx-cancel"] as HTMLButtonElement).disabled = false;
+    const plan = await planChunks(this.host, yArea, xArea);
+    if (cancelled) return stopped;
+    if (!plan.ok) {
+      this.cancelCurrent = null;
+      return { ok: false, message: plan.message, cancelled: false };
+    }
+    const spec = choose(plan.value);
+    const total = plan.value.rows;
+    let read = 0;
+    const session = await openSession(total);
+    if (cancelled) {
+      session.close();
+      return stopped;
+    }
+    this.cancelCurrent = () => {
+      cancelled = true;
+      session.cancel();
+    };
+    this.el["elx-big-note"].textContent = session.fallbackNote
+      ? session.fallbackNote
+      : `${fmt(total)} rows in blocks of ${fmt(plan.value.rowsPerBlock)}; ${session.workers > 0 ? `fitted by ${session.workers} worker${session.workers === 1 ? "" : "s"} off the page` : "fitted in this page, between steps"}.`;
+    this.bigProgress(0, 0, total);
+    try {
+      const outcome = await readChunks(this.host, plan.value, (chunk) => session.append(chunk), {
+        progress: (r) => {
+          read = r;
+          this.bigProgress(r, 0, total);
+        },
+        cancelled: () => cancelled,
+      });
+      if (cancelled || (!outcome.ok && outcome.reason === "cancelled")) return { ok: false, message: "", cancelled: true };
+      if (!outcome.ok) return { ok: false, message: outcome.message, cancelled: false };
+      const t1 = performance.now();
+      const fitted = await session.fit(spec, (done, all) => this.bigProgress(read, Math.min(total, Math.round((done / Math.max(1, all)) * total)), total));
+      if (cancelled || (!fitted.ok && fitted.cancelled)) return { ok: false, message: "", cancelled: true };
+      if (!fitted.ok) return { ok: false, message: fitted.message.replace(/\.$/, ""), cancelled: false };
+      this.bigProgress(total, total, total);
+      const result: ColumnFitResult = fitted.value;
+      const run: BigRun = {
+        plan: plan.value, spec, result, tallies: outcome.tallies as ColumnTally[],
+        y: formatAddress(yArea), x: formatAddress(xArea), computedAt: stamp(), workers: session.workers, fallbackNote: session.fallbackNote,
+      };
+      return { ok: true, run, timings: { read: t1 - t0, fit: performance.now() - t1 } };
+    } finally {
+      this.cancelCurrent = null;
+      (this.el["elx-cancel"] as HTMLButtonElement).disabled = true;
+      session.close();
+    }
+  }
+
+  /** The big path of run(): checks the choices, reads, fits and shows the results. */
+  private async runBig(yArea: Address, xArea: Address, stale: () => boolean): Promise<void> {
+    const t0 = performance.now();
+    this.big = null;
+    this.bigStopped = "";
+    this.el["elx-big-write"].classList.add("elx-hidden");
+    this.el["elx-big-msg"].textContent = "";
+    this.el["elx-big-body"].innerHTML = "";
+    this.el["elx-big"].classList.remove("elx-hidden");
+    const cells = rowCount(yArea) * (columnCount(yArea) + columnCount(xArea));
+    const formulasNote = `${formatAddress(yArea)} and ${formatAddress(xArea)} hold ${fmt(cells)} cells, more than one formula carries (about 250,000 cells, 25,000 rows × 10 columns), so there are no formulas to write: write the results as values below.`;
+    const refusal = bigRefusal(this.bigChoices(), cells);
+    if (refusal) {
+      this.refusal = `${refusal}.`;
+      this.el["elx-big-body"].innerHTML = `<p id="elx-big-refused" class="elx-message elx-refused">${esc(refusal)}.</p>`;
+      this.status("Nothing was read: the chosen options are not among those a range this large takes (see below).");
+      return;
+    }
+    this.status(`Reading ${formatAddress(yArea)} and ${formatAddress(xArea)} in blocks…`);
+    const c = this.bigChoices();
+    const r = await this.fitBig(yArea, xArea, (plan) => specOf(c, plan));
+    if (stale()) return;
+    this.el["elx-big-progress"].classList.add("elx-hidden");
+    this.refusal = formulasNote;
+    if (!r.ok) {
+      this.bigStopped = r.cancelled ? "cancelled" : r.message;
+      const text = r.cancelled ? "Stopped (Cancel): nothing was fitted and nothing was written." : `No fit: ${r.message}.`;
+      this.el["elx-big-body"].innerHTML = `<p id="elx-big-stopped" class="elx-message ${r.cancelled ? "elx-warned" : "elx-refused"}">${esc(text)}</p>`;
+      this.status(text);
+      return;
+    }
+    const t1 = performance.now();
+    this.big = r.run;
+    // the check first, then (after a turn for the page) the results and pictures
+    this.el["elx-big-body"].innerHTML = `<h3>Data check</h3>${talliesHtml(r.run.tallies, r.run.spec.form)}<h3>Fit</h3><div id="elx-big-results"><p class="elx-muted">Drawing…</p></div>`;
+    await yieldToPage();
+    if (stale()) return;
+    (this.el["elx-big-body"].querySelector("#elx-big-results") as HTMLElement).innerHTML = resultsHtml(r.run);
+    this.el["elx-big-write"].classList.remove("elx-hidden");
+    this.el["elx-write-what"].textContent = formulasNote;
+    const t2 = performance.now();
+    this.lastBigTimings = { read: r.timings.read, check: 0, fit: r.timings.fit, pictures: t2 - t1, total: t2 - t0, blocks: Math.ceil(r.run.plan.rows / r.run.plan.rowsPerBlock) };
+    this.status(`Fitted ${fmt(r.run.result.n)} of ${fmt(r.run.result.rowsRead)} rows, read in blocks of ${fmt(r.run.plan.rowsPerBlock)}.`);
+  }
+
+  /** The values blocks this pane wrote, from the document's settings. */
+  valuesEntries(): ValuesEntry[] {
+    const v = this.host.getSetting(REGISTRY_KEY);
+    return Array.isArray(v) ? (v as ValuesEntry[]) : [];
+  }
+
+  private renderBlocks(): void {
+    const list = this.valuesEntries();
+    if (list.length === 0) {
+      this.el["elx-blocks"].classList.add("elx-hidden");
+      return;
+    }
+    this.el["elx-blocks-body"].innerHTML = `<ul id="elx-blocks-list">${list.map((e) => `<li data-block="${esc(e.id)}"><strong>${esc(e.area)}</strong>: ${esc(e.spec.yName)} on ${esc(e.spec.xNames.join(", "))} (${esc(specOptions(e.spec))}), y ${esc(e.y)}, x ${esc(e.x)}; computed ${esc(e.computedAt)}. <button type="button" data-refresh="${esc(e.id)}">Refresh ${esc(e.area)}</button></li>`).join("")}</ul>`;
+    this.el["elx-blocks"].classList.remove("elx-hidden");
+    for (const b of Array.from(this.el["elx-blocks-body"].querySelectorAll("button[data-refresh]"))) {
+      b.addEventListener("click", () => void this.refreshBlock((b as HTMLElement).dataset.refresh as string));
+    }
+  }
+
+  /** Writes the last big fit as a values block at the target cell (only into empty cells) and lists it. */
+  async writeValues(target?: string): Promise<void> {
+    const msg = this.el["elx-big-msg"];
+    const show = (cls: string, html: string) => {
+      msg.className = `elx-message ${cls}`;
+      msg.innerHTML = html;
+    };
+    const run = this.big;
+    try {
+      if (!run) {
+        show("elx-refused", "Fit a large range first (Check ranges and model); the values block holds that fit's results.");
+        return;
+      }
+      const anchor = (target ?? this.input("elx-big-target").value).trim();
+      if (target) this.input("elx-big-target").value = target;
+      const block = valuesBlock(run);
+      const r = await this.host.writeValues(anchor, block);
+      if (!r.ok) {
+        show("elx-refused", `<p id="elx-values-refusal">${esc(r.message)}</p>` + (r.suggestion ? `<button type="button" id="elx-values-there">Write at ${esc(r.suggestion)} instead</button>` : ""));
+        const there = msg.querySelector("#elx-values-there");
+        if (there && r.suggestion) {
+          const place = r.suggestion;
+          there.addEventListener("click", () => void this.writeValues(place));
+        }
+        return;
+      }
+      const entry: ValuesEntry = { id: `${Date.now().toString(36)}-${Math.floor(Math.random() * 1e6).toString(36)}`, area: r.address, y: run.y, x: run.x, spec: run.spec, computedAt: run.computedAt, written: block };
+      const saved = await this.host.setSetting(REGISTRY_KEY, [...this.valuesEntries().filter((e) => e.area !== entry.area), entry]);
+      this.renderBlocks();
+      show("elx-done", `Values written at ${esc(r.address)}: the fit of ${esc(run.y)} on ${esc(run.x)} as it is now. They do not recalculate; refresh the block from the list of values blocks after the data change.${saved ? "" : " The workbook's settings could not be saved, so the pane will not list this block after the workbook is closed."}`);
+    } finally {
+      this.completedWrites++;
+    }
+  }
+
+  /**
+   * Reads and fits a listed block's ranges again and rewrites its cells, only after checking that
+   * they still hold what the pane wrote (else nothing is written and the pane says why).
+   */
+  async refreshBlock(id: string): Promise<void> {
+    const msg = this.el["elx-blocks-msg"];
+    const show = (cls: string, html: string) => {
+      msg.className = `elx-message ${cls}`;
+      msg.innerHTML = html;
+    };
+    try {
+      const entry = this.valuesEntries().find((e) => e.id === id);
+      if (!entry) {
+        show("elx-refused", "That values block is no longer listed.");
+        return;
+      }
+      const [y, x, area] = [parseAddress(entry.y), parseAddress(entry.x), parseAddress(entry.area)];
+      if (!y.ok || !x.ok || !area.ok) {
+        show("elx-refused", `The block's addresses (${esc(entry.area)}) cannot be read; write a new block.`);
+        return;
+      }
+      // before reading anything: is the block still the pane's?
+      const own = await this.host.stillOwn(area.value, entry.written);
+      if (own) {
+        show("elx-refused", `<p id="elx-refresh-refusal">${esc(own)}</p>`);
+        return;
+      }
+      const [my, mx] = [await this.host.measure(entry.y), await this.host.measure(entry.x)];
+      if (!my.ok || !mx.ok) {
+        show("elx-refused", `Nothing was written: ${esc(!my.ok ? my.message : (mx as { message: string }).message)}.`);
+        return;
+      }
+      // the block's own ranges as they were given (a grown sheet is not taken in silently)
+      const yArea = intersectTo(y.value, my.value.area);
+      const xArea = intersectTo(x.value, mx.value.area);
+      this.el["elx-big"].classList.remove("elx-hidden");
+      show("elx-muted", `Refreshing ${esc(entry.area)}: reading ${esc(entry.y)} and ${esc(entry.x)} again…`);
+      const r = await this.fitBig(yArea, xArea, (plan) => ({ ...entry.spec, yName: plan.yName, xNames: plan.xNames, firstRow: plan.firstRow }));
+      this.el["elx-big-progress"].classList.add("elx-hidden");
+      if (!r.ok) {
+        show(r.cancelled ? "elx-warned" : "elx-refused", r.cancelled ? `Stopped (Cancel): ${esc(entry.area)} was not changed.` : `Nothing was written: ${esc(r.message)}.`);
+        return;
+      }
+      const next = valuesBlock(r.run);
+      const w = await this.host.rewriteOwn(area.value, entry.written, next);
+      if (!w.ok) {
+        show("elx-refused", `<p id="elx-refresh-refusal">${esc(w.message)}</p>`);
+        return;
+      }
+      const updated: ValuesEntry = { ...entry, spec: r.run.spec, computedAt: r.run.computedAt, written: next };
+      await this.host.setSetting(REGISTRY_KEY, this.valuesEntries().map((e) => (e.id === id ? updated : e)));
+      this.renderBlocks();
+      show("elx-done", `Refreshed ${esc(entry.area)}: ${esc(fmt(r.run.result.n))} rows used, computed ${esc(r.run.computedAt)}.`);
+    } finally {
+      this.completedRefreshes++;
     }
   }
 
@@ -735,6 +1029,11 @@ export class Pane {
     };
     const s = this.state;
     const eng = engine();
+    if (!s && this.big) {
+      this.completedWrites++;
+      show("elx-refused", `${esc(this.refusal)}`);
+      return;
+    }
     if (!s || !eng) {
       this.completedWrites++;
       show("elx-refused", this.refusal
@@ -783,6 +1082,11 @@ export class Pane {
       (there as HTMLElement).focus();
     }
   }
+}
+
+/** The given area cut to the used one (kept on the given area's sheet). */
+function intersectTo(given: Address, used: Address): Address {
+  return { sheet: used.sheet, top: Math.max(given.top, used.top), left: Math.max(given.left, used.left), bottom: Math.min(given.bottom, used.bottom), right: Math.min(given.right, used.right) };
 }
 
 /** A formula the writer plans: its id, label, extra arguments (as formula text and as values) and own options. */
