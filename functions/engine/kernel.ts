@@ -80,7 +80,7 @@ export const jsKernel: Kernel = {
 interface KernelExports {
   memory: WebAssembly.Memory;
   heapBase(): number;
-  reduceBlock(pT: number, pC: number, pTau: number, k: number, m: number, stride: number): void;
+  reduceBlock(pT: number, pC: number, pTau: number, k: number, m: number, stride: number, pW: number): void;
 }
 
 /** Workspaces larger than this (k above about 1,400) use the JavaScript kernel instead of growing the module's memory further. */
@@ -104,7 +104,8 @@ function wasmKernelOf(x: KernelExports): Kernel {
       const pT = base;
       const pTau = align(pT + 8 * k1 * k1);
       const pC = align(pTau + 8 * k);
-      const end = pC + 8 * k1 * rows;
+      const pW = align(pC + 8 * k1 * rows);
+      const end = pW + 8 * (k1 + 4);
       if (end > MAX_WASM_BYTES) return jsKernel.qrWorkspace(k, rows);
       const have = x.memory.buffer.byteLength;
       if (end > have) x.memory.grow(Math.ceil((end - have) / PAGE));
@@ -115,7 +116,7 @@ function wasmKernelOf(x: KernelExports): Kernel {
       T.fill(0);
       tau.fill(0);
       C.fill(0);
-      return { T, C, tau, reduce: (m: number) => x.reduceBlock(pT, pC, pTau, k, m, rows) };
+      return { T, C, tau, reduce: (m: number) => x.reduceBlock(pT, pC, pTau, k, m, rows, pW) };
     },
   };
 }

@@ -68,11 +68,103 @@ function scale(a: usize, m: i32, s: f64): void {
 }
 
 /**
+ * dot() for four columns b0..b3 at once against the same a: each column keeps its own two
+ * accumulators and its own order of operations (so each result is dot(a, bq, m, sq) exactly), while
+ * the four independent chains of additions keep the processor busy where one chain would wait on
+ * the latency of the previous addition. Results go to out[0..3].
+ */
+// @ts-ignore: decorator
+@inline
+function dot4(a: usize, b: usize, step: usize, m: i32, p: usize): void {
+  const b1 = b + step;
+  const b2 = b1 + step;
+  const b3 = b2 + step;
+  let x0 = f64x2.replace_lane(f64x2.splat(0), 0, load<f64>(p));
+  let x1 = f64x2.replace_lane(f64x2.splat(0), 0, load<f64>(p, 8));
+  let x2 = f64x2.replace_lane(f64x2.splat(0), 0, load<f64>(p, 16));
+  let x3 = f64x2.replace_lane(f64x2.splat(0), 0, load<f64>(p, 24));
+  let y0 = f64x2.splat(0);
+  let y1 = f64x2.splat(0);
+  let y2 = f64x2.splat(0);
+  let y3 = f64x2.splat(0);
+  let i = 0;
+  for (; i + 3 < m; i += 4) {
+    const o = <usize>i << 3;
+    const v = v128.load(a + o);
+    const u = v128.load(a + o, 16);
+    x0 = f64x2.add(x0, f64x2.mul(v, v128.load(b + o)));
+    y0 = f64x2.add(y0, f64x2.mul(u, v128.load(b + o, 16)));
+    x1 = f64x2.add(x1, f64x2.mul(v, v128.load(b1 + o)));
+    y1 = f64x2.add(y1, f64x2.mul(u, v128.load(b1 + o, 16)));
+    x2 = f64x2.add(x2, f64x2.mul(v, v128.load(b2 + o)));
+    y2 = f64x2.add(y2, f64x2.mul(u, v128.load(b2 + o, 16)));
+    x3 = f64x2.add(x3, f64x2.mul(v, v128.load(b3 + o)));
+    y3 = f64x2.add(y3, f64x2.mul(u, v128.load(b3 + o, 16)));
+  }
+  let t0 = f64x2.extract_lane(x0, 0);
+  let t1 = f64x2.extract_lane(x1, 0);
+  let t2 = f64x2.extract_lane(x2, 0);
+  let t3 = f64x2.extract_lane(x3, 0);
+  for (; i < m; i++) {
+    const o = <usize>i << 3;
+    const v = load<f64>(a + o);
+    t0 += v * load<f64>(b + o);
+    t1 += v * load<f64>(b1 + o);
+    t2 += v * load<f64>(b2 + o);
+    t3 += v * load<f64>(b3 + o);
+  }
+  store<f64>(p, t0 + f64x2.extract_lane(x0, 1) + (f64x2.extract_lane(y0, 0) + f64x2.extract_lane(y0, 1)));
+  store<f64>(p, t1 + f64x2.extract_lane(x1, 1) + (f64x2.extract_lane(y1, 0) + f64x2.extract_lane(y1, 1)), 8);
+  store<f64>(p, t2 + f64x2.extract_lane(x2, 1) + (f64x2.extract_lane(y2, 0) + f64x2.extract_lane(y2, 1)), 16);
+  store<f64>(p, t3 + f64x2.extract_lane(x3, 1) + (f64x2.extract_lane(y3, 0) + f64x2.extract_lane(y3, 1)), 24);
+}
+
+/** axpy() for four columns b0..b3 with factors w[0..3]: one load of a serves the four. */
+// @ts-ignore: decorator
+@inline
+function axpy4(a: usize, b: usize, step: usize, m: i32, p: usize): void {
+  const b1 = b + step;
+  const b2 = b1 + step;
+  const b3 = b2 + step;
+  const w0 = load<f64>(p);
+  const w1 = load<f64>(p, 8);
+  const w2 = load<f64>(p, 16);
+  const w3 = load<f64>(p, 24);
+  const W0 = f64x2.splat(w0);
+  const W1 = f64x2.splat(w1);
+  const W2 = f64x2.splat(w2);
+  const W3 = f64x2.splat(w3);
+  let i = 0;
+  for (; i + 1 < m; i += 2) {
+    const o = <usize>i << 3;
+    const v = v128.load(a + o);
+    v128.store(b + o, f64x2.sub(v128.load(b + o), f64x2.mul(W0, v)));
+    v128.store(b1 + o, f64x2.sub(v128.load(b1 + o), f64x2.mul(W1, v)));
+    v128.store(b2 + o, f64x2.sub(v128.load(b2 + o), f64x2.mul(W2, v)));
+    v128.store(b3 + o, f64x2.sub(v128.load(b3 + o), f64x2.mul(W3, v)));
+  }
+  if (i < m) {
+    const o = <usize>i << 3;
+    const v = load<f64>(a + o);
+    store<f64>(b + o, load<f64>(b + o) - w0 * v);
+    store<f64>(b1 + o, load<f64>(b1 + o) - w1 * v);
+    store<f64>(b2 + o, load<f64>(b2 + o) - w2 * v);
+    store<f64>(b3 + o, load<f64>(b3 + o) - w3 * v);
+  }
+}
+
+/**
  * One block of the row-blocked Householder QR: the m rows of the k + 1 columns at pC (the scaled
  * design and y) are reduced against the running triangle T (row-major (k+1)×(k+1) at pT). On return
  * column j of C holds reflector j below its implicit leading 1 and tau[j] its factor (0: identity).
+ * pW: scratch for k + 4 doubles.
+ *
+ * For reflector j the JavaScript kernel takes the later columns c one at a time: w = t·(T_jc + v·C_c),
+ * T_jc −= w, C_c −= w·v. Column c's dot product reads C_c before its own update and no other
+ * column's, so here all the dot products come first (four columns at a time), then all the updates:
+ * the same operations on every number, in the same order.
  */
-export function reduceBlock(pT: usize, pC: usize, pTau: usize, k: i32, m: i32, stride: i32): void {
+export function reduceBlock(pT: usize, pC: usize, pTau: usize, k: i32, m: i32, stride: i32, pW: usize): void {
   const k1 = k + 1;
   const colBytes = <usize>stride << 3;
   for (let j = 0; j < k; j++) {
@@ -91,12 +183,23 @@ export function reduceBlock(pT: usize, pC: usize, pTau: usize, k: i32, m: i32, s
     scale(cj, m, 1 / v0);
     store<f64>(tj + (<usize>j << 3), beta);
     store<f64>(pTau + (<usize>j << 3), t);
-    for (let c = j + 1; c < k1; c++) {
-      const cc = pC + <usize>c * colBytes;
-      const tjc = tj + (<usize>c << 3);
-      const w = t * dot(cj, cc, m, load<f64>(tjc));
-      store<f64>(tjc, load<f64>(tjc) - w);
-      axpy(cj, cc, m, w);
+    // w_c = t·(T_jc + v·C_c) for every later column c, in pW[c]
+    for (let c = j + 1; c < k1; c++) store<f64>(pW + (<usize>c << 3), load<f64>(tj + (<usize>c << 3)));
+    let c = j + 1;
+    for (; c + 3 < k1; c += 4) dot4(cj, pC + <usize>c * colBytes, colBytes, m, pW + (<usize>c << 3));
+    for (; c < k1; c++) {
+      const pw = pW + (<usize>c << 3);
+      store<f64>(pw, dot(cj, pC + <usize>c * colBytes, m, load<f64>(pw)));
     }
+    for (c = j + 1; c < k1; c++) {
+      const pw = pW + (<usize>c << 3);
+      const w = t * load<f64>(pw);
+      store<f64>(pw, w);
+      const tjc = tj + (<usize>c << 3);
+      store<f64>(tjc, load<f64>(tjc) - w);
+    }
+    c = j + 1;
+    for (; c + 3 < k1; c += 4) axpy4(cj, pC + <usize>c * colBytes, colBytes, m, pW + (<usize>c << 3));
+    for (; c < k1; c++) axpy(cj, pC + <usize>c * colBytes, m, load<f64>(pW + (<usize>c << 3)));
   }
 }
