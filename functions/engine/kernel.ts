@@ -6,8 +6,8 @@
  *   scripts/build-wasm.js into wasm/kernelBytes.ts), bitwise equal to "js" because every sum keeps
  *   the same order of operations (test/engine/kernel.test.ts).
  *
- * The WebAssembly module is compiled synchronously on first use (it is under 1 KB, well below the
- * size browsers allow for synchronous compilation on a page's main thread). Where WebAssembly or
+ * The WebAssembly module is compiled synchronously on first use (it is under 4 KB, the size browsers
+ * allow for synchronous compilation on a page's main thread; test/engine/kernel.test.ts keeps it so). Where WebAssembly or
  * its SIMD instructions are missing, or the page's content security policy refuses compilation
  * (it needs 'wasm-unsafe-eval'), the JavaScript kernel is used; the engine stays synchronous and
  * gives the same numbers either way. DEVELOPERS.md describes the build and the choice of default.
@@ -34,10 +34,53 @@ export interface QrWorkspace {
   reduce(m: number): void;
 }
 
+/**
+ * Buffers of a pass over the rows of Q = X_s R⁻¹ (covariance.ts), block by block. Z holds k columns
+ * of `rows` doubles (column j at j·rows), w `rows` weights, M a row-major k×k sum (zeroed). Valid
+ * until the next workspace call of the same kernel.
+ */
+export interface QWorkspace {
+  Z: Float64Array;
+  w: Float64Array;
+  M: Float64Array;
+  /** Rows start … start+m−1 of Q into Z: z_j = (x_j/s_j − Σ_{l<j} R_lj z_l)/R_jj. */
+  qRows(X: Float64Array[], start: number, m: number): void;
+  /** M_ab += Σ_{i<m} w_i z_ai z_bi for b ≥ a (the upper triangle of a sandwich's meat). */
+  meat(m: number): void;
+}
+
 export interface Kernel {
   readonly name: KernelName;
   /** Zeroed buffers for a blocked QR of k columns and y, with blocks of `rows` rows. */
   qrWorkspace(k: number, rows: number): QrWorkspace;
+  /** Buffers for passes over the rows of Q with the factor R (row-major k×k) and inv_j = 1/s_j. */
+  qWorkspace(R: Float64Array, inv: Float64Array, k: number, rows: number): QWorkspace;
+}
+
+/** Rows start … start+m−1 of Q into Z (column j at j·rows), as whole-block vector operations. */
+function jsQRows(X: Float64Array[], R: Float64Array, inv: Float64Array, k: number, rows: number, start: number, m: number, Z: Float64Array): void {
+  for (let j = 0; j < k; j++) {
+    const o = j * rows;
+    const src = X[j];
+    const s = inv[j];
+    for (let i = 0; i < m; i++) Z[o + i] = src[start + i] * s;
+    // two earlier columns per pass: half the passes over the block
+    let l = 0;
+    for (; l + 1 < j; l += 2) {
+      const r0 = R[l * k + j];
+      const r1 = R[(l + 1) * k + j];
+      const o0 = l * rows;
+      const o1 = o0 + rows;
+      for (let i = 0; i < m; i++) Z[o + i] -= r0 * Z[o0 + i] + r1 * Z[o1 + i];
+    }
+    if (l < j) {
+      const r0 = R[l * k + j];
+      const o0 = l * rows;
+      for (let i = 0; i < m; i++) Z[o + i] -= r0 * Z[o0 + i];
+    }
+    const d = 1 / R[j * k + j];
+    for (let i = 0; i < m; i++) Z[o + i] *= d;
+  }
 }
 
 /** The loops in plain JavaScript. */
@@ -75,15 +118,38 @@ export const jsKernel: Kernel = {
     };
     return { T, C, tau, reduce };
   },
+  qWorkspace(R: Float64Array, inv: Float64Array, k: number, rows: number): QWorkspace {
+    const Z = new Float64Array(k * rows);
+    const W = new Float64Array(k * rows);
+    const w = new Float64Array(rows);
+    const M = new Float64Array(k * k);
+    return {
+      Z,
+      w,
+      M,
+      qRows: (X, start, m) => jsQRows(X, R, inv, k, rows, start, m, Z),
+      meat(m: number): void {
+        for (let a = 0; a < k; a++) {
+          const o = a * rows;
+          for (let i = 0; i < m; i++) W[o + i] = w[i] * Z[o + i];
+        }
+        for (let a = 0; a < k; a++) {
+          for (let b = a; b < k; b++) M[a * k + b] += dotBlock(W, a * rows, Z, b * rows, m);
+        }
+      },
+    };
+  },
 };
 
 interface KernelExports {
   memory: WebAssembly.Memory;
   heapBase(): number;
   reduceBlock(pT: number, pC: number, pTau: number, k: number, m: number, stride: number, pW: number): void;
+  qRowsBlock(pZ: number, pR: number, k: number, m: number, stride: number): void;
+  meatBlock(pZ: number, pw: number, pWs: number, pM: number, pS: number, k: number, m: number, stride: number): void;
 }
 
-/** Workspaces larger than this (k above about 1,400) use the JavaScript kernel instead of growing the module's memory further. */
+/** Workspaces larger than this (k in the thousands) use the JavaScript kernel instead of growing the module's memory further. */
 const MAX_WASM_BYTES = 64 * 1024 * 1024;
 const PAGE = 65536;
 
@@ -97,26 +163,70 @@ function hexBytes(hex: string): Uint8Array<ArrayBuffer> {
 function wasmKernelOf(x: KernelExports): Kernel {
   const base = x.heapBase();
   const align = (b: number) => (b + 15) & ~15;
+  let generation = 0;
+  /**
+   * Views of `doubles` consecutive regions from the module's memory, growing it when needed
+   * (growth detaches every earlier view, so a workspace is valid only until the next one: each
+   * checks its generation before use and throws rather than read a detached view).
+   */
+  const regions = (sizes: number[]): { views: Float64Array[]; offsets: number[]; check: () => void } | null => {
+    const offsets: number[] = [];
+    let end = base;
+    for (const n of sizes) {
+      offsets.push(end);
+      end = align(end + 8 * n);
+    }
+    if (end > MAX_WASM_BYTES) return null;
+    const have = x.memory.buffer.byteLength;
+    if (end > have) x.memory.grow(Math.ceil((end - have) / PAGE));
+    const buf = x.memory.buffer;
+    const views = sizes.map((n, i) => new Float64Array(buf, offsets[i], n));
+    for (const v of views) v.fill(0);
+    const mine = ++generation;
+    const check = () => {
+      if (mine !== generation) throw new Error("a WebAssembly kernel workspace was used after a newer one was made");
+    };
+    return { views, offsets, check };
+  };
   return {
     name: "wasm",
     qrWorkspace(k: number, rows: number): QrWorkspace {
       const k1 = k + 1;
-      const pT = base;
-      const pTau = align(pT + 8 * k1 * k1);
-      const pC = align(pTau + 8 * k);
-      const pW = align(pC + 8 * k1 * rows);
-      const end = pW + 8 * (k1 + 4);
-      if (end > MAX_WASM_BYTES) return jsKernel.qrWorkspace(k, rows);
-      const have = x.memory.buffer.byteLength;
-      if (end > have) x.memory.grow(Math.ceil((end - have) / PAGE));
-      const buf = x.memory.buffer; // after any growth: views of the old buffer are detached
-      const T = new Float64Array(buf, pT, k1 * k1);
-      const tau = new Float64Array(buf, pTau, k);
-      const C = new Float64Array(buf, pC, k1 * rows);
-      T.fill(0);
-      tau.fill(0);
-      C.fill(0);
-      return { T, C, tau, reduce: (m: number) => x.reduceBlock(pT, pC, pTau, k, m, rows, pW) };
+      const r = regions([k1 * k1, k, k1 * rows, k1 + 4]);
+      if (!r) return jsKernel.qrWorkspace(k, rows);
+      const [T, tau, C] = r.views;
+      const [pT, pTau, pC, pW] = r.offsets;
+      const reduce = (m: number): void => {
+        r.check();
+        x.reduceBlock(pT, pC, pTau, k, m, rows, pW);
+      };
+      return { T, C, tau, reduce };
+    },
+    qWorkspace(R: Float64Array, inv: Float64Array, k: number, rows: number): QWorkspace {
+      const r = regions([k * rows, k * rows, rows, k * k, k * k, 4]);
+      if (!r) return jsKernel.qWorkspace(R, inv, k, rows);
+      const [Z, , w, M, Rw] = r.views;
+      const [pZ, pWs, pw, pM, pR, pS] = r.offsets;
+      Rw.set(R);
+      return {
+        Z,
+        w,
+        M,
+        qRows(X: Float64Array[], start: number, m: number): void {
+          r.check();
+          for (let j = 0; j < k; j++) {
+            const o = j * rows;
+            const src = X[j];
+            const s = inv[j];
+            for (let i = 0; i < m; i++) Z[o + i] = src[start + i] * s;
+          }
+          x.qRowsBlock(pZ, pR, k, m, rows);
+        },
+        meat(m: number): void {
+          r.check();
+          x.meatBlock(pZ, pw, pWs, pM, pS, k, m, rows);
+        },
+      };
     },
   };
 }

@@ -189,3 +189,55 @@ describe("fallback to the JavaScript kernel", () => {
     expect(m.kernel().name).toBe("js");
   });
 });
+
+describe("rows of Q and the sandwich's meat: WebAssembly equals JavaScript bitwise", () => {
+  const rows = 256;
+  /** A well-conditioned upper-triangular R (row-major k×k) with both signs on the diagonal. */
+  function triangle(k: number, u: () => number): Float64Array {
+    const R = new Float64Array(k * k);
+    for (let i = 0; i < k; i++) for (let j = i; j < k; j++) R[i * k + j] = i === j ? (i % 3 === 1 ? -1 : 1) * (1 + u()) : u() - 0.5;
+    return R;
+  }
+  function passes(K: Kernel, X: Float64Array[], R: Float64Array, inv: Float64Array, w: Float64Array, sizes: number[]) {
+    const k = X.length;
+    const ws = K.qWorkspace(R, inv, k, rows);
+    const Zs: number[] = [];
+    let start = 0;
+    for (const m of sizes) {
+      ws.qRows(X, start, m);
+      for (let j = 0; j < k; j++) for (let i = 0; i < m; i++) Zs.push(ws.Z[j * rows + i]);
+      for (let i = 0; i < m; i++) ws.w[i] = w[start + i];
+      ws.meat(m);
+      start += m;
+    }
+    return { Z: Zs, M: Array.from(ws.M) };
+  }
+
+  it.each([
+    [1, [1]],
+    [2, [3, 256]],
+    [3, [2, 5]],
+    [4, [256, 7]],
+    [5, [1, 255, 9]],
+    [7, [256, 256, 3]],
+    [10, [256, 131, 1]],
+    [13, [64, 33]],
+  ])("k = %i, blocks of %j rows", (k, sizes) => {
+    const u = rng(100 + k);
+    const n = sizes.reduce((a, b) => a + b, 0);
+    const X = Array.from({ length: k }, (_, j) => Float64Array.from({ length: n }, () => (u() - 0.5) * 10 ** (j % 3)));
+    const inv = Float64Array.from({ length: k }, (_, j) => 1 / (1 + j + u()));
+    const w = Float64Array.from({ length: n }, (_, i) => (i % 7 === 3 ? 0 : u() * 3));
+    const R = triangle(k, u);
+    const a = passes(jsKernel, X, R, inv, w, sizes);
+    const b = passes(wasm, X, R, inv, w, sizes);
+    expect({ Z: bitDiff(a.Z, b.Z), M: bitDiff(a.M, b.M) }).toEqual({ Z: [], M: [] });
+    expect(a.M.some((v) => v !== 0)).toBe(true);
+  });
+
+  it("a workspace used after a newer one was made throws instead of reading stale memory", () => {
+    const old = wasm.qWorkspace(new Float64Array([1]), new Float64Array([1]), 1, rows);
+    wasm.qrWorkspace(3, rows);
+    expect(() => old.meat(1)).toThrow(/newer one/);
+  });
+});

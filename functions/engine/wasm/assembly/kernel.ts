@@ -73,8 +73,6 @@ function scale(a: usize, m: i32, s: f64): void {
  * the four independent chains of additions keep the processor busy where one chain would wait on
  * the latency of the previous addition. Results go to out[0..3].
  */
-// @ts-ignore: decorator
-@inline
 function dot4(a: usize, b: usize, step: usize, m: i32, p: usize): void {
   const b1 = b + step;
   const b2 = b1 + step;
@@ -120,8 +118,6 @@ function dot4(a: usize, b: usize, step: usize, m: i32, p: usize): void {
 }
 
 /** axpy() for four columns b0..b3 with factors w[0..3]: one load of a serves the four. */
-// @ts-ignore: decorator
-@inline
 function axpy4(a: usize, b: usize, step: usize, m: i32, p: usize): void {
   const b1 = b + step;
   const b2 = b1 + step;
@@ -201,5 +197,106 @@ export function reduceBlock(pT: usize, pC: usize, pTau: usize, k: i32, m: i32, s
     c = j + 1;
     for (; c + 3 < k1; c += 4) axpy4(cj, pC + <usize>c * colBytes, colBytes, m, pW + (<usize>c << 3));
     for (; c < k1; c++) axpy(cj, pC + <usize>c * colBytes, m, load<f64>(pW + (<usize>c << 3)));
+  }
+}
+
+/**
+ * Rows of Q = X_s R⁻¹ for one block, in place: the k columns at pZ hold the scaled design rows
+ * (x_j/s_j); R is row-major k×k at pR. Column by column, z_j = (z_j − Σ_{l<j} R_lj z_l)/R_jj with the
+ * earlier columns taken two at a time, z_j − (R_lj z_l + R_{l+1,j} z_{l+1}), as the JavaScript
+ * kernel does; two such pairs share one pass over z_j (the same operations in the same order).
+ */
+export function qRowsBlock(pZ: usize, pR: usize, k: i32, m: i32, stride: i32): void {
+  const colBytes = <usize>stride << 3;
+  for (let j = 0; j < k; j++) {
+    const zj = pZ + <usize>j * colBytes;
+    let l = 0;
+    for (; l + 3 < j; l += 4) {
+      const r0 = load<f64>(pR + (<usize>(l * k + j) << 3));
+      const r1 = load<f64>(pR + (<usize>((l + 1) * k + j) << 3));
+      const r2 = load<f64>(pR + (<usize>((l + 2) * k + j) << 3));
+      const r3 = load<f64>(pR + (<usize>((l + 3) * k + j) << 3));
+      const z0 = pZ + <usize>l * colBytes;
+      const z1 = z0 + colBytes;
+      const z2 = z1 + colBytes;
+      const z3 = z2 + colBytes;
+      const R0 = f64x2.splat(r0);
+      const R1 = f64x2.splat(r1);
+      const R2 = f64x2.splat(r2);
+      const R3 = f64x2.splat(r3);
+      let i = 0;
+      for (; i + 1 < m; i += 2) {
+        const o = <usize>i << 3;
+        let z = f64x2.sub(v128.load(zj + o), f64x2.add(f64x2.mul(R0, v128.load(z0 + o)), f64x2.mul(R1, v128.load(z1 + o))));
+        z = f64x2.sub(z, f64x2.add(f64x2.mul(R2, v128.load(z2 + o)), f64x2.mul(R3, v128.load(z3 + o))));
+        v128.store(zj + o, z);
+      }
+      if (i < m) {
+        const o = <usize>i << 3;
+        let z = load<f64>(zj + o) - (r0 * load<f64>(z0 + o) + r1 * load<f64>(z1 + o));
+        z = z - (r2 * load<f64>(z2 + o) + r3 * load<f64>(z3 + o));
+        store<f64>(zj + o, z);
+      }
+    }
+    for (; l + 1 < j; l += 2) {
+      const r0 = load<f64>(pR + (<usize>(l * k + j) << 3));
+      const r1 = load<f64>(pR + (<usize>((l + 1) * k + j) << 3));
+      const z0 = pZ + <usize>l * colBytes;
+      const z1 = z0 + colBytes;
+      const R0 = f64x2.splat(r0);
+      const R1 = f64x2.splat(r1);
+      let i = 0;
+      for (; i + 1 < m; i += 2) {
+        const o = <usize>i << 3;
+        v128.store(zj + o, f64x2.sub(v128.load(zj + o), f64x2.add(f64x2.mul(R0, v128.load(z0 + o)), f64x2.mul(R1, v128.load(z1 + o)))));
+      }
+      if (i < m) {
+        const o = <usize>i << 3;
+        store<f64>(zj + o, load<f64>(zj + o) - (r0 * load<f64>(z0 + o) + r1 * load<f64>(z1 + o)));
+      }
+    }
+    if (l < j) axpy(pZ + <usize>l * colBytes, zj, m, load<f64>(pR + (<usize>(l * k + j) << 3)));
+    scale(zj, m, 1 / load<f64>(pR + (<usize>(j * k + j) << 3)));
+  }
+}
+
+/**
+ * The meat of a sandwich for one block: with weights w (m doubles at pw) and the rows of Q at pZ,
+ * W_a = w·z_a (k columns at pWs) and M_ab += Σ_i W_ai z_bi for b ≥ a (row-major k×k at pM), each
+ * sum in the dot product's order, started from 0 and then added to M_ab. pS: scratch for 4 doubles.
+ */
+export function meatBlock(pZ: usize, pw: usize, pWs: usize, pM: usize, pS: usize, k: i32, m: i32, stride: i32): void {
+  const colBytes = <usize>stride << 3;
+  for (let a = 0; a < k; a++) {
+    const za = pZ + <usize>a * colBytes;
+    const wa = pWs + <usize>a * colBytes;
+    let i = 0;
+    for (; i + 1 < m; i += 2) {
+      const o = <usize>i << 3;
+      v128.store(wa + o, f64x2.mul(v128.load(pw + o), v128.load(za + o)));
+    }
+    if (i < m) {
+      const o = <usize>i << 3;
+      store<f64>(wa + o, load<f64>(pw + o) * load<f64>(za + o));
+    }
+  }
+  for (let a = 0; a < k; a++) {
+    const wa = pWs + <usize>a * colBytes;
+    const ma = pM + (<usize>(a * k) << 3);
+    let b = a;
+    for (; b + 3 < k; b += 4) {
+      v128.store(pS, f64x2.splat(0));
+      v128.store(pS, f64x2.splat(0), 16);
+      dot4(wa, pZ + <usize>b * colBytes, colBytes, m, pS);
+      const mb = ma + (<usize>b << 3);
+      store<f64>(mb, load<f64>(mb) + load<f64>(pS));
+      store<f64>(mb, load<f64>(mb, 8) + load<f64>(pS, 8), 8);
+      store<f64>(mb, load<f64>(mb, 16) + load<f64>(pS, 16), 16);
+      store<f64>(mb, load<f64>(mb, 24) + load<f64>(pS, 24), 24);
+    }
+    for (; b < k; b++) {
+      const mb = ma + (<usize>b << 3);
+      store<f64>(mb, load<f64>(mb) + dot(wa, pZ + <usize>b * colBytes, m, 0));
+    }
   }
 }
