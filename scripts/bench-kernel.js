@@ -12,6 +12,8 @@
  *                 kernel's buffer and reduced against the running triangle (leastSquares.ts's
  *                 blockedQr, the part the kernel replaces)
  *   QR            leastSquares() alone (scaling, the block factorisation, the solve, the residuals)
+ *   HC3           the HC3 covariance of a fitted model: one pass over the rows of Q (leverage and
+ *                 the meat)
  *   FIT+HC3+BP    from the host's row arrays: intake, logs, the fit, HC3 errors, the studentized
  *                 Breusch–Pagan p-value (the test reuses the fit's factor), as FIT then HETEROTEST
  */
@@ -37,6 +39,7 @@ const { leastSquares } = E("leastSquares.ts");
 const { fitUncached } = E("model.ts");
 const { parseOptions } = E("options.ts");
 const { breuschPaganKoenker } = E("specTests.ts");
+const { hcCovariance } = E("covariance.ts");
 const { KERNEL_WASM_BYTES } = E("wasm/kernelBytes.ts");
 
 const argv = process.argv.slice(2);
@@ -76,13 +79,6 @@ const median = (a) => {
   return s.length % 2 ? s[(s.length - 1) / 2] : (s[s.length / 2 - 1] + s[s.length / 2]) / 2;
 };
 
-function time(fn) {
-  gc();
-  const t0 = process.hrtime.bigint();
-  fn();
-  return Number(process.hrtime.bigint() - t0) / 1e6;
-}
-
 /** The block factorisation of [X/scale | y] as leastSquares.ts's blockedQr does it, with the kernel in force. */
 function blockFactor(X, y, inv) {
   const k = X.length;
@@ -104,20 +100,39 @@ function blockFactor(X, y, inv) {
   return ws.T.slice();
 }
 
-/** Interleaved A/B runs of fn under each kernel; the first pair is a warm-up. */
+/** Wall-clock and processor time (this process, user + system) of one run, in ms. */
+function time(fn) {
+  gc();
+  const c0 = process.cpuUsage();
+  const t0 = process.hrtime.bigint();
+  fn();
+  const wall = Number(process.hrtime.bigint() - t0) / 1e6;
+  const c = process.cpuUsage(c0);
+  return { wall, cpu: (c.user + c.system) / 1e3 };
+}
+
+/**
+ * Interleaved A/B runs of fn under each kernel; the first pair is a warm-up. Medians of wall-clock
+ * and of processor time: on a shared machine the processor time of this process is the steadier
+ * figure (it leaves out the time other processes held the core), and the ratio is taken from it.
+ */
 function compare(label, fn) {
-  const t = { js: [], wasm: [] };
+  const t = { js: { wall: [], cpu: [] }, wasm: { wall: [], cpu: [] } };
   for (let r = 0; r <= RUNS; r++) {
     for (const name of r % 2 ? ["wasm", "js"] : ["js", "wasm"]) {
       useKernel(name);
       const ms = time(() => fn(r));
-      if (r > 0) t[name].push(ms);
+      if (r > 0) {
+        t[name].wall.push(ms.wall);
+        t[name].cpu.push(ms.cpu);
+      }
     }
   }
   useKernel("default");
-  const a = median(t.js);
-  const b = median(t.wasm);
-  console.log(`${label.padEnd(34)} js ${a.toFixed(1).padStart(8)} ms   wasm ${b.toFixed(1).padStart(8)} ms   js/wasm ${(a / b).toFixed(2)}×`);
+  const f = (v) => v.toFixed(1).padStart(7);
+  const a = median(t.js.cpu);
+  const b = median(t.wasm.cpu);
+  console.log(`${label.padEnd(24)} js ${f(a)} ms (wall ${f(median(t.js.wall))})   wasm ${f(b)} ms (wall ${f(median(t.wasm.wall))})   js/wasm ${(a / b).toFixed(2)}× (wall ${(median(t.js.wall) / median(t.wasm.wall)).toFixed(2)}×)`);
   return a / b;
 }
 
@@ -125,7 +140,7 @@ if (!wasmKernel()) {
   console.log("kernel: WebAssembly with SIMD is not available here; nothing to compare");
   process.exit(0);
 }
-console.log(`kernel: JavaScript vs WebAssembly SIMD (module ${KERNEL_WASM_BYTES} bytes), ${RUNS} interleaved runs each, medians; noisy on a shared machine`);
+console.log(`kernel: JavaScript vs WebAssembly SIMD (module ${KERNEL_WASM_BYTES} bytes), ${RUNS} interleaved runs each, medians of processor time (wall-clock in brackets); noisy on a shared machine`);
 for (const n of QUICK ? [100000] : [100000, 1000000]) {
   const { cols, y } = data(n, 12);
   const X = [new Float64Array(n).fill(1), ...cols.map((c) => c.map(Math.log))];
@@ -137,6 +152,12 @@ for (const n of QUICK ? [100000] : [100000, 1000000]) {
   const xRows = Array.from({ length: n }, (_, i) => cols.map((c) => c[i]));
   const yRows = Array.from({ length: n }, (_, i) => [y[i]]);
   const options = parseOptions("se=HC3");
+  if (n === 100000) {
+    const f = fitUncached({ y: yRows, x: xRows, options, yOrigin: null, xOrigin: null });
+    console.log(`(the fit ${f.qr.refined ? "is" : "is not"} refined; Breusch–Pagan ${f.qr.refined ? "factors its auxiliary regression" : "reuses the fit's factor"})`);
+  }
+  const fitted = fitUncached({ y: yRows, x: xRows, options, yOrigin: null, xOrigin: null });
+  compare(`HC3 ${n} × 10`, () => hcCovariance(fitted.covarianceInput(), "HC3", null));
   compare(`FIT+HC3+BP ${n} × 10`, (r) => {
     yRows[0][0] = y[0] * (1 + r * 1e-9);
     const fit = fitUncached({ y: yRows, x: xRows, options, yOrigin: null, xOrigin: null });

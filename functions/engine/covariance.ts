@@ -129,17 +129,15 @@ export function hcCovariance(c: CovarianceInput, type: "HC0" | "HC1" | "HC2" | "
   const fillH = needH && h === null;
   const inv = Float64Array.from(qr.scale, (s) => 1 / s);
   const ws = kernel().qWorkspace(qr.R, inv, k, BLOCK);
-  const { Z, w } = ws;
+  const { w } = ws;
   const hc1 = n / c.dfResid;
   const ones: number[] = [];
   for (let start = 0; start < n; start += BLOCK) {
     const m = Math.min(BLOCK, n - start);
     ws.qRows(X, start, m);
     if (fillH && lev) {
-      for (let j = 0; j < k; j++) {
-        const o = j * BLOCK;
-        for (let i = 0; i < m; i++) lev[start + i] += Z[o + i] * Z[o + i];
-      }
+      ws.leverage(m);
+      lev.set(ws.h.subarray(0, m), start);
     }
     for (let i = 0; i < m; i++) {
       const e = resid[start + i];

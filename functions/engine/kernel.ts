@@ -36,15 +36,19 @@ export interface QrWorkspace {
 
 /**
  * Buffers of a pass over the rows of Q = X_s R⁻¹ (covariance.ts), block by block. Z holds k columns
- * of `rows` doubles (column j at j·rows), w `rows` weights, M a row-major k×k sum (zeroed). Valid
+ * of `rows` doubles (column j at j·rows), w `rows` weights, h `rows` leverages, M a row-major k×k
+ * sum (zeroed). Valid
  * until the next workspace call of the same kernel.
  */
 export interface QWorkspace {
   Z: Float64Array;
   w: Float64Array;
+  h: Float64Array;
   M: Float64Array;
   /** Rows start … start+m−1 of Q into Z: z_j = (x_j/s_j − Σ_{l<j} R_lj z_l)/R_jj. */
   qRows(X: Float64Array[], start: number, m: number): void;
+  /** h_i = Σ_j z_ji² for i < m: the leverages of the block's rows. */
+  leverage(m: number): void;
   /** M_ab += Σ_{i<m} w_i z_ai z_bi for b ≥ a (the upper triangle of a sandwich's meat). */
   meat(m: number): void;
 }
@@ -122,12 +126,21 @@ export const jsKernel: Kernel = {
     const Z = new Float64Array(k * rows);
     const W = new Float64Array(k * rows);
     const w = new Float64Array(rows);
+    const h = new Float64Array(rows);
     const M = new Float64Array(k * k);
     return {
       Z,
       w,
+      h,
       M,
       qRows: (X, start, m) => jsQRows(X, R, inv, k, rows, start, m, Z),
+      leverage(m: number): void {
+        h.fill(0, 0, m);
+        for (let j = 0; j < k; j++) {
+          const o = j * rows;
+          for (let i = 0; i < m; i++) h[i] += Z[o + i] * Z[o + i];
+        }
+      },
       meat(m: number): void {
         for (let a = 0; a < k; a++) {
           const o = a * rows;
@@ -147,6 +160,7 @@ interface KernelExports {
   reduceBlock(pT: number, pC: number, pTau: number, k: number, m: number, stride: number, pW: number): void;
   qRowsBlock(pZ: number, pR: number, k: number, m: number, stride: number): void;
   meatBlock(pZ: number, pw: number, pWs: number, pM: number, pS: number, k: number, m: number, stride: number): void;
+  leverageBlock(pZ: number, ph: number, k: number, m: number, stride: number): void;
 }
 
 /** Workspaces larger than this (k in the thousands) use the JavaScript kernel instead of growing the module's memory further. */
@@ -203,14 +217,15 @@ function wasmKernelOf(x: KernelExports): Kernel {
       return { T, C, tau, reduce };
     },
     qWorkspace(R: Float64Array, inv: Float64Array, k: number, rows: number): QWorkspace {
-      const r = regions([k * rows, k * rows, rows, k * k, k * k, 4]);
+      const r = regions([k * rows, k * rows, rows, k * k, k * k, 4, rows]);
       if (!r) return jsKernel.qWorkspace(R, inv, k, rows);
-      const [Z, , w, M, Rw] = r.views;
-      const [pZ, pWs, pw, pM, pR, pS] = r.offsets;
+      const [Z, , w, M, Rw, , h] = r.views;
+      const [pZ, pWs, pw, pM, pR, pS, ph] = r.offsets;
       Rw.set(R);
       return {
         Z,
         w,
+        h,
         M,
         qRows(X: Float64Array[], start: number, m: number): void {
           r.check();
@@ -221,6 +236,10 @@ function wasmKernelOf(x: KernelExports): Kernel {
             for (let i = 0; i < m; i++) Z[o + i] = src[start + i] * s;
           }
           x.qRowsBlock(pZ, pR, k, m, rows);
+        },
+        leverage(m: number): void {
+          r.check();
+          x.leverageBlock(pZ, ph, k, m, rows);
         },
         meat(m: number): void {
           r.check();

@@ -190,7 +190,7 @@ describe("fallback to the JavaScript kernel", () => {
   });
 });
 
-describe("rows of Q and the sandwich's meat: WebAssembly equals JavaScript bitwise", () => {
+describe("rows of Q, leverages and the sandwich's meat: WebAssembly equals JavaScript bitwise", () => {
   const rows = 256;
   /** A well-conditioned upper-triangular R (row-major k×k) with both signs on the diagonal. */
   function triangle(k: number, u: () => number): Float64Array {
@@ -202,15 +202,18 @@ describe("rows of Q and the sandwich's meat: WebAssembly equals JavaScript bitwi
     const k = X.length;
     const ws = K.qWorkspace(R, inv, k, rows);
     const Zs: number[] = [];
+    const hs: number[] = [];
     let start = 0;
     for (const m of sizes) {
       ws.qRows(X, start, m);
       for (let j = 0; j < k; j++) for (let i = 0; i < m; i++) Zs.push(ws.Z[j * rows + i]);
+      ws.leverage(m);
+      hs.push(...ws.h.subarray(0, m));
       for (let i = 0; i < m; i++) ws.w[i] = w[start + i];
       ws.meat(m);
       start += m;
     }
-    return { Z: Zs, M: Array.from(ws.M) };
+    return { Z: Zs, h: hs, M: Array.from(ws.M) };
   }
 
   it.each([
@@ -231,7 +234,7 @@ describe("rows of Q and the sandwich's meat: WebAssembly equals JavaScript bitwi
     const R = triangle(k, u);
     const a = passes(jsKernel, X, R, inv, w, sizes);
     const b = passes(wasm, X, R, inv, w, sizes);
-    expect({ Z: bitDiff(a.Z, b.Z), M: bitDiff(a.M, b.M) }).toEqual({ Z: [], M: [] });
+    expect({ Z: bitDiff(a.Z, b.Z), h: bitDiff(a.h, b.h), M: bitDiff(a.M, b.M) }).toEqual({ Z: [], h: [], M: [] });
     expect(a.M.some((v) => v !== 0)).toBe(true);
   });
 

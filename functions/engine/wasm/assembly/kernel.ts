@@ -300,3 +300,27 @@ export function meatBlock(pZ: usize, pw: usize, pWs: usize, pM: usize, pS: usize
     }
   }
 }
+
+/** Leverages of one block: h_i = Σ_j z_ji² (j ascending, from 0) for i < m, into ph. */
+export function leverageBlock(pZ: usize, ph: usize, k: i32, m: i32, stride: i32): void {
+  const colBytes = <usize>stride << 3;
+  let i = 0;
+  for (; i + 1 < m; i += 2) {
+    const o = <usize>i << 3;
+    let h = f64x2.splat(0);
+    for (let j = 0; j < k; j++) {
+      const z = v128.load(pZ + <usize>j * colBytes + o);
+      h = f64x2.add(h, f64x2.mul(z, z));
+    }
+    v128.store(ph + o, h);
+  }
+  if (i < m) {
+    const o = <usize>i << 3;
+    let h: f64 = 0;
+    for (let j = 0; j < k; j++) {
+      const z = load<f64>(pZ + <usize>j * colBytes + o);
+      h += z * z;
+    }
+    store<f64>(ph + o, h);
+  }
+}
