@@ -6,11 +6,12 @@
  *   scripts/build-wasm.js into wasm/kernelBytes.ts), bitwise equal to "js" because every sum keeps
  *   the same order of operations (test/engine/kernel.test.ts).
  *
- * The WebAssembly module is compiled synchronously on first use (it is under 4 KB, the size browsers
- * allow for synchronous compilation on a page's main thread; test/engine/kernel.test.ts keeps it so). Where WebAssembly or
- * its SIMD instructions are missing, or the page's content security policy refuses compilation
- * (it needs 'wasm-unsafe-eval'), the JavaScript kernel is used; the engine stays synchronous and
- * gives the same numbers either way. DEVELOPERS.md describes the build and the choice of default.
+ * The WebAssembly module is compiled synchronously on first use: it is under 4 KB, the size browsers
+ * allow for synchronous compilation on a page's main thread (test/engine/kernel.test.ts keeps it
+ * so). Where WebAssembly or its SIMD instructions are missing, or the page's content security policy
+ * refuses compilation (it needs 'wasm-unsafe-eval'), the JavaScript kernel is used; the engine stays
+ * synchronous and gives the same numbers either way. DEVELOPERS.md describes the build and the
+ * choice of default.
  */
 import { axpyBlock, dotBlock } from "./blocks";
 import { KERNEL_WASM_HEX } from "./wasm/kernelBytes";
@@ -37,8 +38,7 @@ export interface QrWorkspace {
 /**
  * Buffers of a pass over the rows of Q = X_s R⁻¹ (covariance.ts), block by block. Z holds k columns
  * of `rows` doubles (column j at j·rows), w `rows` weights, h `rows` leverages, M a row-major k×k
- * sum (zeroed). Valid
- * until the next workspace call of the same kernel.
+ * sum (zeroed). Valid until the next workspace call of the same kernel.
  */
 export interface QWorkspace {
   Z: Float64Array;
