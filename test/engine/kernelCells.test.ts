@@ -34,7 +34,6 @@ function sourceFunctions(): Map<string, CellFn> {
   const reg = new Map<string, CellFn>();
   installShim(reg); // the cells read the host's error class through the global CustomFunctions
   const file = path.resolve(__dirname, "../../functions/functions.ts");
-  // eslint-disable-next-line @typescript-eslint/no-require-imports
   const mod = require(file) as Record<string, CellFn>; // shares this test's kernel module
   for (const [, id, name] of fs.readFileSync(file, "utf8").matchAll(/@customfunction (\w+)[\s\S]*?export function (\w+)/g)) reg.set(id, mod[name]);
   return reg;
