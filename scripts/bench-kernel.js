@@ -9,8 +9,8 @@
  * asserted anywhere. Two timed parts on seeded log-log data with 10 regressors (an intercept and 9
  * positive variables):
  *   blocks        the block factorisation alone: each block of rows copied, scaled, into the
- *                 kernel's buffer and reduced against the running triangle (leastSquares.ts's
- *                 blockedQr, the part the kernel replaces)
+ *                 kernel's buffer and reduced against the running triangle (the loop of
+ *                 leastSquares.ts's blockedQr, the part the kernel does)
  *   QR            leastSquares() alone (scaling, the block factorisation, the solve, the residuals)
  *   HC3           the HC3 covariance of a fitted model: one pass over the rows of Q (leverage and
  *                 the meat)
@@ -85,16 +85,9 @@ function blockFactor(X, y, inv) {
   const n = y.length;
   const B = BLOCK_ROWS;
   const ws = kernel().qrWorkspace(k, B);
-  const C = ws.C;
   for (let start = 0; start < n; start += B) {
     const m = Math.min(B, n - start);
-    for (let j = 0; j < k; j++) {
-      const src = X[j];
-      const s = inv[j];
-      const o = j * B;
-      for (let i = 0; i < m; i++) C[o + i] = src[start + i] * s;
-    }
-    for (let i = 0; i < m; i++) C[k * B + i] = y[start + i];
+    ws.load(X, y, inv, start, m);
     ws.reduce(m);
   }
   return ws.T.slice();

@@ -19,8 +19,8 @@ const { spawnSync } = require("child_process");
 const ROOT = path.join(__dirname, "..");
 const SOURCE = "functions/engine/wasm/assembly/kernel.ts";
 const TARGET = path.join(ROOT, "functions/engine/wasm/kernelBytes.ts");
-/** Optimise fully, no runtime (the kernel allocates nothing), no bounds assertions, 128-bit SIMD. */
-const OPTIONS = ["-O3", "--runtime", "stub", "--noAssert", "--enable", "simd"];
+/** Optimise for speed, inlining only where it does not grow the module (shrink level 1), no runtime (the kernel allocates nothing), no bounds assertions, 128-bit SIMD. */
+const OPTIONS = ["-O3", "--shrinkLevel", "1", "--runtime", "stub", "--noAssert", "--enable", "simd"];
 
 function compile() {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), "elx-wasm-"));

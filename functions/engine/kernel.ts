@@ -27,6 +27,8 @@ export interface QrWorkspace {
   T: Float64Array;
   C: Float64Array;
   tau: Float64Array;
+  /** Rows start … start+m−1 of [X/scale | y] into C: column j is x_j·inv_j, column k is y. */
+  load(X: Float64Array[], y: Float64Array, inv: Float64Array, start: number, m: number): void;
   /**
    * Householder reduction of the first m rows of C against the running triangle T: afterwards
    * column j of C holds reflector j below its implicit leading 1 (in T's row j) and tau[j] its
@@ -95,6 +97,16 @@ export const jsKernel: Kernel = {
     const T = new Float64Array(k1 * k1);
     const C = new Float64Array(k1 * rows);
     const tau = new Float64Array(k);
+    const load = (X: Float64Array[], y: Float64Array, inv: Float64Array, start: number, m: number): void => {
+      for (let j = 0; j < k; j++) {
+        const src = X[j];
+        const s = inv[j];
+        const o = j * rows;
+        for (let i = 0; i < m; i++) C[o + i] = src[start + i] * s;
+      }
+      const oy = k * rows;
+      for (let i = 0; i < m; i++) C[oy + i] = y[start + i];
+    };
     const reduce = (m: number): void => {
       for (let j = 0; j < k; j++) {
         const oj = j * rows;
@@ -120,7 +132,7 @@ export const jsKernel: Kernel = {
         }
       }
     };
-    return { T, C, tau, reduce };
+    return { T, C, tau, load, reduce };
   },
   qWorkspace(R: Float64Array, inv: Float64Array, k: number, rows: number): QWorkspace {
     const Z = new Float64Array(k * rows);
@@ -158,7 +170,8 @@ interface KernelExports {
   memory: WebAssembly.Memory;
   heapBase(): number;
   reduceBlock(pT: number, pC: number, pTau: number, k: number, m: number, stride: number, pW: number): void;
-  qRowsBlock(pZ: number, pR: number, k: number, m: number, stride: number): void;
+  qRowsBlock(pZ: number, pR: number, pInv: number, k: number, m: number, stride: number): void;
+  scaleColumns(pC: number, pInv: number, k: number, m: number, stride: number): void;
   meatBlock(pZ: number, pw: number, pWs: number, pM: number, pS: number, k: number, m: number, stride: number): void;
   leverageBlock(pZ: number, ph: number, k: number, m: number, stride: number): void;
 }
@@ -206,22 +219,31 @@ function wasmKernelOf(x: KernelExports): Kernel {
     name: "wasm",
     qrWorkspace(k: number, rows: number): QrWorkspace {
       const k1 = k + 1;
-      const r = regions([k1 * k1, k, k1 * rows, k1 + 4]);
+      const r = regions([k1 * k1, k, k1 * rows, k1 + 4, k]);
       if (!r) return jsKernel.qrWorkspace(k, rows);
-      const [T, tau, C] = r.views;
-      const [pT, pTau, pC, pW] = r.offsets;
+      const [T, tau, C, , invw] = r.views;
+      const [pT, pTau, pC, pW, pInv] = r.offsets;
+      // copies of the rows, then the scaling in the module: the same products as the JavaScript loop
+      const load = (X: Float64Array[], y: Float64Array, inv: Float64Array, start: number, m: number): void => {
+        r.check();
+        for (let j = 0; j < k; j++) C.set(X[j].subarray(start, start + m), j * rows);
+        C.set(y.subarray(start, start + m), k * rows);
+        invw.set(inv);
+        x.scaleColumns(pC, pInv, k, m, rows);
+      };
       const reduce = (m: number): void => {
         r.check();
         x.reduceBlock(pT, pC, pTau, k, m, rows, pW);
       };
-      return { T, C, tau, reduce };
+      return { T, C, tau, load, reduce };
     },
     qWorkspace(R: Float64Array, inv: Float64Array, k: number, rows: number): QWorkspace {
-      const r = regions([k * rows, k * rows, rows, k * k, k * k, 4, rows]);
+      const r = regions([k * rows, k * rows, rows, k * k, k * k, 4, rows, k]);
       if (!r) return jsKernel.qWorkspace(R, inv, k, rows);
-      const [Z, , w, M, Rw, , h] = r.views;
-      const [pZ, pWs, pw, pM, pR, pS, ph] = r.offsets;
+      const [Z, , w, M, Rw, , h, invw] = r.views;
+      const [pZ, pWs, pw, pM, pR, pS, ph, pInv] = r.offsets;
       Rw.set(R);
+      invw.set(inv);
       return {
         Z,
         w,
@@ -229,13 +251,8 @@ function wasmKernelOf(x: KernelExports): Kernel {
         M,
         qRows(X: Float64Array[], start: number, m: number): void {
           r.check();
-          for (let j = 0; j < k; j++) {
-            const o = j * rows;
-            const src = X[j];
-            const s = inv[j];
-            for (let i = 0; i < m; i++) Z[o + i] = src[start + i] * s;
-          }
-          x.qRowsBlock(pZ, pR, k, m, rows);
+          for (let j = 0; j < k; j++) Z.set(X[j].subarray(start, start + m), j * rows);
+          x.qRowsBlock(pZ, pR, pInv, k, m, rows);
         },
         leverage(m: number): void {
           r.check();

@@ -106,14 +106,7 @@ function blockedQr(X: Float64Array[], y: Float64Array, inv: Float64Array, keep: 
   const C = ws.C;
   for (let start = 0; start < n; start += B) {
     const m = Math.min(B, n - start);
-    for (let j = 0; j < k; j++) {
-      const src = X[j];
-      const s = inv[j];
-      const o = j * B;
-      for (let i = 0; i < m; i++) C[o + i] = src[start + i] * s;
-    }
-    const oy = k * B;
-    for (let i = 0; i < m; i++) C[oy + i] = y[start + i];
+    ws.load(X, y, inv, start, m); // the block's rows of [X/scale | y] into C
     ws.reduce(m); // Householder reflections of the block against T (kernel.ts)
     if (keep) {
       const v = new Float64Array(k * m);

@@ -91,6 +91,22 @@ describe("block reduction: WebAssembly equals JavaScript bitwise", () => {
     expectSame(k, [{ m: BLOCK_ROWS, fill: random }, { m: 17, fill: random }, { m: BLOCK_ROWS, fill: random }, { m: 3, fill: random }]);
   });
 
+  it.each([1, 3, 256])("loading m = %i rows of [X/scale | y] into the block (copies, then the scaling products)", (m) => {
+    const k = 5;
+    const n = 300;
+    const u = rng(m);
+    const X = Array.from({ length: k }, () => Float64Array.from({ length: n }, () => (u() - 0.5) * 1e3));
+    const y = Float64Array.from({ length: n }, () => u() - 0.5);
+    const inv = Float64Array.from({ length: k }, () => 1 / (0.1 + u()));
+    const blocks = [jsKernel, wasm].map((K) => {
+      const ws = K.qrWorkspace(k, BLOCK_ROWS);
+      ws.load(X, y, inv, n - m, m);
+      return ws.C.slice();
+    });
+    expect(bitDiff(blocks[0], blocks[1])).toEqual([]);
+    expect(blocks[1][BLOCK_ROWS * k + m - 1]).toBe(y[n - 1]);
+  });
+
   it("k = 0 (y alone) leaves everything as it was", () => {
     const a = expectSame(0, [{ m: 5, fill: random }]);
     expect(a.T[0]).toBe(0);

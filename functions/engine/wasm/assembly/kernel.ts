@@ -36,8 +36,6 @@ function dot(a: usize, b: usize, m: i32, s0: f64): f64 {
 }
 
 /** b[i] −= w·a[i] for i < m. */
-// @ts-ignore: decorator
-@inline
 function axpy(a: usize, b: usize, m: i32, w: f64): void {
   const W = f64x2.splat(w);
   let i = 0;
@@ -52,8 +50,6 @@ function axpy(a: usize, b: usize, m: i32, w: f64): void {
 }
 
 /** a[i] ·= s for i < m. */
-// @ts-ignore: decorator
-@inline
 function scale(a: usize, m: i32, s: f64): void {
   const S = f64x2.splat(s);
   let i = 0;
@@ -65,6 +61,12 @@ function scale(a: usize, m: i32, s: f64): void {
     const o = <usize>i << 3;
     store<f64>(a + o, load<f64>(a + o) * s);
   }
+}
+
+/** Column j of the k columns at pC (stride apart) times inv[j] (at pInv), for the first m rows. */
+export function scaleColumns(pC: usize, pInv: usize, k: i32, m: i32, stride: i32): void {
+  const colBytes = <usize>stride << 3;
+  for (let j = 0; j < k; j++) scale(pC + <usize>j * colBytes, m, load<f64>(pInv + (<usize>j << 3)));
 }
 
 /**
@@ -201,15 +203,17 @@ export function reduceBlock(pT: usize, pC: usize, pTau: usize, k: i32, m: i32, s
 }
 
 /**
- * Rows of Q = X_s R⁻¹ for one block, in place: the k columns at pZ hold the scaled design rows
- * (x_j/s_j); R is row-major k×k at pR. Column by column, z_j = (z_j − Σ_{l<j} R_lj z_l)/R_jj with the
+ * Rows of Q = X_s R⁻¹ for one block, in place: the k columns at pZ hold the design rows x_j, scaled
+ * here by inv_j = 1/s_j (at pInv); R is row-major k×k at pR. Column by column,
+ * z_j = (x_j·inv_j − Σ_{l<j} R_lj z_l)/R_jj with the
  * earlier columns taken two at a time, z_j − (R_lj z_l + R_{l+1,j} z_{l+1}), as the JavaScript
  * kernel does; two such pairs share one pass over z_j (the same operations in the same order).
  */
-export function qRowsBlock(pZ: usize, pR: usize, k: i32, m: i32, stride: i32): void {
+export function qRowsBlock(pZ: usize, pR: usize, pInv: usize, k: i32, m: i32, stride: i32): void {
   const colBytes = <usize>stride << 3;
   for (let j = 0; j < k; j++) {
     const zj = pZ + <usize>j * colBytes;
+    scale(zj, m, load<f64>(pInv + (<usize>j << 3)));
     let l = 0;
     for (; l + 3 < j; l += 4) {
       const r0 = load<f64>(pR + (<usize>(l * k + j) << 3));
