@@ -182,7 +182,7 @@ const PAGE = 65536;
 
 function hexBytes(hex: string): Uint8Array<ArrayBuffer> {
   const b = new Uint8Array(hex.length / 2);
-  for (let i = 0; i < b.length; i++) b[i] = parseInt(hex.substr(2 * i, 2), 16);
+  for (let i = 0; i < b.length; i++) b[i] = parseInt(hex.slice(2 * i, 2 * i + 2), 16);
   return b;
 }
 
@@ -192,7 +192,7 @@ function wasmKernelOf(x: KernelExports): Kernel {
   const align = (b: number) => (b + 15) & ~15;
   let generation = 0;
   /**
-   * Views of `doubles` consecutive regions from the module's memory, growing it when needed
+   * Views of consecutive regions of sizes[i] doubles in the module's memory, growing it when needed
    * (growth detaches every earlier view, so a workspace is valid only until the next one: each
    * checks its generation before use and throws rather than read a detached view).
    */
@@ -205,7 +205,13 @@ function wasmKernelOf(x: KernelExports): Kernel {
     }
     if (end > MAX_WASM_BYTES) return null;
     const have = x.memory.buffer.byteLength;
-    if (end > have) x.memory.grow(Math.ceil((end - have) / PAGE));
+    if (end > have) {
+      try {
+        x.memory.grow(Math.ceil((end - have) / PAGE));
+      } catch {
+        return null; // the memory could not grow: the JavaScript kernel's own arrays instead
+      }
+    }
     const buf = x.memory.buffer;
     const views = sizes.map((n, i) => new Float64Array(buf, offsets[i], n));
     for (const v of views) v.fill(0);
