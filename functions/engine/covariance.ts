@@ -19,7 +19,7 @@
  */
 import { count, fail, requireFeasible, rowsPhrase } from "./problems";
 import type { QrFit } from "./leastSquares";
-import { dotBlock } from "./blocks";
+import { kernel } from "./kernel";
 import type { SeType } from "./options";
 
 /**
@@ -68,43 +68,17 @@ export function maxLags(n: number): number {
 export const BLOCK = 256;
 
 /**
- * Rows start … start+m−1 of Q = X_s R⁻¹ into Z (column-major, column j at j·BLOCK): for each j,
- * z_j = (x_j/s_j − Σ_{l<j} R_lj z_l)/R_jj, as whole-block vector operations.
+ * Visits the rows of Q = X_s R⁻¹ block by block: visit(start, m, Z) with rows start … start+m−1 in
+ * Z (column-major, column j at j·BLOCK), z_j = (x_j/s_j − Σ_{l<j} R_lj z_l)/R_jj, computed by the
+ * kernel in force (kernel.ts). Z is valid during the visit only.
  */
-function qRows(X: Float64Array[], qr: QrFit, inv: Float64Array, start: number, m: number, Z: Float64Array): void {
-  const { k, R } = qr;
-  for (let j = 0; j < k; j++) {
-    const o = j * BLOCK;
-    const src = X[j];
-    const s = inv[j];
-    for (let i = 0; i < m; i++) Z[o + i] = src[start + i] * s;
-    // two earlier columns per pass: half the passes over the block
-    let l = 0;
-    for (; l + 1 < j; l += 2) {
-      const r0 = R[l * k + j];
-      const r1 = R[(l + 1) * k + j];
-      const o0 = l * BLOCK;
-      const o1 = o0 + BLOCK;
-      for (let i = 0; i < m; i++) Z[o + i] -= r0 * Z[o0 + i] + r1 * Z[o1 + i];
-    }
-    if (l < j) {
-      const r0 = R[l * k + j];
-      const o0 = l * BLOCK;
-      for (let i = 0; i < m; i++) Z[o + i] -= r0 * Z[o0 + i];
-    }
-    const d = 1 / R[j * k + j];
-    for (let i = 0; i < m; i++) Z[o + i] *= d;
-  }
-}
-
-/** Visits the rows of Q block by block: visit(start, m, Z) with Z as qRows fills it. */
 export function forEachQBlock(X: Float64Array[], qr: QrFit, visit: (start: number, m: number, Z: Float64Array) => void): void {
-  const Z = new Float64Array(qr.k * BLOCK);
   const inv = Float64Array.from(qr.scale, (s) => 1 / s);
+  const ws = kernel().qWorkspace(qr.R, inv, qr.k, BLOCK);
   for (let start = 0; start < qr.n; start += BLOCK) {
     const m = Math.min(BLOCK, qr.n - start);
-    qRows(X, qr, inv, start, m, Z);
-    visit(start, m, Z);
+    ws.qRows(X, start, m);
+    visit(start, m, ws.Z);
   }
 }
 
@@ -153,21 +127,17 @@ export function hcCovariance(c: CovarianceInput, type: "HC0" | "HC1" | "HC2" | "
   // Leverages are computed in the same pass when they are needed and not known yet.
   const lev = needH ? h ?? new Float64Array(n) : null;
   const fillH = needH && h === null;
-  const M = new Float64Array(k * k);
-  const Z = new Float64Array(k * BLOCK);
-  const W = new Float64Array(k * BLOCK);
-  const w = new Float64Array(BLOCK);
   const inv = Float64Array.from(qr.scale, (s) => 1 / s);
+  const ws = kernel().qWorkspace(qr.R, inv, k, BLOCK);
+  const { w } = ws;
   const hc1 = n / c.dfResid;
   const ones: number[] = [];
   for (let start = 0; start < n; start += BLOCK) {
     const m = Math.min(BLOCK, n - start);
-    qRows(X, qr, inv, start, m, Z);
+    ws.qRows(X, start, m);
     if (fillH && lev) {
-      for (let j = 0; j < k; j++) {
-        const o = j * BLOCK;
-        for (let i = 0; i < m; i++) lev[start + i] += Z[o + i] * Z[o + i];
-      }
+      ws.leverage(m);
+      lev.set(ws.h.subarray(0, m), start);
     }
     for (let i = 0; i < m; i++) {
       const e = resid[start + i];
@@ -182,14 +152,9 @@ export function hcCovariance(c: CovarianceInput, type: "HC0" | "HC1" | "HC2" | "
         } else w[i] = type === "HC2" ? e2 / (1 - hi) : e2 / ((1 - hi) * (1 - hi));
       }
     }
-    for (let a = 0; a < k; a++) {
-      const o = a * BLOCK;
-      for (let i = 0; i < m; i++) W[o + i] = w[i] * Z[o + i];
-    }
-    for (let a = 0; a < k; a++) {
-      for (let b = a; b < k; b++) M[a * k + b] += dotBlock(W, a * BLOCK, Z, b * BLOCK, m);
-    }
+    ws.meat(m); // M_ab += Σ w_i z_ai z_bi, b ≥ a
   }
+  const M = ws.M.slice();
   if (ones.length > 0) {
     fail(`${rowsPhrase(ones)} alone ${ones.length === 1 ? "determines" : "determine"} a coefficient (leverage 1), so ${type} is undefined; use se=HC1 or se=HC0, or add rows`);
   }

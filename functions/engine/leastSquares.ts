@@ -23,7 +23,7 @@
  * Cost: about 2·n·k² flops and one pass over the data (two when refinement is needed).
  */
 import { count, fail } from "./problems";
-import { axpyBlock, dotBlock } from "./blocks";
+import { kernel } from "./kernel";
 
 /**
  * Relative length below which a column counts as a linear combination of the earlier ones. Exact
@@ -101,44 +101,20 @@ export function blockedQr(X: Float64Array[], y: Float64Array, inv: Float64Array,
   const n = y.length;
   const B = BLOCK_ROWS;
   const T = new Float64Array(k1 * k1);
-  const C = new Float64Array(k1 * B);
+  const ws = kernel().qrWorkspace(k, B);
+  ws.T.set(T);
+  const C = ws.C;
   for (let start = 0; start < n; start += B) {
     const m = Math.min(B, n - start);
-    for (let j = 0; j < k; j++) {
-      const src = X[j];
-      const s = inv[j];
-      const o = j * B;
-      for (let i = 0; i < m; i++) C[o + i] = src[start + i] * s;
-    }
-    const oy = k * B;
-    for (let i = 0; i < m; i++) C[oy + i] = y[start + i];
-    const tau = keep ? new Float64Array(k) : null;
-    for (let j = 0; j < k; j++) {
-      const oj = j * B;
-      const ss = dotBlock(C, oj, C, oj, m);
-      if (ss === 0) continue; // nothing below the diagonal to annihilate: the identity, tau = 0
-      const rjj = T[j * k1 + j];
-      const alpha = Math.sqrt(rjj * rjj + ss);
-      const beta = rjj >= 0 ? -alpha : alpha;
-      const v0 = rjj - beta;
-      const t = (beta - rjj) / beta;
-      const iv0 = 1 / v0;
-      for (let i = 0; i < m; i++) C[oj + i] *= iv0;
-      T[j * k1 + j] = beta;
-      if (tau) tau[j] = t;
-      for (let c = j + 1; c < k1; c++) {
-        const oc = c * B;
-        const w = t * dotBlock(C, oj, C, oc, m, T[j * k1 + c]);
-        T[j * k1 + c] -= w;
-        axpyBlock(C, oj, oc, m, w);
-      }
-    }
-    if (keep && tau) {
+    ws.load(X, y, inv, start, m); // the block's rows of [X/scale | y] into C
+    ws.reduce(m); // Householder reflections of the block against T (kernel.ts)
+    if (keep) {
       const v = new Float64Array(k * m);
       for (let j = 0; j < k; j++) for (let i = 0; i < m; i++) v[j * m + i] = C[j * B + i];
-      keep.push({ start, rows: m, tau, v });
+      keep.push({ start, rows: m, tau: ws.tau.slice(), v });
     }
   }
+  T.set(ws.T);
   return T;
 }
 

@@ -1,0 +1,330 @@
+/**
+ * The WebAssembly kernel (AssemblyScript, compiled by scripts/build-wasm.js into ../kernelBytes.ts).
+ *
+ * The same loops as the JavaScript kernel in ../../kernel.ts, with two doubles per 128-bit SIMD
+ * instruction. Every sum keeps the JavaScript kernel's order of operations (the dot product's four
+ * partial sums s0..s3 are the lanes of two f64x2 accumulators, combined as (s0 + s1) + (s2 + s3);
+ * WebAssembly has no fused multiply-add in these instructions), so the results are bitwise equal.
+ *
+ * Memory belongs to the caller: every argument p* is a byte offset into this module's memory,
+ * 16-byte aligned, of column-major blocks whose columns are `stride` doubles apart.
+ */
+
+/** Where the caller's buffers may start (past this module's own static data). */
+export function heapBase(): usize {
+  return (__heap_base + 15) & ~(<usize>15);
+}
+
+/** s0 + Σ_{i<m} a[i]·b[i], in the JavaScript kernel's order (dotBlock in ../../blocks.ts). */
+// @ts-ignore: decorator
+@inline
+function dot(a: usize, b: usize, m: i32, s0: f64): f64 {
+  let acc0 = f64x2.replace_lane(f64x2.splat(0), 0, s0);
+  let acc1 = f64x2.splat(0);
+  let i = 0;
+  for (; i + 3 < m; i += 4) {
+    const o = <usize>i << 3;
+    acc0 = f64x2.add(acc0, f64x2.mul(v128.load(a + o), v128.load(b + o)));
+    acc1 = f64x2.add(acc1, f64x2.mul(v128.load(a + o, 16), v128.load(b + o, 16)));
+  }
+  let t0 = f64x2.extract_lane(acc0, 0);
+  for (; i < m; i++) {
+    const o = <usize>i << 3;
+    t0 += load<f64>(a + o) * load<f64>(b + o);
+  }
+  return t0 + f64x2.extract_lane(acc0, 1) + (f64x2.extract_lane(acc1, 0) + f64x2.extract_lane(acc1, 1));
+}
+
+/** b[i] −= w·a[i] for i < m. */
+function axpy(a: usize, b: usize, m: i32, w: f64): void {
+  const W = f64x2.splat(w);
+  let i = 0;
+  for (; i + 1 < m; i += 2) {
+    const o = <usize>i << 3;
+    v128.store(b + o, f64x2.sub(v128.load(b + o), f64x2.mul(W, v128.load(a + o))));
+  }
+  if (i < m) {
+    const o = <usize>i << 3;
+    store<f64>(b + o, load<f64>(b + o) - w * load<f64>(a + o));
+  }
+}
+
+/** a[i] ·= s for i < m. */
+function scale(a: usize, m: i32, s: f64): void {
+  const S = f64x2.splat(s);
+  let i = 0;
+  for (; i + 1 < m; i += 2) {
+    const o = <usize>i << 3;
+    v128.store(a + o, f64x2.mul(v128.load(a + o), S));
+  }
+  if (i < m) {
+    const o = <usize>i << 3;
+    store<f64>(a + o, load<f64>(a + o) * s);
+  }
+}
+
+/** Column j of the k columns at pC (stride apart) times inv[j] (at pInv), for the first m rows. */
+export function scaleColumns(pC: usize, pInv: usize, k: i32, m: i32, stride: i32): void {
+  const colBytes = <usize>stride << 3;
+  for (let j = 0; j < k; j++) scale(pC + <usize>j * colBytes, m, load<f64>(pInv + (<usize>j << 3)));
+}
+
+/**
+ * dot() for four columns b0..b3 at once against the same a: each column keeps its own two
+ * accumulators and its own order of operations (so each result is dot(a, bq, m, sq) exactly), while
+ * the four independent chains of additions keep the processor busy where one chain would wait on
+ * the latency of the previous addition. Results go to out[0..3].
+ */
+function dot4(a: usize, b: usize, step: usize, m: i32, p: usize): void {
+  const b1 = b + step;
+  const b2 = b1 + step;
+  const b3 = b2 + step;
+  let x0 = f64x2.replace_lane(f64x2.splat(0), 0, load<f64>(p));
+  let x1 = f64x2.replace_lane(f64x2.splat(0), 0, load<f64>(p, 8));
+  let x2 = f64x2.replace_lane(f64x2.splat(0), 0, load<f64>(p, 16));
+  let x3 = f64x2.replace_lane(f64x2.splat(0), 0, load<f64>(p, 24));
+  let y0 = f64x2.splat(0);
+  let y1 = f64x2.splat(0);
+  let y2 = f64x2.splat(0);
+  let y3 = f64x2.splat(0);
+  let i = 0;
+  for (; i + 3 < m; i += 4) {
+    const o = <usize>i << 3;
+    const v = v128.load(a + o);
+    const u = v128.load(a + o, 16);
+    x0 = f64x2.add(x0, f64x2.mul(v, v128.load(b + o)));
+    y0 = f64x2.add(y0, f64x2.mul(u, v128.load(b + o, 16)));
+    x1 = f64x2.add(x1, f64x2.mul(v, v128.load(b1 + o)));
+    y1 = f64x2.add(y1, f64x2.mul(u, v128.load(b1 + o, 16)));
+    x2 = f64x2.add(x2, f64x2.mul(v, v128.load(b2 + o)));
+    y2 = f64x2.add(y2, f64x2.mul(u, v128.load(b2 + o, 16)));
+    x3 = f64x2.add(x3, f64x2.mul(v, v128.load(b3 + o)));
+    y3 = f64x2.add(y3, f64x2.mul(u, v128.load(b3 + o, 16)));
+  }
+  let t0 = f64x2.extract_lane(x0, 0);
+  let t1 = f64x2.extract_lane(x1, 0);
+  let t2 = f64x2.extract_lane(x2, 0);
+  let t3 = f64x2.extract_lane(x3, 0);
+  for (; i < m; i++) {
+    const o = <usize>i << 3;
+    const v = load<f64>(a + o);
+    t0 += v * load<f64>(b + o);
+    t1 += v * load<f64>(b1 + o);
+    t2 += v * load<f64>(b2 + o);
+    t3 += v * load<f64>(b3 + o);
+  }
+  store<f64>(p, t0 + f64x2.extract_lane(x0, 1) + (f64x2.extract_lane(y0, 0) + f64x2.extract_lane(y0, 1)));
+  store<f64>(p, t1 + f64x2.extract_lane(x1, 1) + (f64x2.extract_lane(y1, 0) + f64x2.extract_lane(y1, 1)), 8);
+  store<f64>(p, t2 + f64x2.extract_lane(x2, 1) + (f64x2.extract_lane(y2, 0) + f64x2.extract_lane(y2, 1)), 16);
+  store<f64>(p, t3 + f64x2.extract_lane(x3, 1) + (f64x2.extract_lane(y3, 0) + f64x2.extract_lane(y3, 1)), 24);
+}
+
+/** axpy() for four columns b0..b3 with factors w[0..3]: one load of a serves the four. */
+function axpy4(a: usize, b: usize, step: usize, m: i32, p: usize): void {
+  const b1 = b + step;
+  const b2 = b1 + step;
+  const b3 = b2 + step;
+  const w0 = load<f64>(p);
+  const w1 = load<f64>(p, 8);
+  const w2 = load<f64>(p, 16);
+  const w3 = load<f64>(p, 24);
+  const W0 = f64x2.splat(w0);
+  const W1 = f64x2.splat(w1);
+  const W2 = f64x2.splat(w2);
+  const W3 = f64x2.splat(w3);
+  let i = 0;
+  for (; i + 1 < m; i += 2) {
+    const o = <usize>i << 3;
+    const v = v128.load(a + o);
+    v128.store(b + o, f64x2.sub(v128.load(b + o), f64x2.mul(W0, v)));
+    v128.store(b1 + o, f64x2.sub(v128.load(b1 + o), f64x2.mul(W1, v)));
+    v128.store(b2 + o, f64x2.sub(v128.load(b2 + o), f64x2.mul(W2, v)));
+    v128.store(b3 + o, f64x2.sub(v128.load(b3 + o), f64x2.mul(W3, v)));
+  }
+  if (i < m) {
+    const o = <usize>i << 3;
+    const v = load<f64>(a + o);
+    store<f64>(b + o, load<f64>(b + o) - w0 * v);
+    store<f64>(b1 + o, load<f64>(b1 + o) - w1 * v);
+    store<f64>(b2 + o, load<f64>(b2 + o) - w2 * v);
+    store<f64>(b3 + o, load<f64>(b3 + o) - w3 * v);
+  }
+}
+
+/**
+ * One block of the row-blocked Householder QR: the m rows of the k + 1 columns at pC (the scaled
+ * design and y) are reduced against the running triangle T (row-major (k+1)×(k+1) at pT). On return
+ * column j of C holds reflector j below its implicit leading 1 and tau[j] its factor (0: identity).
+ * pW: scratch for k + 4 doubles.
+ *
+ * For reflector j the JavaScript kernel takes the later columns c one at a time: w = t·(T_jc + v·C_c),
+ * T_jc −= w, C_c −= w·v. Column c's dot product reads C_c before its own update and no other
+ * column's, so here all the dot products come first (four columns at a time), then all the updates:
+ * the same operations on every number, in the same order.
+ */
+export function reduceBlock(pT: usize, pC: usize, pTau: usize, k: i32, m: i32, stride: i32, pW: usize): void {
+  const k1 = k + 1;
+  const colBytes = <usize>stride << 3;
+  for (let j = 0; j < k; j++) {
+    const cj = pC + <usize>j * colBytes;
+    const tj = pT + (<usize>(j * k1) << 3);
+    const ss = dot(cj, cj, m, 0);
+    if (ss == 0) {
+      store<f64>(pTau + (<usize>j << 3), 0);
+      continue;
+    }
+    const rjj = load<f64>(tj + (<usize>j << 3));
+    const alpha = sqrt<f64>(rjj * rjj + ss);
+    const beta = rjj >= 0 ? -alpha : alpha;
+    const v0 = rjj - beta;
+    const t = (beta - rjj) / beta;
+    scale(cj, m, 1 / v0);
+    store<f64>(tj + (<usize>j << 3), beta);
+    store<f64>(pTau + (<usize>j << 3), t);
+    // w_c = t·(T_jc + v·C_c) for every later column c, in pW[c]
+    for (let c = j + 1; c < k1; c++) store<f64>(pW + (<usize>c << 3), load<f64>(tj + (<usize>c << 3)));
+    let c = j + 1;
+    for (; c + 3 < k1; c += 4) dot4(cj, pC + <usize>c * colBytes, colBytes, m, pW + (<usize>c << 3));
+    for (; c < k1; c++) {
+      const pw = pW + (<usize>c << 3);
+      store<f64>(pw, dot(cj, pC + <usize>c * colBytes, m, load<f64>(pw)));
+    }
+    for (c = j + 1; c < k1; c++) {
+      const pw = pW + (<usize>c << 3);
+      const w = t * load<f64>(pw);
+      store<f64>(pw, w);
+      const tjc = tj + (<usize>c << 3);
+      store<f64>(tjc, load<f64>(tjc) - w);
+    }
+    c = j + 1;
+    for (; c + 3 < k1; c += 4) axpy4(cj, pC + <usize>c * colBytes, colBytes, m, pW + (<usize>c << 3));
+    for (; c < k1; c++) axpy(cj, pC + <usize>c * colBytes, m, load<f64>(pW + (<usize>c << 3)));
+  }
+}
+
+/**
+ * Rows of Q = X_s R⁻¹ for one block, in place: the k columns at pZ hold the design rows x_j, scaled
+ * here by inv_j = 1/s_j (at pInv); R is row-major k×k at pR. Column by column,
+ * z_j = (x_j·inv_j − Σ_{l<j} R_lj z_l)/R_jj with the
+ * earlier columns taken two at a time, z_j − (R_lj z_l + R_{l+1,j} z_{l+1}), as the JavaScript
+ * kernel does; two such pairs share one pass over z_j (the same operations in the same order).
+ */
+export function qRowsBlock(pZ: usize, pR: usize, pInv: usize, k: i32, m: i32, stride: i32): void {
+  const colBytes = <usize>stride << 3;
+  for (let j = 0; j < k; j++) {
+    const zj = pZ + <usize>j * colBytes;
+    scale(zj, m, load<f64>(pInv + (<usize>j << 3)));
+    let l = 0;
+    for (; l + 3 < j; l += 4) {
+      const r0 = load<f64>(pR + (<usize>(l * k + j) << 3));
+      const r1 = load<f64>(pR + (<usize>((l + 1) * k + j) << 3));
+      const r2 = load<f64>(pR + (<usize>((l + 2) * k + j) << 3));
+      const r3 = load<f64>(pR + (<usize>((l + 3) * k + j) << 3));
+      const z0 = pZ + <usize>l * colBytes;
+      const z1 = z0 + colBytes;
+      const z2 = z1 + colBytes;
+      const z3 = z2 + colBytes;
+      const R0 = f64x2.splat(r0);
+      const R1 = f64x2.splat(r1);
+      const R2 = f64x2.splat(r2);
+      const R3 = f64x2.splat(r3);
+      let i = 0;
+      for (; i + 1 < m; i += 2) {
+        const o = <usize>i << 3;
+        let z = f64x2.sub(v128.load(zj + o), f64x2.add(f64x2.mul(R0, v128.load(z0 + o)), f64x2.mul(R1, v128.load(z1 + o))));
+        z = f64x2.sub(z, f64x2.add(f64x2.mul(R2, v128.load(z2 + o)), f64x2.mul(R3, v128.load(z3 + o))));
+        v128.store(zj + o, z);
+      }
+      if (i < m) {
+        const o = <usize>i << 3;
+        let z = load<f64>(zj + o) - (r0 * load<f64>(z0 + o) + r1 * load<f64>(z1 + o));
+        z = z - (r2 * load<f64>(z2 + o) + r3 * load<f64>(z3 + o));
+        store<f64>(zj + o, z);
+      }
+    }
+    for (; l + 1 < j; l += 2) {
+      const r0 = load<f64>(pR + (<usize>(l * k + j) << 3));
+      const r1 = load<f64>(pR + (<usize>((l + 1) * k + j) << 3));
+      const z0 = pZ + <usize>l * colBytes;
+      const z1 = z0 + colBytes;
+      const R0 = f64x2.splat(r0);
+      const R1 = f64x2.splat(r1);
+      let i = 0;
+      for (; i + 1 < m; i += 2) {
+        const o = <usize>i << 3;
+        v128.store(zj + o, f64x2.sub(v128.load(zj + o), f64x2.add(f64x2.mul(R0, v128.load(z0 + o)), f64x2.mul(R1, v128.load(z1 + o)))));
+      }
+      if (i < m) {
+        const o = <usize>i << 3;
+        store<f64>(zj + o, load<f64>(zj + o) - (r0 * load<f64>(z0 + o) + r1 * load<f64>(z1 + o)));
+      }
+    }
+    if (l < j) axpy(pZ + <usize>l * colBytes, zj, m, load<f64>(pR + (<usize>(l * k + j) << 3)));
+    scale(zj, m, 1 / load<f64>(pR + (<usize>(j * k + j) << 3)));
+  }
+}
+
+/**
+ * The meat of a sandwich for one block: with weights w (m doubles at pw) and the rows of Q at pZ,
+ * W_a = w·z_a (k columns at pWs) and M_ab += Σ_i W_ai z_bi for b ≥ a (row-major k×k at pM), each
+ * sum in the dot product's order, started from 0 and then added to M_ab. pS: scratch for 4 doubles.
+ */
+export function meatBlock(pZ: usize, pw: usize, pWs: usize, pM: usize, pS: usize, k: i32, m: i32, stride: i32): void {
+  const colBytes = <usize>stride << 3;
+  for (let a = 0; a < k; a++) {
+    const za = pZ + <usize>a * colBytes;
+    const wa = pWs + <usize>a * colBytes;
+    let i = 0;
+    for (; i + 1 < m; i += 2) {
+      const o = <usize>i << 3;
+      v128.store(wa + o, f64x2.mul(v128.load(pw + o), v128.load(za + o)));
+    }
+    if (i < m) {
+      const o = <usize>i << 3;
+      store<f64>(wa + o, load<f64>(pw + o) * load<f64>(za + o));
+    }
+  }
+  for (let a = 0; a < k; a++) {
+    const wa = pWs + <usize>a * colBytes;
+    const ma = pM + (<usize>(a * k) << 3);
+    let b = a;
+    for (; b + 3 < k; b += 4) {
+      v128.store(pS, f64x2.splat(0));
+      v128.store(pS, f64x2.splat(0), 16);
+      dot4(wa, pZ + <usize>b * colBytes, colBytes, m, pS);
+      const mb = ma + (<usize>b << 3);
+      store<f64>(mb, load<f64>(mb) + load<f64>(pS));
+      store<f64>(mb, load<f64>(mb, 8) + load<f64>(pS, 8), 8);
+      store<f64>(mb, load<f64>(mb, 16) + load<f64>(pS, 16), 16);
+      store<f64>(mb, load<f64>(mb, 24) + load<f64>(pS, 24), 24);
+    }
+    for (; b < k; b++) {
+      const mb = ma + (<usize>b << 3);
+      store<f64>(mb, load<f64>(mb) + dot(wa, pZ + <usize>b * colBytes, m, 0));
+    }
+  }
+}
+
+/** Leverages of one block: h_i = Σ_j z_ji² (j ascending, from 0) for i < m, into ph. */
+export function leverageBlock(pZ: usize, ph: usize, k: i32, m: i32, stride: i32): void {
+  const colBytes = <usize>stride << 3;
+  let i = 0;
+  for (; i + 1 < m; i += 2) {
+    const o = <usize>i << 3;
+    let h = f64x2.splat(0);
+    for (let j = 0; j < k; j++) {
+      const z = v128.load(pZ + <usize>j * colBytes + o);
+      h = f64x2.add(h, f64x2.mul(z, z));
+    }
+    v128.store(ph + o, h);
+  }
+  if (i < m) {
+    const o = <usize>i << 3;
+    let h: f64 = 0;
+    for (let j = 0; j < k; j++) {
+      const z = load<f64>(pZ + <usize>j * colBytes + o);
+      h += z * z;
+    }
+    store<f64>(ph + o, h);
+  }
+}

@@ -1,0 +1,263 @@
+/**
+ * The WebAssembly kernel against the JavaScript kernel (functions/engine/kernel.ts). The two run the
+ * same floating-point operations in the same order (the dot product's four partial sums are the
+ * lanes of two SIMD accumulators; no fused multiply-add), so the comparison is bitwise: every
+ * double equal, including the sign of zero. The reference for the numbers themselves is the
+ * JavaScript kernel, which the rest of the suite checks against NIST StRD and R
+ * (test/host/nist.test.ts, test/reference/); test/engine/kernelCells.test.ts runs those checks
+ * through the cells under both kernels.
+ */
+import { spawnSync } from "child_process";
+import * as path from "path";
+import { jsKernel, kernel, useKernel, wasmKernel, WASM_BY_DEFAULT, type Kernel } from "../../functions/engine/kernel";
+import { KERNEL_WASM_BYTES } from "../../functions/engine/wasm/kernelBytes";
+import { BLOCK_ROWS, leastSquares } from "../../functions/engine/leastSquares";
+
+function rng(seed: number): () => number {
+  let s = seed >>> 0;
+  return () => {
+    s = (s + 0x6d2b79f5) >>> 0;
+    let t = s;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+/** Indices where two arrays differ bit for bit (Object.is: −0 ≠ +0, NaN = NaN). */
+function bitDiff(a: ArrayLike<number>, b: ArrayLike<number>): number[] {
+  expect(a.length).toBe(b.length);
+  const out: number[] = [];
+  for (let i = 0; i < a.length; i++) if (!Object.is(a[i], b[i])) out.push(i);
+  return out;
+}
+
+const wasm = wasmKernel() as Kernel;
+
+/** One or more blocks reduced by a kernel from the same start: returns T, C and tau after the last. */
+function reduceWith(K: Kernel, k: number, blocks: { m: number; fill: (j: number, i: number) => number }[], T0?: Float64Array) {
+  const rows = BLOCK_ROWS;
+  const ws = K.qrWorkspace(k, rows);
+  if (T0) ws.T.set(T0);
+  for (const b of blocks) {
+    for (let j = 0; j <= k; j++) for (let i = 0; i < b.m; i++) ws.C[j * rows + i] = b.fill(j, i);
+    ws.reduce(b.m);
+  }
+  return { T: ws.T.slice(), C: ws.C.slice(), tau: ws.tau.slice() };
+}
+
+function expectSame(k: number, blocks: { m: number; fill: (j: number, i: number) => number }[], T0?: Float64Array) {
+  // the values are drawn once, so both kernels see the same blocks
+  const fixed = blocks.map((b) => {
+    const v = new Float64Array((k + 1) * b.m);
+    for (let j = 0; j <= k; j++) for (let i = 0; i < b.m; i++) v[j * b.m + i] = b.fill(j, i);
+    return { m: b.m, fill: (j: number, i: number) => v[j * b.m + i] };
+  });
+  const a = reduceWith(jsKernel, k, fixed, T0);
+  const b = reduceWith(wasm, k, fixed, T0);
+  expect({ T: bitDiff(a.T, b.T), C: bitDiff(a.C, b.C), tau: bitDiff(a.tau, b.tau) }).toEqual({ T: [], C: [], tau: [] });
+  return a;
+}
+
+describe("the WebAssembly module", () => {
+  it("compiles here (Node has WebAssembly with SIMD) and is the default exactly when WASM_BY_DEFAULT says so", () => {
+    expect(wasm).not.toBeNull();
+    expect(wasm.name).toBe("wasm");
+    useKernel("default");
+    expect(kernel().name).toBe(WASM_BY_DEFAULT ? "wasm" : "js");
+  });
+
+  it("is small enough for synchronous compilation on a page's main thread (browsers allow 4 KB)", () => {
+    expect(KERNEL_WASM_BYTES).toBeLessThanOrEqual(4096);
+  });
+
+  it("committed bytes (wasm/kernelBytes.ts) are what the AssemblyScript source compiles to", () => {
+    const root = path.resolve(__dirname, "../..");
+    const r = spawnSync(process.execPath, [path.join(root, "scripts", "build-wasm.js"), "--check"], { cwd: root, encoding: "utf8" });
+    expect(r.stderr).toBe("");
+    expect(r.status).toBe(0);
+  });
+});
+
+describe("block reduction: WebAssembly equals JavaScript bitwise", () => {
+  const r = rng(7);
+  const random = (j: number, i: number) => (r() - 0.5) * (1 + j) + (i % 3 === 0 ? 1e-3 : 0);
+
+  it.each([1, 2, 3, 4, 5, 7, 8, 9, 31, 100, 255, BLOCK_ROWS])("one block of m = %i rows, k = 10", (m) => {
+    expectSame(10, [{ m, fill: random }]);
+  });
+
+  it.each([1, 2, 3, 6, 20])("k = %i, several full and partial blocks against the running triangle", (k) => {
+    expectSame(k, [{ m: BLOCK_ROWS, fill: random }, { m: 17, fill: random }, { m: BLOCK_ROWS, fill: random }, { m: 3, fill: random }]);
+  });
+
+  it.each([1, 3, 256])("loading m = %i rows of [X/scale | y] into the block (copies, then the scaling products)", (m) => {
+    const k = 5;
+    const n = 300;
+    const u = rng(m);
+    const X = Array.from({ length: k }, () => Float64Array.from({ length: n }, () => (u() - 0.5) * 1e3));
+    const y = Float64Array.from({ length: n }, () => u() - 0.5);
+    const inv = Float64Array.from({ length: k }, () => 1 / (0.1 + u()));
+    const blocks = [jsKernel, wasm].map((K) => {
+      const ws = K.qrWorkspace(k, BLOCK_ROWS);
+      ws.load(X, y, inv, n - m, m);
+      return ws.C.slice();
+    });
+    expect(bitDiff(blocks[0], blocks[1])).toEqual([]);
+    expect(blocks[1][BLOCK_ROWS * k + m - 1]).toBe(y[n - 1]);
+  });
+
+  it("k = 0 (y alone) leaves everything as it was", () => {
+    const a = expectSame(0, [{ m: 5, fill: random }]);
+    expect(a.T[0]).toBe(0);
+  });
+
+  it("zero columns take the tau = 0 path (identity) and record tau 0, also after earlier blocks set it", () => {
+    // first block, T = 0: a zero column stays zero under the earlier reflections
+    const zeroCol3 = (j: number, i: number) => (j === 3 ? 0 : random(j, i));
+    const first = expectSame(6, [{ m: 40, fill: zeroCol3 }]);
+    expect(first.tau[3]).toBe(0);
+    expect(first.tau[2]).not.toBe(0);
+    // a later block whose leading columns are zero: their tau set by the first block goes back to 0
+    const zeroLead = (j: number, i: number) => (j < 4 ? 0 : random(j, i));
+    const a = expectSame(6, [{ m: 40, fill: random }, { m: 40, fill: zeroLead }]);
+    expect(Array.from(a.tau.slice(0, 4))).toEqual([0, 0, 0, 0]);
+    expect(a.tau[4]).not.toBe(0);
+    const allZero = expectSame(4, [{ m: 9, fill: () => 0 }]);
+    expect(Array.from(allZero.tau)).toEqual([0, 0, 0, 0]);
+  });
+
+  it("a running triangle with negative and positive diagonal entries (both signs of beta)", () => {
+    const k = 5;
+    const T0 = new Float64Array((k + 1) * (k + 1));
+    for (let i = 0; i <= k; i++) for (let j = i; j <= k; j++) T0[i * (k + 1) + j] = (i === j ? (i % 2 ? -1 : 1) * (1 + i) : r() - 0.5);
+    expectSame(k, [{ m: 13, fill: random }], T0);
+  });
+
+  it("extreme magnitudes (1e-150, 1e150) and signed zeros", () => {
+    const tiny = (j: number, i: number) => (i % 5 === 0 ? -0 : random(j, i) * (j % 2 ? 1e-150 : 1e150));
+    expectSame(4, [{ m: 11, fill: tiny }, { m: 6, fill: tiny }]);
+  });
+});
+
+describe("leastSquares under both kernels: the same fit bit for bit", () => {
+  function design(n: number, k: number, seed: number, spread: number) {
+    const u = rng(seed);
+    const X = [new Float64Array(n).fill(1)];
+    for (let j = 1; j < k; j++) X.push(Float64Array.from({ length: n }, (_, i) => (j === 1 ? i / n : u()) * spread ** j));
+    const y = Float64Array.from({ length: n }, (_, i) => X.reduce((s, c, j) => s + (j + 1) * c[i], 0) + u() - 0.5);
+    return { X, y };
+  }
+  afterAll(() => useKernel("default"));
+
+  it.each([
+    [3, 2, 1],
+    [257, 4, 1],
+    [1000, 10, 1],
+    [2049, 6, 1e3], // ill-conditioned: the refinement path keeps the reflectors of every block
+    [700, 150, 1], // a wide design: the module's memory grows for it
+  ])("n = %i, k = %i (column spread %d): coefficients, R, residuals, condition, refinement", (n, k, spread) => {
+    const { X, y } = design(n, k, n + k, spread);
+    useKernel("js");
+    const a = leastSquares(X, y).qr!;
+    useKernel("wasm");
+    const b = leastSquares(X, y).qr!;
+    expect(b.refined).toBe(a.refined);
+    expect({ coef: bitDiff(a.coef, b.coef), R: bitDiff(a.R, b.R), resid: bitDiff(a.resid, b.resid), rss: Object.is(a.rss, b.rss), cond: Object.is(a.condition, b.condition) })
+      .toEqual({ coef: [], R: [], resid: [], rss: true, cond: true });
+  });
+
+  it("the ill-conditioned case does take the refinement path", () => {
+    const { X, y } = design(2049, 6, 2055, 1e3);
+    expect(leastSquares(X, y).qr!.refined).toBe(true);
+  });
+});
+
+describe("fallback to the JavaScript kernel", () => {
+  const real = (globalThis as any).WebAssembly;
+  afterEach(() => {
+    (globalThis as any).WebAssembly = real;
+  });
+  function freshKernelModule(): typeof import("../../functions/engine/kernel") {
+    let mod: typeof import("../../functions/engine/kernel") | undefined;
+    jest.isolateModules(() => {
+      mod = require("../../functions/engine/kernel");
+    });
+    return mod!;
+  }
+
+  it("without WebAssembly: wasmKernel() is null and the engine uses the JavaScript kernel", () => {
+    (globalThis as any).WebAssembly = undefined;
+    const m = freshKernelModule();
+    expect(m.wasmKernel()).toBeNull();
+    expect(m.kernel().name).toBe("js");
+    expect(m.useKernel("wasm").name).toBe("js");
+  });
+
+  it("when compilation is refused (a content security policy without 'wasm-unsafe-eval', or no SIMD): the JavaScript kernel", () => {
+    (globalThis as any).WebAssembly = {
+      ...real,
+      Module: function Refused() {
+        throw new real.CompileError("WebAssembly.Module(): Refused to compile or instantiate WebAssembly module because 'wasm-unsafe-eval' is not an allowed source");
+      },
+    };
+    const m = freshKernelModule();
+    expect(m.wasmKernel()).toBeNull();
+    expect(m.kernel().name).toBe("js");
+  });
+});
+
+describe("rows of Q, leverages and the sandwich's meat: WebAssembly equals JavaScript bitwise", () => {
+  const rows = 256;
+  /** A well-conditioned upper-triangular R (row-major k×k) with both signs on the diagonal. */
+  function triangle(k: number, u: () => number): Float64Array {
+    const R = new Float64Array(k * k);
+    for (let i = 0; i < k; i++) for (let j = i; j < k; j++) R[i * k + j] = i === j ? (i % 3 === 1 ? -1 : 1) * (1 + u()) : u() - 0.5;
+    return R;
+  }
+  function passes(K: Kernel, X: Float64Array[], R: Float64Array, inv: Float64Array, w: Float64Array, sizes: number[]) {
+    const k = X.length;
+    const ws = K.qWorkspace(R, inv, k, rows);
+    const Zs: number[] = [];
+    const hs: number[] = [];
+    let start = 0;
+    for (const m of sizes) {
+      ws.qRows(X, start, m);
+      for (let j = 0; j < k; j++) for (let i = 0; i < m; i++) Zs.push(ws.Z[j * rows + i]);
+      ws.leverage(m);
+      hs.push(...ws.h.subarray(0, m));
+      for (let i = 0; i < m; i++) ws.w[i] = w[start + i];
+      ws.meat(m);
+      start += m;
+    }
+    return { Z: Zs, h: hs, M: Array.from(ws.M) };
+  }
+
+  it.each([
+    [1, [1]],
+    [2, [3, 256]],
+    [3, [2, 5]],
+    [4, [256, 7]],
+    [5, [1, 255, 9]],
+    [7, [256, 256, 3]],
+    [10, [256, 131, 1]],
+    [13, [64, 33]],
+  ])("k = %i, blocks of %j rows", (k, sizes) => {
+    const u = rng(100 + k);
+    const n = sizes.reduce((a, b) => a + b, 0);
+    const X = Array.from({ length: k }, (_, j) => Float64Array.from({ length: n }, () => (u() - 0.5) * 10 ** (j % 3)));
+    const inv = Float64Array.from({ length: k }, (_, j) => 1 / (1 + j + u()));
+    const w = Float64Array.from({ length: n }, (_, i) => (i % 7 === 3 ? 0 : u() * 3));
+    const R = triangle(k, u);
+    const a = passes(jsKernel, X, R, inv, w, sizes);
+    const b = passes(wasm, X, R, inv, w, sizes);
+    expect({ Z: bitDiff(a.Z, b.Z), h: bitDiff(a.h, b.h), M: bitDiff(a.M, b.M) }).toEqual({ Z: [], h: [], M: [] });
+    expect(a.M.some((v) => v !== 0)).toBe(true);
+  });
+
+  it("a workspace used after a newer one was made throws instead of reading stale memory", () => {
+    const old = wasm.qWorkspace(new Float64Array([1]), new Float64Array([1]), 1, rows);
+    wasm.qrWorkspace(3, rows);
+    expect(() => old.meat(1)).toThrow(/newer one/);
+  });
+});
