@@ -9,7 +9,7 @@ import { asMatrix, isHeaderRow, keyText, originOf, xColumnNames } from "../engin
 import { apply, LEVEL, matchName } from "../engine/transforms";
 import { predictRow, retransformFactor } from "../engine/retransform";
 import { heteroTest, jarqueBera, moments, reset, breuschPaganKoenker, breuschPaganOriginal, white, whiteSpecial, type HeteroTest, type TestResult } from "../engine/specTests";
-import { boxCox, peTest, readEvidence } from "../engine/formCheck";
+import { boxCoxOnLogs, peTest, readEvidence } from "../engine/formCheck";
 import { OlsFit } from "../engine/fit";
 import { getOlsFit, type AnyFit } from "../engine/model";
 import { fitFor, olsFor } from "./regression";
@@ -222,21 +222,27 @@ export function formCheckTable(y: unknown, x: unknown, opts: unknown, invocation
     if (o.zeros === "shift" || o.zeros === "ihs") fail(`ELX.FORMCHECK compares plain logs with levels; zeros=${o.zeros} changes the log, so Box–Cox does not apply: use zeros=stop or zeros=drop on data with y above zero`);
     const [yo, xo] = originsOf(invocation);
     const get = (form: Form): OlsFit => getOlsFit({ y, x, options: { ...o, form }, yOrigin: yo ?? null, xOrigin: xo ?? null }, "ELX.FORMCHECK");
-    if (o.zeros !== "drop") {
-      // Check y first for the message that fits a form comparison (the log fit's would name the log).
-      const probe = get(otherSide(o.form, "level"));
-      const yv = probe.data.y;
-      for (let i = 0; i < yv.length; i++) {
-        if (!(yv[i] > 0)) {
-          fail(`Box–Cox and the log of y need y above zero, and ${probe.data.yName} has a zero or negative value (row ${probe.data.rowNumbers[i]}); the comparison is undefined: use zeros=drop to compare on the rows above zero, or estimator=ppml, which keeps zeros`);
+    // The log fit first; only when it fails (and zeros= does not drop rows) is y read in levels, for
+    // the message that fits a form comparison (the log fit's would name the log).
+    let logFit: OlsFit;
+    try {
+      logFit = get(otherSide(o.form, "log"));
+    } catch (e) {
+      if (e instanceof ElxProblem && o.zeros !== "drop") {
+        const probe = get(otherSide(o.form, "level"));
+        const yv = probe.data.y;
+        for (let i = 0; i < yv.length; i++) {
+          if (!(yv[i] > 0)) {
+            fail(`Box–Cox and the log of y need y above zero, and ${probe.data.yName} has a zero or negative value (row ${probe.data.rowNumbers[i]}); the comparison is undefined: use zeros=drop to compare on the rows above zero, or estimator=ppml, which keeps zeros`);
+          }
         }
       }
+      throw e;
     }
-    const logFit = get(otherSide(o.form, "log"));
     // The level fit on exactly the rows of the log fit (under zeros=drop those are the rows above zero).
     const levelFit = logFit.memo("levelTwin", () => levelTwin(logFit));
     const se = seTypeOf(o);
-    const bc = levelFit.memo(`boxcox:${o.level}`, () => boxCox(levelFit, o.level));
+    const bc = logFit.memo(`boxcox:${o.level}`, () => boxCoxOnLogs(logFit, o.level, levelFit));
     const pe = logFit.memo(`pe:${se}:${o.lags}`, () => peTest(logFit, levelFit, se, o.lags));
     const side = (f: OlsFit) => {
       f.requireResidualVariation("the residual checks");

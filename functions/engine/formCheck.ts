@@ -23,9 +23,10 @@
  *   out of that auxiliary regression (counted). t uses the chosen covariance (the default HC3), as
  *   lmtest::petest(…, vcov = …) does.
  */
-import { leastSquares, residualSS } from "./leastSquares";
+import { BLOCK_ROWS, leastSquares, projectOnFactor, RANK_TOL, roughRssOnFactor, rssOnFactor, upperInverse, type QrFit } from "./leastSquares";
+import { factorReusable, REUSE_CONDITION } from "./specTests";
 import { chiSquareQuantile, chiSquareSf, studentTwoSided } from "./distributions";
-import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, leastSquaresInput } from "./covariance";
+import { BLOCK, classicalCovariance, defaultLags, forEachQBlock, hacCovariance, hcCovariance, leastSquaresInput, LEVERAGE_TOL } from "./covariance";
 import { fail, unavailable } from "./problems";
 import type { OlsFit } from "./fit";
 import type { SeType } from "./options";
@@ -48,8 +49,160 @@ export interface BoxCox {
   logLik: (lambda: number) => number;
 }
 
+/**
+ * The Box–Cox profile: ℓ(λ) and its slope dℓ/dλ (each λ computed once, then kept), and a rough ℓ for
+ * screening a grid in one pass, with a bound of its error.
+ */
+export interface BoxCoxProfile {
+  ll: (lambda: number) => number;
+  slope: (lambda: number) => number;
+  /** Screens the given λ together in one pass (exact values where the factor is not reused). */
+  screen: (lambdas: readonly number[]) => void;
+  /** ℓ(λ) if computed, else the screened value; and the bound of its error (0 when computed). */
+  rough: (lambda: number) => { ll: number; err: number };
+  /** The λ computed so far, with their slopes. */
+  computed: () => [number, number][];
+  /**
+   * Takes ℓ(λ) and its slope from the residuals of a fit of w(λ) on the same design already made
+   * (r·unit are the residuals of w(λ)): one pass without the design.
+   */
+  seed: (lambda: number, r: Float64Array, unit: number) => void;
+  /** Whether the fit's factor is reused (false: each λ is a new factorisation, for ill-conditioned designs). */
+  reused: boolean;
+}
+
+/**
+ * The profile of y with logs `logY` on the design X with the factor `qr` (the same x side in logs or
+ * in levels: only y changes with λ). With a well-conditioned design every λ reuses the factor through
+ * rssOnFactor (two passes over the rows), and a grid is screened in one pass (roughRssOnFactor); when
+ * the fit was refined or its condition estimate reaches REUSE_CONDITION, each λ is factorised anew.
+ * The slope is dℓ/dλ = −n·rᵀw′(λ)/RSS (r ⊥ X, so only the change of w moves the RSS), with
+ * w′ = (u·e^{λu} − w)/λ, or its series u²/2 + λu³/3 + λ²u⁴/8 + λ³u⁵/30 where |λu| < 1e-4.
+ */
+export function boxCoxProfileOf(X: Float64Array[], qr: QrFit, intercept: boolean, logY: Float64Array): BoxCoxProfile {
+  const n = logY.length;
+  // u = log(y/ẏ), centred on zero: the transform below never sees the units of y
+  const u = Float64Array.from(logY);
+  const logGm = stableSum(u) / n;
+  for (let i = 0; i < n; i++) u[i] -= logGm;
+  /** The constant of the transform without an intercept, and its derivative in λ (zero with one). */
+  const shift = (lambda: number): [number, number] => {
+    if (intercept) return [0, 0];
+    const g = logGm;
+    if (Math.abs(lambda) < 1e-12) return [g, -(g * g) / 2];
+    const c = -Math.expm1(-lambda * g) / lambda;
+    if (!Number.isFinite(c)) unavailable("without an intercept Box–Cox depends on the units of y, and at these magnitudes its transform exceeds what double precision holds: rescale y (for example to thousands) or use intercept=true");
+    return [c, (g * Math.exp(-lambda * g) - c) / lambda];
+  };
+  // w(λ) = expm1(λu)/λ, which tends to u as λ → 0 (expm1 keeps the digits there)
+  const transform = (lambda: number, c: number, out: Float64Array, o: number, start: number, m: number) => {
+    if (Math.abs(lambda) < 1e-12) for (let i = 0; i < m; i++) out[o + i] = u[start + i] + c;
+    else for (let i = 0; i < m; i++) out[o + i] = Math.expm1(lambda * u[start + i]) / lambda + c;
+  };
+  // w′(λ) from u and w(λ) (without its constant c[0]), plus the constant's derivative c[1]
+  const derivative = (lambda: number, c: [number, number], w: Float64Array, D: Float64Array, start: number, m: number) => {
+    const small = Math.abs(lambda) < 1e-12;
+    for (let i = 0; i < m; i++) {
+      const v = u[start + i];
+      const x = lambda * v;
+      const wi = w[start + i] - c[0];
+      D[i] = (small || Math.abs(x) < 1e-4 ? v * v * (0.5 + x * (1 / 3 + x * (1 / 8 + x / 30))) : (v * (lambda * wi + 1) - wi) / lambda) + c[1];
+    }
+  };
+  const reused = !qr.refined && qr.condition < REUSE_CONDITION;
+  const known = new Map<number, { ll: number; slope: number }>();
+  const screened = new Map<number, { ll: number; err: number }>();
+  const yt = new Float64Array(n);
+  const value = (rss: number) => (-n / 2) * Math.log(rss);
+  const compute = (l: number): { ll: number; slope: number } => {
+    let got = known.get(l);
+    if (got) return got;
+    const c = shift(l);
+    if (!reused) {
+      transform(l, c[0], yt, 0, 0, n);
+      const ls = leastSquares(X, yt);
+      if (!ls.qr) return unavailable("the design is singular");
+      const dt = new Float64Array(n);
+      derivative(l, c, yt, dt, 0, n);
+      let cross = 0;
+      for (let r = 0; r < n; r++) cross += ls.qr.resid[r] * dt[r];
+      got = { ll: value(ls.qr.rss), slope: (-n * cross) / ls.qr.rss };
+    } else {
+      // the transform is computed once, in the first pass, and kept for the second
+      const out = rssOnFactor(X, qr, 1, (start, m, V, pass, D) => {
+        if (pass === 0) transform(l, c[0], yt, start, start, m);
+        for (let i = 0; i < m; i++) V[i] = yt[start + i];
+        if (D) derivative(l, c, yt, D, start, m);
+      }, true);
+      got = { ll: value(out.rss[0]), slope: (-n * (out.cross as Float64Array)[0]) / out.rss[0] };
+    }
+    known.set(l, got);
+    return got;
+  };
+  const screen = (lambdas: readonly number[]): void => {
+    const todo = [...new Set(lambdas.filter((l) => !known.has(l) && !screened.has(l)))];
+    if (todo.length === 0) return;
+    if (!reused) {
+      todo.forEach(compute);
+      return;
+    }
+    const c = todo.map((l) => shift(l)[0]);
+    const out = roughRssOnFactor(X, qr, todo.length, (start, m, V) => {
+      for (let l = 0; l < todo.length; l++) transform(todo[l], c[l], V, l * BLOCK_ROWS, start, m);
+    });
+    todo.forEach((l, i) => screened.set(l, { ll: value(out.rss[i]), err: (n / 2) * out.bound[i] }));
+  };
+  const rough = (l: number): { ll: number; err: number } => {
+    const k = known.get(l);
+    if (k) return { ll: k.ll, err: 0 };
+    return screened.get(l) ?? { ll: compute(l).ll, err: 0 };
+  };
+  const computed = (): [number, number][] => [...known.entries()].map(([l, v]) => [l, v.slope]);
+  const seed = (l: number, r: Float64Array, unit: number): void => {
+    if (known.has(l)) return;
+    const c = shift(l);
+    transform(l, c[0], yt, 0, 0, n);
+    const dt = new Float64Array(n);
+    derivative(l, c, yt, dt, 0, n);
+    let rss = 0;
+    let cross = 0;
+    for (let i = 0; i < n; i++) {
+      const e = r[i] * unit;
+      rss += e * e;
+      cross += e * dt[i];
+    }
+    known.set(l, { ll: value(rss), slope: (-n * cross) / rss });
+  };
+  return { ll: (l) => compute(l).ll, slope: (l) => compute(l).slope, screen, rough, computed, seed, reused };
+}
+
+/**
+ * A root of f in [lo, hi] (f below zero at lo when negAtLo, else above) by Newton's steps from
+ * `start`, each kept inside the shrinking bracket and replaced by bisection when it would leave it;
+ * returns the first step that moves less than tol (its error is then of the order of tol²).
+ */
+function bracketedNewton(f: (x: number) => number, df: (x: number) => number, lo: number, hi: number, negAtLo: boolean, start: number, tol: number): number {
+  let x = start > lo && start < hi ? start : 0.5 * (lo + hi);
+  let fx = f(x);
+  for (let iter = 0; iter < 100; iter++) {
+    if (fx === 0) return x;
+    if (fx < 0 === negAtLo) lo = x;
+    else hi = x;
+    let next = x - fx / df(x);
+    if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
+    if (Math.abs(next - x) <= tol || hi - lo <= tol) return next;
+    x = next;
+    fx = f(x);
+  }
+  return x;
+}
+
 /** The Box–Cox profile log-likelihood of a positive y on the design of `fit` (y in levels). */
 export function boxCoxProfile(fit: OlsFit): (lambda: number) => number {
+  return levelProfile(fit).ll;
+}
+
+function levelProfile(fit: OlsFit): BoxCoxProfile {
   const y = fit.data.y;
   const n = y.length;
   for (let i = 0; i < n; i++) {
@@ -57,57 +210,94 @@ export function boxCoxProfile(fit: OlsFit): (lambda: number) => number {
       fail(`Box–Cox needs y above zero, and ${fit.data.yName} has zero or negative values (row ${fit.data.rowNumbers[i]}): use zeros= with the log model, or estimator=ppml, which keeps zeros`);
     }
   }
-  // u = log(y/ẏ), centred on zero: the transform below never sees the units of y
-  const u = Float64Array.from(y, Math.log);
-  const logGm = stableSum(u) / n;
-  for (let i = 0; i < n; i++) u[i] -= logGm;
-  const qr = fit.qr;
-  const X = fit.design;
-  const yt = new Float64Array(n);
-  const r = new Float64Array(n);
-  const intercept = fit.intercept;
-  return (lambda: number) => {
-    // w(λ) = expm1(λu)/λ, which tends to u as λ → 0 (expm1 keeps the digits there)
-    if (Math.abs(lambda) < 1e-12) yt.set(u);
-    else for (let i = 0; i < n; i++) yt[i] = Math.expm1(lambda * u[i]) / lambda;
-    if (!intercept) {
-      const c = Math.abs(lambda) < 1e-12 ? logGm : -Math.expm1(-lambda * logGm) / lambda;
-      if (!Number.isFinite(c)) unavailable("without an intercept Box–Cox depends on the units of y, and at these magnitudes its transform exceeds what double precision holds: rescale y (for example to thousands) or use intercept=true");
-      for (let i = 0; i < n; i++) yt[i] += c;
-    }
-    const rss = qr.refined ? solvedRss(X, yt) : residualSS(X, qr, yt, r);
-    return (-n / 2) * Math.log(rss);
-  };
+  return boxCoxProfileOf(fit.design, fit.qr, fit.intercept, Float64Array.from(y, Math.log));
 }
 
-/** RSS of v on a design already known to have full rank (refactored for the refined case). */
-function solvedRss(X: Float64Array[], v: Float64Array): number {
-  const ls = leastSquares(X, v);
-  return ls.qr ? ls.qr.rss : unavailable("the design is singular");
-}
-
+/** Box–Cox on the fit of y in levels. */
 export function boxCox(levelFit: OlsFit, level: number): BoxCox {
-  const ll = boxCoxProfile(levelFit);
-  // A grid brackets the maximum (the profile can have a shallow shoulder), then Brent's search.
-  const grid = 20;
-  let best = LAMBDA_MIN;
-  let bestLl = -Infinity;
-  for (let i = 0; i <= grid; i++) {
-    const l = LAMBDA_MIN + ((LAMBDA_MAX - LAMBDA_MIN) * i) / grid;
-    const v = ll(l);
-    if (v > bestLl) {
-      bestLl = v;
-      best = l;
+  return boxCoxSearch(levelProfile(levelFit), level);
+}
+
+/**
+ * Box–Cox from the fit of log y on the same x side: the profile needs log y and the design's factor
+ * only, so the fit in levels is not needed for it.
+ */
+export function boxCoxOnLogs(logFit: OlsFit, level: number, levelFit: OlsFit | null = null): BoxCox {
+  const p = boxCoxProfileOf(logFit.design, logFit.qr, logFit.intercept, logFit.data.y);
+  if (logFit.intercept) {
+    // with an intercept w(0) = log y − log ẏ and w(1) = y/ẏ − 1 have the residuals of the two fits
+    // (the second divided by ẏ): ℓ(0) and ℓ(1) come from them without a pass over the design
+    p.seed(0, logFit.scaledResid, logFit.yUnit);
+    if (levelFit && levelFit.n === logFit.n) {
+      const logGm = stableSum(logFit.data.y) / logFit.n;
+      p.seed(1, levelFit.scaledResid, levelFit.yUnit * Math.exp(-logGm));
     }
   }
-  const step = (LAMBDA_MAX - LAMBDA_MIN) / grid;
-  const lambda = brentMax(ll, Math.max(LAMBDA_MIN, best - step), Math.min(LAMBDA_MAX, best + step), LAMBDA_TOL);
-  const top = ll(lambda);
-  const cut = top - chiSquareQuantile(level, 1) / 2;
-  const h = (l: number) => ll(l) - cut;
+  return boxCoxSearch(p, level);
+}
+
+function boxCoxSearch(p: BoxCoxProfile, level: number): BoxCox {
+  const ll = p.ll;
+  // A grid brackets the maximum (the profile can have a shallow shoulder). The grid and the ends of
+  // the interval's search are screened in one pass; where the screened values cannot decide a
+  // comparison (within their error bound), the λ involved are computed.
+  const grid = 20;
   const reach = 5; // search the interval's ends a little beyond [−2, 2]
-  const lower = h(-reach) < 0 ? brentRoot(h, -reach, lambda, 1e-11) : null;
-  const upper = h(reach) < 0 ? brentRoot(h, lambda, reach, 1e-11) : null;
+  const points: number[] = [];
+  for (let i = 0; i <= grid; i++) points.push(LAMBDA_MIN + ((LAMBDA_MAX - LAMBDA_MIN) * i) / grid);
+  p.screen([...points, -reach, reach]);
+  let best = 0;
+  for (;;) {
+    best = 0;
+    for (let i = 1; i <= grid; i++) if (p.rough(points[i]).ll > p.rough(points[best]).ll) best = i;
+    const top = p.rough(points[best]);
+    const unsure = points.filter((g, i) => {
+      const r = p.rough(g);
+      return i !== best && r.err + top.err > 0 && r.ll + r.err >= top.ll - top.err;
+    });
+    if (unsure.length === 0) break;
+    [points[best], ...unsure].forEach(ll);
+  }
+  // λ̂: the zero of the slope between the grid's neighbours of the best point (Brent's method on the
+  // slope), or Brent's search on ℓ itself where the slope does not change sign there (an edge).
+  const a = points[Math.max(0, best - 1)];
+  const b = points[Math.min(grid, best + 1)];
+  let lambda = p.slope(a) > 0 && p.slope(b) < 0 ? brentRoot(p.slope, a, b, LAMBDA_TOL) : NaN;
+  if (Number.isNaN(lambda) || !(ll(lambda) >= ll(points[best]))) lambda = brentMax(ll, a, b, LAMBDA_TOL);
+  const top = ll(lambda);
+  const drop = chiSquareQuantile(level, 1) / 2;
+  const cut = top - drop;
+  const h = (l: number) => ll(l) - cut;
+  const belowCut = (l: number): boolean => {
+    const r = p.rough(l);
+    return Math.abs(r.ll - cut) > r.err ? r.ll < cut : h(l) < 0;
+  };
+  // The curvature at λ̂ from the computed λ nearest to it (the search's last steps), for the first
+  // guess of each end: λ̂ ∓ √(2·drop/curvature), the ends of the quadratic approximation.
+  let curvature = NaN;
+  let nearest = Infinity;
+  for (const [l, s] of p.computed()) {
+    const d = Math.abs(l - lambda);
+    if (d > 1e-6 * (1 + Math.abs(lambda)) && d < nearest) {
+      nearest = d;
+      curvature = -s / (l - lambda);
+    }
+  }
+  const guess = (side: -1 | 1) => lambda + side * Math.sqrt((2 * drop) / curvature);
+  // Each end is searched between λ̂ and the nearest λ of the grid (or ±reach) already below the cut.
+  const end = (side: -1 | 1): number | null => {
+    if (!belowCut(side * reach)) return null;
+    let from = side * reach;
+    for (let i = 0; i <= grid; i++) {
+      const g = points[side < 0 ? i : grid - i];
+      if ((side < 0 ? g < lambda : g > lambda) && belowCut(g)) from = g;
+    }
+    return side < 0
+      ? bracketedNewton(h, p.slope, from, lambda, true, guess(-1), 1e-11)
+      : bracketedNewton(h, p.slope, lambda, from, false, guess(1), 1e-11);
+  };
+  const lower = end(-1);
+  const upper = end(1);
   return {
     lambda,
     lower,
@@ -147,19 +337,179 @@ function addedVariableT(X: Float64Array[], z0: Float64Array, y0: Float64Array, s
   return { t: (q.coef[j] * q.scale[j]) / Math.sqrt(V[j * k + j]), df: q.n - k };
 }
 
+/** Leverages of a design from its factor: h_i = ‖R⁻ᵀx_i‖² of the scaled row. */
+function leveragesOf(X: Float64Array[], qr: QrFit): Float64Array {
+  const h = new Float64Array(qr.n);
+  const k = qr.k;
+  forEachQBlock(X, qr, (start, m, Z) => {
+    for (let j = 0; j < k; j++) {
+      const o = j * BLOCK;
+      for (let i = 0; i < m; i++) h[start + i] += Z[o + i] * Z[o + i];
+    }
+  });
+  return h;
+}
+
+/** κ₁ of an upper-triangular factor (as leastSquares estimates it). */
+function conditionOf(R: Float64Array, k: number): number {
+  const Ri = upperInverse(R, k);
+  let a = 0;
+  let b = 0;
+  for (let j = 0; j < k; j++) {
+    let sa = 0;
+    let sb = 0;
+    for (let i = 0; i <= j; i++) {
+      sa += Math.abs(R[i * k + j]);
+      sb += Math.abs(Ri[i * k + j]);
+    }
+    a = Math.max(a, sa);
+    b = Math.max(b, sb);
+  }
+  return a * b;
+}
+
+/**
+ * The factor of the design's rows `keep` from the fit's factor, without a new factorisation: the
+ * Cholesky factor of RᵀR − Σ x_s,i x_s,iᵀ over the rows left out (same column scaling). As a
+ * preconditioner of the corrected semi-normal equations it serves as R does: both satisfy
+ * RᵀR = X_sᵀX_s up to rounding of the order of ε‖X_s‖². Null when fewer than half the rows are kept or
+ * they leave the design ill-conditioned (or singular): then they are factorised anew.
+ */
+function keptRowsFactor(X: Float64Array[], qr: QrFit, keep: number[]): QrFit | null {
+  // RᵀR − X_DᵀX_D cancels when most rows go: then the rows kept are factorised anew
+  if (keep.length < qr.n / 2) return null;
+  const k = qr.k;
+  const R = qr.R;
+  const G = new Float64Array(k * k);
+  for (let i = 0; i < k; i++) {
+    for (let j = i; j < k; j++) {
+      let s = 0;
+      for (let m = 0; m <= i; m++) s += R[m * k + i] * R[m * k + j];
+      G[i * k + j] = s;
+    }
+  }
+  const row = new Float64Array(k);
+  let next = 0;
+  for (let r = 0; r < qr.n; r++) {
+    if (next < keep.length && keep[next] === r) {
+      next++;
+      continue;
+    }
+    for (let j = 0; j < k; j++) row[j] = X[j][r] / qr.scale[j];
+    for (let i = 0; i < k; i++) for (let j = i; j < k; j++) G[i * k + j] -= row[i] * row[j];
+  }
+  const U = new Float64Array(k * k);
+  for (let j = 0; j < k; j++) {
+    let d = G[j * k + j];
+    for (let m = 0; m < j; m++) d -= U[m * k + j] * U[m * k + j];
+    if (!(d > 0)) return null;
+    const ujj = Math.sqrt(d);
+    U[j * k + j] = ujj;
+    for (let c = j + 1; c < k; c++) {
+      let v = G[j * k + c];
+      for (let m = 0; m < j; m++) v -= U[m * k + j] * U[m * k + c];
+      U[j * k + c] = v / ujj;
+    }
+  }
+  const condition = conditionOf(U, k);
+  if (!(condition < REUSE_CONDITION)) return null;
+  const n = keep.length;
+  return { n, k, R: U, Rinv: upperInverse(U, k), scale: qr.scale, coef: new Float64Array(k), resid: new Float64Array(0), rss: NaN, condition, refined: false };
+}
+
+/**
+ * t of z added to the regression of y on X (e: y's residuals on X), through X's factor (partitioned
+ * regression, Frisch–Waugh–Lovell): z̃ = z on X's residual (projectOnFactor), b = z̃ᵀe/z̃ᵀz̃, the full
+ * model's residuals e − b·z̃ and leverages h_i + z̃_i²/z̃ᵀz̃, and the variance of b from the last row of
+ * (XᵀX)⁻¹Xᵀ, which is z̃ᵀ/z̃ᵀz̃: s²/z̃ᵀz̃ (classical), Σ z̃_i²ω_i/(z̃ᵀz̃)² (HC0–HC3). The same numbers as
+ * a new factorisation of [X, z] (test/engine/reuse.test.ts). Null where that factorisation is needed:
+ * se=HAC, z (nearly) a combination of X, or a row of leverage 1 (which it then names).
+ */
+function addedVariableOnFactor(X: Float64Array[], qr: QrFit, e: Float64Array, z0: Float64Array, se: SeType, leverages: () => Float64Array): { t: number; df: number } | null {
+  if (!(se === "classical" || se === "HC0" || se === "HC1" || se === "HC2" || se === "HC3")) return null;
+  const z = working(z0);
+  const n = qr.n;
+  const df = n - qr.k - 1;
+  if (df <= 0) return null;
+  const zt = new Float64Array(n);
+  const zz = projectOnFactor(X, qr, z, zt).rss;
+  let z2 = 0;
+  for (let i = 0; i < n; i++) z2 += z[i] * z[i];
+  if (!(zz > 1e4 * RANK_TOL * RANK_TOL * z2)) return null;
+  let ze = 0;
+  for (let i = 0; i < n; i++) ze += zt[i] * e[i];
+  const b = ze / zz;
+  let v: number;
+  if (se === "classical") {
+    let ss = 0;
+    for (let i = 0; i < n; i++) {
+      const u = e[i] - b * zt[i];
+      ss += u * u;
+    }
+    v = ss / df / zz;
+  } else {
+    const h = se === "HC2" || se === "HC3" ? leverages() : null;
+    const hc1 = n / df;
+    let s = 0;
+    for (let i = 0; i < n; i++) {
+      const u = e[i] - b * zt[i];
+      let w = u * u;
+      if (se === "HC1") w *= hc1;
+      else if (h) {
+        const hi = h[i] + (zt[i] * zt[i]) / zz;
+        if (hi >= 1 - LEVERAGE_TOL) return null;
+        w = se === "HC2" ? w / (1 - hi) : w / ((1 - hi) * (1 - hi));
+      }
+      s += zt[i] * zt[i] * w;
+    }
+    v = s / (zz * zz);
+  }
+  return { t: b / Math.sqrt(v), df };
+}
+
+/** addedVariableOnFactor on a plain fit's own design and residuals (the fit's factor reused), or null. */
+function addedVariableOnFit(fit: OlsFit, z: Float64Array, se: SeType, leverages: () => Float64Array): { t: number; df: number } | null {
+  // e: the fit's residuals in units of yUnit (the t ratio does not depend on y's units)
+  return factorReusable(fit) ? addedVariableOnFactor(fit.design, fit.qr, fit.scaledResid, z, se, leverages) : null;
+}
+
 /** The PE test both ways, from the log-y and the level-y fits on the same x side. */
 export function peTest(logFit: OlsFit, levelFit: OlsFit, se: SeType, lags: number | null): { levels: PeSide; logs: PeSide } {
   const n = levelFit.n;
   const fl = levelFit.fitted;
   const fg = logFit.fitted;
+  // Both fits have the same design (and so the same leverages); computed once, when needed.
+  const leverages = () => logFit.memo("designLeverages", () => leveragesOf(logFit.design, logFit.qr));
   // Level model + log(ŷ_levels) − ŷ_logs, on rows with ŷ_levels > 0.
   const keep: number[] = [];
   for (let i = 0; i < n; i++) if (fl[i] > 0) keep.push(i);
-  const sub = (c: Float64Array) => Float64Array.from(keep, (i) => c[i]);
-  const zLevels = Float64Array.from(keep, (i) => Math.log(fl[i]) - fg[i]);
-  const a = addedVariableT(levelFit.design.map(sub), zLevels, sub(levelFit.data.y), se, lags);
-  const zLogs = Float64Array.from(fl, (v, i) => v - Math.exp(fg[i]));
-  const b = addedVariableT(logFit.design, zLogs, logFit.data.y, se, lags);
+  let a: { t: number; df: number } | null = null;
+  if (keep.length === n) {
+    const zLevels = new Float64Array(n);
+    for (let i = 0; i < n; i++) zLevels[i] = Math.log(fl[i]) - fg[i];
+    a = addedVariableOnFit(levelFit, zLevels, se, leverages) ?? addedVariableT(levelFit.design, zLevels, levelFit.data.y, se, lags);
+  } else {
+    const m = keep.length;
+    const sub = (c: Float64Array) => {
+      const out = new Float64Array(m);
+      for (let i = 0; i < m; i++) out[i] = c[keep[i]];
+      return out;
+    };
+    const zLevels = new Float64Array(m);
+    for (let i = 0; i < m; i++) zLevels[i] = Math.log(fl[keep[i]]) - fg[keep[i]];
+    const Xk = levelFit.design.map(sub);
+    // the level model on the rows kept: the factor of those rows from the fit's, when it serves
+    const qk = factorReusable(levelFit) ? keptRowsFactor(levelFit.design, levelFit.qr, keep) : null;
+    if (qk) {
+      const ek = new Float64Array(m);
+      projectOnFactor(Xk, qk, working(sub(levelFit.scaledY)), ek);
+      a = addedVariableOnFactor(Xk, qk, ek, zLevels, se, () => leveragesOf(Xk, qk));
+    }
+    a = a ?? addedVariableT(Xk, zLevels, sub(levelFit.data.y), se, lags);
+  }
+  const zLogs = new Float64Array(n);
+  for (let i = 0; i < n; i++) zLogs[i] = fl[i] - Math.exp(fg[i]);
+  const b = addedVariableOnFit(logFit, zLogs, se, leverages) ?? addedVariableT(logFit.design, zLogs, logFit.data.y, se, lags);
   return {
     levels: { t: a.t, p: studentTwoSided(a.t, a.df), leftOut: n - keep.length },
     logs: { t: b.t, p: studentTwoSided(b.t, b.df), leftOut: 0 },

@@ -431,3 +431,189 @@ export function residualSS(X: Float64Array[], qr: QrFit, v: Float64Array, r: Flo
   for (let i = 0; i < n; i++) rss += r[i] * r[i];
   return rss;
 }
+
+/** c ← (RᵀR)⁻¹ c in place: a forward solve with Rᵀ, then a back solve with R. */
+export function semiNormalSolve(R: Float64Array, k: number, c: Float64Array): void {
+  forwardSolveRt(R, k, c);
+  for (let i = k - 1; i >= 0; i--) {
+    let s = c[i];
+    for (let j = i + 1; j < k; j++) s -= R[i * k + j] * c[j];
+    c[i] = s / R[i * k + i];
+  }
+}
+
+/** Σ_j (c_j/scale_j)·X_j over rows [start, start + m), subtracted from r there. */
+export function subtractCombination(X: Float64Array[], scale: Float64Array, c: Float64Array, r: Float64Array, start: number, m: number): void {
+  const end = start + m;
+  for (let j = 0; j < X.length; j++) {
+    const b = c[j] / scale[j];
+    if (b === 0) continue;
+    const col = X[j];
+    for (let i = start; i < end; i++) r[i] -= b * col[i];
+  }
+}
+
+/**
+ * v on the design X through its factor `qr` (as residualSS, the corrected semi-normal equations),
+ * keeping what a partitioned regression needs: the coefficients c of the column-scaled design
+ * (b_j = c_j / scale_j) and the corrected residuals, written to r. Three passes over the rows: X_sᵀv;
+ * the residual, with X_sᵀr summed block by block while the block is in cache; the correction. Accurate
+ * for a well-conditioned X only: callers fall back to a new factorisation when qr.condition is large.
+ */
+export function projectOnFactor(X: Float64Array[], qr: QrFit, v: Float64Array, r: Float64Array): { c: Float64Array; rss: number } {
+  const k = X.length;
+  const n = v.length;
+  const scale = qr.scale;
+  const c = new Float64Array(k);
+  for (let j = 0; j < k; j++) c[j] = dotBlock(X[j], 0, v, 0, n) / scale[j];
+  semiNormalSolve(qr.R, k, c);
+  const t = new Float64Array(k);
+  const B = BLOCK_ROWS;
+  for (let start = 0; start < n; start += B) {
+    const m = Math.min(B, n - start);
+    for (let i = start; i < start + m; i++) r[i] = v[i];
+    subtractCombination(X, scale, c, r, start, m);
+    for (let j = 0; j < k; j++) t[j] += dotBlock(X[j], start, r, start, m);
+  }
+  for (let j = 0; j < k; j++) t[j] /= scale[j];
+  semiNormalSolve(qr.R, k, t);
+  let rss = 0;
+  for (let start = 0; start < n; start += B) {
+    const m = Math.min(B, n - start);
+    subtractCombination(X, scale, t, r, start, m);
+    for (let i = start; i < start + m; i++) rss += r[i] * r[i];
+  }
+  for (let j = 0; j < k; j++) c[j] += t[j];
+  return { c, rss };
+}
+
+/**
+ * Relative error bound of an RSS found without the correction step, or by the normal-equations
+ * formula ‖v‖² − ‖R⁻ᵀX_sᵀv‖²: ε²(κ√(nk) + kκ²)²·‖v‖²/RSS, times 100 for safety (κ the condition estimate;
+ * the rounding of X_sᵀv and the backward error of R, each amplified by κ through the projection).
+ */
+function rssErrorBound(qr: QrFit, k: number, vv: number, rss: number): number {
+  const kappa = qr.condition;
+  const e = Number.EPSILON * (kappa * Math.sqrt(qr.n * k) + k * kappa * kappa);
+  return rss > 0 ? 100 * e * e * (vv / rss) : Infinity;
+}
+
+/**
+ * RSS of L right-hand sides on the design X through its factor `qr`, each side generated block by
+ * block: fill(start, m, V, pass, D) writes rows [start, start + m) of side l to V[l·BLOCK_ROWS + i], and
+ * is called once per block in each of the two passes (a side is never held whole). Pass 1: X_sᵀv and
+ * the semi-normal solution c; pass 2: r = v − X_s c and ‖r‖². The error of ‖r‖² is ‖X_s δc‖², second
+ * order in the error δc of c; where its bound (rssErrorBound) exceeds 1e-16 the correction step of the
+ * corrected semi-normal equations is taken too, in closed form: t = X_sᵀr is summed in pass 2, and the
+ * corrected residual r − X_s(RᵀR)⁻¹t has squared length ‖r‖² − ‖R⁻ᵀt‖² (no third pass). Same accuracy
+ * as residualSS, for the well-conditioned designs it is used on.
+ * With `cross`, fill also writes a second vector d per side to D in pass 2 (same layout), and rᵀd is
+ * returned per side (r before any correction, which would change it only by a term of the order of the
+ * rounding; for search directions, not for reported values).
+ */
+export function rssOnFactor(
+  X: Float64Array[], qr: QrFit, L: number,
+  fill: (start: number, m: number, V: Float64Array, pass: 0 | 1, D: Float64Array | null) => void,
+  cross = false,
+): { rss: Float64Array; cross: Float64Array | null } {
+  const k = X.length;
+  const n = qr.n;
+  const B = BLOCK_ROWS;
+  const scale = qr.scale;
+  const V = new Float64Array(L * B);
+  const D = cross ? new Float64Array(L * B) : null;
+  const g = new Float64Array(L * k);
+  const vv = new Float64Array(L);
+  for (let start = 0; start < n; start += B) {
+    const m = Math.min(B, n - start);
+    fill(start, m, V, 0, null);
+    for (let l = 0; l < L; l++) vv[l] += dotBlock(V, l * B, V, l * B, m);
+    for (let j = 0; j < k; j++) {
+      const col = X[j];
+      for (let l = 0; l < L; l++) g[l * k + j] += dotBlock(col, start, V, l * B, m);
+    }
+  }
+  const c = new Float64Array(k);
+  const coefs = new Float64Array(L * k);
+  const correct = new Uint8Array(L);
+  for (let l = 0; l < L; l++) {
+    for (let j = 0; j < k; j++) c[j] = g[l * k + j] / scale[j];
+    forwardSolveRt(qr.R, k, c);
+    let pv = 0;
+    for (let j = 0; j < k; j++) pv += c[j] * c[j];
+    correct[l] = rssErrorBound(qr, k, vv[l], vv[l] - pv) > 1e-16 ? 1 : 0;
+    for (let i = k - 1; i >= 0; i--) {
+      let s = c[i];
+      for (let j = i + 1; j < k; j++) s -= qr.R[i * k + j] * c[j];
+      c[i] = s / qr.R[i * k + i];
+    }
+    for (let j = 0; j < k; j++) coefs[l * k + j] = c[j] / scale[j];
+  }
+  const rr = new Float64Array(L);
+  const rd = cross ? new Float64Array(L) : null;
+  const t = new Float64Array(L * k);
+  for (let start = 0; start < n; start += B) {
+    const m = Math.min(B, n - start);
+    fill(start, m, V, 1, D);
+    for (let l = 0; l < L; l++) {
+      const o = l * B;
+      for (let j = 0; j < k; j++) {
+        const b = coefs[l * k + j];
+        if (b === 0) continue;
+        const col = X[j];
+        for (let i = 0; i < m; i++) V[o + i] -= b * col[start + i];
+      }
+      rr[l] += dotBlock(V, o, V, o, m);
+      if (rd && D) rd[l] += dotBlock(V, o, D, o, m);
+      if (correct[l]) for (let j = 0; j < k; j++) t[l * k + j] += dotBlock(X[j], start, V, o, m);
+    }
+  }
+  const rss = new Float64Array(L);
+  for (let l = 0; l < L; l++) {
+    let corr = 0;
+    if (correct[l]) {
+      for (let j = 0; j < k; j++) c[j] = t[l * k + j] / scale[j];
+      forwardSolveRt(qr.R, k, c);
+      for (let j = 0; j < k; j++) corr += c[j] * c[j];
+    }
+    rss[l] = rr[l] - corr;
+  }
+  return { rss, cross: rd };
+}
+
+/**
+ * One pass for L sides (generated as in rssOnFactor): the RSS by the normal-equations formula
+ * ‖v‖² − ‖R⁻ᵀX_sᵀv‖², with a bound of its relative error, 10ε(√n + kκ²)·‖v‖²/RSS (Infinity where the
+ * formula cancels away, RSS below 1e-6·‖v‖²). For screening many sides (a grid), never for a reported value.
+ */
+export function roughRssOnFactor(X: Float64Array[], qr: QrFit, L: number, fill: (start: number, m: number, V: Float64Array) => void): { rss: Float64Array; bound: Float64Array } {
+  const k = X.length;
+  const n = qr.n;
+  const B = BLOCK_ROWS;
+  const V = new Float64Array(L * B);
+  const g = new Float64Array(L * k);
+  const vv = new Float64Array(L);
+  for (let start = 0; start < n; start += B) {
+    const m = Math.min(B, n - start);
+    fill(start, m, V);
+    for (let l = 0; l < L; l++) vv[l] += dotBlock(V, l * B, V, l * B, m);
+    for (let j = 0; j < k; j++) {
+      const col = X[j];
+      for (let l = 0; l < L; l++) g[l * k + j] += dotBlock(col, start, V, l * B, m);
+    }
+  }
+  const rss = new Float64Array(L);
+  const bound = new Float64Array(L);
+  const c = new Float64Array(k);
+  for (let l = 0; l < L; l++) {
+    for (let j = 0; j < k; j++) c[j] = g[l * k + j] / qr.scale[j];
+    forwardSolveRt(qr.R, k, c);
+    let pv = 0;
+    for (let j = 0; j < k; j++) pv += c[j] * c[j];
+    rss[l] = vv[l] - pv;
+    // rounding of the two sums (ε√n·‖v‖²) and the backward error of R (kκ²ε·‖v‖²), relative to RSS
+    const kappa = qr.condition;
+    bound[l] = rss[l] > 1e-6 * vv[l] ? (10 * Number.EPSILON * (Math.sqrt(n) + k * kappa * kappa) * vv[l]) / rss[l] : Infinity;
+  }
+  return { rss, bound };
+}

@@ -20,7 +20,7 @@
  * Each auxiliary regression runs on the engine's QR; an auxiliary column that is an exact combination
  * of earlier ones is dropped and the degrees of freedom count only the columns kept.
  */
-import { leastSquares, residualSS } from "./leastSquares";
+import { leastSquares, projectOnFactor, RANK_TOL, rssOnFactor } from "./leastSquares";
 import { chiSquareSf, fisherSf } from "./distributions";
 import { count, fail, requireFeasible, unavailable } from "./problems";
 import type { OlsFit } from "./fit";
@@ -73,17 +73,29 @@ export function auxiliary(v: Float64Array, W: Float64Array[]): AuxFit {
 export const REUSE_CONDITION = 1e6;
 
 /**
+ * Whether an auxiliary regression on the fit's design (or on it with columns added) may reuse the fit's
+ * factor: a plain fit (no weights, no fixed effects) whose solution was not refined and whose
+ * condition estimate is below REUSE_CONDITION. Otherwise the auxiliary design is factorised anew.
+ */
+export function factorReusable(fit: OlsFit): boolean {
+  return fit.plain && !fit.qr.refined && fit.qr.condition < REUSE_CONDITION;
+}
+
+/**
  * v on the fit's own design (intercept and regressors, as Breusch–Pagan uses it) through the fit's QR
- * factor: the corrected semi-normal equations (two passes of n·k) instead of a new factorisation.
+ * factor: the corrected semi-normal equations (rssOnFactor: two passes of n·k) instead of a new
+ * factorisation.
  * Only for a plain fit with an intercept whose regressors enter unscaled and whose design is well
  * conditioned; null otherwise (the caller factorises the auxiliary design itself).
  */
 export function onFitDesign(fit: OlsFit, v: Float64Array): AuxFit | null {
-  if (!fit.plain || !fit.intercept || fit.qr.refined || !(fit.qr.condition < REUSE_CONDITION)) return null;
+  if (!fit.intercept || !factorReusable(fit)) return null;
   const W = regressors(fit);
   if (W.some((c, j) => c !== fit.data.x[j])) return null;
   const n = v.length;
-  const rss = residualSS(fit.design, fit.qr, v, new Float64Array(n));
+  const rss = rssOnFactor(fit.design, fit.qr, 1, (start, m, V) => {
+    for (let i = 0; i < m; i++) V[i] = v[start + i];
+  }).rss[0];
   let mean = 0;
   for (let i = 0; i < n; i++) mean += v[i];
   mean /= n;
@@ -138,23 +150,33 @@ function nR2(e2: Float64Array, W: Float64Array[], name: string, reuse: AuxFit | 
   return { name, statistic: stat, df: [df], pValue: p, reading: p < 0.05 ? HET_REJECT : HET_KEEP };
 }
 
+/**
+ * e² on the regressors, once per fit for both forms of Breusch–Pagan (e²/σ̂² of the original form is
+ * e² divided by a constant: its sums of squares are those of e² divided by σ̂⁴).
+ */
+function squaresOnRegressors(fit: OlsFit): { e2: Float64Array; aux: AuxFit } {
+  return fit.memo("test:e2-aux", () => {
+    const e2 = squaredResiduals(fit);
+    return { e2, aux: onFitDesign(fit, e2) ?? auxiliary(e2, regressors(fit)) };
+  });
+}
+
 /** Studentized Breusch–Pagan (Koenker 1981). */
 export function breuschPaganKoenker(fit: OlsFit): TestResult {
   requireSpread(fit);
-  const e2 = squaredResiduals(fit);
-  return nR2(e2, regressors(fit), "Breusch–Pagan (Koenker, studentized)", onFitDesign(fit, e2));
+  const { e2, aux } = squaresOnRegressors(fit);
+  return nR2(e2, regressors(fit), "Breusch–Pagan (Koenker, studentized)", aux);
 }
 
 /** Original Breusch–Pagan (1979): ESS/2 of e²/σ̂² on the regressors. */
 export function breuschPaganOriginal(fit: OlsFit): TestResult {
   requireSpread(fit);
   const n = fit.n;
-  const e = testResiduals(fit);
+  const { e2, aux } = squaresOnRegressors(fit);
   let ss = 0;
-  for (let i = 0; i < n; i++) ss += e[i] * e[i];
-  const sigma2 = ss / n;
-  const g = Float64Array.from(e, (v) => (v * v) / sigma2);
-  const a = onFitDesign(fit, g) ?? auxiliary(g, regressors(fit));
+  for (let i = 0; i < n; i++) ss += e2[i];
+  const sigma4 = (ss / n) * (ss / n);
+  const a = { rss: aux.rss / sigma4, tss: aux.tss / sigma4, kept: aux.kept };
   const df = a.kept - 1;
   if (df <= 0) unavailable("Breusch–Pagan needs at least one regressor besides the intercept");
   const stat = (a.tss - a.rss) / 2;
@@ -167,16 +189,17 @@ export function white(fit: OlsFit): TestResult {
   requireSpread(fit);
   const X = regressors(fit);
   const n = fit.n;
+  const product = (ca: Float64Array, cb: Float64Array) => {
+    const out = new Float64Array(n);
+    for (let i = 0; i < n; i++) out[i] = ca[i] * cb[i];
+    return out;
+  };
   const W: Float64Array[] = [...X];
   X.forEach((c, j) => {
-    if (!fit.data.binary[j]) W.push(Float64Array.from(c, (v) => v * v));
+    if (!fit.data.binary[j]) W.push(product(c, c));
   });
   for (let a = 0; a < X.length; a++) {
-    for (let b = a + 1; b < X.length; b++) {
-      const ca = X[a];
-      const cb = X[b];
-      W.push(Float64Array.from(ca, (v, i) => v * cb[i]));
-    }
+    for (let b = a + 1; b < X.length; b++) W.push(product(X[a], X[b]));
   }
   const p = W.length + 1;
   requireFeasible(n * p * p, `White's test with ${p} auxiliary terms on ${n} rows`, `use test "white-special", or a sample of the rows`);
@@ -244,21 +267,33 @@ export function reset(fit: OlsFit): TestResult {
   // With fixed effects, y, ŷ² and ŷ³ are absorbed as the regressors were (the columns of the
   // covariance input), so the auxiliary regression has the same fixed effects.
   const f = fit.intercept || fit.absorbed > 0 ? centredFitted(fit) : testFitted(fit);
-  const y = fit.within(fit.scaledY);
   const rss0 = fit.qr.rss;
   const n = fit.n;
   const k = fit.k;
-  const cols = [...fit.covarianceInput().columns, fit.within(Float64Array.from(f, (v) => v * v)), fit.within(Float64Array.from(f, (v) => v * v * v))];
   if (fit.dfResid <= 2) fail(`RESET needs more than ${k + fit.absorbed + 2} rows (the fit has ${n})`);
-  // ŷ³ may depend on ŷ² and the regressors (for example with one binary regressor): then ŷ² alone.
-  let added = 2;
-  let ls = leastSquares(cols, y, false);
-  if (!ls.qr) {
-    added = 1;
-    ls = leastSquares(cols.slice(0, k + 1), y, false);
+  const f2 = new Float64Array(n);
+  const f3 = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    f2[i] = f[i] * f[i];
+    f3[i] = f2[i] * f[i];
   }
-  if (!ls.qr) return unavailable("RESET is undefined here: the powers of the fitted values are combinations of the regressors");
-  const rss1 = ls.qr.rss;
+  const reused = resetOnFit(fit, f2, f3);
+  let added: number;
+  let rss1: number;
+  if (reused) ({ added, rss1 } = reused);
+  else {
+    const y = fit.within(fit.scaledY);
+    const cols = [...fit.covarianceInput().columns, fit.within(f2), fit.within(f3)];
+    // ŷ³ may depend on ŷ² and the regressors (for example with one binary regressor): then ŷ² alone.
+    added = 2;
+    let ls = leastSquares(cols, y, false);
+    if (!ls.qr) {
+      added = 1;
+      ls = leastSquares(cols.slice(0, k + 1), y, false);
+    }
+    if (!ls.qr) return unavailable("RESET is undefined here: the powers of the fitted values are combinations of the regressors");
+    rss1 = ls.qr.rss;
+  }
   const df2 = fit.dfResid - added;
   const stat = ((rss0 - rss1) / added) / (rss1 / df2);
   const p = fisherSf(stat, added, df2);
@@ -271,6 +306,40 @@ export function reset(fit: OlsFit): TestResult {
       ? "powers of the fitted values add explanation: the functional form may be wrong (try another form or add terms)"
       : "no evidence against the functional form",
   };
+}
+
+/**
+ * RESET's auxiliary regression through the fit's factor (partitioned regression, Frisch–Waugh–Lovell):
+ * ŷ² and ŷ³ on X's residual, z̃ = M z (projectOnFactor), then the fit's residuals e = My on [z̃₂, z̃₃]
+ * (a regression of two columns): its RSS is that of y on [X, ŷ², ŷ³]. The rank decisions are those of a
+ * new factorisation of [X, ŷ², ŷ³] with unit columns: |R| of ŷ² is ‖z̃₂‖/‖z₂‖, that of ŷ³ the small
+ * regression's |R₂₂| times ‖z̃₃‖/‖z₃‖. Null (a new factorisation decides) for a fit whose factor is not
+ * reused (factorReusable) or when a column is within a factor 100 of the rank threshold.
+ */
+function resetOnFit(fit: OlsFit, f2: Float64Array, f3: Float64Array): { added: number; rss1: number } | null {
+  if (!factorReusable(fit)) return null;
+  const n = fit.n;
+  const t2 = new Float64Array(n);
+  const t3 = new Float64Array(n);
+  const s2 = projectOnFactor(fit.design, fit.qr, f2, t2).rss;
+  const s3 = projectOnFactor(fit.design, fit.qr, f3, t3).rss;
+  let n2 = 0;
+  let n3 = 0;
+  for (let i = 0; i < n; i++) {
+    n2 += f2[i] * f2[i];
+    n3 += f3[i] * f3[i];
+  }
+  const limit = 100 * RANK_TOL;
+  if (!(Math.sqrt(s2 / n2) > limit)) return null;
+  const e = fit.scaledResid;
+  const two = leastSquares([t2, t3], e, false);
+  if (two.qr) {
+    const r22 = Math.abs(two.qr.R[3]) * Math.sqrt(s3 / n3);
+    if (r22 > limit) return { added: 2, rss1: two.qr.rss };
+    if (r22 >= RANK_TOL / 100) return null;
+  }
+  const one = leastSquares([t2], e, false);
+  return one.qr ? { added: 1, rss1: one.qr.rss } : null;
 }
 
 export type HeteroTest = "bp" | "bp-original" | "white" | "white-special";
