@@ -18,8 +18,9 @@
  *   ELX-columns  the .bin read into Float64Array columns, then the engine in this thread: the
  *                intake checks, prepare() (logs), the least-squares fit, classical and HC3
  *                covariances and the studentized Breusch–Pagan test.
- *   ELX-session-P  the same from column blocks through the column-block session with P workers, for
- *                P = 1 .. cores, when the build has one (see openColumnSession below).
+ *   ELX-session-P  the same from column blocks through the column-block session with P workers
+ *                (P = 0: in this thread; 1 .. cores: worker threads), when the build has one (see
+ *                openColumnSession below).
  *   ELX-cells    (25,000 and 10^5 rows) ELX.FIT with HC3 then ELX.HETEROTEST from the host's row
  *                arrays through dist/functions.js, fresh content every call (no cache hit).
  * Every implementation's results are compared with the C reference (relative difference of the
@@ -127,7 +128,9 @@ function agreement(a, ref) {
  */
 function compileEngine() {
   const ts = require("typescript");
-  const out = path.join(ROOT, "node_modules", ".cache", "elx-bench-harness");
+  // one folder per clone (node_modules may be shared); a file is redone when its source's time differs
+  const tag = require("crypto").createHash("sha1").update(ROOT).digest("hex").slice(0, 10);
+  const out = path.join(ROOT, "node_modules", ".cache", "elx-bench-harness", tag);
   for (const sub of ["engine", "parallel"]) {
     const dir = path.join(ROOT, "functions", sub);
     if (!fs.existsSync(dir)) continue;
@@ -135,12 +138,14 @@ function compileEngine() {
     for (const f of fs.readdirSync(dir).filter((f) => f.endsWith(".ts") && !f.endsWith(".d.ts"))) {
       const src = path.join(dir, f);
       const dst = path.join(out, "functions", sub, f.replace(/\.ts$/, ".js"));
-      if (fs.existsSync(dst) && fs.statSync(dst).mtimeMs >= fs.statSync(src).mtimeMs) continue;
+      const srcTime = fs.statSync(src).mtime;
+      if (fs.existsSync(dst) && fs.statSync(dst).mtime.getTime() === srcTime.getTime()) continue;
       const js = ts.transpileModule(fs.readFileSync(src, "utf8"), {
         fileName: src,
         compilerOptions: { module: ts.ModuleKind.CommonJS, target: ts.ScriptTarget.ES2019, esModuleInterop: true },
       });
       fs.writeFileSync(dst, js.outputText);
+      fs.utimesSync(dst, srcTime, srcTime);
     }
   }
   return path.join(out, "functions");
@@ -243,28 +248,77 @@ async function memoryChild(file) {
   process.stdout.write("MEMORY " + JSON.stringify({ n, k, before, rss0, loaded, after, inputKb: (n * (k + 1) * 8) / 1024, coef0: res.coef[0] }) + "\n");
 }
 
+/**
+ * The same for the column-block session with P workers (threads of this process, so the process's
+ * high-water mark covers them): the workers started first, then the file read straight into the
+ * chunks (the input held once), appended and fitted.
+ */
+async function memorySessionChild(file, workers) {
+  const { open, why } = openColumnSession();
+  if (!open) throw new Error(why);
+  const fd = fs.openSync(file, "r");
+  const head = new Float64Array(2);
+  fs.readSync(fd, head, 0, 16, 0);
+  const [n, k] = head;
+  const session = await open({ rows: n, workers });
+  global.gc();
+  global.gc();
+  const before = process.resourceUsage().maxRSS;
+  const rss0 = process.memoryUsage().rss / 1024;
+  const CHUNK = 65536;
+  const chunks = [];
+  for (let s = 0; s < n; s += CHUNK) {
+    const m = Math.min(n, s + CHUNK) - s;
+    const cols = [];
+    for (let j = 0; j <= k; j++) {
+      const c = new Float64Array(m);
+      fs.readSync(fd, c, 0, m * 8, 16 + (j * n + s) * 8);
+      cols.push(c);
+    }
+    chunks.push({ rowStart: s, y: cols[0], x: cols.slice(1) });
+  }
+  fs.closeSync(fd);
+  const loaded = process.memoryUsage().rss / 1024;
+  await Promise.all(chunks.map((c) => session.append(c)));
+  chunks.length = 0;
+  const res = await session.fit({ yName: "y", xNames: Array.from({ length: k }, (_, j) => `x${j + 1}`), form: "log-log", zeros: "stop", se: "HC3", level: 0.95, intercept: true });
+  const after = process.resourceUsage().maxRSS;
+  const used = session.workers;
+  session.close();
+  if (!res.ok) throw new Error(res.message);
+  process.stdout.write("MEMORY " + JSON.stringify({ n, k, before, rss0, loaded, after, inputKb: (n * (k + 1) * 8) / 1024, workers: used, coef0: res.value.coefficients[0] }) + "\n");
+  process.exit(0);
+}
+
 // ---------------------------------------------------------------------------------------------
 // Child: the column-block session with P workers (hook)
 // ---------------------------------------------------------------------------------------------
 /**
- * The column-block session, when the build has one: a module under functions/parallel exporting
- * `openBigFit(options: BigFitOpenOptions): BigFitSession` (functions/parallel/types.ts), usable in
- * Node. Returns null (with the reason) until it exists; then ELX-session-P rows appear for
- * P = 1 .. cores and the 1-to-2-worker speed-up is printed.
+ * The column-block session, when the build has one: functions/parallel/session.ts's
+ * `openBigFit(options)` (a BigFitSession, functions/parallel/types.ts), its workers started as Node
+ * worker threads on the built dist/fitWorker.js through functions/parallel/nodeWorker.ts's
+ * nodeSpawner. Returns { open: null, why } until both are there; then ELX-session-P rows are timed
+ * for P = 0 (this thread, the split engine) and 1 .. cores workers, with the 1-to-2-worker speed-up.
  */
 function openColumnSession() {
   const dir = path.join(ROOT, "functions", "parallel");
-  if (!fs.existsSync(dir)) return { open: null, why: "functions/parallel is not in this build" };
-  for (const f of fs.readdirSync(dir).filter((f) => f.endsWith(".ts") && !f.endsWith(".d.ts")).sort()) {
-    let m;
-    try {
-      m = engineModule("parallel", f.replace(/\.ts$/, ""));
-    } catch (e) {
-      continue; // a browser-only module (Web Worker, DOM) does not load in Node
-    }
-    if (typeof m.openBigFit === "function") return { open: m.openBigFit, why: "", module: f };
+  if (!fs.existsSync(path.join(dir, "session.ts"))) return { open: null, why: "functions/parallel/session.ts (the column-block session) is not in this build" };
+  if (!fs.existsSync(path.join(dir, "nodeWorker.ts"))) return { open: null, why: "functions/parallel/nodeWorker.ts (workers as Node threads) is not in this build" };
+  const bundle = path.join(ROOT, "dist", "fitWorker.js");
+  if (!fs.existsSync(bundle)) return { open: null, why: "dist/fitWorker.js is missing: run npm run build" };
+  let session;
+  let nodeWorker;
+  try {
+    session = engineModule("parallel", "session");
+    nodeWorker = engineModule("parallel", "nodeWorker");
+  } catch (e) {
+    return { open: null, why: `the session's modules do not load in Node (${e && e.message})` };
   }
-  return { open: null, why: "no module of functions/parallel exports openBigFit (the column-block session) for Node yet" };
+  if (typeof session.openBigFit !== "function" || typeof nodeWorker.nodeSpawner !== "function") {
+    return { open: null, why: "functions/parallel has no openBigFit / nodeSpawner" };
+  }
+  const spawn = nodeWorker.nodeSpawner(bundle);
+  return { open: (options) => session.openBigFit({ ...options, spawn }), why: "" };
 }
 
 async function sessionChild(file, reps, workers) {
@@ -274,13 +328,17 @@ async function sessionChild(file, reps, workers) {
   const spec = { yName: "y", xNames: cols.slice(1).map((_, j) => `x${j + 1}`), form: "log-log", zeros: "stop", se: "HC3", level: 0.95, intercept: true };
   const CHUNK = 65536;
   const run = async (m) => {
+    // the chunks as a reader hands them over (copies, untimed: their buffers move to the parts)
+    const chunks = [];
+    for (let s = 0; s < m; s += CHUNK) {
+      const e = Math.min(m, s + CHUNK);
+      chunks.push({ rowStart: s, y: cols[0].slice(s, e), x: cols.slice(1).map((c) => c.slice(s, e)) });
+    }
     const session = await open({ rows: m, workers });
     try {
+      await settleMemory(m);
       const t = now();
-      for (let s = 0; s < m; s += CHUNK) {
-        const e = Math.min(m, s + CHUNK);
-        await session.append({ rowStart: s, y: cols[0].slice(s, e), x: cols.slice(1).map((c) => c.slice(s, e)) });
-      }
+      await Promise.all(chunks.map((c) => session.append(c)));
       const out = await session.fit(spec);
       const ms = now() - t;
       if (!out.ok) throw new Error(out.message);
@@ -293,14 +351,13 @@ async function sessionChild(file, reps, workers) {
   const times = [];
   let last;
   for (let r = 0; r < reps; r++) {
-    await settleMemory(n);
     last = await run(n);
     times.push(last.ms);
   }
   const v = last.value;
   const bp = v.breuschPagan ? [v.breuschPagan.statistic, v.breuschPagan.p] : null;
   printOut({ impl: `ELX-session-${workers}`, n: [n], k: [k], coef: v.coefficients, hc3: v.standardErrors, bp, times_ms: times, median_ms: [median(times)],
-    note: `append in chunks of ${CHUNK} rows + fit timed (open and close not); workers used ${last.used}${last.note ? "; " + last.note : ""}` });
+    note: `append of ${CHUNK}-row chunks + fit timed (opening the workers and closing not); workers used ${last.used}${last.note ? "; " + last.note : ""}` });
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -489,7 +546,7 @@ async function runHarness({ quick = false, reps = 5, rounds = 1, keep = false, o
     if (tools.R.cmd) jobs.push(["R-lmfit", () => runImpl(tools, perf, "R-lmfit", "Rscript", ["ols.R", rel, "lmfit", String(reps)])]);
     if (n <= 1e5) jobs.push(["ELX-cells", () => nodeChild("ELX-cells", "cells", f)]);
     if (tools.py.cmd) jobs.push(["Py-npqr", () => runImpl(tools, perf, "Py-npqr", tools.py.cmd, ["ols_py.py", rel, "npqr", String(reps)])]);
-    if (session.open) for (let p = 1; p <= cores; p++) jobs.push([`ELX-session-${p}`, () => nodeChild(`ELX-session-${p}`, "session", f, [String(p)])]);
+    if (session.open) for (let p = 0; p <= cores; p++) jobs.push([`ELX-session-${p}`, () => nodeChild(`ELX-session-${p}`, "session", f, [String(p)])]);
     if (tools.gcc.cmd) jobs.push(["C-plain", () => runImpl(tools, perf, "C-plain", "build/ols_c", [rel, "plain", String(reps)])]);
     jobs.push(["JS-blocked", () => runImpl(tools, perf, "JS-blocked", process.execPath, ["ols.js", rel, "blocked", String(reps)])]);
     // rounds: the whole list again, interleaved; every repetition of every round enters the median
@@ -508,17 +565,17 @@ async function runHarness({ quick = false, reps = 5, rounds = 1, keep = false, o
     }
   }
 
-  // peak memory of the column run, largest size, in a clean child
+  // peak memory of the column runs, largest size, each in a clean child
   const nMem = sizes[sizes.length - 1];
-  let memory = null;
-  {
-    const m = sh(process.execPath, ["--expose-gc", self, "--child", "memory", files[nMem]], { env: { ...process.env, MALLOC_MMAP_THRESHOLD_: "65536" } });
+  const memRuns = [["ELX-columns", ["memory", files[nMem]]]];
+  if (session.open) memRuns.push([`ELX-session-${cores}`, ["memory-session", files[nMem], String(cores)]]);
+  const memory = memRuns.map(([name, args]) => {
+    const m = sh(process.execPath, ["--expose-gc", self, "--child", ...args], { env: { ...process.env, MALLOC_MMAP_THRESHOLD_: "65536" } });
     const line = m.stdout.split("\n").find((l) => l.startsWith("MEMORY "));
-    if (m.ok && line) {
-      const v = JSON.parse(line.slice(7));
-      memory = { n: nMem, total: (v.after - v.rss0) / v.inputKb, extra: (v.after - v.loaded) / v.inputKb, inputMB: v.inputKb / 1024 };
-    } else memory = { n: nMem, error: (m.stderr || m.stdout).trim().split("\n").slice(-2).join(" ").slice(0, 200) };
-  }
+    if (!m.ok || !line) return { name, n: nMem, error: (m.stderr || m.stdout).trim().split("\n").slice(-2).join(" ").slice(0, 200) };
+    const v = JSON.parse(line.slice(7));
+    return { name, n: nMem, total: (v.after - v.rss0) / v.inputKb, extra: (v.after - v.loaded) / v.inputKb, inputMB: v.inputKb / 1024 };
+  });
 
   // ----- tables -----
   const rowsForBench = [];
@@ -583,9 +640,9 @@ async function runHarness({ quick = false, reps = 5, rounds = 1, keep = false, o
       const r = results[n];
       const one = r["ELX-session-1"];
       const parts = [];
-      for (let p = 1; p <= cores; p++) {
+      for (let p = 0; p <= cores; p++) {
         const o = r[`ELX-session-${p}`];
-        if (o && !o.error) parts.push(`${p}: ${fmtMs(o.median_ms[0])}` + (p > 1 ? ` (${x(ratio(one, o))})` : ""));
+        if (o && !o.error) parts.push(`${p === 0 ? "this thread" : p}: ${fmtMs(o.median_ms[0])}` + (p > 1 ? ` (${x(ratio(one, o))} of 1 worker)` : ""));
       }
       out(`worker scaling, ${sizeName(n)} × 10: ${parts.join(", ")}`);
       const two = r["ELX-session-2"];
@@ -597,13 +654,16 @@ async function runHarness({ quick = false, reps = 5, rounds = 1, keep = false, o
   } else targets.push(["speed-up 1 → 2 workers (column-block session)", ">= 1.7x", "not in this build", "n/a"]);
   // memory
   out("");
-  if (memory && !memory.error) {
-    out(`peak memory, ELX-columns at ${sizeName(memory.n)} × 10 (clean child, maxRSS): ${memory.total.toFixed(2)}x the input as doubles (${memory.inputMB.toFixed(0)} MiB) from before the input was read, input included; ${memory.extra.toFixed(2)}x above the input once loaded`);
-    targets.push([`peak memory, columns ${sizeName(memory.n)} × 10 (input included)`, `<= ${TARGET.memory}x input`, `${memory.total.toFixed(2)}x (fit alone ${memory.extra.toFixed(2)}x)`, yes(memory.total <= TARGET.memory)]);
-  } else {
-    out(`peak memory child failed: ${memory && memory.error}`);
-    targets.push([`peak memory, columns (input included)`, `<= ${TARGET.memory}x input`, "failed", "n/a"]);
+  for (const m of memory) {
+    if (!m.error) {
+      out(`peak memory, ${m.name} at ${sizeName(m.n)} × 10 (clean child, maxRSS): ${m.total.toFixed(2)}x the input as doubles (${m.inputMB.toFixed(0)} MiB) from before the input was read, input included; ${m.extra.toFixed(2)}x above the input once loaded`);
+      targets.push([`peak memory, ${m.name} ${sizeName(m.n)} × 10 (input included)`, `<= ${TARGET.memory}x input`, `${m.total.toFixed(2)}x (above the loaded input ${m.extra.toFixed(2)}x)`, yes(m.total <= TARGET.memory)]);
+    } else {
+      out(`peak memory, ${m.name}: the child failed: ${m.error}`);
+      targets.push([`peak memory, ${m.name} (input included)`, `<= ${TARGET.memory}x input`, "failed", "n/a"]);
+    }
   }
+  out("(The peak RSS column above is each whole process; ELX-columns' holds an untimed copy of the input per repetition, so read memory from these lines.)");
   out(`harness run in ${fmtMs(now() - t0)}`);
   if (!keep) fs.rmSync(work, { recursive: true, force: true });
   else out(`kept: ${work}`);
@@ -640,7 +700,7 @@ if (require.main === module) {
   };
   if (at >= 0) {
     const [mode, file, reps, extra] = argv.slice(at + 1);
-    const jobs = { columns: () => columnsChild(file, Number(reps)), cells: () => cellsChild(file, Number(reps)), session: () => sessionChild(file, Number(reps), Number(extra)), memory: () => memoryChild(file) };
+    const jobs = { columns: () => columnsChild(file, Number(reps)), cells: () => cellsChild(file, Number(reps)), session: () => sessionChild(file, Number(reps), Number(extra)), memory: () => memoryChild(file), "memory-session": () => memorySessionChild(file, Number(reps)) };
     if (!jobs[mode]) fail(`unknown child mode ${mode}`);
     else jobs[mode]().catch(fail);
   } else {
