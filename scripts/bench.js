@@ -21,6 +21,8 @@
  *   node --expose-gc scripts/bench.js --quick       sizes up to 10^5 only
  *   node --expose-gc scripts/bench.js --no-r        skip the R comparison
  *   node --expose-gc scripts/bench.js --r-lm        the panel case also times R lm with indicator columns
+ *   node --expose-gc scripts/bench.js --no-harness  skip the external harness (C, R, numpy on its own files;
+ *                                                   scripts/bench-harness.js, DEVELOPERS.md)
  */
 "use strict";
 
@@ -38,6 +40,7 @@ const BUNDLE = argv.includes("--bundle") ? path.resolve(argv[argv.indexOf("--bun
 const ONLY = argv.includes("--only") ? argv[argv.indexOf("--only") + 1] : null;
 const QUICK = argv.includes("--quick");
 const USE_R = !argv.includes("--no-r");
+const USE_HARNESS = !argv.includes("--no-harness");
 
 if (typeof global.gc !== "function") {
   process.stderr.write("run with node --expose-gc (npm run bench does)\n");
@@ -859,6 +862,20 @@ CASES.push({
   },
 });
 
+// ----- the external harness: C, R and numpy on its own data files, Elasticell on the same files -----
+if (USE_HARNESS) {
+  CASES.push({
+    name: "harness 25000/10^5/10^6 x 10 (C, R, numpy, same run)",
+    requires: [],
+    async run() {
+      const h = await require("./bench-harness").runHarness({ quick: QUICK, out: (s = "") => out("    " + s) });
+      if (!h) return;
+      store.harness = h;
+      results.push(...h.rows);
+    },
+  });
+}
+
 // ---------------------------------------------------------------------------------------------
 // Run
 // ---------------------------------------------------------------------------------------------
@@ -935,6 +952,7 @@ async function main() {
     targets.push(["FIT estimator=2sls n=10^5, k=5, 2 instruments", "< 3 plain fits", `${store.iv.fits.toFixed(2)} fits`, yes(store.iv.fits < 3)]);
     targets.push(["  against R (AER::ivreg + vcovHC HC1)", "(ratio printed)", store.iv.r !== undefined ? `${store.iv.r.toFixed(2)}x` : HAVE_R ? "n/a" : "no R", ""]);
   }
+  if (store.harness) targets.push(...store.harness.targets);
   out("");
   out("Targets (README, speed)");
   printTable(["Target", "Goal", "Measured", ""], targets);
