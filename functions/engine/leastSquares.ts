@@ -24,6 +24,7 @@
  */
 import { count, fail } from "./problems";
 import { kernel } from "./kernel";
+import { dotBlock } from "./blocks";
 
 /**
  * Relative length below which a column counts as a linear combination of the earlier ones. Exact
