@@ -591,7 +591,7 @@ async function runHarness({ quick = false, reps = 5, rounds = 1, keep = false, o
   const ratio = (a, b) => (a && b && !a.error && !b.error ? a.median_ms[0] / b.median_ms[0] : NaN);
   const x = (v, d = 2) => (Number.isFinite(v) ? `${v.toFixed(d)}x` : "–");
   out("");
-  out(`Elasticell beside the harness (same .bin files, same run; medians of ${reps} repetitions, each implementation in its own process).`);
+  out(`Elasticell beside the harness (same .bin files, same run; medians of ${reps * rounds} repetitions${rounds > 1 ? ` (${rounds} interleaved rounds of ${reps})` : ""}, each implementation in its own process).`);
   out("Ratios: time / C-blocked; R-lmfit / time and Py-npqr / time (above 1: faster than R / numpy). Shared machine: figures are noisy.");
   for (const n of sizes) {
     const r = results[n];
