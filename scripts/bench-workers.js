@@ -16,7 +16,8 @@
  * memory figure is that run's own), and the cases are interleaved run by run (in-thread, 1, 2, …
  * workers, then again), so a busy machine slows them alike. Timed: the fit, from the rows sitting in
  * their parts to the result (logs, QR and the merge of the parts' triangles, classical and HC3
- * errors, Breusch–Pagan) after two warm-up fits of 20,000 rows on the same workers (kept warm, as
+ * errors, Breusch–Pagan), as wall time and as the CPU time of all the process's threads (the work,
+ * whatever else the machine runs: the workers' overhead shows there), after six warm-up fits of 20,000 rows on the same workers (kept warm, as
  * the pane keeps them between fits); the first of those, on fresh workers, and reading the rows into
  * the parts are printed apart. Peak memory: the child's
  * peak resident set (worker threads included) less its resident set before the first row, over
@@ -35,6 +36,8 @@ const ROOT = path.join(__dirname, "..");
 const BUNDLE = path.join(ROOT, "dist", "fitWorker.js");
 const K = 10;
 const CHUNK = 65536;
+/** Warm-up fits of 20,000 rows before the timed one (V8 optimises a worker's loops after a few calls). */
+const WARM_FITS = 6;
 
 function mulberry32(seed) {
   let s = seed >>> 0;
@@ -77,18 +80,18 @@ async function child(n, workers) {
   const { nodeSpawner } = require(path.join(ROOT, "functions", "parallel", "nodeWorker.ts"));
   const { closeIdleWorkers } = require(path.join(ROOT, "functions", "parallel", "pool.ts"));
   const spawn = nodeSpawner(BUNDLE);
-  // Warm-up: two small fits on the same (kept warm) workers and this thread, so the timed fit runs
-  // compiled code as a pane's second fit does; the first fit of a fresh worker is printed apart.
+  // Warm-up: small fits on the same (kept warm) workers and this thread, so the timed fit runs
+  // optimised code as a pane's later fits do; the first fit of fresh workers is printed apart.
   let firstMs = 0;
-  for (let w = 0; w < 2; w++) {
-    const warm = await openBigFit({ rows: 20000, workers, spawn, keepWarm: true });
-    for (const c of chunks(20000)) await warm.append(c);
+  const warm = await openBigFit({ rows: 20000, workers, spawn, keepWarm: true });
+  for (const c of chunks(20000)) await warm.append(c);
+  for (let w = 0; w < WARM_FITS; w++) {
     const t = process.hrtime.bigint();
     const o = await warm.fit(SPEC);
     if (w === 0) firstMs = Number(process.hrtime.bigint() - t) / 1e6;
-    warm.close();
     if (!o.ok) throw new Error(o.message);
   }
+  warm.close();
   if (global.gc) global.gc();
   const base = process.memoryUsage().rss;
   const session = await openBigFit({ rows: n, workers, spawn, keepWarm: true });
@@ -101,13 +104,15 @@ async function child(n, workers) {
     readNs += process.hrtime.bigint() - a;
   }
   const t1 = process.hrtime.bigint();
+  const cpu0 = process.cpuUsage();
   const out = await session.fit(SPEC);
+  const cpu = process.cpuUsage(cpu0);
   const t2 = process.hrtime.bigint();
   const peak = process.resourceUsage().maxRSS * 1024;
   session.close();
   closeIdleWorkers();
   if (!out.ok) throw new Error(out.message);
-  process.stdout.write(JSON.stringify({ firstMs, readMs: Number(readNs) / 1e6, fitMs: Number(t2 - t1) / 1e6, peakBytes: peak - base, b1: out.value.coefficients[1], bp: out.value.breuschPagan && out.value.breuschPagan.statistic }) + "\n");
+  process.stdout.write(JSON.stringify({ cpuMs: (cpu.user + cpu.system) / 1000, firstMs, readMs: Number(readNs) / 1e6, fitMs: Number(t2 - t1) / 1e6, peakBytes: peak - base, b1: out.value.coefficients[1], bp: out.value.breuschPagan && out.value.breuschPagan.statistic }) + "\n");
 }
 
 function median(v) {
@@ -150,6 +155,7 @@ function benchWorkers({ sizes = [1e5, 1e6], runs = null, maxWorkers = Math.min(8
         fitMs: median(list.map((x) => x.fitMs)),
         readMs: median(list.map((x) => x.readMs)),
         firstMs: median(list.map((x) => x.firstMs)),
+        cpuMs: median(list.map((x) => x.cpuMs)),
         peakRatio: Math.max(...list.map((x) => x.peakBytes)) / inputBytes,
         inputMB: inputBytes / 2 ** 20,
         same: list.every((x) => x.b1 === list[0].b1),
@@ -170,10 +176,10 @@ function main() {
   const cpu = os.cpus()[0] ? os.cpus()[0].model : "unknown CPU";
   process.stdout.write(`\nColumn-block fit over workers (log-log, ${K} regressors, HC3 + studentized Breusch–Pagan); ${cores()} cores (${cpu}), Node ${process.version}\n`);
   process.stdout.write("Medians of interleaved runs, each in a fresh process; the machine may be busy: compare only within this run.\n\n");
-  process.stdout.write("rows        path            runs   fit (median)   first fit, fresh worker   read into parts   peak memory / input as doubles\n");
+  process.stdout.write("rows        path            runs   fit (median)   CPU (all threads)   first fit, fresh worker   read into parts   peak memory / input as doubles\n");
   for (const r of results) {
     const label = r.workers === 0 ? "this thread" : `${r.workers} worker${r.workers > 1 ? "s" : ""}`;
-    process.stdout.write(`${String(r.n).padEnd(11)} ${label.padEnd(15)} ${String(r.runs).padStart(4)} ${`${r.fitMs.toFixed(1)} ms`.padStart(14)} ${`${r.firstMs.toFixed(1)} ms (20,000 rows)`.padStart(25)} ${`${r.readMs.toFixed(1)} ms`.padStart(17)}   ${r.peakRatio.toFixed(2)}× of ${r.inputMB.toFixed(1)} MB\n`);
+    process.stdout.write(`${String(r.n).padEnd(11)} ${label.padEnd(15)} ${String(r.runs).padStart(4)} ${`${r.fitMs.toFixed(1)} ms`.padStart(14)} ${`${r.cpuMs.toFixed(1)} ms`.padStart(19)} ${`${r.firstMs.toFixed(1)} ms (20,000 rows)`.padStart(25)} ${`${r.readMs.toFixed(1)} ms`.padStart(17)}   ${r.peakRatio.toFixed(2)}× of ${r.inputMB.toFixed(1)} MB\n`);
   }
   for (const n of [...new Set(results.map((r) => r.n))]) {
     const at = (w) => results.find((r) => r.n === n && r.workers === w);

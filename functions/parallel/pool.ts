@@ -230,19 +230,19 @@ export interface PoolStart {
   pool: WorkerPool | null;
 }
 
-/** The in-thread executor with cancel and close (they only refuse later sends). */
+/** The in-thread executor with cancel and close: both refuse later sends and let the parts' rows go. */
 function inThread(parts: number): StoppableExecutor {
-  const local = localExecutor(parts);
+  let local: PartExecutor | null = localExecutor(parts);
   let stopped: Error | null = null;
+  const stop = (reason: Error) => {
+    stopped = stopped || reason;
+    local = null;
+  };
   return {
-    parts: local.parts,
-    send: (part, op, transfer) => (stopped ? Promise.reject(stopped) : local.send(part, op, transfer)),
-    cancel: () => {
-      stopped = stopped || new FitCancelled();
-    },
-    close: () => {
-      stopped = stopped || new Error("the big-fit session was closed");
-    },
+    parts,
+    send: (part, op, transfer) => (stopped || !local ? Promise.reject(stopped) : local.send(part, op, transfer)),
+    cancel: () => stop(new FitCancelled()),
+    close: () => stop(new Error("the big-fit session was closed")),
   };
 }
 
