@@ -106,7 +106,15 @@ export async function openBigFit(options: BigFitStartOptions): Promise<BigFitSes
         }
         pieces.push({ p, from, to });
       }
-      if (columns === null) columns = chunk.x.length;
+      if (columns === null) {
+        columns = chunk.x.length;
+        // Each part's share is known: room for all of it at once, so appending never regrows its columns.
+        for (let p = 0; p < parts; p++) {
+          const sent = executor.send(p, { kind: "reserve", rows: bounds[p + 1] - bounds[p], kx: columns });
+          sent.catch(() => undefined);
+          flights.push(sent);
+        }
+      }
       const sends: Promise<unknown>[] = [];
       for (const { p, from, to } of pieces) {
         const whole = from === first && to === first + n;
