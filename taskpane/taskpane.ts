@@ -17,7 +17,7 @@ import { buildBlock, type BlockItem } from "./formulas";
 import { detectRoles, instrumentParagraph, keySentence, optionSafe, roleAssumptions, roleColumns, roleOptions, type ColumnRoles, type RoleChoices } from "./roles";
 import { formatAddress, parseAddress, rowCount, columnCount, type Address } from "./address";
 import { needsChunks, planChunks, readChunks, type BigPlan, type ColumnTally } from "./chunks";
-import { bigRefusal, REGISTRY_KEY, resultsHtml, specOf, specOptions, stamp, talliesHtml, valuesBlock, type BigChoices, type BigRun, type ValuesEntry } from "./bigResults";
+import { bigRefusal, REGISTRY_KEY, resultsParts, specOf, specOptions, stamp, talliesHtml, valuesBlock, type BigChoices, type BigRun, type ValuesEntry } from "./bigResults";
 import { openSession } from "./bigSession";
 import type { ColumnFitResult, ColumnFitSpec } from "../functions/engine/columnFitTypes";
 // Types only: the pane reads the functions' published object at run time, never their modules.
@@ -656,7 +656,14 @@ export class Pane {
     this.el["elx-big-body"].innerHTML = `<h3>Data check</h3>${talliesHtml(r.run.tallies, r.run.spec.form)}<h3>Fit</h3><div id="elx-big-results"><p class="elx-muted">Drawing…</p></div>`;
     await yieldToPage();
     if (stale()) return;
-    (this.el["elx-big-body"].querySelector("#elx-big-results") as HTMLElement).innerHTML = resultsHtml(r.run);
+    const [text, elasticities, residuals] = resultsParts(r.run);
+    (this.el["elx-big-body"].querySelector("#elx-big-results") as HTMLElement).innerHTML = text;
+    for (const [id, html] of [["elx-big-fig-el", elasticities], ["elx-big-fig-res", residuals]]) {
+      await yieldToPage();
+      if (stale()) return;
+      const holder = this.el["elx-big-body"].querySelector(`#${id}`);
+      if (holder) holder.innerHTML = html;
+    }
     this.el["elx-big-write"].classList.remove("elx-hidden");
     this.el["elx-write-what"].textContent = formulasNote;
     const t2 = performance.now();
