@@ -40,6 +40,8 @@ module.exports = (env, argv) => ({
     preview: "./preview/preview.ts",
     // The fit worker: a page of its own, listed in no HtmlWebpackPlugin's chunks.
     fitWorker: "./functions/parallel/fitWorker.ts",
+    // The big-fit session on a global, for the browser test only (no page includes it).
+    bigFitCheck: "./functions/parallel/pageCheck.ts",
   },
   output: { path: path.resolve(__dirname, "dist"), filename: "[name].js", clean: true },
   resolve: { extensions: [".ts", ".js"] },

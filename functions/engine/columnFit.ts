@@ -158,9 +158,12 @@ function columnNorms(answers: NormsAnswer[], k: number): Float64Array {
     if (m === 0) continue;
     let t = 0;
     for (const a of answers) {
-      if (a.maxAbs[j] === 0) continue;
-      const r = a.maxAbs[j] / m;
-      t += a.scaledSumSq[j] * (r * r);
+      const mp = a.maxAbs[j];
+      if (mp === 0) continue;
+      // a part whose own Σx² was safe sent no scaled sum: Σ(x/max)² = Σx²/max² then
+      const tp = Number.isNaN(a.scaledSumSq[j]) ? a.sumSq[j] / (mp * mp) : a.scaledSumSq[j];
+      const r = mp / m;
+      t += tp * (r * r);
     }
     scale[j] = m * Math.sqrt(t);
   }
@@ -187,7 +190,7 @@ function sumParts(hi: number[], lo: number[]): number {
  */
 async function splitLeastSquares(rounds: Rounds, design: string, k: number, unit: number, refineWhenNeeded: boolean): Promise<SplitLs> {
   const k1 = k + 1;
-  const norms = await rounds.all<NormsAnswer>(() => ({ kind: "norms", design }));
+  const norms = await rounds.all<NormsAnswer>(() => ({ kind: "norms", design, parts: rounds.exec.parts }));
   const scale = columnNorms(norms, k);
   for (let j = 0; j < k; j++) if (scale[j] === 0) return { qr: null, dependent: { column: j, on: [] } };
   const inv = Float64Array.from(scale, (s) => 1 / s);
@@ -529,6 +532,7 @@ export async function columnFit(
     const j = bad % k;
     fail(`the fit gives a number that is not finite for ${bad === shown.length - 1 ? "R²" : terms[j]} (a standard error of zero, or values too extreme for double precision): check the data for extreme or repeated values`);
   }
+  await rounds.all(() => ({ kind: "release" }));
   const sample = joinSamples(passes.map((a) => a.sample));
   const result: ColumnFitResult = {
     rowsRead, n, leftOut, terms, coefficients, standardErrors, t, p, lower, upper,

@@ -67,7 +67,7 @@ export interface Dependency {
   on: number[];
 }
 
-export function norm2(a: Float64Array): number {
+function norm2(a: Float64Array): number {
   let s = 0;
   for (let i = 0; i < a.length; i++) s += a[i] * a[i];
   if (s > 1e-280 && s < 1e280) return Math.sqrt(s);

@@ -61,18 +61,22 @@ export interface PartState {
   x: Float64Array[] | null;
   rowIndex: Int32Array | null;
   designs: Record<string, PartDesign>;
+  /** What "prepare" did (its parameters and answer), so that a fit with the same transforms reuses the rows. */
+  prepared: { key: string; answer: PrepareAnswer } | null;
+  /** The last "scan" (its parameters and answer): after "prepare" the storage no longer holds the raw rows. */
+  scanned: { key: string; answer: ScanAnswer } | null;
 }
 
 /** A new, empty part. */
 export function newPartState(): PartState {
   return {
     rows: 0, kx: -1, rawY: new Float64Array(0), rawX: [], issue: new Uint8Array(0), index: new Int32Array(0),
-    n: 0, y: null, x: null, rowIndex: null, designs: {},
+    n: 0, y: null, x: null, rowIndex: null, designs: {}, prepared: null, scanned: null,
   };
 }
 
 /** The step kinds a part understands (see the answer types below). */
-export type SplitOpKind = "append" | "scan" | "prepare" | "norms" | "factor" | "residuals" | "refineStart" | "refineStep" | "refineApply" | "center" | "passes" | "bpSolve" | "auxDesign" | "auxDrop" | "clear";
+export type SplitOpKind = "reserve" | "append" | "scan" | "prepare" | "norms" | "factor" | "residuals" | "refineStart" | "refineStep" | "refineApply" | "center" | "passes" | "bpSolve" | "auxDesign" | "auxDrop" | "release" | "clear";
 
 /** What applyPartOp gives back: the answer (structured-cloneable) and the buffers that may move with it. */
 export interface PartAnswer {
@@ -135,7 +139,7 @@ export interface PrepareAnswer {
 }
 
 export interface NormsAnswer {
-  /** Per column: Σx², max|x|, Σ(x/max|x|)². */
+  /** Per column: Σx², max|x|, Σ(x/max|x|)² (NaN where Σx² alone is safe: see norms). */
   sumSq: number[];
   maxAbs: number[];
   scaledSumSq: number[];
@@ -200,6 +204,30 @@ function grow(state: PartState, need: number, kx: number): void {
   state.index = index;
 }
 
+/** Room for `rows` rows of `kx` x columns, so that appending never copies the rows already held. */
+function reserve(state: PartState, op: PartOp): PartAnswer {
+  const kx = op.kx as number;
+  if (state.kx < 0) state.kx = kx;
+  if (state.kx !== kx) throw new Error(`the part holds ${state.kx} x columns, not ${kx}`);
+  const need = op.rows as number;
+  if (need > state.rawY.length) {
+    const keep = state.rows;
+    const y = new Float64Array(need);
+    y.set(state.rawY.subarray(0, keep));
+    const x = Array.from({ length: kx }, (_, j) => {
+      const c = new Float64Array(need);
+      if (state.rawX[j]) c.set(state.rawX[j].subarray(0, keep));
+      return c;
+    });
+    const issue = new Uint8Array(need);
+    issue.set(state.issue.subarray(0, keep));
+    const index = new Int32Array(need);
+    index.set(state.index.subarray(0, keep));
+    Object.assign(state, { rawY: y, rawX: x, issue, index });
+  }
+  return { answer: { rows: state.rows, capacity: state.rawY.length } };
+}
+
 function append(state: PartState, op: PartOp): PartAnswer {
   const y = op.y as Float64Array;
   const x = op.x as Float64Array[];
@@ -241,6 +269,12 @@ function ensureColumns(state: PartState, kx: number): void {
 function scan(state: PartState, op: PartOp): PartAnswer {
   const firstRow = op.firstRow as number;
   const kx = op.kx as number;
+  const key = JSON.stringify([kx, firstRow]);
+  if (state.y) {
+    // the rows were transformed in place by an earlier fit: what they held then
+    if (state.scanned?.key !== key) throw new Error("this part's rows were already transformed for a fit: append them again");
+    return { answer: state.scanned.answer };
+  }
   ensureColumns(state, kx);
   const rows = state.rows;
   const unusable = new RowList();
@@ -289,6 +323,7 @@ function scan(state: PartState, op: PartOp): PartAnswer {
     usable, blank, notNumber, unusableRows: unusable.toRuns(), badCells, binary, sameAsY,
     nonPositive: np.map((c) => ({ zeros: c.zeros, negatives: c.negatives, zeroRows: c.zeroRows.toRuns(), negativeRows: c.negativeRows.toRuns() })),
   };
+  state.scanned = { key, answer };
   return { answer };
 }
 
@@ -304,8 +339,15 @@ function prepare(state: PartState, op: PartOp): PartAnswer {
   const intercept = op.intercept as boolean;
   const firstRow = op.firstRow as number;
   const kx = op.kx as number;
-  // the rows are transformed in place (no second copy of a big range): one fit per part's rows
-  if (state.y) throw new Error("this part's rows were already prepared for a fit: append them again for another fit");
+  // The rows are transformed in place (no second copy of a big range): a part's rows serve fits with
+  // the same transforms and rows (another se= or level); other transforms need the rows again.
+  const key = JSON.stringify([kx, logY, logged, drop, intercept, firstRow]);
+  if (state.y) {
+    if (state.prepared?.key !== key) throw new Error("this part's rows were already transformed for a fit with other transforms: append them again for this one");
+    const d = state.designs.fit;
+    state.designs = { fit: { X: d.X, y: state.y, blocks: null, resid: null, r: null, f: null } };
+    return { answer: state.prepared.answer };
+  }
   ensureColumns(state, kx);
   const { rawY, rawX, issue, index } = state;
   const droppedRows = new RowList();
@@ -364,6 +406,7 @@ function prepare(state: PartState, op: PartOp): PartAnswer {
     xMax.push(maxAbs(c));
   }
   const answer: PrepareAnswer = { n, dropped, droppedNegative, droppedRows: droppedRows.toRuns(), first, constant, yMax: maxAbs(y), xMax };
+  state.prepared = { key, answer };
   return { answer };
 }
 
@@ -382,9 +425,14 @@ function designOf(state: PartState, op: PartOp): PartDesign {
   return d;
 }
 
-/** Σx² in the order leastSquares.ts norm2 sums it, with max|x| and Σ(x/max|x|)² for the overflow-safe combination. */
+/**
+ * Σx² in the order leastSquares.ts norm2 sums it, and max|x|; Σ(x/max|x|)² (NaN when not computed)
+ * only where this part's Σx² could take the total out of [1e-280, 1e280] (at or below 1e-280, or at
+ * or above 1e280/parts): the driver then combines the scaled sums, as norm2 rescales.
+ */
 function norms(state: PartState, op: PartOp): PartAnswer {
   const d = designOf(state, op);
+  const parts = (op.parts as number | undefined) ?? 1;
   const sumSq: number[] = [];
   const mx: number[] = [];
   const scaledSumSq: number[] = [];
@@ -397,8 +445,9 @@ function norms(state: PartState, op: PartOp): PartAnswer {
       const b = Math.abs(v);
       if (b > m) m = b;
     }
-    let t = 0;
-    if (m > 0) {
+    let t = NaN;
+    if (m > 0 && !(s > 1e-280 && s < 1e280 / parts)) {
+      t = 0;
       for (let i = 0; i < a.length; i++) {
         const v = a[i] / m;
         t += v * v;
@@ -451,6 +500,7 @@ function residuals(state: PartState, op: PartOp): PartAnswer {
     d.resid = resid;
     d.r = null;
     d.f = null;
+    d.blocks = null; // k reflector entries per row: freed as soon as the refinement is over
   }
   let rss = 0;
   for (let i = 0; i < n; i++) rss += resid[i] * resid[i];
@@ -735,6 +785,7 @@ function auxDrop(state: PartState, op: PartOp): PartAnswer {
 /** Applies one step to the part it holds. Data problems come back in the answers (the driver words them). */
 export function applyPartOp(state: PartState, op: PartOp): PartAnswer {
   switch (op.kind as SplitOpKind) {
+    case "reserve": return reserve(state, op);
     case "append": return append(state, op);
     case "scan": return scan(state, op);
     case "prepare": return prepare(state, op);
@@ -749,6 +800,12 @@ export function applyPartOp(state: PartState, op: PartOp): PartAnswer {
     case "bpSolve": return bpSolve(state, op);
     case "auxDesign": return auxDesign(state, op);
     case "auxDrop": return auxDrop(state, op);
+    case "release": {
+      // what a finished fit leaves: the tests' designs, the residuals and reflectors (the rows stay)
+      const fit = state.designs.fit;
+      if (fit) state.designs = { fit: { X: fit.X, y: state.y as Float64Array, blocks: null, resid: null, r: null, f: null } };
+      return { answer: { rows: state.rows } };
+    }
     case "clear": {
       Object.assign(state, newPartState());
       return { answer: { rows: 0 } };

@@ -57,6 +57,7 @@ export function nodeSpawner(bundle = WORKER_BUNDLE, started?: NodeWorkerPort[]):
         onError = () => undefined;
         void worker.terminate();
       },
+      rest: (yes) => (yes ? worker.unref() : worker.ref()),
     };
     if (started) started.push(port);
     return port;

@@ -31,6 +31,8 @@ export interface WorkerPort {
   /** Messages, and errors (a load failure, an uncaught exception, an exit) as sentences. */
   listen(onMessage: (data: unknown) => void, onError: (message: string) => void): void;
   terminate(): void;
+  /** A resting worker (kept warm between fits) must not keep a Node process alive; optional. */
+  rest?(resting: boolean): void;
 }
 
 /** Starts worker number `index`; may throw. */
@@ -47,6 +49,9 @@ export function machineWorkers(cores?: number): number {
   const c = cores ?? (nav && typeof nav.hardwareConcurrency === "number" ? nav.hardwareConcurrency : 1);
   return Math.max(1, Math.min(MAX_WORKERS, Math.floor(c) || 1));
 }
+
+/** The page's workers: dist/fitWorker.js beside the page. */
+const PAGE_SPAWNER: SpawnWorker = (index) => browserSpawner()(index);
 
 /** Web Workers from a script address (the page's own dist/fitWorker.js by default). */
 export function browserSpawner(url = "fitWorker.js"): SpawnWorker {
@@ -69,6 +74,29 @@ export function browserSpawner(url = "fitWorker.js"): SpawnWorker {
   };
 }
 
+/** Request ids, unique across pools: a warm worker passed on may still answer its last pool's request. */
+let requestIds = 1;
+
+/**
+ * Warm workers between fits, by the spawner that started them: the engine in a worker is compiled
+ * by the first fit, and a later fit that reuses the thread skips that (about a second on a laptop).
+ */
+const resting = new Map<SpawnWorker, WorkerPort[]>();
+
+/** Terminates the workers kept warm between fits. */
+export function closeIdleWorkers(): void {
+  for (const ports of resting.values()) for (const p of ports.splice(0)) stopPort(p);
+  resting.clear();
+}
+
+function stopPort(port: WorkerPort): void {
+  try {
+    port.terminate();
+  } catch {
+    // already gone
+  }
+}
+
 interface Pending {
   part: number;
   resolve: (v: unknown) => void;
@@ -78,14 +106,14 @@ interface Pending {
 /** A PartExecutor over started workers, with cancel and close. */
 export class WorkerPool implements PartExecutor {
   readonly parts: number;
-  private nextId = 1;
   private readonly pending = new Map<number, Pending>();
   private readonly dead: (string | null)[];
   private stopped: FitCancelled | Error | null = null;
   /** Rows gone through by the running step of each part, as the workers report them. */
   onProgress: ((part: number, rowsDone: number) => void) | null = null;
 
-  constructor(private readonly ports: WorkerPort[]) {
+  /** `release`: where close() hands idle, healthy workers (kept warm) instead of terminating them. */
+  constructor(private readonly ports: WorkerPort[], private readonly release?: (ports: WorkerPort[]) => void) {
     this.parts = ports.length;
     this.dead = ports.map(() => null);
     ports.forEach((port, part) =>
@@ -101,7 +129,7 @@ export class WorkerPool implements PartExecutor {
     if (!(part >= 0 && part < this.parts && Number.isInteger(part))) return Promise.reject(new Error(`there is no part ${part} (parts 0 to ${this.parts - 1})`));
     const lost = this.dead[part];
     if (lost !== null) return Promise.reject(new Error(lost));
-    const id = this.nextId++;
+    const id = requestIds++;
     return new Promise((resolve, reject) => {
       this.pending.set(id, { part, resolve, reject });
       try {
@@ -118,21 +146,25 @@ export class WorkerPool implements PartExecutor {
     this.stop(new FitCancelled());
   }
 
-  /** Terminates every worker; pending sends reject. */
+  /**
+   * Ends the pool; pending sends reject. Workers that are idle and healthy go back to be kept warm
+   * (their part state cleared) when the pool was started so; the others are terminated.
+   */
   close(): void {
-    this.stop(new Error("the big-fit session was closed"));
+    const reusable = !this.stopped && this.release !== undefined && this.pending.size === 0 && this.dead.every((d) => d === null);
+    if (!reusable) {
+      this.stop(new Error("the big-fit session was closed"));
+      return;
+    }
+    this.stopped = new Error("the big-fit session was closed");
+    for (const port of this.ports) port.post({ id: requestIds++, op: { kind: "reset" } }, []);
+    (this.release as (p: WorkerPort[]) => void)(this.ports);
   }
 
   private stop(reason: Error): void {
     if (this.stopped) return;
     this.stopped = reason;
-    for (const port of this.ports) {
-      try {
-        port.terminate();
-      } catch {
-        // already gone
-      }
-    }
+    for (const port of this.ports) stopPort(port);
     const pending = [...this.pending.values()];
     this.pending.clear();
     for (const p of pending) p.reject(reason);
@@ -178,6 +210,8 @@ export interface PoolOptions {
   startTimeoutMs?: number;
   /** Parts of the in-thread fallback (default 1). */
   localParts?: number;
+  /** Keep the workers warm for the next fit when closed (default: yes for the page's own workers, no for a given spawner). */
+  keepWarm?: boolean;
 }
 
 /** An executor with a way to stop it. */
@@ -196,19 +230,19 @@ export interface PoolStart {
   pool: WorkerPool | null;
 }
 
-/** The in-thread executor with cancel and close (they only refuse later sends). */
+/** The in-thread executor with cancel and close: both refuse later sends and let the parts' rows go. */
 function inThread(parts: number): StoppableExecutor {
-  const local = localExecutor(parts);
+  let local: PartExecutor | null = localExecutor(parts);
   let stopped: Error | null = null;
+  const stop = (reason: Error) => {
+    stopped = stopped || reason;
+    local = null;
+  };
   return {
-    parts: local.parts,
-    send: (part, op, transfer) => (stopped ? Promise.reject(stopped) : local.send(part, op, transfer)),
-    cancel: () => {
-      stopped = stopped || new FitCancelled();
-    },
-    close: () => {
-      stopped = stopped || new Error("the big-fit session was closed");
-    },
+    parts,
+    send: (part, op, transfer) => (stopped || !local ? Promise.reject(stopped) : local.send(part, op, transfer)),
+    cancel: () => stop(new FitCancelled()),
+    close: () => stop(new Error("the big-fit session was closed")),
   };
 }
 
@@ -222,20 +256,18 @@ export async function startPool(options: PoolOptions = {}): Promise<PoolStart> {
   const inThreadStart = (fallbackNote: string): PoolStart => ({ executor: inThread(Math.max(1, options.localParts ?? 1)), workers: 0, fallbackNote, pool: null });
   const local = (reason: string): PoolStart => inThreadStart(note(reason));
   if (!(wanted >= 1)) return inThreadStart("");
-  const spawn = options.spawn ?? browserSpawner();
+  const spawn = options.spawn ?? PAGE_SPAWNER;
+  const keepWarm = options.keepWarm ?? options.spawn === undefined;
   const timeout = options.startTimeoutMs ?? START_TIMEOUT_MS;
+  // warm workers first, then new ones
+  const warm = (resting.get(spawn) ?? []).splice(0, wanted);
+  warm.forEach((p) => p.rest?.(false));
   const ports: WorkerPort[] = [];
-  const stopAll = () => ports.forEach((p) => {
-    try {
-      p.terminate();
-    } catch {
-      // already gone
-    }
-  });
+  const stopAll = () => [...warm, ...ports].forEach(stopPort);
 
   const readiness: Promise<void>[] = [];
   const timers: ReturnType<typeof setTimeout>[] = [];
-  for (let i = 0; i < wanted; i++) {
+  for (let i = warm.length; i < wanted; i++) {
     let port: WorkerPort;
     try {
       port = spawn(i);
@@ -280,6 +312,23 @@ export async function startPool(options: PoolOptions = {}): Promise<PoolStart> {
     stopAll();
     return local(messageOf(e));
   }
-  const pool = new WorkerPool(ports);
+  const release = (done: WorkerPort[]) => {
+    const list = resting.get(spawn) ?? [];
+    for (const p of done) {
+      if (list.length >= MAX_WORKERS) stopPort(p);
+      else {
+        p.rest?.(true);
+        // a resting worker that fails is dropped, never handed to the next fit
+        p.listen(() => undefined, () => {
+          const at = list.indexOf(p);
+          if (at >= 0) list.splice(at, 1);
+          stopPort(p);
+        });
+        list.push(p);
+      }
+    }
+    resting.set(spawn, list);
+  };
+  const pool = new WorkerPool([...warm, ...ports], keepWarm ? release : undefined);
   return { executor: pool, workers: wanted, fallbackNote: "", pool };
 }

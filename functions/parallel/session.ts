@@ -12,7 +12,7 @@ import { machineWorkers, messageOf, startPool, type PoolOptions, type StoppableE
 import type { BigFitOpenOptions, BigFitSession, BigOutcome } from "./types";
 
 /** How a session starts its workers (the page's defaults unless a test or Node caller says otherwise). */
-export type BigFitStartOptions = BigFitOpenOptions & Pick<PoolOptions, "spawn" | "startTimeoutMs">;
+export type BigFitStartOptions = BigFitOpenOptions & Pick<PoolOptions, "spawn" | "startTimeoutMs" | "keepWarm">;
 
 /** Rows [from, to) of one part's share, ready to send. */
 interface Piece {
@@ -20,6 +20,13 @@ interface Piece {
   to: number;
   op: PartOp;
   transfer: ArrayBuffer[];
+}
+
+const OTHER_TRANSFORMS = "These rows were read and transformed for a fit with another form, zeros choice, intercept or columns: to fit them that way, read the range again (another se= or level needs no new reading).";
+
+/** What a fit does to the parts' rows: another fit of one reading must keep it. */
+function transformsOf(spec: ColumnFitSpec): string {
+  return JSON.stringify([spec.form, spec.zeros, spec.intercept, spec.xNames.length, spec.firstRow ?? 1]);
 }
 
 const CANCELLED: BigOutcome = { ok: false, cancelled: true, message: "The fit was stopped (Cancel); nothing was written." };
@@ -47,7 +54,7 @@ export async function openBigFit(options: BigFitStartOptions): Promise<BigFitSes
   if (!(Number.isInteger(rows) && rows >= 1)) fail("There are no data rows below the header to fit: choose a range with a header row and at least one row of numbers.");
   // Never more workers than rows.
   const wanted = options.workers === undefined ? undefined : Math.min(Math.max(0, Math.floor(options.workers)), rows);
-  const start = await startPool({ workers: wanted === undefined ? Math.min(machineWorkers(), rows) : wanted, spawn: options.spawn, startTimeoutMs: options.startTimeoutMs, localParts: 1 });
+  const start = await startPool({ workers: wanted === undefined ? Math.min(machineWorkers(), rows) : wanted, spawn: options.spawn, startTimeoutMs: options.startTimeoutMs, keepWarm: options.keepWarm, localParts: 1 });
   const executor: StoppableExecutor = start.executor;
   const parts = executor.parts;
   const bounds = shareBounds(rows, parts);
@@ -55,6 +62,7 @@ export async function openBigFit(options: BigFitStartOptions): Promise<BigFitSes
   let cancelled = false;
   let closed = false;
   let fitting = false;
+  let fittedWith: string | null = null;
   let onCancel: (() => void) | null = null;
   // Each part receives its rows in order (the engine keeps them in the order they arrive, and the
   // picture's rows and the rows named in messages follow it): a piece that arrives before the rows
@@ -136,6 +144,10 @@ export async function openBigFit(options: BigFitStartOptions): Promise<BigFitSes
       if (cancelled) return CANCELLED;
       if (closed) return { ok: false, cancelled: false, message: "This big fit was closed: start a new one." };
       if (fitting) return { ok: false, cancelled: false, message: "A fit is already running for this range: wait for it or press Cancel." };
+      // The parts transform their rows in place (logs) as they fit them: another fit of the same
+      // reading may change se= or the level, not the transforms.
+      const key = transformsOf(spec);
+      if (fittedWith !== null && fittedWith !== key) return { ok: false, cancelled: false, message: OTHER_TRANSFORMS };
       fitting = true;
       const stop = new Promise<BigOutcome>((resolve) => {
         onCancel = () => resolve(CANCELLED);
@@ -147,6 +159,7 @@ export async function openBigFit(options: BigFitStartOptions): Promise<BigFitSes
           for (let p = 0; p < parts; p++) while (waiting[p].length > 0) dispatch(p, waiting[p].shift() as Piece);
           await Promise.all(flights);
           const value = await columnFit(executor, spec, progress, () => cancelled);
+          fittedWith = key;
           return { ok: true, value };
         })();
         return await Promise.race([run, stop]);
@@ -154,6 +167,7 @@ export async function openBigFit(options: BigFitStartOptions): Promise<BigFitSes
         if (cancelled || isFitCancelled(e)) return CANCELLED;
         if (e instanceof ElxProblem) return { ok: false, cancelled: false, message: e.message };
         const why = messageOf(e);
+        if (/already transformed/.test(why)) return { ok: false, cancelled: false, message: OTHER_TRANSFORMS };
         return { ok: false, cancelled: false, message: `The fit stopped unexpectedly (${why}). Nothing was written; try again, and if it happens again, report it with the range's size.` };
       } finally {
         fitting = false;

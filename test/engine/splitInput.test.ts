@@ -186,6 +186,23 @@ describe("refusals, worded as the cell path words them", () => {
   });
 });
 
+describe("one set of parts, several fits", () => {
+  it("the same parts fitted again with another se= and level give what a fresh set of parts gives; another form is refused as a programming error (the rows were logged in place)", async () => {
+    const { y, x } = demand(700, 16);
+    const exec = localExecutor(3);
+    await appendColumns(exec, y, x, [200, 300, 200], 50);
+    const first = await columnFit(exec, SP);
+    const again = await columnFit(exec, { ...SP, se: "classical", level: 0.9 });
+    const fresh = await split(y, x, { ...SP, se: "classical", level: 0.9 }, [200, 300, 200], 50);
+    expect(again.coefficients).toEqual(first.coefficients);
+    expect(again.standardErrors).toEqual(fresh.standardErrors);
+    expect(again.lower).toEqual(fresh.lower);
+    expect(again.breuschPagan).toEqual(fresh.breuschPagan);
+    expect(again.leftOut).toEqual(fresh.leftOut);
+    await expect(columnFit(exec, { ...SP, form: "level-level" })).rejects.toThrow(/other transforms/);
+  });
+});
+
 describe("cancellation, progress and the sample", () => {
   it("isCancelled is asked between steps: a fit stopped after its third step throws FitCancelled (recognised also by name, after a structured clone)", async () => {
     const { y, x } = demand(500, 12);

@@ -61,6 +61,20 @@ function extreme(seed: number, n: number): Design {
   return { name: `level-level, y ≈ 1e120, x from 1e−120 to 1e6 (seed ${seed}, n ${n})`, y, x: [a, b, c], spec: spec("y", ["a", "b", "c"], { form: "level-level", se: "HC2" }) };
 }
 
+/**
+ * Columns whose Σx² leaves [1e-280, 1e280] (x near 1e150 and 1e-145), and one whose parts' sums are
+ * each safe but whose total is not (x near 3e139 over 120 rows): the column lengths are combined
+ * from the parts' scaled sums as leastSquares.ts norm2 rescales.
+ */
+function hugeColumns(seed: number, n: number): Design {
+  const g = new Rng(seed);
+  const a = Float64Array.from({ length: n }, () => 1e150 * (1 + g.next()));
+  const b = Float64Array.from({ length: n }, () => 1e-145 * (1 + g.next()));
+  const c = Float64Array.from({ length: n }, () => 3e139 * (1 + g.next()));
+  const y = Float64Array.from({ length: n }, (_, i) => 1 + 1e-150 * a[i] - 2e145 * b[i] + 1e-139 * c[i] + 0.3 * g.normal());
+  return { name: `level-level, x near 1e150, 1e-145 and 3e139 (seed ${seed}, n ${n})`, y, x: [a, b, c], spec: spec("y", ["a", "b", "c"], { form: "level-level", se: "HC3" }) };
+}
+
 /** Without an intercept (the test's auxiliary regression then adds one). */
 function noIntercept(seed: number, n: number): Design {
   const d = collinear(seed, n, 0.05);
@@ -74,6 +88,7 @@ const DESIGNS: Design[] = [
   polynomial(4, 800, 5, 10),
   polynomial(5, 3000, 6, 3),
   extreme(6, 1500),
+  hugeColumns(9, 120),
   noIntercept(7, 1200),
   { ...collinear(8, 2000, 0.1), spec: { ...collinear(8, 10, 0.1).spec, se: "classical", form: "log-level" } },
 ];

@@ -13,7 +13,7 @@ import * as fs from "fs";
 import { appendColumns, columnFit, equalShares, localExecutor } from "../../functions/engine/columnFit";
 import type { ColumnChunk, ColumnFitResult, ColumnFitSpec } from "../../functions/engine/columnFitTypes";
 import { nodeSpawner, WORKER_BUNDLE, type NodeWorkerPort } from "../../functions/parallel/nodeWorker";
-import { startPool } from "../../functions/parallel/pool";
+import { closeIdleWorkers, startPool, type SpawnWorker } from "../../functions/parallel/pool";
 import { openBigFit, shareBounds } from "../../functions/parallel/session";
 import { Rng } from "../simulation/rng";
 
@@ -239,6 +239,48 @@ describe("the big-fit session", () => {
       expect(out.message).toMatch(/zero/);
       expect(out.message).toMatch(/zeros=drop/);
       expect(out.message).toMatch(/251/);
+    } finally {
+      session.close();
+    }
+  });
+
+  it("closed sessions leave their workers warm for the next: no new thread, the same numbers, rows cleared", async () => {
+    const base = nodeSpawner();
+    let spawned = 0;
+    const spawn: SpawnWorker = (i) => {
+      spawned++;
+      return base(i);
+    };
+    try {
+      const results: ColumnFitResult[] = [];
+      for (let round = 0; round < 2; round++) {
+        const session = await openBigFit({ rows: N, workers: 2, spawn, keepWarm: true });
+        expect(session.workers).toBe(2);
+        for (const c of chunks(800)) await session.append(c);
+        const out = await session.fit(SPEC);
+        session.close();
+        if (!out.ok) throw new Error(out.message);
+        results.push(out.value);
+      }
+      expect(spawned).toBe(2);
+      // the second session's parts held only its own rows: the same n, the same numbers
+      expect(worstDifference(results[1], results[0])).toBe(0);
+    } finally {
+      closeIdleWorkers();
+    }
+  });
+
+  it("a second fit of one reading: another se= gives the engine's numbers; another form is refused with a sentence", async () => {
+    const session = await openBigFit({ rows: N, workers: 2, spawn: nodeSpawner() });
+    try {
+      for (const c of chunks(1000)) await session.append(c);
+      expect((await session.fit(SPEC)).ok).toBe(true);
+      const hc1 = await session.fit({ ...SPEC, se: "HC1", level: 0.9 });
+      if (!hc1.ok) throw new Error(hc1.message);
+      const local = localExecutor(2);
+      await appendColumns(local, y.slice(), x.map((c) => c.slice()), equalShares(N, 2), 1000);
+      expect(worstDifference(hc1.value, await columnFit(local, { ...SPEC, se: "HC1", level: 0.9 }))).toBeLessThanOrEqual(1e-12);
+      expect(await session.fit({ ...SPEC, form: "log-level" })).toMatchObject({ ok: false, cancelled: false, message: expect.stringMatching(/another form.*read the range again/) });
     } finally {
       session.close();
     }
