@@ -346,7 +346,7 @@ export async function columnFit(
     leftOut.notNumber += s.notNumber;
   }
   const rowsRead = usable + leftOut.blank + leftOut.notNumber;
-  const rounds = new Rounds(exec, rowsRead, 8, progress, isCancelled);
+  const rounds = new Rounds(exec, rowsRead, 9, progress, isCancelled);
   rounds.done = rowsRead;
   if (rowsRead === 0) fail("no data rows were read: check that the ranges hold the data below their headers");
   const names = [spec.yName, ...spec.xNames];
