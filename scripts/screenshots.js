@@ -81,6 +81,14 @@ async function takeBigScreenshots(page, dir) {
     document.getElementById("elx-big").scrollIntoView();
   });
   await page.screenshot({ path: files[0] });
+  // the whole section, not only the pane's visible part
+  await page.evaluate(() => {
+    document.body.style.height = "auto";
+    document.querySelector(".pv-main").style.alignItems = "flex-start";
+    const pane = document.getElementById("elx-pane");
+    pane.style.overflow = "visible";
+    pane.style.height = "auto";
+  });
   await page.locator("#elx-big").screenshot({ path: files[1] });
   return files;
 }
