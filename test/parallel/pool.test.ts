@@ -20,6 +20,13 @@ beforeAll(() => {
   if (!fs.existsSync(WORKER_BUNDLE)) throw new Error(`${WORKER_BUNDLE} is missing: run npm run build first`);
 });
 
+describe("the worker bundle", () => {
+  it("holds the engine only: no cell-function registration, no host API", () => {
+    const text = fs.readFileSync(WORKER_BUNDLE, "utf8");
+    expect(text).not.toMatch(/CustomFunctions|associate\(|Office\.|Excel\./);
+  });
+});
+
 describe("worker count", () => {
   it("is the cores, capped at 8, and one on a one-core machine", () => {
     expect(machineWorkers(1)).toBe(1);
