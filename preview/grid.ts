@@ -103,7 +103,7 @@ export class GridView {
 
   /** Whether the active sheet uses the demo's column layout. */
   private demoLayout(): boolean {
-    return this.book.activeSheet === this.book.sheets[0];
+    return this.book.activeSheet === this.book.sheets[0] && !this.book.activeSheet.base;
   }
 
   private columnWidth(c: number): number {

@@ -73,6 +73,8 @@ async function start(): Promise<void> {
     const seed = Number(params.get("seed") ?? SYNTHETIC_SEED) >>> 0;
     sheet.base = { rows: rows + 1, columns: SYNTHETIC_COLUMNS.length, row: (r) => (r === 1 ? SYNTHETIC_COLUMNS : syntheticRow(seed, r - 2)) };
     sheet.touch();
+    const about = document.querySelector(".pv-header p") as HTMLElement | null;
+    if (about) about.textContent = "The sheet holds invented rows of a bakery chain's weekly sales, computed from a seed when read (preview/synthetic.ts), never stored; the pane on the right reads them in blocks and fits them off the page, as it does with a range too large for one formula.";
     (document.getElementById("pv-title") as HTMLElement).textContent = `Synthetic sheet: ${rows.toLocaleString("en-GB")} rows × ${SYNTHETIC_COLUMNS.length} columns of invented bakery-chain sales (seed ${seed}); y A1:A${rows + 1}, x B1:K${rows + 1}`;
   } else {
     const columns = demo.columns as string[];

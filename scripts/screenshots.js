@@ -81,7 +81,27 @@ async function takeBigScreenshots(page, dir) {
     document.getElementById("elx-big").scrollIntoView();
   });
   await page.screenshot({ path: files[0] });
+  // the whole section, not only the pane's visible part; the sheet's scroller keeps its height (a
+  // grid of 200,000 rows let grow would draw every row), and the page is put back afterwards
+  await page.evaluate(() => {
+    const keep = (el) => ({ el, style: el.getAttribute("style") });
+    const pane = document.getElementById("elx-pane");
+    const scroll = document.querySelector(".pv-scroll");
+    window.__elxStyles = [keep(document.body), keep(document.querySelector(".pv-main")), keep(pane), keep(scroll)];
+    scroll.style.height = `${scroll.clientHeight}px`;
+    scroll.style.flex = "none";
+    document.body.style.height = "auto";
+    document.querySelector(".pv-main").style.alignItems = "flex-start";
+    pane.style.overflow = "visible";
+    pane.style.height = "auto";
+  });
   await page.locator("#elx-big").screenshot({ path: files[1] });
+  await page.evaluate(() => {
+    for (const { el, style } of window.__elxStyles) {
+      if (style === null) el.removeAttribute("style");
+      else el.setAttribute("style", style);
+    }
+  });
   return files;
 }
 

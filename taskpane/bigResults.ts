@@ -99,6 +99,15 @@ export function talliesHtml(tallies: ColumnTally[], form: Form): string {
 
 /** The results of a big fit as the pane shows them. */
 export function resultsHtml(run: BigRun): string {
+  const [text, elasticities, residuals] = resultsParts(run);
+  return text.replace('<div id="elx-big-fig-el"></div>', `<div id="elx-big-fig-el">${elasticities}</div>`).replace('<div id="elx-big-fig-res"></div>', `<div id="elx-big-fig-res">${residuals}</div>`);
+}
+
+/**
+ * The same in three parts, so the pane can draw them one at a time: the text and table (with empty
+ * #elx-big-fig-el and #elx-big-fig-res holders), the elasticities' figure, the residual picture.
+ */
+export function resultsParts(run: BigRun): [string, string, string] {
   const r = run.result;
   const lv = percent(run.spec.level);
   const body = r.terms.map((term, j) => `<tr data-term="${esc(term)}"><th scope="row">${esc(term)}</th><td>${esc(readsAs(run.spec.form, term, binaryOf(run, term)))}</td><td>${esc(num(r.coefficients[j]))}</td><td>${esc(num(r.standardErrors[j]))}</td><td>${esc(num(r.lower[j]))}</td><td>${esc(num(r.upper[j]))}</td><td>${esc(pText(r.p[j]))}</td></tr>`).join("");
@@ -107,14 +116,18 @@ export function resultsHtml(run: BigRun): string {
   const bp = r.breuschPagan;
   const bpText = bp ? `Breusch–Pagan (studentized, on the fit's regressors): ${shortNumber(bp.statistic)} on ${bp.df} df, ${pText(bp.p)}${bp.p < 0.05 ? ": the spread of the residuals changes with the regressors, so prefer robust (HC) errors" : ": no evidence here that the spread changes with the regressors"}.` : "Breusch–Pagan could not be computed for this fit.";
   const logY = run.spec.form.startsWith("log");
-  const plot = residualPlot({ fitted: r.sample.fitted, residuals: r.sample.residuals, title: `Residuals against fitted values, ${run.spec.form}`, xLabel: `Fitted ${logY ? `log ${run.spec.yName}` : run.spec.yName}`, yLabel: "Residual" });
-  return `<p id="elx-big-summary">${esc(run.spec.yName)} on ${esc(run.spec.xNames.join(", "))} (${esc(specOptions(run.spec))}): <strong>${esc(fmt(r.n))} rows used</strong> of ${esc(fmt(r.rowsRead))} read; <span id="elx-big-leftout">${esc(leftOutSentence(r))}</span>. Errors: ${esc(r.seLabel)}. R² ${esc(num(r.rSquared))}.</p>` +
+  const picture = () => residualPlot({ fitted: r.sample.fitted, residuals: r.sample.residuals, title: `Residuals against fitted values, ${run.spec.form}`, xLabel: `Fitted ${logY ? `log ${run.spec.yName}` : run.spec.yName}`, yLabel: "Residual" });
+  const plot = picture();
+  const text = `<p id="elx-big-summary">${esc(run.spec.yName)} on ${esc(run.spec.xNames.join(", "))} (${esc(specOptions(run.spec))}): <strong>${esc(fmt(r.n))} rows used</strong> of ${esc(fmt(r.rowsRead))} read; <span id="elx-big-leftout">${esc(leftOutSentence(r))}</span>. Errors: ${esc(r.seLabel)}. R² ${esc(num(r.rSquared))}.</p>` +
     (run.fallbackNote ? `<p id="elx-big-fallback" class="elx-message elx-warned">${esc(run.fallbackNote)}</p>` : "") +
-    (rows.length ? `<figure id="elx-big-elasticities">${intervalPlot(rows, "Elasticities with their intervals", lv)}<figcaption>Dots are elasticities, bars their ${esc(lv)} intervals (${esc(r.seLabel)} errors); the black line is zero.</figcaption></figure>` : "") +
+    '<div id="elx-big-fig-el"></div>' +
     `<div class="elx-table-wrap"><table id="elx-big-table" class="elx-compact"><caption>Coefficients (${esc(r.seLabel)} errors)</caption><thead><tr><th scope="col">Term</th><th scope="col">Reads as</th><th scope="col">Coefficient</th><th scope="col">Std. error</th><th scope="col">Low (${esc(lv)})</th><th scope="col">High (${esc(lv)})</th><th scope="col">p-value</th></tr></thead><tbody>${body}</tbody></table></div>` +
     `<p id="elx-big-bp">${esc(bpText)}</p>` +
-    `<figure id="elx-big-residuals">${plot.svg}<figcaption>${esc(fmt(plot.drawn))} evenly spaced rows of the ${esc(fmt(r.n))} used: a fan or a curve says the spread or the form is not what the model assumes.</figcaption></figure>` +
+    '<div id="elx-big-fig-res"></div>' +
     `<ul class="elx-cautions">${CAUTIONS.slice(0, 3).map((c) => `<li>${esc(c)}</li>`).join("")}</ul>`;
+  const elasticities = rows.length ? `<figure id="elx-big-elasticities">${intervalPlot(rows, "Elasticities with their intervals", lv)}<figcaption>Dots are elasticities, bars their ${esc(lv)} intervals (${esc(r.seLabel)} errors); the black line is zero.</figcaption></figure>` : "";
+  const residuals = `<figure id="elx-big-residuals">${plot.svg}<figcaption>${esc(fmt(plot.drawn))} evenly spaced rows of the ${esc(fmt(r.n))} used: a fan or a curve says the spread or the form is not what the model assumes.</figcaption></figure>`;
+  return [text, elasticities, residuals];
 }
 
 /** The caution line that heads every values block. */

@@ -17,7 +17,7 @@ import { buildBlock, type BlockItem } from "./formulas";
 import { detectRoles, instrumentParagraph, keySentence, optionSafe, roleAssumptions, roleColumns, roleOptions, type ColumnRoles, type RoleChoices } from "./roles";
 import { formatAddress, parseAddress, rowCount, columnCount, type Address } from "./address";
 import { needsChunks, planChunks, readChunks, type BigPlan, type ColumnTally } from "./chunks";
-import { bigRefusal, REGISTRY_KEY, resultsHtml, specOf, specOptions, stamp, talliesHtml, valuesBlock, type BigChoices, type BigRun, type ValuesEntry } from "./bigResults";
+import { bigRefusal, REGISTRY_KEY, resultsParts, specOf, specOptions, stamp, talliesHtml, valuesBlock, type BigChoices, type BigRun, type ValuesEntry } from "./bigResults";
 import { openSession } from "./bigSession";
 import type { ColumnFitResult, ColumnFitSpec } from "../functions/engine/columnFitTypes";
 // Types only: the pane reads the functions' published object at run time, never their modules.
@@ -438,6 +438,7 @@ export class Pane {
         return;
       }
       this.el["elx-big"].classList.add("elx-hidden");
+      this.big = null;
       step("Reading the ranges…", 0.02);
       const [y, x] = [await this.host.readAddress(yText), await this.host.readAddress(xText)];
       if (stale()) return;
@@ -527,9 +528,12 @@ export class Pane {
     if (this.cancelCurrent) this.cancelCurrent();
   }
 
+  /** The choices for a big fit; role columns only as chosen in their lists (a big range's x is not scanned for keys). */
   private bigChoices(): BigChoices {
     const c = this.choices();
-    return { form: c.form, estimator: c.estimator, se: c.se, zeros: c.zeros, level: c.level, roles: c.roles ?? [] };
+    const r = this.roleChoices();
+    const roles = [r.absorb && `absorb=${r.absorb}`, r.cluster && `cluster=${r.cluster}`, r.weights && `weights=${r.weights}`, r.instrument && `instruments=${r.instrument}`].filter((w): w is string => !!w);
+    return { form: c.form, estimator: c.estimator, se: c.se, zeros: c.zeros, level: c.level, roles };
   }
 
   private bigProgress(read: number, fitted: number, total: number): void {
@@ -567,22 +571,34 @@ export class Pane {
       session.close();
       return stopped;
     }
+    // an append or a fit step still waiting on a worker ends at Cancel
+    let wake: () => void = () => undefined;
+    const cancelSignal = new Promise<void>((resolve) => {
+      wake = resolve;
+    });
     this.cancelCurrent = () => {
       cancelled = true;
       session.cancel();
+      wake();
     };
     this.el["elx-big-note"].textContent = session.fallbackNote
       ? session.fallbackNote
       : `${fmt(total)} rows in blocks of ${fmt(plan.value.rowsPerBlock)}; ${session.workers > 0 ? `fitted by ${session.workers} worker${session.workers === 1 ? "" : "s"} off the page` : "fitted in this page, between steps"}.`;
     this.bigProgress(0, 0, total);
     try {
-      const outcome = await readChunks(this.host, plan.value, (chunk) => session.append(chunk), {
-        progress: (r) => {
-          read = r;
-          this.bigProgress(r, 0, total);
-        },
-        cancelled: () => cancelled,
-      });
+      let outcome: Awaited<ReturnType<typeof readChunks>>;
+      try {
+        outcome = await readChunks(this.host, plan.value, (chunk) => Promise.race([session.append(chunk), cancelSignal]), {
+          progress: (r) => {
+            read = r;
+            this.bigProgress(r, 0, total);
+          },
+          cancelled: () => cancelled,
+        });
+      } catch (e) {
+        if (cancelled) return stopped;
+        return { ok: false, message: `the rows could not be handed to the fit (${e instanceof Error ? e.message : String(e)}); nothing was written`, cancelled: false };
+      }
       if (cancelled || (!outcome.ok && outcome.reason === "cancelled")) return { ok: false, message: "", cancelled: true };
       if (!outcome.ok) return { ok: false, message: outcome.message, cancelled: false };
       const t1 = performance.now();
@@ -640,7 +656,14 @@ export class Pane {
     this.el["elx-big-body"].innerHTML = `<h3>Data check</h3>${talliesHtml(r.run.tallies, r.run.spec.form)}<h3>Fit</h3><div id="elx-big-results"><p class="elx-muted">Drawing…</p></div>`;
     await yieldToPage();
     if (stale()) return;
-    (this.el["elx-big-body"].querySelector("#elx-big-results") as HTMLElement).innerHTML = resultsHtml(r.run);
+    const [text, elasticities, residuals] = resultsParts(r.run);
+    (this.el["elx-big-body"].querySelector("#elx-big-results") as HTMLElement).innerHTML = text;
+    for (const [id, html] of [["elx-big-fig-el", elasticities], ["elx-big-fig-res", residuals]]) {
+      await yieldToPage();
+      if (stale()) return;
+      const holder = this.el["elx-big-body"].querySelector(`#${id}`);
+      if (holder) holder.innerHTML = html;
+    }
     this.el["elx-big-write"].classList.remove("elx-hidden");
     this.el["elx-write-what"].textContent = formulasNote;
     const t2 = performance.now();
