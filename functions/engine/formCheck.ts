@@ -13,15 +13,17 @@
  *   on the units of y: there w(λ) + (1 − ẏ^−λ)/λ is fitted, MASS's transform divided by ẏ.
  *   λ̂ is maximised on [−2, 2]; the likelihood-ratio
  *   interval is {λ : ℓ(λ) ≥ ℓ(λ̂) − χ²₁(level)/2}; the p-values of λ = 0 (logs) and λ = 1 (levels)
- *   come from LR = 2(ℓ(λ̂) − ℓ(λ₀)) on 1 df. Only y changes with λ, so the QR of x is reused: each
- *   λ costs a solve with R and one correction step (corrected semi-normal equations, Björck 1987),
- *   a few passes over the data instead of a new factorisation; a 21-point grid brackets λ̂ and Brent's
- *   methods locate it and the interval's ends in about ten evaluations each.
+ *   come from LR = 2(ℓ(λ̂) − ℓ(λ₀)) on 1 df. Only y changes with λ, so the fit's factor is reused
+ *   (boxCoxProfileOf): ℓ(λ) and its slope cost two passes over the rows (corrected semi-normal
+ *   equations, Björck 1996), the 21-point grid that brackets λ̂ is screened in one pass, λ̂ is the zero
+ *   of the slope next to the grid's best point (Brent), and the interval's ends are found by Newton's
+ *   method from the quadratic approximation, inside the grid's brackets: about a dozen λ in all.
  * - PE test (MacKinnon, White and Davidson 1983, J. Econometrics 21): log(ŷ_levels) − ŷ_logs added to
  *   the level model, and ŷ_levels − exp(ŷ_logs) added to the log model; a significant t rejects the
  *   model it was added to. Rows whose level fitted value is ≤ 0 cannot enter the log and are left
  *   out of that auxiliary regression (counted). t uses the chosen covariance (the default HC3), as
- *   lmtest::petest(…, vcov = …) does.
+ *   lmtest::petest(…, vcov = …) does. The added column goes onto the fit's factor by partitioned
+ *   regression (addedVariableOnFactor); see DEVELOPERS.md for when a new factorisation is made.
  */
 import { BLOCK_ROWS, leastSquares, projectOnFactor, RANK_TOL, roughRssOnFactor, rssOnFactor, upperInverse, type QrFit } from "./leastSquares";
 import { factorReusable, REUSE_CONDITION } from "./specTests";

@@ -18,7 +18,9 @@
  * values and regressors of extreme magnitude are first scaled by powers of two (scaling.ts): e² and
  * e⁴, x² and ŷ³ then stay finite, and the statistic is unchanged.
  * Each auxiliary regression runs on the engine's QR; an auxiliary column that is an exact combination
- * of earlier ones is dropped and the degrees of freedom count only the columns kept.
+ * of earlier ones is dropped and the degrees of freedom count only the columns kept. Breusch–Pagan
+ * (on the fit's design) and RESET (the fit's design with two columns added) reuse the fit's factor
+ * when factorReusable(fit); White's test factorises its own, larger design.
  */
 import { leastSquares, projectOnFactor, RANK_TOL, rssOnFactor } from "./leastSquares";
 import { chiSquareSf, fisherSf } from "./distributions";
