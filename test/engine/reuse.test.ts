@@ -17,8 +17,8 @@ import { fitUncached } from "../../functions/engine/model";
 import { parseOptions } from "../../functions/engine/options";
 import * as ls from "../../functions/engine/leastSquares";
 import { leastSquares, projectOnFactor, roughRssOnFactor, rssOnFactor, BLOCK_ROWS } from "../../functions/engine/leastSquares";
-import { boxCox, boxCoxOnLogs, boxCoxProfileOf, peTest } from "../../functions/engine/formCheck";
-import { auxiliary, breuschPaganOriginal, factorReusable, reset, REUSE_CONDITION } from "../../functions/engine/specTests";
+import { boxCox, boxCoxOnLogs, boxCoxProfileOf, levelOnLogFactor, peTest } from "../../functions/engine/formCheck";
+import { auxiliary, breuschPaganKoenker, breuschPaganOf, breuschPaganOriginal, factorReusable, jarqueBera, jarqueBeraOf, reset, REUSE_CONDITION } from "../../functions/engine/specTests";
 import { hcCovariance, classicalCovariance, leastSquaresInput } from "../../functions/engine/covariance";
 import { fisherSf } from "../../functions/engine/distributions";
 import { OlsFit } from "../../functions/engine/fit";
@@ -241,5 +241,29 @@ describe("the two forms of Breusch–Pagan share one auxiliary regression", () =
     const a = auxiliary(Float64Array.from(e, (v) => (v * v) / sigma2), f.data.x);
     const o = breuschPaganOriginal(f);
     expect(Math.abs(o.statistic - (a.tss - a.rss) / 2) / (a.tss / 2)).toBeLessThan(1e-12);
+  });
+});
+
+describe("FORMCHECK's level model on the log fit's factor", () => {
+  it("residuals, fitted values, Jarque–Bera and Breusch–Pagan equal those of a new level fit to 1e-12", () => {
+    const logFit = fit(3000, 20);
+    const twin = levelTwin(logFit);
+    const { value: side, columns } = factorisations(() => levelOnLogFactor(logFit));
+    expect(columns).toEqual([]);
+    expect(side).not.toBeNull();
+    const s = side!;
+    const ySize = Math.max(...twin.data.y);
+    for (let i = 0; i < logFit.n; i++) {
+      expect(Math.abs(s.fitted[i] - twin.fitted[i])).toBeLessThan(1e-12 * ySize);
+      expect(Math.abs(s.scaledResid[i] * s.yUnit - twin.resid[i])).toBeLessThan(1e-12 * ySize);
+    }
+    expect(rel(s.qr.rss * s.yUnit ** 2, twin.rss)).toBeLessThan(1e-12);
+    expect(rel(jarqueBeraOf(s.scaledResid).statistic, jarqueBera(twin).statistic)).toBeLessThan(1e-11);
+    // n·R²: compared on the scale n of its two terms
+    expect(Math.abs(breuschPaganOf(logFit, s.scaledResid).statistic - breuschPaganKoenker(twin).statistic) / logFit.n).toBeLessThan(1e-12);
+  });
+
+  it("an ill-conditioned log fit gets a level fit of its own", () => {
+    expect(levelOnLogFactor(fit(800, 21, "form=log-log", true))).toBeNull();
   });
 });
