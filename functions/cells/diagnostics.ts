@@ -10,7 +10,7 @@ import { apply, LEVEL, matchName } from "../engine/transforms";
 import { predictRow, retransformFactor } from "../engine/retransform";
 import { heteroTest, jarqueBera, jarqueBeraOf, moments, reset, breuschPaganKoenker, breuschPaganOf, breuschPaganOriginal, white, whiteSpecial, type HeteroTest, type TestResult } from "../engine/specTests";
 import { boxCoxOnLogs, levelOnLogFactor, peTest, readEvidence, type LevelModel } from "../engine/formCheck";
-import { OlsFit } from "../engine/fit";
+import { EXACT_FIT, OlsFit } from "../engine/fit";
 import { getOlsFit, type AnyFit } from "../engine/model";
 import { fitFor, olsFor } from "./regression";
 import { guarded, hostError, intervalHeaders, levelLabel, num, options, originsOf, table, toHostError, type Cell, type Table } from "./host";
@@ -243,7 +243,7 @@ export function formCheckTable(y: unknown, x: unknown, opts: unknown, invocation
     }
     // The level fit on exactly the rows of the log fit (under zeros=drop those are the rows above zero).
     // Solved on the log fit's factor when it is reused; otherwise fitted anew.
-    const levelFit: LevelModel = logFit.memo("levelOnFactor", () => levelOnLogFactor(logFit)) ?? logFit.memo("levelTwin", () => levelTwin(logFit));
+    const levelFit: LevelModel = logFit.memo("levelOnFactor", () => levelOnLogFactor(logFit, EXACT_FIT)) ?? logFit.memo("levelTwin", () => levelTwin(logFit));
     const se = seTypeOf(o);
     const bc = logFit.memo(`boxcox:${o.level}`, () => boxCoxOnLogs(logFit, o.level, levelFit));
     const pe = logFit.memo(`pe:${se}:${o.lags}`, () => peTest(logFit, levelFit, se, o.lags));

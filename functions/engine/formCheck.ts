@@ -30,7 +30,7 @@ import { factorReusable, fittedOf, REUSE_CONDITION } from "./specTests";
 import { chiSquareQuantile, chiSquareSf, studentTwoSided } from "./distributions";
 import { BLOCK, classicalCovariance, defaultLags, forEachQBlock, hacCovariance, hcCovariance, leastSquaresInput, LEVERAGE_TOL } from "./covariance";
 import { fail, unavailable } from "./problems";
-import { EXACT_FIT, type OlsFit } from "./fit";
+import type { OlsFit } from "./fit";
 import type { SeType } from "./options";
 import { brentMax, brentRoot } from "./optimize";
 import { stableSum } from "./transforms";
@@ -285,24 +285,39 @@ export function boxCoxOnLogs(logFit: OlsFit, level: number, levelFit: LevelModel
 function boxCoxSearch(p: BoxCoxProfile, level: number): BoxCox {
   const ll = p.ll;
   // A grid brackets the maximum (the profile can have a shallow shoulder). The grid and the ends of
-  // the interval's search are screened in one pass; where the screened values cannot decide a
-  // comparison (within their error bound), the λ involved are computed.
+  // the interval's search are screened (one pass for many λ); where the screened values cannot decide
+  // a comparison (within their error bound), the λ involved are computed.
   const grid = Math.round((LAMBDA_MAX - LAMBDA_MIN) / SCREEN_STEP);
   const reach = 5; // search the interval's ends a little beyond [−2, 2]
   const points: number[] = [];
   for (let i = 0; i <= grid; i++) points.push(LAMBDA_MIN + ((LAMBDA_MAX - LAMBDA_MIN) * i) / grid);
-  p.screen([...points, -reach, reach]);
+  // The grid's even points first; its best point lies next to the best of those (the best even point
+  // is at least as high as its even neighbours), so only that point's odd neighbours are added.
+  const seen = new Set<number>();
+  const look = (list: number[]) => {
+    p.screen(list.map((i) => points[i]));
+    list.forEach((i) => seen.add(i));
+  };
+  const bestOf = (list: number[]) => list.reduce((m, i) => (p.rough(points[i]).ll > p.rough(points[m]).ll ? i : m), list[0]);
+  const even = points.map((_, i) => i).filter((i) => i % 2 === 0);
+  p.screen([-reach, reach]);
+  look(even);
+  const middle = bestOf(even);
+  look([middle - 1, middle + 1].filter((i) => i >= 0 && i <= grid));
   let best = 0;
   for (;;) {
-    best = 0;
-    for (let i = 1; i <= grid; i++) if (p.rough(points[i]).ll > p.rough(points[best]).ll) best = i;
+    const known = [...seen].sort((x, y) => x - y);
+    best = bestOf(known);
     const top = p.rough(points[best]);
-    const unsure = points.filter((g, i) => {
-      const r = p.rough(g);
+    const unsure = known.filter((i) => {
+      const r = p.rough(points[i]);
       return i !== best && r.err + top.err > 0 && r.ll + r.err >= top.ll - top.err;
     });
     if (unsure.length === 0) break;
-    [points[best], ...unsure].forEach(ll);
+    [best, ...unsure].forEach((i) => ll(points[i]));
+    // the best may have moved to an even point whose odd neighbours were not looked at
+    const more = [best - 1, best + 1].filter((i) => i >= 0 && i <= grid && !seen.has(i));
+    if (more.length > 0) look(more);
   }
   // λ̂: the zero of the slope between the grid's neighbours of the best point (Brent's method on the
   // slope), or Brent's search on ℓ itself where the slope does not change sign there (an edge).
@@ -334,8 +349,9 @@ function boxCoxSearch(p: BoxCoxProfile, level: number): BoxCox {
   const end = (side: -1 | 1): number | null => {
     if (!belowCut(side * reach)) return null;
     let from = side * reach;
-    for (let i = 0; i <= grid; i++) {
-      const g = points[side < 0 ? i : grid - i];
+    const order = [...seen].sort((x, y) => (side < 0 ? x - y : y - x));
+    for (const i of order) {
+      const g = points[i];
       if ((side < 0 ? g < lambda : g > lambda) && belowCut(g)) from = g;
     }
     return side < 0
@@ -376,10 +392,10 @@ export interface LevelModel {
 /**
  * y in levels on the log fit's rows and design through the log fit's factor (projectOnFactor): the
  * residuals and fitted values of the level model without a new factorisation. Null when the factor is
- * not reused (factorReusable) or the level fit is exact; then the level model is fitted anew (and says
- * what is wrong).
+ * not reused (factorReusable) or the level fit is exact (RSS at most exactFit·Σy², the rule of
+ * OlsFit.isExact); then the level model is fitted anew (and says what is wrong).
  */
-export function levelOnLogFactor(logFit: OlsFit): LevelModel | null {
+export function levelOnLogFactor(logFit: OlsFit, exactFit: number): LevelModel | null {
   if (!factorReusable(logFit)) return null;
   const n = logFit.n;
   const ly = logFit.data.y;
@@ -391,7 +407,7 @@ export function levelOnLogFactor(logFit: OlsFit): LevelModel | null {
   const { c, rss } = projectOnFactor(logFit.design, logFit.qr, scaledY, r);
   let yy = 0;
   for (let i = 0; i < n; i++) yy += scaledY[i] * scaledY[i];
-  if (!(rss > EXACT_FIT * yy)) return null;
+  if (!(rss > exactFit * yy)) return null;
   const fitted = new Float64Array(n);
   for (let i = 0; i < n; i++) fitted[i] = y[i] - r[i] * yUnit;
   const qr: QrFit = { ...logFit.qr, coef: Float64Array.from(c, (v, j) => v / logFit.qr.scale[j]), resid: r, rss, refined: false };
