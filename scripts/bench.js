@@ -597,7 +597,9 @@ for (const { n, k, key, make } of TEST_SIZES) {
       const whiteMs = median(t.white);
       const cols = 1 + (k * (k + 3)) / 2;
       const qrRatio = (cols / (k + 1)) ** 2;
-      const rest = (testsMs - whiteMs) / fitMs;
+      // the rest from each run's own three timings (FIT, TESTS, White taken one after the other), then
+      // the median: the machine's drift between runs cancels within a run
+      const rest = median(t.tests.map((v, i) => (v - t.white[i]) / t.fit[i]));
       store[`tests ${key}`] = { fits: testsMs / fitMs, white: whiteMs / fitMs, rest };
       results.push([`ELX.TESTS log-log (includes its fit)`, key, fmtMs(testsMs),
         `${(testsMs / fitMs).toFixed(2)} fits (FIT HC3 ${fmtMs(fitMs)}, interleaved): White's own aux regression ${(whiteMs / fitMs).toFixed(2)} fits ` +
