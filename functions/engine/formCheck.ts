@@ -155,8 +155,10 @@ export function boxCoxProfileOf(X: Float64Array[], qr: QrFit, intercept: boolean
     // row for all of them; a^m carries (|m| + 1)ε of rounding, taken into the error bound below
     const L = todo.length;
     const mult = todo.map((l) => Math.round(l / SCREEN_STEP));
-    const onLattice = mult.every((m, i) => Math.abs(m) <= 25 && Math.abs(m * SCREEN_STEP - todo[i]) <= 1e-12 * (1 + Math.abs(todo[i])));
-    const top = Math.max(...mult.map(Math.abs));
+    // powers up to 10 (the grid); λ off the lattice or beyond it (±5) take their own expm1
+    const lattice = mult.map((m, i) => Math.abs(m) <= 10 && Math.abs(m * SCREEN_STEP - todo[i]) <= 1e-12 * (1 + Math.abs(todo[i])));
+    const onLattice = lattice.some((x) => x);
+    const top = Math.max(0, ...mult.filter((_, i) => lattice[i]).map(Math.abs));
     const up = new Float64Array(top + 1);
     const down = new Float64Array(top + 1);
     const inv = todo.map((l) => 1 / l);
@@ -178,7 +180,7 @@ export function boxCoxProfileOf(X: Float64Array[], qr: QrFit, intercept: boolean
         }
         for (let l = 0; l < L; l++) {
           const q = mult[l];
-          const w = q === 0 ? v : ((q > 0 ? up[q] : down[-q]) - 1) * inv[l];
+          const w = !lattice[l] ? Math.expm1(todo[l] * v) * inv[l] : q === 0 ? v : ((q > 0 ? up[q] : down[-q]) - 1) * inv[l];
           const val = w + c[l];
           V[l * BLOCK_ROWS + i] = val;
           vv[l] += val * val;
@@ -187,7 +189,7 @@ export function boxCoxProfileOf(X: Float64Array[], qr: QrFit, intercept: boolean
     });
     todo.forEach((l, i) => {
       let bound = out.bound[i];
-      if (onLattice && mult[i] !== 0) {
+      if (lattice[i] && mult[i] !== 0) {
         // ‖δw‖ ≤ (|m| + 2)ε(√n + |λ|·‖w‖)/|λ|; the RSS moves by at most 2‖δw‖√RSS + ‖δw‖²
         const dw = ((Math.abs(mult[i]) + 2) * Number.EPSILON * (Math.sqrt(n) + Math.abs(l) * Math.sqrt(vv[i]))) / Math.abs(l);
         const rss = out.rss[i];
