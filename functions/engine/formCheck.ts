@@ -15,7 +15,8 @@
  *   interval is {λ : ℓ(λ) ≥ ℓ(λ̂) − χ²₁(level)/2}; the p-values of λ = 0 (logs) and λ = 1 (levels)
  *   come from LR = 2(ℓ(λ̂) − ℓ(λ₀)) on 1 df. Only y changes with λ, so the fit's factor is reused
  *   (boxCoxProfileOf): ℓ(λ) and its slope cost two passes over the rows (corrected semi-normal
- *   equations, Björck 1996), the 21-point grid that brackets λ̂ is screened in one pass, λ̂ is the zero
+ *   equations, Björck 1996), the 21-point grid that brackets λ̂ is screened (rough values with an error
+ *   bound: its even points, then the odd neighbours of the best), λ̂ is the zero
  *   of the slope next to the grid's best point (Brent), and the interval's ends are found by Newton's
  *   method from the quadratic approximation, inside the grid's brackets: about a dozen λ in all.
  * - PE test (MacKinnon, White and Davidson 1983, J. Econometrics 21): log(ŷ_levels) − ŷ_logs added to
