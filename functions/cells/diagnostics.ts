@@ -8,9 +8,9 @@ import { count, cut, fail, nearest, quote, unavailable, ElxProblem } from "../en
 import { asMatrix, isHeaderRow, keyText, originOf, xColumnNames } from "../engine/intake";
 import { apply, LEVEL, matchName } from "../engine/transforms";
 import { predictRow, retransformFactor } from "../engine/retransform";
-import { heteroTest, jarqueBera, moments, reset, breuschPaganKoenker, breuschPaganOriginal, white, whiteSpecial, type HeteroTest, type TestResult } from "../engine/specTests";
-import { boxCoxOnLogs, peTest, readEvidence } from "../engine/formCheck";
-import { OlsFit } from "../engine/fit";
+import { heteroTest, jarqueBera, jarqueBeraOf, moments, reset, breuschPaganKoenker, breuschPaganOf, breuschPaganOriginal, white, whiteSpecial, type HeteroTest, type TestResult } from "../engine/specTests";
+import { boxCoxOnLogs, levelOnLogFactor, peTest, readEvidence, type LevelModel } from "../engine/formCheck";
+import { EXACT_FIT, OlsFit } from "../engine/fit";
 import { getOlsFit, type AnyFit } from "../engine/model";
 import { fitFor, olsFor } from "./regression";
 import { guarded, hostError, intervalHeaders, levelLabel, num, options, originsOf, table, toHostError, type Cell, type Table } from "./host";
@@ -205,7 +205,9 @@ export function testsTable(y: unknown, x: unknown, opts: unknown, invocation: un
 /** The same rows and x side with y back in levels. */
 function levelTwin(logFit: OlsFit): OlsFit {
   const d = logFit.data;
-  return new OlsFit({ ...d, y: Float64Array.from(d.y, Math.exp), yTransform: LEVEL }, logFit.intercept);
+  const y = new Float64Array(d.n);
+  for (let i = 0; i < d.n; i++) y[i] = Math.exp(d.y[i]);
+  return new OlsFit({ ...d, y, yTransform: LEVEL }, logFit.intercept);
 }
 
 function otherSide(form: Form, y: "log" | "level"): Form {
@@ -240,7 +242,8 @@ export function formCheckTable(y: unknown, x: unknown, opts: unknown, invocation
       throw e;
     }
     // The level fit on exactly the rows of the log fit (under zeros=drop those are the rows above zero).
-    const levelFit = logFit.memo("levelTwin", () => levelTwin(logFit));
+    // Solved on the log fit's factor when it is reused; otherwise fitted anew.
+    const levelFit: LevelModel = logFit.memo("levelOnFactor", () => levelOnLogFactor(logFit, EXACT_FIT)) ?? logFit.memo("levelTwin", () => levelTwin(logFit));
     const se = seTypeOf(o);
     const bc = logFit.memo(`boxcox:${o.level}`, () => boxCoxOnLogs(logFit, o.level, levelFit));
     const pe = logFit.memo(`pe:${se}:${o.lags}`, () => peTest(logFit, levelFit, se, o.lags));
@@ -253,7 +256,11 @@ export function formCheckTable(y: unknown, x: unknown, opts: unknown, invocation
       };
     };
     const lg = side(logFit);
-    const lv = side(levelFit);
+    const lv = levelFit instanceof OlsFit ? side(levelFit) : logFit.memo("levelChecks", () => ({
+      skew: moments(levelFit.scaledResid).skewness,
+      jb: jarqueBeraOf(levelFit.scaledResid).pValue,
+      bp: breuschPaganOf(logFit, levelFit.scaledResid).pValue,
+    }));
     const reading = readEvidence(bc, pe);
     const level = levelLabel(o.level);
     const beyond = (end: "lower" | "upper") => hostError("na", `the ${level} interval extends beyond λ = ${end === "lower" ? "−5" : "5"}: the likelihood is flat in λ`);

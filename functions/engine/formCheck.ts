@@ -13,18 +13,21 @@
  *   on the units of y: there w(λ) + (1 − ẏ^−λ)/λ is fitted, MASS's transform divided by ẏ.
  *   λ̂ is maximised on [−2, 2]; the likelihood-ratio
  *   interval is {λ : ℓ(λ) ≥ ℓ(λ̂) − χ²₁(level)/2}; the p-values of λ = 0 (logs) and λ = 1 (levels)
- *   come from LR = 2(ℓ(λ̂) − ℓ(λ₀)) on 1 df. Only y changes with λ, so the QR of x is reused: each
- *   λ costs a solve with R and one correction step (corrected semi-normal equations, Björck 1987),
- *   a few passes over the data instead of a new factorisation; a 21-point grid brackets λ̂ and Brent's
- *   methods locate it and the interval's ends in about ten evaluations each.
+ *   come from LR = 2(ℓ(λ̂) − ℓ(λ₀)) on 1 df. Only y changes with λ, so the fit's factor is reused
+ *   (boxCoxProfileOf): ℓ(λ) and its slope cost two passes over the rows (corrected semi-normal
+ *   equations, Björck 1996), the 21-point grid that brackets λ̂ is screened (rough values with an error
+ *   bound: its even points, then the odd neighbours of the best), λ̂ is the zero
+ *   of the slope next to the grid's best point (Brent), and the interval's ends are found by Newton's
+ *   method from the quadratic approximation, inside the grid's brackets: about a dozen λ in all.
  * - PE test (MacKinnon, White and Davidson 1983, J. Econometrics 21): log(ŷ_levels) − ŷ_logs added to
  *   the level model, and ŷ_levels − exp(ŷ_logs) added to the log model; a significant t rejects the
  *   model it was added to. Rows whose level fitted value is ≤ 0 cannot enter the log and are left
  *   out of that auxiliary regression (counted). t uses the chosen covariance (the default HC3), as
- *   lmtest::petest(…, vcov = …) does.
+ *   lmtest::petest(…, vcov = …) does. The added column goes onto the fit's factor by partitioned
+ *   regression (addedVariableOnFactor); see DEVELOPERS.md for when a new factorisation is made.
  */
 import { BLOCK_ROWS, leastSquares, projectOnFactor, RANK_TOL, roughRssOnFactor, rssOnFactor, upperInverse, type QrFit } from "./leastSquares";
-import { factorReusable, REUSE_CONDITION } from "./specTests";
+import { factorReusable, fittedOf, REUSE_CONDITION } from "./specTests";
 import { chiSquareQuantile, chiSquareSf, studentTwoSided } from "./distributions";
 import { BLOCK, classicalCovariance, defaultLags, forEachQBlock, hacCovariance, hcCovariance, leastSquaresInput, LEVERAGE_TOL } from "./covariance";
 import { fail, unavailable } from "./problems";
@@ -32,12 +35,14 @@ import type { OlsFit } from "./fit";
 import type { SeType } from "./options";
 import { brentMax, brentRoot } from "./optimize";
 import { stableSum } from "./transforms";
-import { working } from "./scaling";
+import { scaled, working, workingUnit } from "./scaling";
 
 export const LAMBDA_MIN = -2;
 export const LAMBDA_MAX = 2;
 /** λ̂ is located to this width (well inside the 1e-6 the reported digits need). */
 export const LAMBDA_TOL = 1e-9;
+/** The grid's spacing: screened λ that are multiples of it share one exp per row. */
+const SCREEN_STEP = (LAMBDA_MAX - LAMBDA_MIN) / 20;
 
 export interface BoxCox {
   lambda: number;
@@ -147,10 +152,52 @@ export function boxCoxProfileOf(X: Float64Array[], qr: QrFit, intercept: boolean
       return;
     }
     const c = todo.map((l) => shift(l)[0]);
-    const out = roughRssOnFactor(X, qr, todo.length, (start, m, V) => {
-      for (let l = 0; l < todo.length; l++) transform(todo[l], c[l], V, l * BLOCK_ROWS, start, m);
+    // λ on the lattice of SCREEN_STEP (the grid and ±5): e^{λu} = a^m with a = e^{u·step}, one exp per
+    // row for all of them; a^m carries (|m| + 1)ε of rounding, taken into the error bound below
+    const L = todo.length;
+    const mult = todo.map((l) => Math.round(l / SCREEN_STEP));
+    // powers up to 10 (the grid); λ off the lattice or beyond it (±5) take their own expm1
+    const lattice = mult.map((m, i) => Math.abs(m) <= 10 && Math.abs(m * SCREEN_STEP - todo[i]) <= 1e-12 * (1 + Math.abs(todo[i])));
+    const onLattice = lattice.some((x) => x);
+    const top = Math.max(0, ...mult.filter((_, i) => lattice[i]).map(Math.abs));
+    const up = new Float64Array(top + 1);
+    const down = new Float64Array(top + 1);
+    const inv = todo.map((l) => 1 / l);
+    const vv = new Float64Array(L);
+    const out = roughRssOnFactor(X, qr, L, (start, m, V) => {
+      if (!onLattice) {
+        for (let l = 0; l < L; l++) transform(todo[l], c[l], V, l * BLOCK_ROWS, start, m);
+        return;
+      }
+      for (let i = 0; i < m; i++) {
+        const v = u[start + i];
+        const a = Math.exp(SCREEN_STEP * v);
+        const b = 1 / a;
+        up[0] = 1;
+        down[0] = 1;
+        for (let p = 1; p <= top; p++) {
+          up[p] = up[p - 1] * a;
+          down[p] = down[p - 1] * b;
+        }
+        for (let l = 0; l < L; l++) {
+          const q = mult[l];
+          const w = !lattice[l] ? Math.expm1(todo[l] * v) * inv[l] : q === 0 ? v : ((q > 0 ? up[q] : down[-q]) - 1) * inv[l];
+          const val = w + c[l];
+          V[l * BLOCK_ROWS + i] = val;
+          vv[l] += val * val;
+        }
+      }
     });
-    todo.forEach((l, i) => screened.set(l, { ll: value(out.rss[i]), err: (n / 2) * out.bound[i] }));
+    todo.forEach((l, i) => {
+      let bound = out.bound[i];
+      if (lattice[i] && mult[i] !== 0) {
+        // ‖δw‖ ≤ (|m| + 2)ε(√n + |λ|·‖w‖)/|λ|; the RSS moves by at most 2‖δw‖√RSS + ‖δw‖²
+        const dw = ((Math.abs(mult[i]) + 2) * Number.EPSILON * (Math.sqrt(n) + Math.abs(l) * Math.sqrt(vv[i]))) / Math.abs(l);
+        const rss = out.rss[i];
+        bound += rss > 0 ? (2 * dw) / Math.sqrt(rss) + (dw * dw) / rss : Infinity;
+      }
+      screened.set(l, { ll: value(out.rss[i]), err: (n / 2) * bound });
+    });
   };
   const rough = (l: number): { ll: number; err: number } => {
     const k = known.get(l);
@@ -210,7 +257,9 @@ function levelProfile(fit: OlsFit): BoxCoxProfile {
       fail(`Box–Cox needs y above zero, and ${fit.data.yName} has zero or negative values (row ${fit.data.rowNumbers[i]}): use zeros= with the log model, or estimator=ppml, which keeps zeros`);
     }
   }
-  return boxCoxProfileOf(fit.design, fit.qr, fit.intercept, Float64Array.from(y, Math.log));
+  const logY = new Float64Array(n);
+  for (let i = 0; i < n; i++) logY[i] = Math.log(y[i]);
+  return boxCoxProfileOf(fit.design, fit.qr, fit.intercept, logY);
 }
 
 /** Box–Cox on the fit of y in levels. */
@@ -222,7 +271,7 @@ export function boxCox(levelFit: OlsFit, level: number): BoxCox {
  * Box–Cox from the fit of log y on the same x side: the profile needs log y and the design's factor
  * only, so the fit in levels is not needed for it.
  */
-export function boxCoxOnLogs(logFit: OlsFit, level: number, levelFit: OlsFit | null = null): BoxCox {
+export function boxCoxOnLogs(logFit: OlsFit, level: number, levelFit: LevelModel | null = null): BoxCox {
   const p = boxCoxProfileOf(logFit.design, logFit.qr, logFit.intercept, logFit.data.y);
   if (logFit.intercept) {
     // with an intercept w(0) = log y − log ẏ and w(1) = y/ẏ − 1 have the residuals of the two fits
@@ -239,24 +288,39 @@ export function boxCoxOnLogs(logFit: OlsFit, level: number, levelFit: OlsFit | n
 function boxCoxSearch(p: BoxCoxProfile, level: number): BoxCox {
   const ll = p.ll;
   // A grid brackets the maximum (the profile can have a shallow shoulder). The grid and the ends of
-  // the interval's search are screened in one pass; where the screened values cannot decide a
-  // comparison (within their error bound), the λ involved are computed.
-  const grid = 20;
+  // the interval's search are screened (one pass for many λ); where the screened values cannot decide
+  // a comparison (within their error bound), the λ involved are computed.
+  const grid = Math.round((LAMBDA_MAX - LAMBDA_MIN) / SCREEN_STEP);
   const reach = 5; // search the interval's ends a little beyond [−2, 2]
   const points: number[] = [];
   for (let i = 0; i <= grid; i++) points.push(LAMBDA_MIN + ((LAMBDA_MAX - LAMBDA_MIN) * i) / grid);
-  p.screen([...points, -reach, reach]);
+  // The grid's even points first; its best point lies next to the best of those (the best even point
+  // is at least as high as its even neighbours), so only that point's odd neighbours are added.
+  const seen = new Set<number>();
+  const look = (list: number[]) => {
+    p.screen(list.map((i) => points[i]));
+    list.forEach((i) => seen.add(i));
+  };
+  const bestOf = (list: number[]) => list.reduce((m, i) => (p.rough(points[i]).ll > p.rough(points[m]).ll ? i : m), list[0]);
+  const even = points.map((_, i) => i).filter((i) => i % 2 === 0);
+  p.screen([-reach, reach]);
+  look(even);
+  const middle = bestOf(even);
+  look([middle - 1, middle + 1].filter((i) => i >= 0 && i <= grid));
   let best = 0;
   for (;;) {
-    best = 0;
-    for (let i = 1; i <= grid; i++) if (p.rough(points[i]).ll > p.rough(points[best]).ll) best = i;
+    const known = [...seen].sort((x, y) => x - y);
+    best = bestOf(known);
     const top = p.rough(points[best]);
-    const unsure = points.filter((g, i) => {
-      const r = p.rough(g);
+    const unsure = known.filter((i) => {
+      const r = p.rough(points[i]);
       return i !== best && r.err + top.err > 0 && r.ll + r.err >= top.ll - top.err;
     });
     if (unsure.length === 0) break;
-    [points[best], ...unsure].forEach(ll);
+    [best, ...unsure].forEach((i) => ll(points[i]));
+    // the best may have moved to an even point whose odd neighbours were not looked at
+    const more = [best - 1, best + 1].filter((i) => i >= 0 && i <= grid && !seen.has(i));
+    if (more.length > 0) look(more);
   }
   // λ̂: the zero of the slope between the grid's neighbours of the best point (Brent's method on the
   // slope), or Brent's search on ℓ itself where the slope does not change sign there (an edge).
@@ -288,8 +352,9 @@ function boxCoxSearch(p: BoxCoxProfile, level: number): BoxCox {
   const end = (side: -1 | 1): number | null => {
     if (!belowCut(side * reach)) return null;
     let from = side * reach;
-    for (let i = 0; i <= grid; i++) {
-      const g = points[side < 0 ? i : grid - i];
+    const order = [...seen].sort((x, y) => (side < 0 ? x - y : y - x));
+    for (const i of order) {
+      const g = points[i];
       if ((side < 0 ? g < lambda : g > lambda) && belowCut(g)) from = g;
     }
     return side < 0
@@ -307,6 +372,49 @@ function boxCoxSearch(p: BoxCoxProfile, level: number): BoxCox {
     onBoundary: lambda - LAMBDA_MIN < 1e-6 || LAMBDA_MAX - lambda < 1e-6,
     logLik: ll,
   };
+}
+
+/**
+ * The level model as FORMCHECK reads it: a fit of its own (OlsFit has these members), or the same rows
+ * and design solved on the log fit's factor (levelOnLogFactor).
+ */
+export interface LevelModel {
+  n: number;
+  k: number;
+  design: Float64Array[];
+  /** Its factor (R, scale, condition) with its coefficients, residuals and RSS in units of yUnit. */
+  qr: QrFit;
+  plain: boolean;
+  yUnit: number;
+  data: { y: Float64Array };
+  scaledY: Float64Array;
+  scaledResid: Float64Array;
+  fitted: Float64Array;
+}
+
+/**
+ * y in levels on the log fit's rows and design through the log fit's factor (projectOnFactor): the
+ * residuals and fitted values of the level model without a new factorisation. Null when the factor is
+ * not reused (factorReusable) or the level fit is exact (RSS at most exactFit·Σy², the rule of
+ * OlsFit.isExact); then the level model is fitted anew (and says what is wrong).
+ */
+export function levelOnLogFactor(logFit: OlsFit, exactFit: number): LevelModel | null {
+  if (!factorReusable(logFit)) return null;
+  const n = logFit.n;
+  const ly = logFit.data.y;
+  const y = new Float64Array(n);
+  for (let i = 0; i < n; i++) y[i] = Math.exp(ly[i]);
+  const yUnit = workingUnit(y);
+  const scaledY = yUnit === 1 ? y : scaled(y, yUnit);
+  const r = new Float64Array(n);
+  const { c, rss } = projectOnFactor(logFit.design, logFit.qr, scaledY, r);
+  let yy = 0;
+  for (let i = 0; i < n; i++) yy += scaledY[i] * scaledY[i];
+  if (!(rss > exactFit * yy)) return null;
+  const fitted = new Float64Array(n);
+  for (let i = 0; i < n; i++) fitted[i] = y[i] - r[i] * yUnit;
+  const qr: QrFit = { ...logFit.qr, coef: Float64Array.from(c, (v, j) => v / logFit.qr.scale[j]), resid: r, rss, refined: false };
+  return { n, k: logFit.k, design: logFit.design, qr, plain: true, yUnit, data: { y }, scaledY, scaledResid: r, fitted };
 }
 
 export interface PeSide {
@@ -468,16 +576,16 @@ function addedVariableOnFactor(X: Float64Array[], qr: QrFit, e: Float64Array, z0
 }
 
 /** addedVariableOnFactor on a plain fit's own design and residuals (the fit's factor reused), or null. */
-function addedVariableOnFit(fit: OlsFit, z: Float64Array, se: SeType, leverages: () => Float64Array): { t: number; df: number } | null {
+function addedVariableOnFit(fit: LevelModel, z: Float64Array, se: SeType, leverages: () => Float64Array): { t: number; df: number } | null {
   // e: the fit's residuals in units of yUnit (the t ratio does not depend on y's units)
   return factorReusable(fit) ? addedVariableOnFactor(fit.design, fit.qr, fit.scaledResid, z, se, leverages) : null;
 }
 
 /** The PE test both ways, from the log-y and the level-y fits on the same x side. */
-export function peTest(logFit: OlsFit, levelFit: OlsFit, se: SeType, lags: number | null): { levels: PeSide; logs: PeSide } {
+export function peTest(logFit: OlsFit, levelFit: LevelModel, se: SeType, lags: number | null): { levels: PeSide; logs: PeSide } {
   const n = levelFit.n;
   const fl = levelFit.fitted;
-  const fg = logFit.fitted;
+  const fg = fittedOf(logFit);
   // Both fits have the same design (and so the same leverages); computed once, when needed.
   const leverages = () => logFit.memo("designLeverages", () => leveragesOf(logFit.design, logFit.qr));
   // Level model + log(ŷ_levels) − ŷ_logs, on rows with ŷ_levels > 0.

@@ -18,12 +18,15 @@
  * values and regressors of extreme magnitude are first scaled by powers of two (scaling.ts): e² and
  * e⁴, x² and ŷ³ then stay finite, and the statistic is unchanged.
  * Each auxiliary regression runs on the engine's QR; an auxiliary column that is an exact combination
- * of earlier ones is dropped and the degrees of freedom count only the columns kept.
+ * of earlier ones is dropped and the degrees of freedom count only the columns kept. Breusch–Pagan
+ * (on the fit's design) and RESET (the fit's design with two columns added) reuse the fit's factor
+ * when factorReusable(fit); White's test factorises its own, larger design.
  */
 import { leastSquares, projectOnFactor, RANK_TOL, rssOnFactor } from "./leastSquares";
 import { chiSquareSf, fisherSf } from "./distributions";
 import { count, fail, requireFeasible, unavailable } from "./problems";
 import type { OlsFit } from "./fit";
+import type { QrFit } from "./leastSquares";
 import { working } from "./scaling";
 
 export interface TestResult {
@@ -77,7 +80,7 @@ export const REUSE_CONDITION = 1e6;
  * factor: a plain fit (no weights, no fixed effects) whose solution was not refined and whose
  * condition estimate is below REUSE_CONDITION. Otherwise the auxiliary design is factorised anew.
  */
-export function factorReusable(fit: OlsFit): boolean {
+export function factorReusable(fit: { plain: boolean; qr: QrFit }): boolean {
   return fit.plain && !fit.qr.refined && fit.qr.condition < REUSE_CONDITION;
 }
 
@@ -114,23 +117,42 @@ function testResiduals(fit: OlsFit): Float64Array {
   return working(fit.qr.resid);
 }
 
+/** Squares of the values, in a loop (typed-array from() with a function is many times slower). */
+function squares(e: Float64Array): Float64Array {
+  const out = new Float64Array(e.length);
+  for (let i = 0; i < e.length; i++) out[i] = e[i] * e[i];
+  return out;
+}
+
 function squaredResiduals(fit: OlsFit): Float64Array {
-  const e = testResiduals(fit);
-  return Float64Array.from(e, (v) => v * v);
+  return squares(testResiduals(fit));
+}
+
+/** ŷ = y − e on the fitted scale (the values of fit.fitted), kept with the fit. */
+export function fittedOf(fit: OlsFit): Float64Array {
+  return fit.memo("test:fitted", () => {
+    const y = fit.data.y;
+    const e = fit.resid;
+    const f = new Float64Array(fit.n);
+    for (let i = 0; i < f.length; i++) f[i] = y[i] - e[i];
+    return f;
+  });
 }
 
 /** Fitted values minus their mean, in a unit where their cubes are finite. */
 function centredFitted(fit: OlsFit): Float64Array {
-  const f = fit.fitted;
+  const f = fittedOf(fit);
   let m = 0;
   for (let i = 0; i < f.length; i++) m += f[i];
   m /= f.length;
-  return working(Float64Array.from(f, (v) => v - m));
+  const c = new Float64Array(f.length);
+  for (let i = 0; i < f.length; i++) c[i] = f[i] - m;
+  return working(c);
 }
 
 /** Fitted values in a unit where their cubes are finite. */
 function testFitted(fit: OlsFit): Float64Array {
-  return working(fit.fitted);
+  return working(fittedOf(fit));
 }
 
 function requireSpread(fit: OlsFit): void {
@@ -213,7 +235,7 @@ export function white(fit: OlsFit): TestResult {
 export function whiteSpecial(fit: OlsFit): TestResult {
   requireSpread(fit);
   const f = testFitted(fit);
-  return nR2(squaredResiduals(fit), [Float64Array.from(f), Float64Array.from(f, (v) => v * v)], "White (special form)");
+  return nR2(squaredResiduals(fit), [f, squares(f)], "White (special form)");
 }
 
 /** Skewness and kurtosis of the residuals with n denominators. */
@@ -242,8 +264,23 @@ export function moments(e0: Float64Array): { skewness: number; kurtosis: number 
 /** Jarque–Bera test of normal residuals. */
 export function jarqueBera(fit: OlsFit): TestResult {
   requireSpread(fit);
-  const { skewness: S, kurtosis: K } = moments(testResiduals(fit));
-  const n = fit.n;
+  return jarqueBeraOf(testResiduals(fit));
+}
+
+/**
+ * Breusch–Pagan (studentized) of residuals e of another y on the same design as `fit` (the level
+ * model's residuals solved on the log fit's factor, in FORMCHECK); e in any unit.
+ */
+export function breuschPaganOf(fit: OlsFit, e: Float64Array): TestResult {
+  const w = working(e);
+  const e2 = squares(w);
+  return nR2(e2, regressors(fit), "Breusch–Pagan (Koenker, studentized)", onFitDesign(fit, e2));
+}
+
+/** Jarque–Bera of residuals e (any unit: the moments are taken in a working unit). */
+export function jarqueBeraOf(e: Float64Array): TestResult {
+  const { skewness: S, kurtosis: K } = moments(e);
+  const n = e.length;
   const stat = (n / 6) * (S * S + ((K - 3) * (K - 3)) / 4);
   const p = chiSquareSf(stat, 2);
   return {
