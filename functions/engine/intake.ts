@@ -251,8 +251,19 @@ export function readRange(cells: unknown[][], defaultNames: (j: number) => strin
   for (let j = 0; j < width; j++) text.push({ count: 0, numeric: 0, first: -1, firstText: "", firstNumeric: -1, firstNumericText: "" });
   let numericText: Uint8Array | null = null;
   const issues = new Uint8Array(rows);
+  const plain = keyColumns.size === 0;
   for (let i = 0; i < rows; i++) {
     const row = cells[i + start];
+    if (plain) {
+      // the usual row: finite numbers only (its issue stays 0); any other cell goes the full way below
+      let j = 0;
+      for (; j < width; j++) {
+        const v = row[j];
+        if (typeof v !== "number" || v - v !== 0) break;
+        columns[j][i] = v;
+      }
+      if (j === width) continue;
+    }
     let issue = 0;
     for (let j = 0; j < width; j++) {
       const v = row[j];

@@ -96,9 +96,7 @@ export function onFitDesign(fit: OlsFit, v: Float64Array): AuxFit | null {
   const W = regressors(fit);
   if (W.some((c, j) => c !== fit.data.x[j])) return null;
   const n = v.length;
-  const rss = rssOnFactor(fit.design, fit.qr, 1, (start, m, V) => {
-    for (let i = 0; i < m; i++) V[i] = v[start + i];
-  }).rss[0];
+  const rss = rssOnFactor(fit.design, fit.qr, 1, (start, m, V) => V.set(v.subarray(start, start + m))).rss[0];
   let mean = 0;
   for (let i = 0; i < n; i++) mean += v[i];
   mean /= n;

@@ -216,18 +216,32 @@ export interface NonPositive {
   negativeRows: RowList;
 }
 
-function nonPositive(col: Float64Array, rowNumbers: Int32Array): NonPositive {
-  const np: NonPositive = { zeros: 0, negatives: 0, zeroRows: new RowList(), negativeRows: new RowList() };
+/** With the column's stableSum, taken in the same pass (its mean when no row is left out later). */
+interface ColumnScan extends NonPositive {
+  sum: number;
+}
+
+/** The zeros and negatives of a column, and its compensated sum (the arithmetic of stableSum), in one pass. */
+function nonPositive(col: Float64Array, rowNumbers: Int32Array): ColumnScan {
+  const np: ColumnScan = { zeros: 0, negatives: 0, zeroRows: new RowList(), negativeRows: new RowList(), sum: 0 };
+  let s = 0;
+  let c = 0;
   for (let i = 0; i < col.length; i++) {
     const v = col[i];
-    if (v === 0) {
-      np.zeros++;
-      np.zeroRows.add(rowNumbers[i]);
-    } else if (v < 0) {
-      np.negatives++;
-      np.negativeRows.add(rowNumbers[i]);
+    const t = s + v;
+    c += Math.abs(s) >= Math.abs(v) ? s - t + v : v - t + s;
+    s = t;
+    if (v <= 0) {
+      if (v === 0) {
+        np.zeros++;
+        np.zeroRows.add(rowNumbers[i]);
+      } else {
+        np.negatives++;
+        np.negativeRows.add(rowNumbers[i]);
+      }
     }
   }
+  np.sum = s + c;
   return np;
 }
 
@@ -435,10 +449,15 @@ export function prepare(raw: RawData, o: Options, logs: Prelogged | null = null)
   const n = y.length;
   const wts = roles.weights;
   const mean = (c: Float64Array) => (wts ? weightedMean(c, wts) : stableSum(c) / n);
-  const yMean = mean(y);
-  const xMeans = x.slice(0, kx).map(mean);
+  // a column still raw's own has every row it was read with: its sum and zeros were counted above
+  const yMean = !wts && y === raw.y ? yNp.sum / n : mean(y);
+  const xMeans = x.slice(0, kx).map((c, j) => {
+    const np = npx[j];
+    return !wts && np !== null && c === allX[j] ? np.sum / n : mean(c);
+  });
   let yZerosUsed = 0;
-  for (let i = 0; i < n; i++) if (y[i] === 0) yZerosUsed++;
+  if (y === raw.y) yZerosUsed = yNp.zeros;
+  else for (let i = 0; i < n; i++) if (y[i] === 0) yZerosUsed++;
   // The caller's logs apply only while the rows are still raw's rows (nothing dropped or compacted),
   // and are used as given (a dataset's columns are only read after this); a column still raw's own
   // is then the caller's too, and is copied before it is transformed.
