@@ -43,6 +43,8 @@ interface PartDesign {
   /** Refinement: the running residual r and the correction f of the data rows. */
   r: Float64Array | null;
   f: Float64Array | null;
+  /** Σx² and max|x| per column, in norms' order, when "prepare" computed them alongside the logs. */
+  norms?: { sumSq: number[]; maxAbs: number[] };
 }
 
 /** The state of one part's rows where the part lives (a worker or this thread). */
@@ -287,38 +289,44 @@ function scan(state: PartState, op: PartOp): PartAnswer {
   const sameAsY = new Array<boolean>(kx).fill(true);
   const np = Array.from({ length: kx + 1 }, () => ({ zeros: 0, negatives: 0, zeroRows: new RowList(), negativeRows: new RowList() }));
   const { rawY, rawX, issue, index } = state;
+  // column by column: the rows not usable first, then each column over the usable rows
   for (let i = 0; i < rows; i++) {
-    const row = firstRow + index[i];
-    if (issue[i] !== USABLE) {
-      if (issue[i] === BLANK) blank++;
-      else notNumber++;
-      unusable.add(row);
-      if (!(rawY[i] - rawY[i] === 0)) badCells[0]++;
-      for (let j = 0; j < kx; j++) if (!(rawX[j][i] - rawX[j][i] === 0)) badCells[j + 1]++;
-      continue;
-    }
-    usable++;
-    const yv = rawY[i];
-    if (yv === 0) {
-      np[0].zeros++;
-      np[0].zeroRows.add(row);
-    } else if (yv < 0) {
-      np[0].negatives++;
-      np[0].negativeRows.add(row);
-    }
-    for (let j = 0; j < kx; j++) {
-      const v = rawX[j][i];
-      if (v !== 0 && v !== 1) binary[j] = false;
-      if (v !== yv) sameAsY[j] = false;
-      const c = np[j + 1];
+    if (issue[i] === USABLE) continue;
+    if (issue[i] === BLANK) blank++;
+    else notNumber++;
+    unusable.add(firstRow + index[i]);
+    if (!(rawY[i] - rawY[i] === 0)) badCells[0]++;
+    for (let j = 0; j < kx; j++) if (!(rawX[j][i] - rawX[j][i] === 0)) badCells[j + 1]++;
+  }
+  usable = rows - blank - notNumber;
+  const all = usable === rows;
+  const signs = (c: Float64Array, to: (typeof np)[number]) => {
+    for (let i = 0; i < rows; i++) {
+      const v = c[i];
+      if (v > 0 || (!all && issue[i] !== USABLE)) continue;
       if (v === 0) {
-        c.zeros++;
-        c.zeroRows.add(row);
+        to.zeros++;
+        to.zeroRows.add(firstRow + index[i]);
       } else if (v < 0) {
-        c.negatives++;
-        c.negativeRows.add(row);
+        to.negatives++;
+        to.negativeRows.add(firstRow + index[i]);
       }
     }
+  };
+  signs(rawY, np[0]);
+  for (let j = 0; j < kx; j++) {
+    const c = rawX[j];
+    signs(c, np[j + 1]);
+    let bin = true;
+    let same = true;
+    for (let i = 0; i < rows && (bin || same); i++) {
+      if (!all && issue[i] !== USABLE) continue;
+      const v = c[i];
+      if (v !== 0 && v !== 1) bin = false;
+      if (v !== rawY[i]) same = false;
+    }
+    binary[j] = bin;
+    sameAsY[j] = same;
   }
   const answer: ScanAnswer = {
     usable, blank, notNumber, unusableRows: unusable.toRuns(), badCells, binary, sameAsY,
@@ -346,7 +354,7 @@ function prepare(state: PartState, op: PartOp): PartAnswer {
   if (state.y) {
     if (state.prepared?.key !== key) throw new Error("this part's rows were already transformed for a fit with other transforms: append them again for this one");
     const d = state.designs.fit;
-    state.designs = { fit: { X: d.X, y: state.y, blocks: null, resid: null, r: null, f: null } };
+    state.designs = { fit: { X: d.X, y: state.y, blocks: null, resid: null, r: null, f: null, norms: d.norms } };
     return { answer: state.prepared.answer };
   }
   ensureColumns(state, kx);
@@ -383,30 +391,63 @@ function prepare(state: PartState, op: PartOp): PartAnswer {
   const n = w;
   const y = rawY.subarray(0, n);
   const x = rawX.slice(0, kx).map((c) => c.subarray(0, n));
-  if (logY) for (let i = 0; i < n; i++) y[i] = Math.log(y[i]);
-  x.forEach((c, j) => {
-    if (logged[j]) for (let i = 0; i < n; i++) c[i] = Math.log(c[i]);
-  });
+  // one pass per column: the log (in place), the first value and constancy, max|x| and Σx² (norms)
+  let yMax = 0;
+  if (logY) {
+    for (let i = 0; i < n; i++) {
+      const v = Math.log(y[i]);
+      y[i] = v;
+      const b = Math.abs(v);
+      if (b > yMax) yMax = b;
+    }
+  } else yMax = maxAbs(y);
+  const first: number[] = [];
+  const constant: boolean[] = [];
+  const xMax: number[] = [];
+  const sumSq: number[] = [];
+  for (let j = 0; j < kx; j++) {
+    const c = x[j];
+    const f = n > 0 ? (logged[j] ? Math.log(c[0]) : c[0]) : NaN;
+    let same = true;
+    let s = 0;
+    let m = 0;
+    if (logged[j]) {
+      for (let i = 0; i < n; i++) {
+        const v = Math.log(c[i]);
+        c[i] = v;
+        if (v !== f) same = false;
+        s += v * v;
+        const b = Math.abs(v);
+        if (b > m) m = b;
+      }
+    } else {
+      for (let i = 0; i < n; i++) {
+        const v = c[i];
+        if (v !== f) same = false;
+        s += v * v;
+        const b = Math.abs(v);
+        if (b > m) m = b;
+      }
+    }
+    first.push(f);
+    constant.push(same);
+    xMax.push(m);
+    sumSq.push(s);
+  }
   state.n = n;
   state.y = y;
   state.x = x;
   state.rowIndex = index.subarray(0, n);
   const design: Float64Array[] = [];
-  if (intercept) design.push(new Float64Array(n).fill(1));
-  design.push(...x);
-  state.designs = { fit: { X: design, y, blocks: null, resid: null, r: null, f: null } };
-  const first: number[] = [];
-  const constant: boolean[] = [];
-  const xMax: number[] = [];
-  for (const c of x) {
-    const f = n > 0 ? c[0] : NaN;
-    let i = 1;
-    while (i < n && c[i] === f) i++;
-    first.push(f);
-    constant.push(i >= n);
-    xMax.push(maxAbs(c));
+  const norms = { sumSq: [...sumSq], maxAbs: [...xMax] };
+  if (intercept) {
+    design.push(new Float64Array(n).fill(1));
+    norms.sumSq.unshift(n); // Σ1² added one by one: exact
+    norms.maxAbs.unshift(n > 0 ? 1 : 0);
   }
-  const answer: PrepareAnswer = { n, dropped, droppedNegative, droppedRows: droppedRows.toRuns(), first, constant, yMax: maxAbs(y), xMax };
+  design.push(...x);
+  state.designs = { fit: { X: design, y, blocks: null, resid: null, r: null, f: null, norms } };
+  const answer: PrepareAnswer = { n, dropped, droppedNegative, droppedRows: droppedRows.toRuns(), first, constant, yMax, xMax };
   state.prepared = { key, answer };
   return { answer };
 }
@@ -437,14 +478,20 @@ function norms(state: PartState, op: PartOp): PartAnswer {
   const sumSq: number[] = [];
   const mx: number[] = [];
   const scaledSumSq: number[] = [];
-  for (const a of d.X) {
+  for (let j = 0; j < d.X.length; j++) {
+    const a = d.X[j];
     let s = 0;
     let m = 0;
-    for (let i = 0; i < a.length; i++) {
-      const v = a[i];
-      s += v * v;
-      const b = Math.abs(v);
-      if (b > m) m = b;
+    if (d.norms) {
+      s = d.norms.sumSq[j];
+      m = d.norms.maxAbs[j];
+    } else {
+      for (let i = 0; i < a.length; i++) {
+        const v = a[i];
+        s += v * v;
+        const b = Math.abs(v);
+        if (b > m) m = b;
+      }
     }
     let t = NaN;
     if (m > 0 && !(s > 1e-280 && s < 1e280 / parts)) {
@@ -863,7 +910,7 @@ export function applyPartOp(state: PartState, op: PartOp): PartAnswer {
     case "release": {
       // what a finished fit leaves: the tests' designs, the residuals and reflectors (the rows stay)
       const fit = state.designs.fit;
-      if (fit) state.designs = { fit: { X: fit.X, y: state.y as Float64Array, blocks: null, resid: null, r: null, f: null } };
+      if (fit) state.designs = { fit: { X: fit.X, y: state.y as Float64Array, blocks: null, resid: null, r: null, f: null, norms: fit.norms } };
       return { answer: { rows: state.rows } };
     }
     case "clear": {
