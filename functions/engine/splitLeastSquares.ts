@@ -79,7 +79,7 @@ export function newPartState(): PartState {
 }
 
 /** The step kinds a part understands (see the answer types below). */
-export type SplitOpKind = "reserve" | "append" | "scan" | "prepare" | "norms" | "factor" | "residuals" | "refineStart" | "refineStep" | "refineApply" | "center" | "passes" | "bpSolve" | "auxDesign" | "auxDrop" | "release" | "clear";
+export type SplitOpKind = "reserve" | "append" | "scan" | "prepare" | "norms" | "factor" | "residuals" | "bpSums" | "refineStart" | "refineStep" | "refineApply" | "center" | "passes" | "bpSolve" | "auxDesign" | "auxDrop" | "release" | "clear";
 
 /** What applyPartOp gives back: the answer (structured-cloneable) and the buffers that may move with it. */
 export interface PartAnswer {
@@ -138,6 +138,8 @@ export interface PrepareAnswer {
   constant: boolean[];
   /** max|y| and max|x_j| of the transformed rows (for the units of the scaled y and of the tests). */
   yMax: number;
+  /** Σy of the transformed rows, in row order (R²'s first mean). */
+  ySum: number;
   xMax: number[];
 }
 
@@ -165,6 +167,8 @@ export interface RefineStepAnswer {
 export interface PassesAnswer {
   /** Σ(y − mean) for the mean's correction. */
   corr: number;
+  /** The residuals' sums when the step computed the residuals itself (coef given), else null. */
+  resid: ResidualsAnswer | null;
   /** The HC meat Σ ω z zᵀ (row-major k×k, upper triangle), or null. */
   meat: Float64Array | null;
   /** Sheet rows with leverage 1 under HC2/HC3. */
@@ -393,14 +397,14 @@ function prepare(state: PartState, op: PartOp): PartAnswer {
   const x = rawX.slice(0, kx).map((c) => c.subarray(0, n));
   // one pass per column: the log (in place), the first value and constancy, max|x| and Σx² (norms)
   let yMax = 0;
-  if (logY) {
-    for (let i = 0; i < n; i++) {
-      const v = Math.log(y[i]);
-      y[i] = v;
-      const b = Math.abs(v);
-      if (b > yMax) yMax = b;
-    }
-  } else yMax = maxAbs(y);
+  let ySum = 0;
+  for (let i = 0; i < n; i++) {
+    const v = logY ? Math.log(y[i]) : y[i];
+    y[i] = v;
+    ySum += v;
+    const b = Math.abs(v);
+    if (b > yMax) yMax = b;
+  }
   const first: number[] = [];
   const constant: boolean[] = [];
   const xMax: number[] = [];
@@ -447,18 +451,9 @@ function prepare(state: PartState, op: PartOp): PartAnswer {
   }
   design.push(...x);
   state.designs = { fit: { X: design, y, blocks: null, resid: null, r: null, f: null, norms } };
-  const answer: PrepareAnswer = { n, dropped, droppedNegative, droppedRows: droppedRows.toRuns(), first, constant, yMax, xMax };
+  const answer: PrepareAnswer = { n, dropped, droppedNegative, droppedRows: droppedRows.toRuns(), first, constant, yMax, ySum, xMax };
   state.prepared = { key, answer };
   return { answer };
-}
-
-function maxAbs(v: Float64Array): number {
-  let m = 0;
-  for (let i = 0; i < v.length; i++) {
-    const a = Math.abs(v[i]);
-    if (a > m) m = a;
-  }
-  return m;
 }
 
 function designOf(state: PartState, op: PartOp): PartDesign {
@@ -652,8 +647,8 @@ function center(state: PartState, op: PartOp): PartAnswer {
 }
 
 /**
- * The second passes over the fit's rows, in one pass of Q's rows: the mean's correction Σ(y − m);
- * the HC meat Σ ω_i z_i z_iᵀ with z_i = R⁻ᵀx_i and h_i = |z_i|² (as covariance.ts hcCovariance,
+ * The second passes over the fit's rows, in one pass of Q's rows: the residuals r = y − Σ b_j x_j
+ * when coef is given (as the step "residuals" computes them, with its sums); the HC meat Σ ω_i z_i z_iᵀ with z_i = R⁻ᵀx_i and h_i = |z_i|² (as covariance.ts hcCovariance,
  * on the kernel's workspace); the Breusch–Pagan sums on the fit's own design, v = (e/eUnit)² (as
  * specTests.ts onFitDesign, residualSS's first solve); and the sample of rows for the picture.
  */
@@ -669,12 +664,18 @@ function passes(state: PartState, op: PartOp): PartAnswer {
   const hc1 = op.hc1 as number;
   const firstRow = op.firstRow as number;
   const yUnit = op.yUnit as number;
+  const coef = (op.coef as Float64Array | null | undefined) ?? null;
+  if (coef) d.resid = new Float64Array(n);
   const resid = d.resid as Float64Array;
   const rowIndex = state.rowIndex as Int32Array;
-  const mean = op.mean as number;
   const eUnit = op.bpUnit as number | null;
+  const mean = op.mean as number;
 
   let corr = 0;
+  let rss = 0;
+  let sumY = 0;
+  let sumY2 = 0;
+  let mx = 0;
   const ones = new RowList();
   const needH = hc === "HC2" || hc === "HC3";
   const inv = new Float64Array(k);
@@ -688,6 +689,23 @@ function passes(state: PartState, op: PartOp): PartAnswer {
     const m = Math.min(BLOCK, n - start);
     const end = start + m;
     for (let i = start; i < end; i++) corr += y[i] - mean;
+    if (coef) {
+      for (let i = start; i < end; i++) resid[i] = y[i];
+      for (let j = 0; j < k; j++) {
+        const bj = coef[j];
+        const xj = X[j];
+        for (let i = start; i < end; i++) resid[i] -= bj * xj[i];
+      }
+      for (let i = start; i < end; i++) {
+        const e = resid[i];
+        rss += e * e;
+        const a = Math.abs(e);
+        if (a > mx) mx = a;
+        const v = y[i];
+        sumY += v;
+        sumY2 += v * v;
+      }
+    }
     if (ws) {
       ws.qRows(X, start, m);
       if (needH) ws.leverage(m);
@@ -739,8 +757,32 @@ function passes(state: PartState, op: PartOp): PartAnswer {
     fitted[t] = (state.y as Float64Array)[first] - e; // ŷ = y − e in the transformed y's units
     rows[t] = rowIndex[first];
   }
-  const answer: PassesAnswer = { corr, meat, leverageOne: ones.toRuns(), bpG, bpSum, sample: { fitted, residuals: res, rows } };
+  const residAnswer: ResidualsAnswer | null = coef ? { n, rss, maxAbs: mx, sumY, sumY2 } : null;
+  const answer: PassesAnswer = { corr, resid: residAnswer, meat, leverageOne: ones.toRuns(), bpG, bpSum, sample: { fitted, residuals: res, rows } };
   return { answer, transfer: [fitted.buffer as ArrayBuffer, res.buffer as ArrayBuffer, rows.buffer as ArrayBuffer] };
+}
+
+/**
+ * The Breusch–Pagan sums of "passes" again with another unit: v = (e/eUnit)², Σ_i x_ij v_i and
+ * Σ v (for a fit whose residuals fall outside scaling.ts's window, after "passes" assumed unit 1).
+ */
+function bpSums(state: PartState, op: PartOp): PartAnswer {
+  const d = state.designs.fit;
+  const resid = d.resid as Float64Array;
+  const n = resid.length;
+  const inv = 1 / (op.bpUnit as number);
+  const v = new Float64Array(n);
+  let bpSum = 0;
+  for (let i = 0; i < n; i++) {
+    const e = resid[i] * inv;
+    const vi = e * e;
+    v[i] = vi;
+    bpSum += vi;
+  }
+  const sums = new ColumnSums(d.X.length);
+  sums.add(d.X, v, 0, n);
+  state.designs.bp = { X: d.X, y: v, blocks: null, resid: null, r: null, f: null };
+  return { answer: { bpG: sums.result(), bpSum } };
 }
 
 /**
@@ -904,6 +946,7 @@ export function applyPartOp(state: PartState, op: PartOp): PartAnswer {
     case "refineApply": return refineApply(state, op);
     case "center": return center(state, op);
     case "passes": return passes(state, op);
+    case "bpSums": return bpSums(state, op);
     case "bpSolve": return bpSolve(state, op);
     case "auxDesign": return auxDesign(state, op);
     case "auxDrop": return auxDrop(state, op);
