@@ -131,7 +131,7 @@ function compileEngine() {
   // one folder per clone (node_modules may be shared); a file is redone when its source's time differs
   const tag = require("crypto").createHash("sha1").update(ROOT).digest("hex").slice(0, 10);
   const out = path.join(ROOT, "node_modules", ".cache", "elx-bench-harness", tag);
-  for (const sub of ["engine", "parallel"]) {
+  for (const sub of ["engine", "engine/wasm", "parallel"]) {
     const dir = path.join(ROOT, "functions", sub);
     if (!fs.existsSync(dir)) continue;
     fs.mkdirSync(path.join(out, "functions", sub), { recursive: true });
