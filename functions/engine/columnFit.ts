@@ -112,6 +112,8 @@ interface SplitQr {
   sumY: number;
   sumY2: number;
   maxResid: number;
+  /** The residuals are left to the next step (rss, sumY, sumY2, maxResid NaN until then). */
+  pending: boolean;
 }
 
 type SplitLs = { qr: SplitQr; dependent: null } | { qr: null; dependent: Dependency };
@@ -188,7 +190,7 @@ function sumParts(hi: number[], lo: number[]): number {
  * merged factor, the rank test, one solve, and Björck's refinement across the parts when
  * κ·max|c|/min|c| > REFINE_ABOVE (and refineWhenNeeded); then the residuals in the parts.
  */
-async function splitLeastSquares(rounds: Rounds, design: string, k: number, unit: number, refineWhenNeeded: boolean): Promise<SplitLs> {
+async function splitLeastSquares(rounds: Rounds, design: string, k: number, unit: number, refineWhenNeeded: boolean, deferResiduals = false): Promise<SplitLs> {
   const k1 = k + 1;
   const norms = await rounds.all<NormsAnswer>(() => ({ kind: "norms", design, parts: rounds.exec.parts }));
   const scale = columnNorms(norms, k);
@@ -238,6 +240,10 @@ async function splitLeastSquares(rounds: Rounds, design: string, k: number, unit
   } else {
     for (let j = 0; j < k; j++) coef[j] = c[j] / scale[j];
   }
+  if (deferResiduals && !refined) {
+    // the residuals in the parts' next pass over the rows ("passes" with coef)
+    return { qr: { n: 0, k, R, Rinv, scale, coef, rss: NaN, condition, refined, sumY: NaN, sumY2: NaN, maxResid: NaN, pending: true }, dependent: null };
+  }
   const res = await rounds.all<ResidualsAnswer>(() => ({ kind: "residuals", design, coef, refined }));
   let rss = 0;
   let sumY = 0;
@@ -251,7 +257,7 @@ async function splitLeastSquares(rounds: Rounds, design: string, k: number, unit
     maxResid = Math.max(maxResid, a.maxAbs);
     n += a.n;
   }
-  return { qr: { n, k, R, Rinv, scale, coef, rss, condition, refined, sumY, sumY2, maxResid }, dependent: null };
+  return { qr: { n, k, R, Rinv, scale, coef, rss, condition, refined, sumY, sumY2, maxResid, pending: false }, dependent: null };
 }
 
 /**
@@ -346,7 +352,7 @@ export async function columnFit(
     leftOut.notNumber += s.notNumber;
   }
   const rowsRead = usable + leftOut.blank + leftOut.notNumber;
-  const rounds = new Rounds(exec, rowsRead, 9, progress, isCancelled);
+  const rounds = new Rounds(exec, rowsRead, 8, progress, isCancelled);
   rounds.done = rowsRead;
   if (rowsRead === 0) fail("no data rows were read: check that the ranges hold the data below their headers");
   const names = [spec.yName, ...spec.xNames];
@@ -421,18 +427,18 @@ export async function columnFit(
   const yUnit = unitOfMax(Math.max(...preps.map((a) => a.yMax)));
   const xUnits = spec.xNames.map((_, j) => unitOfMax(Math.max(...preps.map((a) => a.xMax[j]))));
 
-  // 3. The factor, the solve (refined when the design needs it) and the residuals.
-  const ls = await splitLeastSquares(rounds, "fit", k, yUnit, true);
+  // 3. The factor and the solve (refined when the design needs it); the residuals come with the
+  // second passes unless the refinement computed them.
+  const ls = await splitLeastSquares(rounds, "fit", k, yUnit, true, true);
   if (!ls.qr) return explainDependency(ls.dependent, terms);
   const qr = ls.qr;
   const df = n - k;
-  // an exact fit's residuals are rounding noise: t, p and the tests are undefined (fit.ts isExact)
-  const exact = qr.rss > EXACT_FIT * qr.sumY2 ? "" : `the fit is exact (every residual is zero up to rounding): ${spec.yName} is an exact linear combination of the regressors, which usually means it was computed from them or that an x column is ${spec.yName} in another form; that leaves t, p and the tests undefined`;
 
-  // 4. The second passes: R²'s mean, the HC meat, the Breusch–Pagan sums, the sample of rows.
+  // 4. The second passes: the residuals, the HC meat, the Breusch–Pagan sums, the sample of rows.
   const hc = spec.se === "classical" ? null : spec.se;
-  const eUnit = unitOfMax(qr.maxResid);
-  const reuse = !exact && spec.intercept && !qr.refined && qr.condition < REUSE_CONDITION && xUnits.every((u) => u === 1);
+  // Breusch–Pagan on the fit's factor when the design allows it (and the fit is not exact, and
+  // e lies in scaling.ts's window: else its sums again in e's unit, below)
+  const reuseDesign = spec.intercept && !qr.refined && qr.condition < REUSE_CONDITION && xUnits.every((u) => u === 1) && kx > 0;
   const stride = Math.max(1, Math.ceil(n / SAMPLE_ROWS));
   const offsets: number[] = [];
   let at = 0;
@@ -440,10 +446,31 @@ export async function columnFit(
     offsets.push(at);
     at += a.n;
   }
-  const mean0 = qr.sumY / n;
+  // R²'s first mean from prepare's Σy: y/yUnit (a power of two) sums to Σy/yUnit exactly, as the
+  // residual pass would sum it
+  const mean0 = (preps.reduce((s, a) => s + a.ySum, 0) * (1 / yUnit)) / n;
   const passes = await rounds.all<PassesAnswer>((p) => ({
-    kind: "passes", R: qr.R, scale: qr.scale, hc, hc1: n / df, yUnit, mean: mean0, bpUnit: reuse && kx > 0 ? eUnit : null, stride, offset: offsets[p], firstRow,
+    kind: "passes", R: qr.R, scale: qr.scale, hc, hc1: n / df, yUnit, mean: mean0, coef: qr.pending ? qr.coef : null,
+    bpUnit: reuseDesign ? (qr.pending ? 1 : unitOfMax(qr.maxResid)) : null, stride, offset: offsets[p], firstRow,
   }));
+  if (qr.pending) {
+    let rss = 0;
+    let sumY = 0;
+    let sumY2 = 0;
+    let maxResid = 0;
+    for (const a of passes) {
+      const r = a.resid as ResidualsAnswer;
+      rss += r.rss;
+      sumY += r.sumY;
+      sumY2 += r.sumY2;
+      maxResid = Math.max(maxResid, r.maxAbs);
+    }
+    Object.assign(qr, { n, rss, sumY, sumY2, maxResid, pending: false });
+  }
+  // an exact fit's residuals are rounding noise: t, p and the tests are undefined (fit.ts isExact)
+  const exact = qr.rss > EXACT_FIT * qr.sumY2 ? "" : `the fit is exact (every residual is zero up to rounding): ${spec.yName} is an exact linear combination of the regressors, which usually means it was computed from them or that an x column is ${spec.yName} in another form; that leaves t, p and the tests undefined`;
+  const eUnit = unitOfMax(qr.maxResid);
+  const reuse = !exact && reuseDesign;
   const ones = RowList.fromRuns(passes.map((a) => a.leverageOne));
   if (ones.count > 0) fail(`${rowsPhrase(ones)} alone ${ones.count === 1 ? "determines" : "determine"} a coefficient (leverage 1), so ${spec.se} is undefined; use se=HC1 or se=HC0, or add rows`);
   const view = { n, k, R: qr.R, Rinv: qr.Rinv, scale: qr.scale } as QrFit;
@@ -476,7 +503,7 @@ export async function columnFit(
       bp = { statistic: stat, df: dfBp, p: chiSquareSf(stat, dfBp) };
     }
   };
-  if (reuse && kx > 0) {
+  if (reuse) {
     // on the fit's factor: corrected semi-normal equations (leastSquares.ts residualSS)
     const c = new Float64Array(k);
     const solve = (gs: Float64Array[], out: Float64Array) => {
@@ -493,8 +520,13 @@ export async function columnFit(
         out[i] = s / qr.R[i * k + i];
       }
     };
-    solve(passes.map((a) => a.bpG as Float64Array), c);
-    const vMean = passes.reduce((s, a) => s + a.bpSum, 0) / n;
+    let sums: { bpG: Float64Array | null; bpSum: number }[] = passes;
+    if (eUnit !== 1) {
+      // "passes" took e in scaling.ts's window (unit 1): its sums again in e's unit
+      sums = await rounds.all<{ bpG: Float64Array; bpSum: number }>(() => ({ kind: "bpSums", bpUnit: eUnit }));
+    }
+    solve(sums.map((a) => a.bpG as Float64Array), c);
+    const vMean = sums.reduce((s, a) => s + a.bpSum, 0) / n;
     const first = await rounds.all<BpSolveAnswer>(() => ({ kind: "bpSolve", c, scale: qr.scale, mean: vMean, wantG: true, center: mean }));
     tss = first.reduce((s, a) => s + a.ss, 0);
     const dc = new Float64Array(k);

@@ -23,10 +23,11 @@
  * each part returns its partial sums and the driver adds them in part order.
  */
 import type { ColumnChunk, PartOp } from "./columnFitTypes";
-import { applyQ, augmentedResidual, blockedQr, twoProdErr, type BlockReflectors, type QrFit } from "./leastSquares";
-import { BLOCK, forEachQBlock, LEVERAGE_TOL } from "./covariance";
+import { applyQ, augmentedResidual, blockedQr, twoProdErr, type BlockReflectors } from "./leastSquares";
+import { BLOCK, LEVERAGE_TOL } from "./covariance";
 import { axpyBlock, dotBlock } from "./blocks";
 import { RowList, type RowRuns } from "./problems";
+import { kernel } from "./kernel";
 
 /** Codes of ColumnChunk.issues and of a part's rows: usable, blank, not a number. */
 const USABLE = 0;
@@ -42,6 +43,8 @@ interface PartDesign {
   /** Refinement: the running residual r and the correction f of the data rows. */
   r: Float64Array | null;
   f: Float64Array | null;
+  /** Σx² and max|x| per column, in norms' order, when "prepare" computed them alongside the logs. */
+  norms?: { sumSq: number[]; maxAbs: number[] };
 }
 
 /** The state of one part's rows where the part lives (a worker or this thread). */
@@ -76,7 +79,7 @@ export function newPartState(): PartState {
 }
 
 /** The step kinds a part understands (see the answer types below). */
-export type SplitOpKind = "reserve" | "append" | "scan" | "prepare" | "norms" | "factor" | "residuals" | "refineStart" | "refineStep" | "refineApply" | "center" | "passes" | "bpSolve" | "auxDesign" | "auxDrop" | "release" | "clear";
+export type SplitOpKind = "reserve" | "append" | "scan" | "prepare" | "norms" | "factor" | "residuals" | "bpSums" | "refineStart" | "refineStep" | "refineApply" | "center" | "passes" | "bpSolve" | "auxDesign" | "auxDrop" | "release" | "clear";
 
 /** What applyPartOp gives back: the answer (structured-cloneable) and the buffers that may move with it. */
 export interface PartAnswer {
@@ -135,6 +138,8 @@ export interface PrepareAnswer {
   constant: boolean[];
   /** max|y| and max|x_j| of the transformed rows (for the units of the scaled y and of the tests). */
   yMax: number;
+  /** Σy of the transformed rows, in row order (R²'s first mean). */
+  ySum: number;
   xMax: number[];
 }
 
@@ -162,6 +167,8 @@ export interface RefineStepAnswer {
 export interface PassesAnswer {
   /** Σ(y − mean) for the mean's correction. */
   corr: number;
+  /** The residuals' sums when the step computed the residuals itself (coef given), else null. */
+  resid: ResidualsAnswer | null;
   /** The HC meat Σ ω z zᵀ (row-major k×k, upper triangle), or null. */
   meat: Float64Array | null;
   /** Sheet rows with leverage 1 under HC2/HC3. */
@@ -286,38 +293,44 @@ function scan(state: PartState, op: PartOp): PartAnswer {
   const sameAsY = new Array<boolean>(kx).fill(true);
   const np = Array.from({ length: kx + 1 }, () => ({ zeros: 0, negatives: 0, zeroRows: new RowList(), negativeRows: new RowList() }));
   const { rawY, rawX, issue, index } = state;
+  // column by column: the rows not usable first, then each column over the usable rows
   for (let i = 0; i < rows; i++) {
-    const row = firstRow + index[i];
-    if (issue[i] !== USABLE) {
-      if (issue[i] === BLANK) blank++;
-      else notNumber++;
-      unusable.add(row);
-      if (!(rawY[i] - rawY[i] === 0)) badCells[0]++;
-      for (let j = 0; j < kx; j++) if (!(rawX[j][i] - rawX[j][i] === 0)) badCells[j + 1]++;
-      continue;
-    }
-    usable++;
-    const yv = rawY[i];
-    if (yv === 0) {
-      np[0].zeros++;
-      np[0].zeroRows.add(row);
-    } else if (yv < 0) {
-      np[0].negatives++;
-      np[0].negativeRows.add(row);
-    }
-    for (let j = 0; j < kx; j++) {
-      const v = rawX[j][i];
-      if (v !== 0 && v !== 1) binary[j] = false;
-      if (v !== yv) sameAsY[j] = false;
-      const c = np[j + 1];
+    if (issue[i] === USABLE) continue;
+    if (issue[i] === BLANK) blank++;
+    else notNumber++;
+    unusable.add(firstRow + index[i]);
+    if (!(rawY[i] - rawY[i] === 0)) badCells[0]++;
+    for (let j = 0; j < kx; j++) if (!(rawX[j][i] - rawX[j][i] === 0)) badCells[j + 1]++;
+  }
+  usable = rows - blank - notNumber;
+  const all = usable === rows;
+  const signs = (c: Float64Array, to: (typeof np)[number]) => {
+    for (let i = 0; i < rows; i++) {
+      const v = c[i];
+      if (v > 0 || (!all && issue[i] !== USABLE)) continue;
       if (v === 0) {
-        c.zeros++;
-        c.zeroRows.add(row);
+        to.zeros++;
+        to.zeroRows.add(firstRow + index[i]);
       } else if (v < 0) {
-        c.negatives++;
-        c.negativeRows.add(row);
+        to.negatives++;
+        to.negativeRows.add(firstRow + index[i]);
       }
     }
+  };
+  signs(rawY, np[0]);
+  for (let j = 0; j < kx; j++) {
+    const c = rawX[j];
+    signs(c, np[j + 1]);
+    let bin = true;
+    let same = true;
+    for (let i = 0; i < rows && (bin || same); i++) {
+      if (!all && issue[i] !== USABLE) continue;
+      const v = c[i];
+      if (v !== 0 && v !== 1) bin = false;
+      if (v !== rawY[i]) same = false;
+    }
+    binary[j] = bin;
+    sameAsY[j] = same;
   }
   const answer: ScanAnswer = {
     usable, blank, notNumber, unusableRows: unusable.toRuns(), badCells, binary, sameAsY,
@@ -345,7 +358,7 @@ function prepare(state: PartState, op: PartOp): PartAnswer {
   if (state.y) {
     if (state.prepared?.key !== key) throw new Error("this part's rows were already transformed for a fit with other transforms: append them again for this one");
     const d = state.designs.fit;
-    state.designs = { fit: { X: d.X, y: state.y, blocks: null, resid: null, r: null, f: null } };
+    state.designs = { fit: { X: d.X, y: state.y, blocks: null, resid: null, r: null, f: null, norms: d.norms } };
     return { answer: state.prepared.answer };
   }
   ensureColumns(state, kx);
@@ -382,41 +395,65 @@ function prepare(state: PartState, op: PartOp): PartAnswer {
   const n = w;
   const y = rawY.subarray(0, n);
   const x = rawX.slice(0, kx).map((c) => c.subarray(0, n));
-  if (logY) for (let i = 0; i < n; i++) y[i] = Math.log(y[i]);
-  x.forEach((c, j) => {
-    if (logged[j]) for (let i = 0; i < n; i++) c[i] = Math.log(c[i]);
-  });
+  // one pass per column: the log (in place), the first value and constancy, max|x| and Σx² (norms)
+  let yMax = 0;
+  let ySum = 0;
+  for (let i = 0; i < n; i++) {
+    const v = logY ? Math.log(y[i]) : y[i];
+    y[i] = v;
+    ySum += v;
+    const b = Math.abs(v);
+    if (b > yMax) yMax = b;
+  }
+  const first: number[] = [];
+  const constant: boolean[] = [];
+  const xMax: number[] = [];
+  const sumSq: number[] = [];
+  for (let j = 0; j < kx; j++) {
+    const c = x[j];
+    const f = n > 0 ? (logged[j] ? Math.log(c[0]) : c[0]) : NaN;
+    let same = true;
+    let s = 0;
+    let m = 0;
+    if (logged[j]) {
+      for (let i = 0; i < n; i++) {
+        const v = Math.log(c[i]);
+        c[i] = v;
+        if (v !== f) same = false;
+        s += v * v;
+        const b = Math.abs(v);
+        if (b > m) m = b;
+      }
+    } else {
+      for (let i = 0; i < n; i++) {
+        const v = c[i];
+        if (v !== f) same = false;
+        s += v * v;
+        const b = Math.abs(v);
+        if (b > m) m = b;
+      }
+    }
+    first.push(f);
+    constant.push(same);
+    xMax.push(m);
+    sumSq.push(s);
+  }
   state.n = n;
   state.y = y;
   state.x = x;
   state.rowIndex = index.subarray(0, n);
   const design: Float64Array[] = [];
-  if (intercept) design.push(new Float64Array(n).fill(1));
-  design.push(...x);
-  state.designs = { fit: { X: design, y, blocks: null, resid: null, r: null, f: null } };
-  const first: number[] = [];
-  const constant: boolean[] = [];
-  const xMax: number[] = [];
-  for (const c of x) {
-    const f = n > 0 ? c[0] : NaN;
-    let i = 1;
-    while (i < n && c[i] === f) i++;
-    first.push(f);
-    constant.push(i >= n);
-    xMax.push(maxAbs(c));
+  const norms = { sumSq: [...sumSq], maxAbs: [...xMax] };
+  if (intercept) {
+    design.push(new Float64Array(n).fill(1));
+    norms.sumSq.unshift(n); // Σ1² added one by one: exact
+    norms.maxAbs.unshift(n > 0 ? 1 : 0);
   }
-  const answer: PrepareAnswer = { n, dropped, droppedNegative, droppedRows: droppedRows.toRuns(), first, constant, yMax: maxAbs(y), xMax };
+  design.push(...x);
+  state.designs = { fit: { X: design, y, blocks: null, resid: null, r: null, f: null, norms } };
+  const answer: PrepareAnswer = { n, dropped, droppedNegative, droppedRows: droppedRows.toRuns(), first, constant, yMax, ySum, xMax };
   state.prepared = { key, answer };
   return { answer };
-}
-
-function maxAbs(v: Float64Array): number {
-  let m = 0;
-  for (let i = 0; i < v.length; i++) {
-    const a = Math.abs(v[i]);
-    if (a > m) m = a;
-  }
-  return m;
 }
 
 function designOf(state: PartState, op: PartOp): PartDesign {
@@ -436,14 +473,20 @@ function norms(state: PartState, op: PartOp): PartAnswer {
   const sumSq: number[] = [];
   const mx: number[] = [];
   const scaledSumSq: number[] = [];
-  for (const a of d.X) {
+  for (let j = 0; j < d.X.length; j++) {
+    const a = d.X[j];
     let s = 0;
     let m = 0;
-    for (let i = 0; i < a.length; i++) {
-      const v = a[i];
-      s += v * v;
-      const b = Math.abs(v);
-      if (b > m) m = b;
+    if (d.norms) {
+      s = d.norms.sumSq[j];
+      m = d.norms.maxAbs[j];
+    } else {
+      for (let i = 0; i < a.length; i++) {
+        const v = a[i];
+        s += v * v;
+        const b = Math.abs(v);
+        if (b > m) m = b;
+      }
     }
     let t = NaN;
     if (m > 0 && !(s > 1e-280 && s < 1e280 / parts)) {
@@ -479,38 +522,54 @@ function factor(state: PartState, op: PartOp): PartAnswer {
   return { answer: { T }, transfer: [T.buffer as ArrayBuffer] };
 }
 
-/** r = y − Σ b_j x_j (in the order of leastSquares.ts), kept in the part; the partial sums. */
+/** Rows per block of the fused passes (even, so that the two-way column sums pair rows as a whole pass does). */
+const PASS_ROWS = 1024;
+
+/**
+ * r = y − Σ b_j x_j (in the order of leastSquares.ts), kept in the part; the partial sums. One pass
+ * over the rows, block by block: every row's arithmetic and every sum's order are those of separate
+ * passes over whole columns, so the numbers are the same.
+ */
 function residuals(state: PartState, op: PartOp): PartAnswer {
   const d = designOf(state, op);
   const coef = op.coef as Float64Array;
   const n = d.y.length;
-  let resid = d.resid;
-  if (!op.refined) {
-    resid = new Float64Array(n);
-    resid.set(d.y);
-    for (let j = 0; j < d.X.length; j++) {
-      const bj = coef[j];
-      const xj = d.X[j];
-      for (let i = 0; i < n; i++) resid[i] -= bj * xj[i];
-    }
-    d.resid = resid;
-  } else {
-    resid = new Float64Array(n);
-    augmentedResidual(d.X, d.y, null, coef, resid); // the final residuals of the refinement
-    d.resid = resid;
+  const y = d.y;
+  const X = d.X;
+  const k = X.length;
+  const resid = new Float64Array(n);
+  if (op.refined) {
+    augmentedResidual(X, y, null, coef, resid); // the final residuals of the refinement
     d.r = null;
     d.f = null;
     d.blocks = null; // k reflector entries per row: freed as soon as the refinement is over
   }
+  d.resid = resid;
   let rss = 0;
-  for (let i = 0; i < n; i++) rss += resid[i] * resid[i];
   let sumY = 0;
   let sumY2 = 0;
-  for (let i = 0; i < n; i++) {
-    sumY += d.y[i];
-    sumY2 += d.y[i] * d.y[i];
+  let mx = 0;
+  for (let start = 0; start < n; start += PASS_ROWS) {
+    const end = Math.min(n, start + PASS_ROWS);
+    if (!op.refined) {
+      for (let i = start; i < end; i++) resid[i] = y[i];
+      for (let j = 0; j < k; j++) {
+        const bj = coef[j];
+        const xj = X[j];
+        for (let i = start; i < end; i++) resid[i] -= bj * xj[i];
+      }
+    }
+    for (let i = start; i < end; i++) {
+      const e = resid[i];
+      rss += e * e;
+      const a = Math.abs(e);
+      if (a > mx) mx = a;
+      const v = y[i];
+      sumY += v;
+      sumY2 += v * v;
+    }
   }
-  const answer: ResidualsAnswer = { n, rss, maxAbs: maxAbs(resid), sumY, sumY2 };
+  const answer: ResidualsAnswer = { n, rss, maxAbs: mx, sumY, sumY2 };
   return { answer };
 }
 
@@ -587,88 +646,102 @@ function center(state: PartState, op: PartOp): PartAnswer {
   return { answer: { corr, ss } };
 }
 
-/** A factor as covariance.ts reads it (rows of Q from X_s R⁻¹): only n, k, R and scale are used. */
-function factorView(n: number, k: number, R: Float64Array, scale: Float64Array): QrFit {
-  return { n, k, R, scale } as QrFit;
-}
-
 /**
- * The second passes over the fit's rows, in one pass of Q's rows: the mean's correction Σ(y − m);
- * the HC meat Σ ω_i z_i z_iᵀ with z_i = R⁻ᵀx_i and h_i = |z_i|² (as covariance.ts hcCovariance);
- * the Breusch–Pagan sums on the fit's own design, v = (e/eUnit)² (as specTests.ts onFitDesign,
- * residualSS's first solve); and the sample of rows for the picture.
+ * The second passes over the fit's rows, in one pass of Q's rows: the residuals r = y − Σ b_j x_j
+ * when coef is given (as the step "residuals" computes them, with its sums); the HC meat Σ ω_i z_i z_iᵀ with z_i = R⁻ᵀx_i and h_i = |z_i|² (as covariance.ts hcCovariance,
+ * on the kernel's workspace); the Breusch–Pagan sums on the fit's own design, v = (e/eUnit)² (as
+ * specTests.ts onFitDesign, residualSS's first solve); and the sample of rows for the picture.
  */
 function passes(state: PartState, op: PartOp): PartAnswer {
   const d = state.designs.fit;
   const X = d.X;
   const k = X.length;
-  const n = d.y.length;
+  const y = d.y;
+  const n = y.length;
   const R = op.R as Float64Array;
   const scale = op.scale as Float64Array;
   const hc = op.hc as "HC0" | "HC1" | "HC2" | "HC3" | null;
   const hc1 = op.hc1 as number;
   const firstRow = op.firstRow as number;
   const yUnit = op.yUnit as number;
+  const coef = (op.coef as Float64Array | null | undefined) ?? null;
+  if (coef) d.resid = new Float64Array(n);
   const resid = d.resid as Float64Array;
   const rowIndex = state.rowIndex as Int32Array;
+  const eUnit = op.bpUnit as number | null;
   const mean = op.mean as number;
-  let corr = 0;
-  for (let i = 0; i < n; i++) corr += d.y[i] - mean;
 
-  let meat: Float64Array | null = null;
+  let corr = 0;
+  let rss = 0;
+  let sumY = 0;
+  let sumY2 = 0;
+  let mx = 0;
   const ones = new RowList();
-  if (hc) {
-    const needH = hc === "HC2" || hc === "HC3";
-    const lev = needH ? new Float64Array(BLOCK) : null;
-    meat = new Float64Array(k * k);
-    const M = meat;
-    const W = new Float64Array(k * BLOCK);
-    const w = new Float64Array(BLOCK);
-    forEachQBlock(X, factorView(n, k, R, scale), (start, m, Z) => {
-      if (lev) {
-        lev.fill(0, 0, m);
-        for (let j = 0; j < k; j++) {
-          const o = j * BLOCK;
-          for (let i = 0; i < m; i++) lev[i] += Z[o + i] * Z[o + i];
-        }
+  const needH = hc === "HC2" || hc === "HC3";
+  const inv = new Float64Array(k);
+  for (let j = 0; j < k; j++) inv[j] = 1 / scale[j];
+  const ws = hc ? kernel().qWorkspace(R, inv, k, BLOCK) : null;
+  const v = eUnit !== null ? new Float64Array(n) : null;
+  const sums = v ? new ColumnSums(k) : null;
+  const vInv = eUnit !== null ? 1 / eUnit : 1;
+  let bpSum = 0;
+  for (let start = 0; start < n; start += BLOCK) {
+    const m = Math.min(BLOCK, n - start);
+    const end = start + m;
+    for (let i = start; i < end; i++) corr += y[i] - mean;
+    if (coef) {
+      for (let i = start; i < end; i++) resid[i] = y[i];
+      for (let j = 0; j < k; j++) {
+        const bj = coef[j];
+        const xj = X[j];
+        for (let i = start; i < end; i++) resid[i] -= bj * xj[i];
       }
+      for (let i = start; i < end; i++) {
+        const e = resid[i];
+        rss += e * e;
+        const a = Math.abs(e);
+        if (a > mx) mx = a;
+        const v = y[i];
+        sumY += v;
+        sumY2 += v * v;
+      }
+    }
+    if (ws) {
+      ws.qRows(X, start, m);
+      if (needH) ws.leverage(m);
+      const w = ws.w;
+      const h = ws.h;
       for (let i = 0; i < m; i++) {
         const e = resid[start + i];
         const e2 = e * e;
         if (hc === "HC0") w[i] = e2;
         else if (hc === "HC1") w[i] = e2 * hc1;
         else {
-          const hi = (lev as Float64Array)[i];
+          const hi = h[i];
           if (hi >= 1 - LEVERAGE_TOL) {
             ones.add(firstRow + rowIndex[start + i]);
             w[i] = 0;
           } else w[i] = hc === "HC2" ? e2 / (1 - hi) : e2 / ((1 - hi) * (1 - hi));
         }
       }
-      for (let a = 0; a < k; a++) {
-        const o = a * BLOCK;
-        for (let i = 0; i < m; i++) W[o + i] = w[i] * Z[o + i];
-      }
-      for (let a = 0; a < k; a++) {
-        for (let b = a; b < k; b++) M[a * k + b] += dotBlock(W, a * BLOCK, Z, b * BLOCK, m);
-      }
-    });
-  }
-
-  let bpG: Float64Array | null = null;
-  let bpSum = 0;
-  const eUnit = op.bpUnit as number | null;
-  if (eUnit !== null) {
-    // v = working(e)², as specTests.ts squaredResiduals; kept for the solves that follow
-    const inv = 1 / eUnit;
-    const v = new Float64Array(n);
-    for (let i = 0; i < n; i++) {
-      const e = resid[i] * inv;
-      v[i] = e * e;
+      ws.meat(m); // M_ab += Σ w_i z_ai z_bi, b ≥ a
     }
+    if (v && sums) {
+      // v = working(e)², as specTests.ts squaredResiduals; kept for the solves that follow
+      for (let i = start; i < end; i++) {
+        const e = resid[i] * vInv;
+        const vi = e * e;
+        v[i] = vi;
+        bpSum += vi;
+      }
+      sums.add(X, v, start, end);
+    }
+  }
+  const meat = ws ? ws.M.slice() : null;
+  let bpG: Float64Array | null = null;
+  if (v && sums) {
     state.designs.bp = { X, y: v, blocks: null, resid: null, r: null, f: null };
-    bpG = columnSums(X, v);
-    for (let i = 0; i < n; i++) bpSum += v[i];
+    bpG = sums.result();
   }
 
   const stride = op.stride as number;
@@ -684,32 +757,92 @@ function passes(state: PartState, op: PartOp): PartAnswer {
     fitted[t] = (state.y as Float64Array)[first] - e; // ŷ = y − e in the transformed y's units
     rows[t] = rowIndex[first];
   }
-  const answer: PassesAnswer = { corr, meat, leverageOne: ones.toRuns(), bpG, bpSum, sample: { fitted, residuals: res, rows } };
+  const residAnswer: ResidualsAnswer | null = coef ? { n, rss, maxAbs: mx, sumY, sumY2 } : null;
+  const answer: PassesAnswer = { corr, resid: residAnswer, meat, leverageOne: ones.toRuns(), bpG, bpSum, sample: { fitted, residuals: res, rows } };
   return { answer, transfer: [fitted.buffer as ArrayBuffer, res.buffer as ArrayBuffer, rows.buffer as ArrayBuffer] };
 }
 
-/** Σ_i x_ij v_i per column, with the two partial sums of leastSquares.ts residualSS. */
-function columnSums(X: Float64Array[], v: Float64Array): Float64Array {
-  const n = v.length;
-  const g = new Float64Array(X.length);
-  for (let j = 0; j < X.length; j++) {
-    const col = X[j];
-    let s0 = 0;
-    let s1 = 0;
-    let i = 0;
-    for (; i + 1 < n; i += 2) {
-      s0 += col[i] * v[i];
-      s1 += col[i + 1] * v[i + 1];
-    }
-    if (i < n) s0 += col[i] * v[i];
-    g[j] = s0 + s1;
+/**
+ * The Breusch–Pagan sums of "passes" again with another unit: v = (e/eUnit)², Σ_i x_ij v_i and
+ * Σ v (for a fit whose residuals fall outside scaling.ts's window, after "passes" assumed unit 1).
+ */
+function bpSums(state: PartState, op: PartOp): PartAnswer {
+  const d = state.designs.fit;
+  const resid = d.resid as Float64Array;
+  const n = resid.length;
+  const inv = 1 / (op.bpUnit as number);
+  const v = new Float64Array(n);
+  let bpSum = 0;
+  for (let i = 0; i < n; i++) {
+    const e = resid[i] * inv;
+    const vi = e * e;
+    v[i] = vi;
+    bpSum += vi;
   }
-  return g;
+  const sums = new ColumnSums(d.X.length);
+  sums.add(d.X, v, 0, n);
+  state.designs.bp = { X: d.X, y: v, blocks: null, resid: null, r: null, f: null };
+  return { answer: { bpG: sums.result(), bpSum } };
+}
+
+/**
+ * Σ_i x_ij v_i per column with the two partial sums of leastSquares.ts residualSS (even rows, odd
+ * rows), added block by block: blocks start at even rows, so each row joins the same partial sum,
+ * in the same order, as in one pass over the whole column.
+ */
+class ColumnSums {
+  private readonly s0: Float64Array;
+  private readonly s1: Float64Array;
+  constructor(k: number) {
+    this.s0 = new Float64Array(k);
+    this.s1 = new Float64Array(k);
+  }
+
+  /** Rows start … end−1 (start even). */
+  add(X: Float64Array[], v: Float64Array, start: number, end: number): void {
+    for (let j = 0; j < X.length; j++) {
+      const col = X[j];
+      let s0 = this.s0[j];
+      let s1 = this.s1[j];
+      let i = start;
+      for (; i + 1 < end; i += 2) {
+        s0 += col[i] * v[i];
+        s1 += col[i + 1] * v[i + 1];
+      }
+      if (i < end) s0 += col[i] * v[i];
+      this.s0[j] = s0;
+      this.s1[j] = s1;
+    }
+  }
+
+  /** The same rows' sums where v is held as a block buffer: b[i − start] for row i. */
+  addBlock(X: Float64Array[], b: Float64Array, start: number, end: number): void {
+    for (let j = 0; j < X.length; j++) {
+      const col = X[j];
+      let s0 = this.s0[j];
+      let s1 = this.s1[j];
+      let i = start;
+      for (; i + 1 < end; i += 2) {
+        s0 += col[i] * b[i - start];
+        s1 += col[i + 1] * b[i + 1 - start];
+      }
+      if (i < end) s0 += col[i] * b[i - start];
+      this.s0[j] = s0;
+      this.s1[j] = s1;
+    }
+  }
+
+  result(): Float64Array {
+    const g = new Float64Array(this.s0.length);
+    for (let j = 0; j < g.length; j++) g[j] = this.s0[j] + this.s1[j];
+    return g;
+  }
 }
 
 /**
  * Breusch–Pagan on the fit's factor (corrected semi-normal equations, leastSquares.ts residualSS):
- * r = v − Σ (c_j/scale_j) x_j; answers Xᵀr (for the correction), Σr² and Σ(v − mean)².
+ * r = v − Σ (c_j/scale_j) x_j; answers Xᵀr (for the correction), Σr² and Σ(v − mean)². One pass
+ * over the rows, block by block, with the arithmetic and order of sums of whole-column passes.
  */
 function bpSolve(state: PartState, op: PartOp): PartAnswer {
   const d = state.designs.bp;
@@ -717,29 +850,45 @@ function bpSolve(state: PartState, op: PartOp): PartAnswer {
   const c = op.c as Float64Array;
   const scale = op.scale as Float64Array;
   const mean = op.mean as number;
-  const n = d.y.length;
-  const r = new Float64Array(n);
-  r.set(d.y);
-  for (let j = 0; j < d.X.length; j++) {
-    const b = c[j] / scale[j];
-    const col = d.X[j];
-    for (let i = 0; i < n; i++) r[i] -= b * col[i];
-  }
+  const X = d.X;
+  const k = X.length;
+  const vy = d.y;
+  const n = vy.length;
+  const b = new Float64Array(k);
+  for (let j = 0; j < k; j++) b[j] = c[j] / scale[j];
+  const wantG = op.wantG as boolean;
+  const sums = wantG ? new ColumnSums(k) : null;
+  const withCentre = op.center !== null && op.center !== undefined;
+  const centre = withCentre ? (op.center as number) : 0;
+  const fy = state.designs.fit.y;
+  const r = new Float64Array(Math.min(PASS_ROWS, n));
   let rss = 0;
-  for (let i = 0; i < n; i++) rss += r[i] * r[i];
   let tss = 0;
-  for (let i = 0; i < n; i++) tss += (d.y[i] - mean) * (d.y[i] - mean);
-  // R²'s centred sum of squares of the fit's y, in the same round when asked
   let ss = 0;
-  if (op.center !== null && op.center !== undefined) {
-    const centre = op.center as number;
-    const fy = state.designs.fit.y;
-    for (let i = 0; i < fy.length; i++) {
-      const v = fy[i] - centre;
-      ss += v * v;
+  for (let start = 0; start < n; start += PASS_ROWS) {
+    const end = Math.min(n, start + PASS_ROWS);
+    const m = end - start;
+    for (let i = 0; i < m; i++) r[i] = vy[start + i];
+    for (let j = 0; j < k; j++) {
+      const bj = b[j];
+      const col = X[j];
+      for (let i = 0; i < m; i++) r[i] -= bj * col[start + i];
     }
+    for (let i = 0; i < m; i++) {
+      rss += r[i] * r[i];
+      const u = vy[start + i] - mean;
+      tss += u * u;
+    }
+    // R²'s centred sum of squares of the fit's y, in the same round when asked
+    if (withCentre) {
+      for (let i = start; i < end; i++) {
+        const u = fy[i] - centre;
+        ss += u * u;
+      }
+    }
+    if (sums) sums.addBlock(X, r, start, end);
   }
-  const answer: BpSolveAnswer = { g: op.wantG ? columnSums(d.X, r) : new Float64Array(0), rss, tss, ss };
+  const answer: BpSolveAnswer = { g: sums ? sums.result() : new Float64Array(0), rss, tss, ss };
   return { answer };
 }
 
@@ -797,13 +946,14 @@ export function applyPartOp(state: PartState, op: PartOp): PartAnswer {
     case "refineApply": return refineApply(state, op);
     case "center": return center(state, op);
     case "passes": return passes(state, op);
+    case "bpSums": return bpSums(state, op);
     case "bpSolve": return bpSolve(state, op);
     case "auxDesign": return auxDesign(state, op);
     case "auxDrop": return auxDrop(state, op);
     case "release": {
       // what a finished fit leaves: the tests' designs, the residuals and reflectors (the rows stay)
       const fit = state.designs.fit;
-      if (fit) state.designs = { fit: { X: fit.X, y: state.y as Float64Array, blocks: null, resid: null, r: null, f: null } };
+      if (fit) state.designs = { fit: { X: fit.X, y: state.y as Float64Array, blocks: null, resid: null, r: null, f: null, norms: fit.norms } };
       return { answer: { rows: state.rows } };
     }
     case "clear": {

@@ -176,6 +176,18 @@ describe("refusals, worded as the cell path words them", () => {
     expect(rel(s.coefficients[1], 2)).toBeLessThan(1e-12);
   });
 
+  it("residuals below scaling.ts's window (y near 1e-28, every e below 2^-100): the Breusch–Pagan sums are taken again in e's unit and every number equals the cell path's", async () => {
+    const { x } = demand(400, 12);
+    const g = new Rng(13);
+    const y = Float64Array.from(x[0], (v, i) => 1e-28 * (3 + 2 * v - 0.01 * x[1][i]) + 2e-32 * (1 + v) * g.normal());
+    const sp = spec("y", ["Price", "Footfall"], { form: "level-level" });
+    const one = single(y, x, sp);
+    const s = await split(y, x, sp, [150, 250], 64);
+    expect(s.exact).toBeUndefined();
+    expect(Math.max(...Array.from(s.sample.residuals, Math.abs))).toBeLessThan(Math.pow(2, -100)); // below the window
+    agree(s, one);
+  });
+
   it("all rows of a part left out, a part with no rows at all, and chunks of 1 row: the same numbers", async () => {
     const { y, x } = demand(90, 11);
     for (let i = 30; i < 60; i++) y[i] = NaN;
