@@ -281,7 +281,7 @@ async function memorySessionChild(file, workers) {
   const loaded = process.memoryUsage().rss / 1024;
   await Promise.all(chunks.map((c) => session.append(c)));
   chunks.length = 0;
-  const res = await session.fit({ yName: "y", xNames: Array.from({ length: k }, (_, j) => `x${j + 1}`), form: "log-log", zeros: "stop", se: "HC3", level: 0.95, intercept: true });
+  const res = await session.estimate({ yName: "y", xNames: Array.from({ length: k }, (_, j) => `x${j + 1}`), form: "log-log", zeros: "stop", se: "HC3", level: 0.95, intercept: true });
   const after = process.resourceUsage().maxRSS;
   const used = session.workers;
   session.close();
@@ -339,7 +339,7 @@ async function sessionChild(file, reps, workers) {
       await settleMemory(m);
       const t = now();
       await Promise.all(chunks.map((c) => session.append(c)));
-      const out = await session.fit(spec);
+      const out = await session.estimate(spec);
       const ms = now() - t;
       if (!out.ok) throw new Error(out.message);
       return { ms, value: out.value, used: session.workers, note: session.fallbackNote };

@@ -87,7 +87,7 @@ async function child(n, workers) {
   for (const c of chunks(20000)) await warm.append(c);
   for (let w = 0; w < WARM_FITS; w++) {
     const t = process.hrtime.bigint();
-    const o = await warm.fit(SPEC);
+    const o = await warm.estimate(SPEC);
     if (w === 0) firstMs = Number(process.hrtime.bigint() - t) / 1e6;
     if (!o.ok) throw new Error(o.message);
   }
@@ -105,7 +105,7 @@ async function child(n, workers) {
   }
   const t1 = process.hrtime.bigint();
   const cpu0 = process.cpuUsage();
-  const out = await session.fit(SPEC);
+  const out = await session.estimate(SPEC);
   const cpu = process.cpuUsage(cpu0);
   const t2 = process.hrtime.bigint();
   const peak = process.resourceUsage().maxRSS * 1024;

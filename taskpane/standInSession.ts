@@ -28,7 +28,7 @@ export function openStandInSession(rows: number, note = ""): BigFitSession {
       if (cancelled || closed) return;
       chunks.push(chunk);
     },
-    async fit(spec: ColumnFitSpec, progress?: (done: number, total: number) => void): Promise<BigOutcome> {
+    async estimate(spec: ColumnFitSpec, progress?: (done: number, total: number) => void): Promise<BigOutcome> {
       const stopped: BigOutcome = { ok: false, message: "the fit was cancelled", cancelled: true };
       if (cancelled) return stopped;
       chunks.sort((a, b) => a.rowStart - b.rowStart);

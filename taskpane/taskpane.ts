@@ -602,7 +602,7 @@ export class Pane {
       if (cancelled || (!outcome.ok && outcome.reason === "cancelled")) return { ok: false, message: "", cancelled: true };
       if (!outcome.ok) return { ok: false, message: outcome.message, cancelled: false };
       const t1 = performance.now();
-      const fitted = await session.fit(spec, (done, all) => this.bigProgress(read, Math.min(total, Math.round((done / Math.max(1, all)) * total)), total));
+      const fitted = await session.estimate(spec, (done, all) => this.bigProgress(read, Math.min(total, Math.round((done / Math.max(1, all)) * total)), total));
       if (cancelled || (!fitted.ok && fitted.cancelled)) return { ok: false, message: "", cancelled: true };
       if (!fitted.ok) return { ok: false, message: fitted.message.replace(/\.$/, ""), cancelled: false };
       this.bigProgress(total, total, total);

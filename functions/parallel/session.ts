@@ -148,7 +148,7 @@ export async function openBigFit(options: BigFitStartOptions): Promise<BigFitSes
       done.catch(() => undefined);
       return done;
     },
-    async fit(spec: ColumnFitSpec, progress?: (rowsDone: number, rowsTotal: number) => void): Promise<BigOutcome> {
+    async estimate(spec: ColumnFitSpec, progress?: (rowsDone: number, rowsTotal: number) => void): Promise<BigOutcome> {
       if (cancelled) return CANCELLED;
       if (closed) return { ok: false, cancelled: false, message: "This big fit was closed: start a new one." };
       if (fitting) return { ok: false, cancelled: false, message: "A fit is already running for this range: wait for it or press Cancel." };

@@ -15,7 +15,7 @@ export interface BigFitSession {
   /** Hands one chunk to the parts (its buffers move; do not reuse them). */
   append(chunk: ColumnChunk): Promise<void>;
   /** Fits the rows appended so far; `progress(rowsDone, rowsTotal)` as the parts go through their passes. */
-  fit(spec: ColumnFitSpec, progress?: (rowsDone: number, rowsTotal: number) => void): Promise<BigOutcome>;
+  estimate(spec: ColumnFitSpec, progress?: (rowsDone: number, rowsTotal: number) => void): Promise<BigOutcome>;
   /** Stops whatever is running: a pending fit resolves with cancelled = true; the session cannot be reused. */
   cancel(): void;
   /** Frees the workers and the rows. */

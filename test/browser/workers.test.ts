@@ -58,7 +58,7 @@ function fitInPage(page: Page, rows: { y: number[]; x: number[][] }, workers: nu
         const e = Math.min(y.length, s + 3000);
         await session.append({ rowStart: s, y: Float64Array.from(y.slice(s, e)), x: x.map((c: number[]) => Float64Array.from(c.slice(s, e))) });
       }
-      const out = await session.fit(spec);
+      const out = await session.estimate(spec);
       session.close();
       (window as any).ElxBigFit.closeIdleWorkers();
       if (!out.ok) return { workers: session.workers, fallbackNote: session.fallbackNote, ok: false, message: out.message };

@@ -40,7 +40,7 @@ function rows(n: number, seed: number, collinear = false): { y: unknown[][]; x: 
   return { y, x };
 }
 
-function fit(n: number, seed: number, options = "form=log-log", collinear = false): OlsFit {
+function olsCase(n: number, seed: number, options = "form=log-log", collinear = false): OlsFit {
   const { y, x } = rows(n, seed, collinear);
   return fitUncached({ y, x, options: parseOptions(options), yOrigin: null, xOrigin: null }) as OlsFit;
 }
@@ -64,7 +64,7 @@ function factorisations<T>(run: () => T): { value: T; columns: number[] } {
 }
 
 describe("solves on the fit's factor (corrected semi-normal equations)", () => {
-  const f = fit(3000, 11);
+  const f = olsCase(3000, 11);
   const v = Float64Array.from(f.resid, (e, i) => e * e + Math.sin(i));
   const fresh = leastSquares(f.design, v, false).qr!;
 
@@ -105,7 +105,7 @@ describe("solves on the fit's factor (corrected semi-normal equations)", () => {
 });
 
 describe("Box–Cox profile on the fit's factor", () => {
-  const logFit = fit(4000, 12);
+  const logFit = olsCase(4000, 12);
   const levelFit = levelTwin(logFit);
   const u = logFit.data.y;
   const n = logFit.n;
@@ -146,7 +146,7 @@ describe("Box–Cox profile on the fit's factor", () => {
   });
 
   it("an ill-conditioned design is factorised anew for every λ (and still finds the maximum)", () => {
-    const bad = fit(800, 13, "form=log-log", true);
+    const bad = olsCase(800, 13, "form=log-log", true);
     expect(bad.qr.condition).toBeGreaterThanOrEqual(REUSE_CONDITION);
     const p = boxCoxProfileOf(bad.design, bad.qr, true, bad.data.y);
     expect(p.reused).toBe(false);
@@ -169,7 +169,7 @@ function freshAddedT(X: Float64Array[], z: Float64Array, y: Float64Array, se: "c
 
 describe("PE test adds its column to the fit (partitioned regression)", () => {
   it("an ill-conditioned fit is not reused: both sides factorise [X, z] anew", () => {
-    const logFit = fit(800, 19, "form=log-log", true);
+    const logFit = olsCase(800, 19, "form=log-log", true);
     const levelFit = levelTwin(logFit);
     const { columns } = factorisations(() => peTest(logFit, levelFit, "HC3", null));
     expect(columns).toEqual([logFit.k + 1, logFit.k + 1]);
@@ -214,7 +214,7 @@ function freshReset(f: OlsFit): number {
 
 describe("RESET adds ŷ² and ŷ³ to the fit (partitioned regression)", () => {
   it("F and p equal a new factorisation of [X, ŷ², ŷ³] to 1e-12 on a well-conditioned fit", () => {
-    const f = fit(3000, 16);
+    const f = olsCase(3000, 16);
     expect(factorReusable(f)).toBe(true);
     const { value: r, columns } = factorisations(() => reset(f));
     expect(columns).toEqual([2]); // only the regression of e on the two added columns' residuals
@@ -225,7 +225,7 @@ describe("RESET adds ŷ² and ŷ³ to the fit (partitioned regression)", () => {
   });
 
   it("an ill-conditioned fit is not reused: RESET factorises [X, ŷ², ŷ³] anew", () => {
-    const f = fit(800, 17, "form=log-log", true);
+    const f = olsCase(800, 17, "form=log-log", true);
     expect(factorReusable(f)).toBe(false);
     const { value: r, columns } = factorisations(() => reset(f));
     expect(columns).toEqual([f.k + 2]);
@@ -235,7 +235,7 @@ describe("RESET adds ŷ² and ŷ³ to the fit (partitioned regression)", () => {
 
 describe("the two forms of Breusch–Pagan share one auxiliary regression", () => {
   it("the original form's statistic equals a new factorisation of e²/σ̂² on the regressors to 1e-12 of TSS/2", () => {
-    const f = fit(3000, 18);
+    const f = olsCase(3000, 18);
     const e = f.resid;
     const sigma2 = e.reduce((s, v) => s + v * v, 0) / f.n;
     const a = auxiliary(Float64Array.from(e, (v) => (v * v) / sigma2), f.data.x);
@@ -246,7 +246,7 @@ describe("the two forms of Breusch–Pagan share one auxiliary regression", () =
 
 describe("FORMCHECK's level model on the log fit's factor", () => {
   it("residuals, fitted values, Jarque–Bera and Breusch–Pagan equal those of a new level fit to 1e-12", () => {
-    const logFit = fit(3000, 20);
+    const logFit = olsCase(3000, 20);
     const twin = levelTwin(logFit);
     const { value: side, columns } = factorisations(() => levelOnLogFactor(logFit, EXACT_FIT));
     expect(columns).toEqual([]);
@@ -264,6 +264,6 @@ describe("FORMCHECK's level model on the log fit's factor", () => {
   });
 
   it("an ill-conditioned log fit gets a level fit of its own", () => {
-    expect(levelOnLogFactor(fit(800, 21, "form=log-log", true), EXACT_FIT)).toBeNull();
+    expect(levelOnLogFactor(olsCase(800, 21, "form=log-log", true), EXACT_FIT)).toBeNull();
   });
 });

@@ -149,7 +149,7 @@ describe("the big-fit session", () => {
       // the buffers moved to the workers
       expect(list[0].y.length).toBe(0);
       const seen: [number, number][] = [];
-      const out = await session.fit(SPEC, (d, t) => seen.push([d, t]));
+      const out = await session.estimate(SPEC, (d, t) => seen.push([d, t]));
       if (!out.ok) throw new Error(out.message);
       expect(out.value.parts).toBe(3);
       expect(worstDifference(out.value, inThread, true)).toBeLessThanOrEqual(1e-12);
@@ -167,7 +167,7 @@ describe("the big-fit session", () => {
     const session = await openBigFit({ rows: N, workers: 2, spawn: nodeSpawner() });
     try {
       for (const c of chunks(1000)) void session.append(c);
-      const out = await session.fit(SPEC);
+      const out = await session.estimate(SPEC);
       if (!out.ok) throw new Error(out.message);
       expect(worstDifference(out.value, inThread, true)).toBeLessThanOrEqual(1e-12);
     } finally {
@@ -181,7 +181,7 @@ describe("the big-fit session", () => {
       expect(session.workers).toBe(0);
       expect(session.fallbackNote).toBe("");
       for (const c of chunks(999)) await session.append(c);
-      const out = await session.fit(SPEC);
+      const out = await session.estimate(SPEC);
       if (!out.ok) throw new Error(out.message);
       expect(worstDifference(out.value, inThread, true)).toBeLessThanOrEqual(1e-12);
     } finally {
@@ -195,7 +195,7 @@ describe("the big-fit session", () => {
       expect(session.workers).toBe(0);
       expect(session.fallbackNote).toMatch(/runs on this page's own thread instead of in the background/);
       for (const c of chunks(1200)) await session.append(c);
-      const out = await session.fit(SPEC);
+      const out = await session.estimate(SPEC);
       if (!out.ok) throw new Error(out.message);
       expect(worstDifference(out.value, inThread, true)).toBeLessThanOrEqual(1e-12);
     } finally {
@@ -208,13 +208,13 @@ describe("the big-fit session", () => {
     const session = await openBigFit({ rows: N, workers: 2, spawn: nodeSpawner(undefined, started) });
     for (const c of chunks(1000)) await session.append(c);
     let calls = 0;
-    const out = await session.fit(SPEC, () => {
+    const out = await session.estimate(SPEC, () => {
       calls++;
       if (calls === 1) session.cancel();
     });
     expect(out).toEqual({ ok: false, cancelled: true, message: expect.stringMatching(/stopped \(Cancel\); nothing was written/) });
     await Promise.all(started.map((p) => p.exited));
-    expect(await session.fit(SPEC)).toMatchObject({ ok: false, cancelled: true });
+    expect(await session.estimate(SPEC)).toMatchObject({ ok: false, cancelled: true });
     await expect(session.append(chunks(1000)[0])).rejects.toMatchObject({ name: "FitCancelled" });
     session.close();
   });
@@ -222,7 +222,7 @@ describe("the big-fit session", () => {
   it("cancel in this thread (workers = 0) stops between steps", async () => {
     const session = await openBigFit({ rows: N, workers: 0 });
     for (const c of chunks(1000)) await session.append(c);
-    const out = await session.fit(SPEC, () => session.cancel());
+    const out = await session.estimate(SPEC, () => session.cancel());
     expect(out).toMatchObject({ ok: false, cancelled: true });
     session.close();
   });
@@ -231,7 +231,7 @@ describe("the big-fit session", () => {
     const session = await openBigFit({ rows: N, workers: 2, spawn: nodeSpawner() });
     try {
       for (const c of chunks(1000)) await session.append(c);
-      const out = await session.fit({ ...SPEC, zeros: "stop" });
+      const out = await session.estimate({ ...SPEC, zeros: "stop" });
       expect(out.ok).toBe(false);
       if (out.ok) return;
       expect(out.cancelled).toBe(false);
@@ -257,7 +257,7 @@ describe("the big-fit session", () => {
         const session = await openBigFit({ rows: N, workers: 2, spawn, keepWarm: true });
         expect(session.workers).toBe(2);
         for (const c of chunks(800)) await session.append(c);
-        const out = await session.fit(SPEC);
+        const out = await session.estimate(SPEC);
         session.close();
         if (!out.ok) throw new Error(out.message);
         results.push(out.value);
@@ -274,13 +274,13 @@ describe("the big-fit session", () => {
     const session = await openBigFit({ rows: N, workers: 2, spawn: nodeSpawner() });
     try {
       for (const c of chunks(1000)) await session.append(c);
-      expect((await session.fit(SPEC)).ok).toBe(true);
-      const hc1 = await session.fit({ ...SPEC, se: "HC1", level: 0.9 });
+      expect((await session.estimate(SPEC)).ok).toBe(true);
+      const hc1 = await session.estimate({ ...SPEC, se: "HC1", level: 0.9 });
       if (!hc1.ok) throw new Error(hc1.message);
       const local = localExecutor(2);
       await appendColumns(local, y.slice(), x.map((c) => c.slice()), equalShares(N, 2), 1000);
       expect(worstDifference(hc1.value, await columnFit(local, { ...SPEC, se: "HC1", level: 0.9 }))).toBeLessThanOrEqual(1e-12);
-      expect(await session.fit({ ...SPEC, form: "log-level" })).toMatchObject({ ok: false, cancelled: false, message: expect.stringMatching(/another form.*read the range again/) });
+      expect(await session.estimate({ ...SPEC, form: "log-level" })).toMatchObject({ ok: false, cancelled: false, message: expect.stringMatching(/another form.*read the range again/) });
     } finally {
       session.close();
     }
@@ -298,7 +298,7 @@ describe("the big-fit session", () => {
       await expect(session.append({ rowStart: 0, y: col(3), x: [col(2)] })).rejects.toThrow(/columns of different lengths/);
       await session.append({ rowStart: 0, y: col(3), x: [col(3)] });
       await expect(session.append({ rowStart: 3, y: col(3), x: [col(3), col(3)] })).rejects.toThrow(/has 2 x columns where the first had 1/);
-      const out = await session.fit({ ...SPEC, xNames: ["x1"] });
+      const out = await session.estimate({ ...SPEC, xNames: ["x1"] });
       // the refused blocks are not silently left out: the fit refuses too
       expect(out).toMatchObject({ ok: false, cancelled: false, message: expect.stringMatching(/lies outside the range's 10 data rows.*needs every block/) });
       session.close();
@@ -318,12 +318,12 @@ describe("the big-fit session", () => {
     it("a second fit while one runs is refused with a sentence; a closed session refuses to fit", async () => {
       const session = await openBigFit({ rows: N, workers: 1, spawn: nodeSpawner() });
       for (const c of chunks(1500)) await session.append(c);
-      const first = session.fit(SPEC);
-      const second = await session.fit(SPEC);
+      const first = session.estimate(SPEC);
+      const second = await session.estimate(SPEC);
       expect(second).toMatchObject({ ok: false, cancelled: false, message: expect.stringMatching(/already running/) });
       expect((await first).ok).toBe(true);
       session.close();
-      expect(await session.fit(SPEC)).toMatchObject({ ok: false, message: expect.stringMatching(/closed/) });
+      expect(await session.estimate(SPEC)).toMatchObject({ ok: false, message: expect.stringMatching(/closed/) });
     });
   });
 });
