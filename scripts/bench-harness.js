@@ -3,12 +3,11 @@
  * Elasticell beside the external performance harness, in one run: `npm run bench` (the harness
  * case of scripts/bench.js) or `npm run bench:harness` (this script alone).
  *
- * The harness is a folder of reference programs outside the repository: the same log-model
- * computation (logs, QR least squares, classical and HC3 errors, studentized Breusch–Pagan) in C,
- * plain JavaScript, R and Python, timed on the same generated binary files. It is looked for in
- * $ELX_PERF_HARNESS, else in ../shared/perf beside the repository; when it is absent this script
- * prints one line saying so and does nothing else (a clone has only the repository; `npm test` never
- * needs it).
+ * The harness is a folder of reference programs committed in scripts/perf-harness/ (a measuring
+ * tool, not part of the product): the same log-model computation (logs, QR least squares, classical
+ * and HC3 errors, studentized Breusch–Pagan) in C, plain JavaScript, R and Python, timed on the same
+ * generated binary files. $ELX_PERF_HARNESS points to another copy; when the folder is missing this
+ * script prints one line saying so and does nothing else (`npm test` never needs it).
  *
  * What it does: copies the harness to a temporary folder, builds its C with gcc (the flags of its
  * run-all.sh), writes the data with its gen.js (25,000, 10^5 and 10^6 rows × 10 regressors), then,
@@ -449,9 +448,9 @@ const works = (cmd, args) => spawnSync(cmd, args, { stdio: "ignore" }).status ==
 /** The harness folder, or null with the reason. */
 function findHarness() {
   const env = process.env.ELX_PERF_HARNESS;
-  const dir = env ? path.resolve(env) : path.resolve(ROOT, "..", "shared", "perf");
+  const dir = env ? path.resolve(env) : path.join(ROOT, "scripts", "perf-harness");
   const need = ["gen.js", "ols.c", "ols.js", "ols.R", "ols_py.py"];
-  if (!fs.existsSync(dir)) return { dir: null, why: `${env ? "$ELX_PERF_HARNESS" : "../shared/perf"} (${dir}) does not exist` };
+  if (!fs.existsSync(dir)) return { dir: null, why: `${env ? "$ELX_PERF_HARNESS" : "scripts/perf-harness"} (${dir}) does not exist` };
   const missing = need.filter((f) => !fs.existsSync(path.join(dir, f)));
   if (missing.length) return { dir: null, why: `${dir} lacks ${missing.join(", ")}` };
   return { dir, why: "" };
@@ -505,7 +504,7 @@ async function runHarness({ quick = false, reps = 5, rounds = 1, keep = false, o
   const work = fs.mkdtempSync(path.join(os.tmpdir(), "elx-perf-"));
   const perf = path.join(work, "perf");
   fs.cpSync(h.dir, perf, { recursive: true });
-  fs.chmodSync(perf, 0o755); // the shared copy is read-only; the copy writes data/, build/, results/
+  fs.chmodSync(perf, 0o755); // the source may be read-only; the copy writes data/, build/, results/
   for (const d of ["data", "build", "results"]) fs.mkdirSync(path.join(perf, d), { recursive: true });
   out(`harness: ${h.dir} copied to ${perf}${keep ? " (kept)" : ""}`);
   for (const [name, t] of Object.entries(tools)) if (t.why) out(`  left out: ${t.why}`);
