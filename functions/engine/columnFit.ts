@@ -19,7 +19,7 @@ import {
   appendOp, applyPartOp, chunkBuffers, mergeTriangles, newPartState,
   type BpSolveAnswer, type Merged, type NormsAnswer, type PartState, type PassesAnswer, type PrepareAnswer, type RefineStepAnswer, type ResidualsAnswer, type ScanAnswer,
 } from "./splitLeastSquares";
-import { applyQ, conditionEstimate, dependencyOf, forwardSolveRt, RANK_TOL, REFINE_ABOVE, upperInverse, type Dependency, type QrFit } from "./leastSquares";
+import { applyQ, forwardSolveRt, solveTriangle, type Dependency, type QrFit, type TriangleSolve } from "./leastSquares";
 import { classicalCovariance, sandwich, type CovarianceInput } from "./covariance";
 import { count, ElxProblem, fail, RowList, rowsPhrase, unavailable } from "./problems";
 import { describeNonPositive } from "./transforms";
@@ -191,7 +191,6 @@ function sumParts(hi: number[], lo: number[]): number {
  * κ·max|c|/min|c| > REFINE_ABOVE (and refineWhenNeeded); then the residuals in the parts.
  */
 async function splitLeastSquares(rounds: Rounds, design: string, k: number, unit: number, refineWhenNeeded: boolean, deferResiduals = false): Promise<SplitLs> {
-  const k1 = k + 1;
   const norms = await rounds.all<NormsAnswer>(() => ({ kind: "norms", design, parts: rounds.exec.parts }));
   const scale = columnNorms(norms, k);
   for (let j = 0; j < k; j++) if (scale[j] === 0) return { qr: null, dependent: { column: j, on: [] } };
@@ -201,40 +200,15 @@ async function splitLeastSquares(rounds: Rounds, design: string, k: number, unit
     return mergeTriangles(Ts.map((a) => a.T), k, keep);
   };
   let merged = await factor(false);
-  const R = new Float64Array(k * k);
-  const readR = () => {
-    for (let i = 0; i < k; i++) for (let j = i; j < k; j++) R[i * k + j] = merged.T[i * k1 + j];
-  };
-  readR();
-  for (let j = 0; j < k; j++) {
-    if (!(Math.abs(R[j * k + j]) >= RANK_TOL)) return { qr: null, dependent: { column: j, on: dependencyOf(R, k, j) } };
-  }
-  const c = new Float64Array(k);
-  const backSolve = () => {
-    const T = merged.T;
-    for (let i = k - 1; i >= 0; i--) {
-      let s = T[i * k1 + k];
-      for (let j = i + 1; j < k; j++) s -= R[i * k + j] * c[j];
-      c[i] = s / R[i * k + i];
-    }
-  };
-  backSolve();
-  let Rinv = upperInverse(R, k);
-  const condition = conditionEstimate(R, Rinv, k);
-  let big = 0;
-  let small = Infinity;
-  for (let j = 0; j < k; j++) {
-    big = Math.max(big, Math.abs(c[j]));
-    small = Math.min(small, Math.abs(c[j]));
-  }
+  const first = solveTriangle(merged.T, k, refineWhenNeeded);
+  if (!first.solve) return { qr: null, dependent: first.dependent };
+  let { R, Rinv, c } = first.solve;
+  const { condition, refine: refined } = first.solve;
   const coef = new Float64Array(k);
-  const refined = refineWhenNeeded && condition * (big / small) > REFINE_ABOVE;
   if (refined) {
     // factor again keeping every reflector (the same arithmetic, so the same R), then refine
     merged = await factor(true);
-    readR();
-    backSolve();
-    Rinv = upperInverse(R, k);
+    ({ R, Rinv, c } = solveTriangle(merged.T, k, false).solve as TriangleSolve);
     for (let j = 0; j < k; j++) coef[j] = c[j] / scale[j];
     await refineAcross(rounds, design, merged, R, scale, c, coef);
   } else {

@@ -133,7 +133,6 @@ export type LeastSquares = { qr: QrFit; dependent: null } | { qr: null; dependen
  */
 export function leastSquares(X: Float64Array[], y: Float64Array, refineWhenNeeded = true): LeastSquares {
   const k = X.length;
-  const k1 = k + 1;
   const n = y.length;
   if (n <= k) fail(`${count(n, "usable row")} ${n === 1 ? "is" : "are"} too few for ${count(k, "coefficient")}`);
   const scale = new Float64Array(k);
@@ -144,44 +143,16 @@ export function leastSquares(X: Float64Array[], y: Float64Array, refineWhenNeede
     scale[j] = s;
     inv[j] = 1 / s;
   }
-  let T = blockedQr(X, y, inv, null);
-  const R = new Float64Array(k * k);
-  const readR = () => {
-    for (let i = 0; i < k; i++) for (let j = i; j < k; j++) R[i * k + j] = T[i * k1 + j];
-  };
-  readR();
-  for (let j = 0; j < k; j++) {
-    if (!(Math.abs(R[j * k + j]) >= RANK_TOL)) return { qr: null, dependent: { column: j, on: dependencyOf(R, k, j) } };
-  }
-  const c = new Float64Array(k);
-  const backSolve = () => {
-    for (let i = k - 1; i >= 0; i--) {
-      let s = T[i * k1 + k];
-      for (let j = i + 1; j < k; j++) s -= R[i * k + j] * c[j];
-      c[i] = s / R[i * k + i];
-    }
-  };
-  backSolve();
-  let Rinv = upperInverse(R, k);
-  const condition = conditionEstimate(R, Rinv, k);
-  let big = 0;
-  let small = Infinity;
-  for (let j = 0; j < k; j++) {
-    big = Math.max(big, Math.abs(c[j]));
-    small = Math.min(small, Math.abs(c[j]));
-  }
+  const first = solveTriangle(blockedQr(X, y, inv, null), k, refineWhenNeeded);
+  if (!first.solve) return { qr: null, dependent: first.dependent };
+  let { R, Rinv, c } = first.solve;
+  const { condition, refine: refined } = first.solve;
   const coef = new Float64Array(k);
   let resid: Float64Array;
-  // Predicted digits lost in the smallest coefficient: κ·max|c|/min|c| (normwise error bounds do
-  // not protect small components, as NIST Wampler's intercept shows).
-  const refined = refineWhenNeeded && condition * (big / small) > REFINE_ABOVE;
   if (refined) {
     // Factor again keeping the reflectors (the same arithmetic, so the same R), then refine.
     const blocks: BlockReflectors[] = [];
-    T = blockedQr(X, y, inv, blocks);
-    readR();
-    backSolve();
-    Rinv = upperInverse(R, k);
+    ({ R, Rinv, c } = solveTriangle(blockedQr(X, y, inv, blocks), k, false).solve as TriangleSolve);
     for (let j = 0; j < k; j++) coef[j] = c[j] / scale[j];
     resid = refine(X, y, blocks, R, scale, c, coef);
   } else {
@@ -197,6 +168,45 @@ export function leastSquares(X: Float64Array[], y: Float64Array, refineWhenNeede
   let rss = 0;
   for (let i = 0; i < n; i++) rss += resid[i] * resid[i];
   return { qr: { n, k, R, Rinv, scale, coef, resid, rss, condition, refined }, dependent: null };
+}
+
+/** What the triangle of a factorisation gives: R, R⁻¹, the scaled solution c, κ₁ and whether to refine. */
+export interface TriangleSolve {
+  R: Float64Array;
+  Rinv: Float64Array;
+  c: Float64Array;
+  condition: number;
+  refine: boolean;
+}
+
+/**
+ * From T (row-major (k+1)×(k+1): R of the unit-column design in its leading k×k block, Qᵀy in column
+ * k): the rank test, back substitution and the refinement question. Predicted digits lost in the
+ * smallest coefficient are κ·max|c|/min|c| (normwise error bounds do not protect small components, as
+ * NIST Wampler's intercept shows): above REFINE_ABOVE, and when refineWhenNeeded, refine.
+ */
+export function solveTriangle(T: Float64Array, k: number, refineWhenNeeded: boolean): { solve: TriangleSolve; dependent: null } | { solve: null; dependent: Dependency } {
+  const k1 = k + 1;
+  const R = new Float64Array(k * k);
+  for (let i = 0; i < k; i++) for (let j = i; j < k; j++) R[i * k + j] = T[i * k1 + j];
+  for (let j = 0; j < k; j++) {
+    if (!(Math.abs(R[j * k + j]) >= RANK_TOL)) return { solve: null, dependent: { column: j, on: dependencyOf(R, k, j) } };
+  }
+  const c = new Float64Array(k);
+  for (let i = k - 1; i >= 0; i--) {
+    let s = T[i * k1 + k];
+    for (let j = i + 1; j < k; j++) s -= R[i * k + j] * c[j];
+    c[i] = s / R[i * k + i];
+  }
+  const Rinv = upperInverse(R, k);
+  const condition = conditionEstimate(R, Rinv, k);
+  let big = 0;
+  let small = Infinity;
+  for (let j = 0; j < k; j++) {
+    big = Math.max(big, Math.abs(c[j]));
+    small = Math.min(small, Math.abs(c[j]));
+  }
+  return { solve: { R, Rinv, c, condition, refine: refineWhenNeeded && condition * (big / small) > REFINE_ABOVE }, dependent: null };
 }
 
 /** κ₁(R) = ‖R‖₁‖R⁻¹‖₁ of the column-scaled design. */
