@@ -536,7 +536,6 @@ function residuals(state: PartState, op: PartOp): PartAnswer {
   const n = d.y.length;
   const y = d.y;
   const X = d.X;
-  const k = X.length;
   const resid = new Float64Array(n);
   if (op.refined) {
     augmentedResidual(X, y, null, coef, resid); // the final residuals of the refinement
@@ -545,32 +544,48 @@ function residuals(state: PartState, op: PartOp): PartAnswer {
     d.blocks = null; // k reflector entries per row: freed as soon as the refinement is over
   }
   d.resid = resid;
-  let rss = 0;
-  let sumY = 0;
-  let sumY2 = 0;
-  let mx = 0;
+  const sums = new ResidualSums();
   for (let start = 0; start < n; start += PASS_ROWS) {
     const end = Math.min(n, start + PASS_ROWS);
-    if (!op.refined) {
-      for (let i = start; i < end; i++) resid[i] = y[i];
-      for (let j = 0; j < k; j++) {
-        const bj = coef[j];
-        const xj = X[j];
-        for (let i = start; i < end; i++) resid[i] -= bj * xj[i];
-      }
-    }
+    if (!op.refined) residualRows(X, y, coef, resid, start, end);
+    sums.add(resid, y, start, end);
+  }
+  const answer: ResidualsAnswer = sums.answer(n);
+  return { answer };
+}
+
+/** resid_i = y_i − Σ_j b_j x_ij for rows start … end − 1, one column at a time. */
+function residualRows(X: Float64Array[], y: Float64Array, coef: Float64Array, resid: Float64Array, start: number, end: number): void {
+  for (let i = start; i < end; i++) resid[i] = y[i];
+  for (let j = 0; j < X.length; j++) {
+    const bj = coef[j];
+    const xj = X[j];
+    for (let i = start; i < end; i++) resid[i] -= bj * xj[i];
+  }
+}
+
+/** Σe², max|e|, Σy and Σy², added in row order block by block (the order of one pass over the rows). */
+class ResidualSums {
+  private rss = 0;
+  private maxAbs = 0;
+  private sumY = 0;
+  private sumY2 = 0;
+  add(resid: Float64Array, y: Float64Array, start: number, end: number): void {
+    let { rss, maxAbs, sumY, sumY2 } = this;
     for (let i = start; i < end; i++) {
       const e = resid[i];
       rss += e * e;
       const a = Math.abs(e);
-      if (a > mx) mx = a;
+      if (a > maxAbs) maxAbs = a;
       const v = y[i];
       sumY += v;
       sumY2 += v * v;
     }
+    Object.assign(this, { rss, maxAbs, sumY, sumY2 });
   }
-  const answer: ResidualsAnswer = { n, rss, maxAbs: mx, sumY, sumY2 };
-  return { answer };
+  answer(n: number): ResidualsAnswer {
+    return { n, rss: this.rss, maxAbs: this.maxAbs, sumY: this.sumY, sumY2: this.sumY2 };
+  }
 }
 
 /** Refinement, first step: r₀ = y − Xb in double-double. */
@@ -672,10 +687,7 @@ function passes(state: PartState, op: PartOp): PartAnswer {
   const mean = op.mean as number;
 
   let corr = 0;
-  let rss = 0;
-  let sumY = 0;
-  let sumY2 = 0;
-  let mx = 0;
+  const rsum = coef ? new ResidualSums() : null;
   const ones = new RowList();
   const needH = hc === "HC2" || hc === "HC3";
   const inv = new Float64Array(k);
@@ -689,22 +701,9 @@ function passes(state: PartState, op: PartOp): PartAnswer {
     const m = Math.min(BLOCK, n - start);
     const end = start + m;
     for (let i = start; i < end; i++) corr += y[i] - mean;
-    if (coef) {
-      for (let i = start; i < end; i++) resid[i] = y[i];
-      for (let j = 0; j < k; j++) {
-        const bj = coef[j];
-        const xj = X[j];
-        for (let i = start; i < end; i++) resid[i] -= bj * xj[i];
-      }
-      for (let i = start; i < end; i++) {
-        const e = resid[i];
-        rss += e * e;
-        const a = Math.abs(e);
-        if (a > mx) mx = a;
-        const v = y[i];
-        sumY += v;
-        sumY2 += v * v;
-      }
+    if (coef && rsum) {
+      residualRows(X, y, coef, resid, start, end);
+      rsum.add(resid, y, start, end);
     }
     if (ws) {
       ws.qRows(X, start, m);
@@ -757,7 +756,7 @@ function passes(state: PartState, op: PartOp): PartAnswer {
     fitted[t] = (state.y as Float64Array)[first] - e; // ŷ = y − e in the transformed y's units
     rows[t] = rowIndex[first];
   }
-  const residAnswer: ResidualsAnswer | null = coef ? { n, rss, maxAbs: mx, sumY, sumY2 } : null;
+  const residAnswer: ResidualsAnswer | null = rsum ? rsum.answer(n) : null;
   const answer: PassesAnswer = { corr, resid: residAnswer, meat, leverageOne: ones.toRuns(), bpG, bpSum, sample: { fitted, residuals: res, rows } };
   return { answer, transfer: [fitted.buffer as ArrayBuffer, res.buffer as ArrayBuffer, rows.buffer as ArrayBuffer] };
 }
