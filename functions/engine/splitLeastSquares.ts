@@ -25,9 +25,8 @@
 import type { ColumnChunk, PartOp } from "./columnFitTypes";
 import { applyQ, augmentedResidual, blockedQr, twoProdErr, type BlockReflectors } from "./leastSquares";
 import { BLOCK, LEVERAGE_TOL } from "./covariance";
-import { axpyBlock, dotBlock } from "./blocks";
 import { RowList, type RowRuns } from "./problems";
-import { kernel } from "./kernel";
+import { jsKernel, kernel } from "./kernel";
 
 /** Codes of ColumnChunk.issues and of a part's rows: usable, blank, not a number. */
 const USABLE = 0;
@@ -982,39 +981,21 @@ export interface Merged {
  */
 export function mergeTriangles(Ts: readonly Float64Array[], k: number, keep: boolean): Merged {
   const k1 = k + 1;
-  const T = Float64Array.from(Ts[0]);
   const blocks: BlockReflectors[] | null = keep ? [] : null;
   const m = k; // rows per block: the k top rows of a part's triangle
-  const C = new Float64Array(k1 * m);
+  // the block reduction of the blocked QR (the JavaScript kernel: a few k×k blocks, no need for more)
+  const ws = jsKernel.qrWorkspace(k, m);
+  const { C, tau } = ws;
+  ws.T.set(Ts[0]);
   for (let p = 1; p < Ts.length; p++) {
     const S = Ts[p];
     for (let c = 0; c < k1; c++) for (let i = 0; i < m; i++) C[c * m + i] = S[i * k1 + c];
-    const tau = new Float64Array(k);
-    for (let j = 0; j < k; j++) {
-      const oj = j * m;
-      const ss = dotBlock(C, oj, C, oj, m);
-      if (ss === 0) continue;
-      const rjj = T[j * k1 + j];
-      const alpha = Math.sqrt(rjj * rjj + ss);
-      const beta = rjj >= 0 ? -alpha : alpha;
-      const v0 = rjj - beta;
-      const t = (beta - rjj) / beta;
-      const iv0 = 1 / v0;
-      for (let i = 0; i < m; i++) C[oj + i] *= iv0;
-      T[j * k1 + j] = beta;
-      tau[j] = t;
-      for (let c = j + 1; c < k1; c++) {
-        const oc = c * m;
-        const w = t * dotBlock(C, oj, C, oc, m, T[j * k1 + c]);
-        T[j * k1 + c] -= w;
-        axpyBlock(C, oj, oc, m, w);
-      }
-    }
+    ws.reduce(m);
     if (blocks) {
       const v = new Float64Array(k * m);
       for (let j = 0; j < k; j++) for (let i = 0; i < m; i++) v[j * m + i] = C[j * m + i];
-      blocks.push({ start: (p - 1) * k, rows: m, tau, v });
+      blocks.push({ start: (p - 1) * k, rows: m, tau: Float64Array.from(tau), v });
     }
   }
-  return { T, blocks };
+  return { T: Float64Array.from(ws.T), blocks };
 }
