@@ -21,6 +21,7 @@ import * as fs from "fs";
 import * as path from "path";
 import { call, installShim, lookup, type CellFn } from "../harness/loadFunctions";
 import { ReferenceChecker, table } from "../harness/reference";
+import { lre, strd } from "../harness/nistStrd";
 import { jsKernel, useKernel, wasmKernel, type Kernel, type KernelName } from "../../functions/engine/kernel";
 import { clearCache } from "../../functions/engine/model";
 
@@ -80,25 +81,6 @@ function cellDiff(a: unknown, b: unknown): string[] {
 // ---------------------------------------------------------------------------------------------
 // NIST StRD
 // ---------------------------------------------------------------------------------------------
-interface Coef { estimate: number; estimateText: string; standardDeviation: number; standardDeviationText: string }
-interface StrdSet {
-  name: string;
-  design: { intercept: boolean; terms: { variable?: string; power: number }[] };
-  certified: { coefficients: Coef[]; residualStandardDeviation: number; residualStandardDeviationText: string; rSquared: number; rSquaredText: string };
-  data: { y: number[]; x: Record<string, number[]> };
-}
-const strd: { datasets: StrdSet[] } = JSON.parse(fs.readFileSync(path.resolve(__dirname, "../data/nist-strd/strd.json"), "utf8"));
-
-function digits(text: string): number {
-  const all = text.replace(/^[-+]/, "").split(/[eE]/)[0].replace(".", "");
-  const significant = all.replace(/^0+/, "");
-  return significant === "" ? all.length : significant.length;
-}
-function lre(q: number, c: number, text: string): number {
-  const cap = digits(text);
-  const err = c === 0 ? Math.abs(q) : Math.abs(q - c) / Math.abs(c);
-  return err === 0 ? cap : Math.min(cap, -Math.log10(err));
-}
 
 describe("NIST StRD through FIT and SUMMARY under both kernels", () => {
   for (const set of strd.datasets) {

@@ -12,33 +12,11 @@
  *   the split fit is checked against the external source too.
  * One part gives the single-thread factor exactly: every number is equal, bit for bit.
  */
-import * as fs from "fs";
-import * as path from "path";
 import { leastSquares } from "../../functions/engine/leastSquares";
 import { rel, randomChunks, randomShares, single, spec, split } from "./splitHelpers";
 import { Rng } from "../simulation/rng";
+import { lre, strd, type StrdSet } from "../harness/nistStrd";
 
-interface Coef { estimate: number; estimateText: string; standardDeviation: number; standardDeviationText: string }
-interface StrdSet {
-  name: string;
-  design: { intercept: boolean; terms: { variable?: string; power: number }[] };
-  certified: { coefficients: Coef[]; residualStandardDeviation: number; residualStandardDeviationText: string; rSquared: number; rSquaredText: string };
-  data: { y: number[]; x: Record<string, number[]> };
-}
-const strd: { datasets: StrdSet[] } = JSON.parse(fs.readFileSync(path.resolve(__dirname, "../data/nist-strd/strd.json"), "utf8"));
-
-/** Significant digits printed (as test/host/nist.test.ts counts them). */
-function digits(text: string): number {
-  const all = text.replace(/^[-+]/, "").split(/[eE]/)[0].replace(".", "");
-  const significant = all.replace(/^0+/, "");
-  return significant === "" ? all.length : significant.length;
-}
-
-/** LRE = −log10(|q − c|/|c|), or −log10|q| when c = 0, capped at the certified digits (StRD README). */
-function lre(q: number, c: number, text: string): number {
-  const err = c === 0 ? Math.abs(q) : Math.abs(q - c) / Math.abs(c);
-  return err === 0 ? digits(text) : Math.min(digits(text), -Math.log10(err));
-}
 
 function columns(set: StrdSet): { y: Float64Array; x: Float64Array[]; names: string[] } {
   const terms = set.design.terms.filter((t) => t.power !== 0);

@@ -9,35 +9,8 @@ import * as crypto from "crypto";
 import * as fs from "fs";
 import * as path from "path";
 import { call, HostError, loadFunctions, lookup } from "../harness/loadFunctions";
+import { lre, strd, STRD_PATH as strdPath } from "../harness/nistStrd";
 
-interface Coef { estimate: number; estimateText: string; standardDeviation: number; standardDeviationText: string }
-interface StrdSet {
-  name: string;
-  file: string;
-  sha256: string;
-  bytes: number;
-  design: { intercept: boolean; terms: { variable?: string; power: number }[] };
-  certified: { coefficients: Coef[]; residualStandardDeviation: number; residualStandardDeviationText: string; rSquared: number; rSquaredText: string };
-  data: { y: number[]; x: Record<string, number[]> };
-}
-
-const strdPath = path.resolve(__dirname, "../data/nist-strd/strd.json");
-const strd: { datasets: StrdSet[] } = JSON.parse(fs.readFileSync(strdPath, "utf8"));
-
-/** Significant digits printed; a certified zero such as 0.00000000000000E+00 counts every digit shown. */
-function digits(text: string): number {
-  const all = text.replace(/^[-+]/, "").split(/[eE]/)[0].replace(".", "");
-  const significant = all.replace(/^0+/, "");
-  return significant === "" ? all.length : significant.length;
-}
-
-/** LRE = −log10(|q − c|/|c|), or −log10|q| when c = 0; capped at the certified digits. */
-function lre(q: number, c: number, text: string): number {
-  const cap = digits(text);
-  const err = c === 0 ? Math.abs(q) : Math.abs(q - c) / Math.abs(c);
-  if (err === 0) return cap;
-  return Math.min(cap, -Math.log10(err));
-}
 
 describe("fixture guard: the committed NIST files", () => {
   it("each of the eleven .dat files has the sha256 and size strd.json records (byte copies of the NIST originals)", () => {
