@@ -695,7 +695,7 @@ function printTable(out, rows) {
   for (const r of all.slice(1)) out(line(r));
 }
 
-module.exports = { runHarness, findHarness, agreement, readBin };
+module.exports = { runHarness, findHarness, agreement, readBin, compileEngine };
 
 if (require.main === module) {
   const argv = process.argv.slice(2);

@@ -6,12 +6,12 @@
  *   scripts/build-wasm.js into wasm/kernelBytes.ts), bitwise equal to "js" because every sum keeps
  *   the same order of operations (test/engine/kernel.test.ts).
  *
- * The WebAssembly module is compiled synchronously on first use: it is under 4 KB, the size browsers
- * allow for synchronous compilation on a page's main thread (test/engine/kernel.test.ts keeps it
- * so). Where WebAssembly or its SIMD instructions are missing, or the page's content security policy
- * refuses compilation (it needs 'wasm-unsafe-eval'), the JavaScript kernel is used; the engine stays
- * synchronous and gives the same numbers either way. DEVELOPERS.md describes the build and the
- * choice of default.
+ * The WebAssembly module is compiled on first use: synchronously where the host allows it (Node, Web
+ * Workers), in the background on a browser page's main thread, which compiles only modules under
+ * 4 KB synchronously; until it is ready the JavaScript kernel serves. Where WebAssembly or its SIMD
+ * instructions are missing, or the page's content security policy refuses compilation (it needs
+ * 'wasm-unsafe-eval'), the JavaScript kernel is used for good. The engine stays synchronous and gives
+ * the same numbers either way. DEVELOPERS.md describes the build and the choice of default.
  */
 import { axpyBlock, dotBlock } from "./blocks";
 import { KERNEL_WASM_HEX } from "./wasm/kernelBytes";
@@ -55,13 +55,87 @@ export interface QWorkspace {
   meat(m: number): void;
 }
 
-export interface Kernel {
+/**
+ * Passes over whole columns (of any length). They use no workspace, so they may run between a
+ * workspace's calls.
+ */
+export interface ColumnOps {
+  /** col[i] = log col[i] for every i, Math.log's values (fdlibm's log: V8's Math.log is fdlibm's). */
+  logInPlace(col: Float64Array): void;
+  /** max_i |v_i| (0 for an empty column; NaN never counts). */
+  maxAbs(v: Float64Array): number;
+  /** The compensated sum of col (stableSum's arithmetic, value by value in order) and how many values are ≤ 0. */
+  scan(col: Float64Array): { sum: number; low: number };
+  /** r[i] = y[i] − b_0·X_0[i] − b_1·X_1[i] − …, the products subtracted in order of j, for every row. */
+  residuals(X: Float64Array[], b: Float64Array, y: Float64Array, r: Float64Array): void;
+}
+
+/**
+ * Buffers of L right-hand sides projected on k columns, block by block (leastSquares.ts's
+ * rssOnFactor): V and D hold L sides of `rows` doubles each (side l at l·rows). Valid until the next
+ * workspace call of the same kernel.
+ */
+export interface SidesWorkspace {
+  V: Float64Array;
+  D: Float64Array;
+  /** The block's columns are rows start … start+m−1 of X. */
+  load(X: Float64Array[], start: number, m: number): void;
+  /** g[o + j] += Σ_{i<m} X_j[i]·V_l[i] for j < k (each sum as dotBlock's, then added). */
+  dots(l: number, m: number, g: Float64Array, o: number): void;
+  /** V_l[i] −= b[o + j]·X_j[i] for j = 0 … k−1 in order, skipping zero factors. */
+  subtract(l: number, m: number, b: Float64Array, o: number): void;
+  /** Σ_{i<m} V_l[i]² (dotBlock's order). */
+  selfDot(l: number, m: number): number;
+  /** Σ_{i<m} V_l[i]·D_l[i] (dotBlock's order). */
+  crossDot(l: number, m: number): number;
+}
+
+export interface Kernel extends ColumnOps {
   readonly name: KernelName;
+  /** Buffers for L sides on k columns, blocks of `rows` rows. */
+  sidesWorkspace(k: number, L: number, rows: number): SidesWorkspace;
   /** Zeroed buffers for a blocked QR of k columns and y, with blocks of `rows` rows. */
   qrWorkspace(k: number, rows: number): QrWorkspace;
   /** Buffers for passes over the rows of Q with the factor R (row-major k×k) and inv_j = 1/s_j. */
   qWorkspace(R: Float64Array, inv: Float64Array, k: number, rows: number): QWorkspace;
 }
+
+/** The column operations in plain JavaScript. */
+const jsColumnOps: ColumnOps = {
+  logInPlace(col: Float64Array): void {
+    for (let i = 0; i < col.length; i++) col[i] = Math.log(col[i]);
+  },
+  maxAbs(v: Float64Array): number {
+    let m = 0;
+    for (let i = 0; i < v.length; i++) {
+      const a = Math.abs(v[i]);
+      if (a > m) m = a;
+    }
+    return m;
+  },
+  scan(col: Float64Array): { sum: number; low: number } {
+    let s = 0;
+    let c = 0;
+    let low = 0;
+    for (let i = 0; i < col.length; i++) {
+      const v = col[i];
+      const t = s + v;
+      c += Math.abs(s) >= Math.abs(v) ? s - t + v : v - t + s;
+      s = t;
+      if (v <= 0) low++;
+    }
+    return { sum: s + c, low };
+  },
+  residuals(X: Float64Array[], b: Float64Array, y: Float64Array, r: Float64Array): void {
+    r.set(y);
+    const n = y.length;
+    for (let j = 0; j < X.length; j++) {
+      const bj = b[j];
+      const xj = X[j];
+      for (let i = 0; i < n; i++) r[i] -= bj * xj[i];
+    }
+  },
+};
 
 /** Rows start … start+m−1 of Q into Z (column j at j·rows), as whole-block vector operations. */
 function jsQRows(X: Float64Array[], R: Float64Array, inv: Float64Array, k: number, rows: number, start: number, m: number, Z: Float64Array): void {
@@ -92,6 +166,35 @@ function jsQRows(X: Float64Array[], R: Float64Array, inv: Float64Array, k: numbe
 /** The loops in plain JavaScript. */
 export const jsKernel: Kernel = {
   name: "js",
+  ...jsColumnOps,
+  sidesWorkspace(k: number, L: number, rows: number): SidesWorkspace {
+    const V = new Float64Array(L * rows);
+    const D = new Float64Array(L * rows);
+    let X: Float64Array[] = [];
+    let at = 0;
+    return {
+      V,
+      D,
+      load(cols: Float64Array[], start: number): void {
+        X = cols;
+        at = start;
+      },
+      dots(l: number, m: number, g: Float64Array, o: number): void {
+        for (let j = 0; j < k; j++) g[o + j] += dotBlock(X[j], at, V, l * rows, m);
+      },
+      subtract(l: number, m: number, b: Float64Array, o: number): void {
+        const ov = l * rows;
+        for (let j = 0; j < k; j++) {
+          const w = b[o + j];
+          if (w === 0) continue;
+          const col = X[j];
+          for (let i = 0; i < m; i++) V[ov + i] -= w * col[at + i];
+        }
+      },
+      selfDot: (l: number, m: number) => dotBlock(V, l * rows, V, l * rows, m),
+      crossDot: (l: number, m: number) => dotBlock(V, l * rows, D, l * rows, m),
+    };
+  },
   qrWorkspace(k: number, rows: number): QrWorkspace {
     const k1 = k + 1;
     const T = new Float64Array(k1 * k1);
@@ -174,7 +277,17 @@ interface KernelExports {
   scaleColumns(pC: number, pInv: number, k: number, m: number, stride: number): void;
   meatBlock(pZ: number, pw: number, pWs: number, pM: number, pS: number, k: number, m: number, stride: number): void;
   leverageBlock(pZ: number, ph: number, k: number, m: number, stride: number): void;
+  axpyColumn(pa: number, pb: number, m: number, w: number): void;
+  maxAbsColumn(p: number, m: number, m0: number): number;
+  scanColumn(p: number, m: number, pS: number): number;
+  logColumn(p: number, m: number): number;
+  dotsBlock(pX: number, pv: number, k: number, m: number, stride: number, pg: number): void;
+  subtractBlock(pX: number, pv: number, pb: number, k: number, m: number, stride: number): void;
+  dotColumn(pa: number, pb: number, m: number): number;
 }
+
+/** Rows per chunk of the column operations (two chunks and a pair of sums sit at the start of the heap). */
+const CHUNK = 2048;
 
 /** Workspaces larger than this (k in the thousands) use the JavaScript kernel instead of growing the module's memory further. */
 const MAX_WASM_BYTES = 64 * 1024 * 1024;
@@ -188,8 +301,65 @@ function hexBytes(hex: string): Uint8Array<ArrayBuffer> {
 
 /** The WebAssembly kernel over an instantiated module. */
 function wasmKernelOf(x: KernelExports): Kernel {
-  const base = x.heapBase();
   const align = (b: number) => (b + 15) & ~15;
+  // the column operations' chunks A and B and their pair of sums, before every workspace
+  const pA = x.heapBase();
+  const pB = pA + 8 * CHUNK;
+  const pS = pB + 8 * CHUNK;
+  const base = align(pS + 16);
+  if (base > x.memory.buffer.byteLength) x.memory.grow(Math.ceil((base - x.memory.buffer.byteLength) / PAGE));
+  const chunkA = () => new Float64Array(x.memory.buffer, pA, CHUNK);
+  const chunkB = () => new Float64Array(x.memory.buffer, pB, CHUNK);
+  const columnOps: ColumnOps = {
+    logInPlace(col: Float64Array): void {
+      const A = chunkA();
+      for (let s = 0; s < col.length; s += CHUNK) {
+        const m = Math.min(CHUNK, col.length - s);
+        const part = col.subarray(s, s + m);
+        A.set(part);
+        if (m & 1) A[m] = 1; // the odd chunk's second lane: a value the log takes
+        if (x.logColumn(pA, (m + 1) & ~1) === 0) part.set(A.subarray(0, m));
+        else jsColumnOps.logInPlace(part); // a value that is not a positive normal double: Math.log's answer (−Infinity, NaN…)
+      }
+    },
+    maxAbs(v: Float64Array): number {
+      const A = chunkA();
+      let best = 0;
+      for (let s = 0; s < v.length; s += CHUNK) {
+        const m = Math.min(CHUNK, v.length - s);
+        A.set(v.subarray(s, s + m));
+        best = x.maxAbsColumn(pA, m, best);
+      }
+      return best;
+    },
+    scan(col: Float64Array): { sum: number; low: number } {
+      const A = chunkA();
+      const S = new Float64Array(x.memory.buffer, pS, 2);
+      S[0] = 0;
+      S[1] = 0;
+      let low = 0;
+      for (let s = 0; s < col.length; s += CHUNK) {
+        const m = Math.min(CHUNK, col.length - s);
+        A.set(col.subarray(s, s + m));
+        low += x.scanColumn(pA, m, pS);
+      }
+      return { sum: S[0] + S[1], low };
+    },
+    residuals(X: Float64Array[], b: Float64Array, y: Float64Array, r: Float64Array): void {
+      const A = chunkA();
+      const B = chunkB();
+      const n = y.length;
+      for (let s = 0; s < n; s += CHUNK) {
+        const m = Math.min(CHUNK, n - s);
+        A.set(y.subarray(s, s + m));
+        for (let j = 0; j < X.length; j++) {
+          B.set(X[j].subarray(s, s + m));
+          x.axpyColumn(pB, pA, m, b[j]);
+        }
+        r.set(A.subarray(0, m), s);
+      }
+    },
+  };
   let generation = 0;
   /**
    * Views of consecutive regions of sizes[i] doubles in the module's memory, growing it when needed
@@ -223,6 +393,41 @@ function wasmKernelOf(x: KernelExports): Kernel {
   };
   return {
     name: "wasm",
+    ...columnOps,
+    sidesWorkspace(k: number, L: number, rows: number): SidesWorkspace {
+      const r = regions([k * rows, L * rows, L * rows, k, k]);
+      if (!r) return jsKernel.sidesWorkspace(k, L, rows);
+      const [Xb, V, D, g, b] = r.views;
+      const [pX, pV, pD, pg, pb] = r.offsets;
+      return {
+        V,
+        D,
+        load(X: Float64Array[], start: number, m: number): void {
+          r.check();
+          for (let j = 0; j < k; j++) Xb.set(X[j].subarray(start, start + m), j * rows);
+        },
+        dots(l: number, m: number, out: Float64Array, o: number): void {
+          r.check();
+          for (let j = 0; j < k; j++) g[j] = out[o + j];
+          x.dotsBlock(pX, pV + 8 * l * rows, k, m, rows, pg);
+          for (let j = 0; j < k; j++) out[o + j] = g[j];
+        },
+        subtract(l: number, m: number, coef: Float64Array, o: number): void {
+          r.check();
+          for (let j = 0; j < k; j++) b[j] = coef[o + j];
+          x.subtractBlock(pX, pV + 8 * l * rows, pb, k, m, rows);
+        },
+        selfDot(l: number, m: number): number {
+          r.check();
+          const p = pV + 8 * l * rows;
+          return x.dotColumn(p, p, m);
+        },
+        crossDot(l: number, m: number): number {
+          r.check();
+          return x.dotColumn(pV + 8 * l * rows, pD + 8 * l * rows, m);
+        },
+      };
+    },
     qrWorkspace(k: number, rows: number): QrWorkspace {
       const k1 = k + 1;
       const r = regions([k1 * k1, k, k1 * rows, k1 + 4, k]);
@@ -273,21 +478,51 @@ function wasmKernelOf(x: KernelExports): Kernel {
   };
 }
 
-let wasmLoaded: Kernel | null | undefined; // undefined: not tried yet
+let wasmLoaded: Kernel | null | undefined; // undefined: not tried yet, or still compiling
+let compiling: Promise<Kernel | null> | null = null;
 
-/** The WebAssembly kernel, compiled on first call; null where WebAssembly, its SIMD or the page's policy refuse it. */
+function kernelOf(instance: WebAssembly.Instance): Kernel {
+  return wasmKernelOf(instance.exports as unknown as KernelExports);
+}
+
+/**
+ * The WebAssembly kernel; null where WebAssembly, its SIMD or the page's policy refuse it, and while
+ * it is still compiling. It is compiled synchronously on first call where the host allows that; a
+ * browser page's main thread compiles only small modules synchronously (4 KB in Chromium), so there
+ * it is compiled in the background instead and the JavaScript kernel serves until it is ready (the
+ * same numbers either way).
+ */
 export function wasmKernel(): Kernel | null {
   if (wasmLoaded !== undefined) return wasmLoaded;
-  wasmLoaded = null;
+  if (compiling !== null) return null;
+  if (typeof WebAssembly !== "object") return (wasmLoaded = null);
+  const bytes = hexBytes(KERNEL_WASM_HEX);
   try {
-    if (typeof WebAssembly !== "object") return null;
-    const module = new WebAssembly.Module(hexBytes(KERNEL_WASM_HEX));
-    const instance = new WebAssembly.Instance(module, {});
-    wasmLoaded = wasmKernelOf(instance.exports as unknown as KernelExports);
+    wasmLoaded = kernelOf(new WebAssembly.Instance(new WebAssembly.Module(bytes), {}));
   } catch {
-    wasmLoaded = null; // no SIMD, or compilation refused (content security policy): the JavaScript kernel
+    // too large to compile synchronously here, or refused (no SIMD, content security policy): the
+    // background compilation tells which; a refusal leaves the JavaScript kernel for good
+    if (typeof WebAssembly.instantiate !== "function") return (wasmLoaded = null);
+    compiling = WebAssembly.instantiate(bytes, {}).then(
+      (r) => {
+        try {
+          wasmLoaded = kernelOf(r.instance);
+        } catch {
+          wasmLoaded = null;
+        }
+        return wasmLoaded;
+      },
+      () => (wasmLoaded = null),
+    );
+    return null;
   }
   return wasmLoaded;
+}
+
+/** The WebAssembly kernel once it is compiled (null where it cannot be): for a caller that prefers to wait. */
+export function wasmKernelReady(): Promise<Kernel | null> {
+  const now = wasmKernel();
+  return compiling !== null && wasmLoaded === undefined ? compiling : Promise.resolve(now);
 }
 
 /**
@@ -299,9 +534,12 @@ export const WASM_BY_DEFAULT = true;
 
 let active: Kernel | null = null;
 
-/** The kernel in force. */
+/** The kernel in force (the JavaScript kernel while the WebAssembly one is still compiling). */
 export function kernel(): Kernel {
-  if (active === null) active = (WASM_BY_DEFAULT ? wasmKernel() : null) ?? jsKernel;
+  if (active !== null) return active;
+  const wasm = WASM_BY_DEFAULT ? wasmKernel() : null;
+  if (wasm === null && WASM_BY_DEFAULT && wasmLoaded === undefined) return jsKernel; // compiling: ask again next time
+  active = wasm ?? jsKernel;
   return active;
 }
 

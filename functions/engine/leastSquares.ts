@@ -158,12 +158,7 @@ export function leastSquares(X: Float64Array[], y: Float64Array, refineWhenNeede
   } else {
     for (let j = 0; j < k; j++) coef[j] = c[j] / scale[j];
     resid = new Float64Array(n);
-    resid.set(y);
-    for (let j = 0; j < k; j++) {
-      const bj = coef[j];
-      const xj = X[j];
-      for (let i = 0; i < n; i++) resid[i] -= bj * xj[i];
-    }
+    kernel().residuals(X, coef, y, resid);
   }
   let rss = 0;
   for (let i = 0; i < n; i++) rss += resid[i] * resid[i];
@@ -531,17 +526,18 @@ export function rssOnFactor(
   const n = qr.n;
   const B = BLOCK_ROWS;
   const scale = qr.scale;
-  const V = new Float64Array(L * B);
-  const D = cross ? new Float64Array(L * B) : null;
+  const ws = kernel().sidesWorkspace(k, L, B);
+  const { V } = ws;
+  const D = cross ? ws.D : null;
   const g = new Float64Array(L * k);
   const vv = new Float64Array(L);
   for (let start = 0; start < n; start += B) {
     const m = Math.min(B, n - start);
     fill(start, m, V, 0, null);
-    for (let l = 0; l < L; l++) vv[l] += dotBlock(V, l * B, V, l * B, m);
-    for (let j = 0; j < k; j++) {
-      const col = X[j];
-      for (let l = 0; l < L; l++) g[l * k + j] += dotBlock(col, start, V, l * B, m);
+    ws.load(X, start, m);
+    for (let l = 0; l < L; l++) {
+      vv[l] += ws.selfDot(l, m);
+      ws.dots(l, m, g, l * k);
     }
   }
   const c = new Float64Array(k);
@@ -566,17 +562,12 @@ export function rssOnFactor(
   for (let start = 0; start < n; start += B) {
     const m = Math.min(B, n - start);
     fill(start, m, V, 1, D);
+    ws.load(X, start, m);
     for (let l = 0; l < L; l++) {
-      const o = l * B;
-      for (let j = 0; j < k; j++) {
-        const b = coefs[l * k + j];
-        if (b === 0) continue;
-        const col = X[j];
-        for (let i = 0; i < m; i++) V[o + i] -= b * col[start + i];
-      }
-      rr[l] += dotBlock(V, o, V, o, m);
-      if (rd && D) rd[l] += dotBlock(V, o, D, o, m);
-      if (correct[l]) for (let j = 0; j < k; j++) t[l * k + j] += dotBlock(X[j], start, V, o, m);
+      ws.subtract(l, m, coefs, l * k);
+      rr[l] += ws.selfDot(l, m);
+      if (rd) rd[l] += ws.crossDot(l, m);
+      if (correct[l]) ws.dots(l, m, t, l * k);
     }
   }
   const rss = new Float64Array(L);
@@ -601,16 +592,17 @@ export function roughRssOnFactor(X: Float64Array[], qr: QrFit, L: number, fill: 
   const k = X.length;
   const n = qr.n;
   const B = BLOCK_ROWS;
-  const V = new Float64Array(L * B);
+  const ws = kernel().sidesWorkspace(k, L, B);
+  const { V } = ws;
   const g = new Float64Array(L * k);
   const vv = new Float64Array(L);
   for (let start = 0; start < n; start += B) {
     const m = Math.min(B, n - start);
     fill(start, m, V);
-    for (let l = 0; l < L; l++) vv[l] += dotBlock(V, l * B, V, l * B, m);
-    for (let j = 0; j < k; j++) {
-      const col = X[j];
-      for (let l = 0; l < L; l++) g[l * k + j] += dotBlock(col, start, V, l * B, m);
+    ws.load(X, start, m);
+    for (let l = 0; l < L; l++) {
+      vv[l] += ws.selfDot(l, m);
+      ws.dots(l, m, g, l * k);
     }
   }
   const rss = new Float64Array(L);

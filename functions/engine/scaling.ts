@@ -11,12 +11,15 @@
  * leaves [2^−100, 2^100] (about 1e−30 to 1e30); inside that window fourth powers stay far from
  * overflow and underflow, and columns are used as they are (no copy, the same bits as before).
  */
+import { kernel } from "./kernel";
+
 
 /** Below and above these magnitudes a column is rescaled before squares are taken. */
 export const WINDOW_LOW = Math.pow(2, -100);
 export const WINDOW_HIGH = Math.pow(2, 100);
 
 function maxAbs(v: ArrayLike<number>): number {
+  if (v instanceof Float64Array) return kernel().maxAbs(v);
   let m = 0;
   for (let i = 0; i < v.length; i++) {
     const a = Math.abs(v[i]);

@@ -11,6 +11,7 @@
  * Sources: Bellemare and Wichman (2020), "Elasticities and the inverse hyperbolic sine
  * transformation", Oxford Bulletin of Economics and Statistics 82(1), for asinh.
  */
+import { kernel } from "./kernel";
 import { cut, fail, count, quote, rowsPhrase, nearest, RowList } from "./problems";
 import type { Options } from "./options";
 import { subsetRoles, type RawData, type RoleColumns } from "./intake";
@@ -224,6 +225,12 @@ interface ColumnScan extends NonPositive {
 /** The zeros and negatives of a column, and its compensated sum (the arithmetic of stableSum), in one pass. */
 function nonPositive(col: Float64Array, rowNumbers: Int32Array): ColumnScan {
   const np: ColumnScan = { zeros: 0, negatives: 0, zeroRows: new RowList(), negativeRows: new RowList(), sum: 0 };
+  // the usual case, every value positive, in one pass of the kernel (the same sum); else the rows are listed below
+  const quick = kernel().scan(col);
+  if (quick.low === 0) {
+    np.sum = quick.sum;
+    return np;
+  }
   let s = 0;
   let c = 0;
   for (let i = 0; i < col.length; i++) {
@@ -554,7 +561,7 @@ function indicators(codes: Int32Array, labels: string[], name: string): { name: 
 
 function transformInPlace(col: Float64Array, t: Transform): void {
   if (t.kind === "log") {
-    for (let i = 0; i < col.length; i++) col[i] = Math.log(col[i]);
+    kernel().logInPlace(col); // Math.log's values
   } else {
     for (let i = 0; i < col.length; i++) col[i] = apply(t, col[i]);
   }

@@ -328,3 +328,148 @@ export function leverageBlock(pZ: usize, ph: usize, k: i32, m: i32, stride: i32)
     store<f64>(ph + o, h);
   }
 }
+
+// ---------------------------------------------------------------------------------------------
+// Column operations (the JavaScript kernel's ColumnOps, on a chunk the caller copied in)
+// ---------------------------------------------------------------------------------------------
+
+/** b[i] −= w·a[i] for i < m (the residual step r ← r − b_j·x_j, in the JavaScript loop's arithmetic). */
+export function axpyColumn(pa: usize, pb: usize, m: i32, w: f64): void {
+  axpy(pa, pb, m, w);
+}
+
+/** max(m0, max_{i<m} |a[i]|), as the JavaScript loop `if (|a| > best) best = |a|` (NaN never wins). */
+export function maxAbsColumn(p: usize, m: i32, m0: f64): f64 {
+  let acc = f64x2.splat(m0);
+  let i = 0;
+  for (; i + 1 < m; i += 2) acc = f64x2.pmax(acc, f64x2.abs(v128.load(p + (<usize>i << 3))));
+  let best = f64x2.extract_lane(acc, 0);
+  const b1 = f64x2.extract_lane(acc, 1);
+  if (b1 > best) best = b1;
+  for (; i < m; i++) {
+    const a = abs<f64>(load<f64>(p + (<usize>i << 3)));
+    if (a > best) best = a;
+  }
+  return best;
+}
+
+/**
+ * Continues the compensated sum (s, c) at pS (Neumaier's: the arithmetic of stableSum, value by value
+ * in order) over a[0..m−1], writing it back, and returns how many values are ≤ 0.
+ */
+export function scanColumn(p: usize, m: i32, pS: usize): i32 {
+  let s = load<f64>(pS);
+  let c = load<f64>(pS, 8);
+  let low = 0;
+  for (let i = 0; i < m; i++) {
+    const v = load<f64>(p + (<usize>i << 3));
+    const t = s + v;
+    c += abs<f64>(s) >= abs<f64>(v) ? s - t + v : v - t + s;
+    s = t;
+    if (v <= 0) low++;
+  }
+  store<f64>(pS, s);
+  store<f64>(pS, c, 8);
+  return low;
+}
+
+// fdlibm's __ieee754_log (the log of V8's Math.log), its constants and its steps, two lanes at once
+const LN2_HI: f64 = 6.93147180369123816490e-01;
+const LN2_LO: f64 = 1.90821492927058770002e-10;
+const LG1: f64 = 6.666666666666735130e-01;
+const LG2: f64 = 3.999999999940941908e-01;
+const LG3: f64 = 2.857142874366239149e-01;
+const LG4: f64 = 2.222219843214978396e-01;
+const LG5: f64 = 1.818357216161805012e-01;
+const LG6: f64 = 1.531383769920937332e-01;
+const LG7: f64 = 1.479819860511658591e-01;
+
+/**
+ * In place a[i] = log a[i] for i < m (m even), by fdlibm's steps on both lanes: x = 2^k·(1 + f) with
+ * 1 + f in [√2/2, √2), s = f/(2 + f), log(1 + f) = f − hfsq + s·(hfsq + R(s²)), and fdlibm's own
+ * branches (|f| < 2^−20; the two forms chosen by the leading bits of f) taken as lane selections.
+ * Every lane computes every branch with the same operations fdlibm performs on the branch it takes,
+ * so the selected value is fdlibm's. Returns the number of pairs holding a value that is not a
+ * positive normal double (zero, negative, subnormal, infinite, NaN): the caller then logs that chunk
+ * itself.
+ */
+export function logColumn(p: usize, m: i32): i32 {
+  let bad = 0;
+  const one = f64x2.splat(1.0);
+  const half = f64x2.splat(0.5);
+  for (let i = 0; i < m; i += 2) {
+    const o = p + (<usize>i << 3);
+    const x = v128.load(o);
+    let hx = i64x2.shr_u(x, 32); // the high word, as fdlibm reads it (the sign bit makes it large)
+    if (v128.any_true(v128.or(i64x2.gt_s(i64x2.splat(0x00100000), hx), i64x2.gt_s(hx, i64x2.splat(0x7fefffff))))) bad++;
+    let k = i64x2.sub(i64x2.shr_u(hx, 20), i64x2.splat(1023));
+    hx = v128.and(hx, i64x2.splat(0x000fffff));
+    const up = v128.and(i64x2.add(hx, i64x2.splat(0x95f64)), i64x2.splat(0x100000));
+    // x or x/2 into [√2/2, √2): the new high word, the low word kept
+    const xm = v128.or(i64x2.shl(v128.or(hx, v128.xor(up, i64x2.splat(0x3ff00000))), 32), v128.and(x, i64x2.splat(0xffffffff)));
+    k = i64x2.add(k, i64x2.shr_u(up, 20));
+    const f = f64x2.sub(xm, one);
+    const dk = f64x2.convert_low_i32x4_s(v128.shuffle<i32>(k, k, 0, 2, 0, 2));
+    const tiny = i64x2.gt_s(i64x2.splat(3), v128.and(i64x2.add(hx, i64x2.splat(2)), i64x2.splat(0x000fffff)));
+    const s = f64x2.div(f, f64x2.add(f64x2.splat(2.0), f));
+    const z = f64x2.mul(s, s);
+    const w = f64x2.mul(z, z);
+    const wide = i64x2.gt_s(v128.or(i64x2.sub(hx, i64x2.splat(0x6147a)), i64x2.sub(i64x2.splat(0x6b851), hx)), i64x2.splat(0));
+    const t1 = f64x2.mul(w, f64x2.add(f64x2.splat(LG2), f64x2.mul(w, f64x2.add(f64x2.splat(LG4), f64x2.mul(w, f64x2.splat(LG6))))));
+    const t2 = f64x2.mul(z, f64x2.add(f64x2.splat(LG1), f64x2.mul(w, f64x2.add(f64x2.splat(LG3), f64x2.mul(w, f64x2.add(f64x2.splat(LG5), f64x2.mul(w, f64x2.splat(LG7))))))));
+    const R = f64x2.add(t2, t1);
+    const hi = f64x2.mul(dk, f64x2.splat(LN2_HI));
+    const lo = f64x2.mul(dk, f64x2.splat(LN2_LO));
+    const hfsq = f64x2.mul(f64x2.mul(half, f), f);
+    // (fdlibm's k = 0 forms equal these with dk = 0: a − b = −(b − a) and v ± 0 = v in IEEE arithmetic)
+    const a = f64x2.sub(hi, f64x2.sub(f64x2.sub(hfsq, f64x2.add(f64x2.mul(s, f64x2.add(hfsq, R)), lo)), f));
+    const b = f64x2.sub(hi, f64x2.sub(f64x2.sub(f64x2.mul(s, f64x2.sub(f, R)), lo), f));
+    const r1 = f64x2.mul(f64x2.mul(f, f), f64x2.sub(half, f64x2.mul(f64x2.splat(0.33333333333333333), f)));
+    const c0 = f64x2.sub(hi, f64x2.sub(f64x2.sub(r1, lo), f));
+    const c = v128.bitselect(f64x2.add(hi, lo), c0, f64x2.eq(f, f64x2.splat(0)));
+    v128.store(o, v128.bitselect(c, v128.bitselect(a, b, wide), tiny));
+  }
+  return bad;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Sides on a block of columns (the projections of leastSquares.ts's rssOnFactor)
+// ---------------------------------------------------------------------------------------------
+
+/** g[j] += Σ_{i<m} X_j[i]·v[i] for j < k (each sum as dot() from 0, then added to g[j]). */
+export function dotsBlock(pX: usize, pv: usize, k: i32, m: i32, stride: i32, pg: usize): void {
+  const colBytes = <usize>stride << 3;
+  for (let j = 0; j < k; j++) {
+    const o = pg + (<usize>j << 3);
+    store<f64>(o, load<f64>(o) + dot(pX + <usize>j * colBytes, pv, m, 0));
+  }
+}
+
+/** v[i] −= b_j·X_j[i] for j = 0 … k−1 in order, skipping b_j = 0, for i < m (one load and store of v per row pair). */
+export function subtractBlock(pX: usize, pv: usize, pb: usize, k: i32, m: i32, stride: i32): void {
+  const colBytes = <usize>stride << 3;
+  let i = 0;
+  for (; i + 1 < m; i += 2) {
+    const o = <usize>i << 3;
+    let v = v128.load(pv + o);
+    for (let j = 0; j < k; j++) {
+      const w = load<f64>(pb + (<usize>j << 3));
+      if (w != 0) v = f64x2.sub(v, f64x2.mul(f64x2.splat(w), v128.load(pX + <usize>j * colBytes + o)));
+    }
+    v128.store(pv + o, v);
+  }
+  if (i < m) {
+    const o = <usize>i << 3;
+    let v = load<f64>(pv + o);
+    for (let j = 0; j < k; j++) {
+      const w = load<f64>(pb + (<usize>j << 3));
+      if (w != 0) v -= w * load<f64>(pX + <usize>j * colBytes + o);
+    }
+    store<f64>(pv + o, v);
+  }
+}
+
+/** Σ_{i<m} a[i]·b[i] (dot() from 0). */
+export function dotColumn(pa: usize, pb: usize, m: i32): f64 {
+  return dot(pa, pb, m, 0);
+}
