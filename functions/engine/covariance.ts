@@ -129,28 +129,22 @@ export function hcCovariance(c: CovarianceInput, type: "HC0" | "HC1" | "HC2" | "
   const fillH = needH && h === null;
   const inv = Float64Array.from(qr.scale, (s) => 1 / s);
   const ws = kernel().qWorkspace(qr.R, inv, k, BLOCK);
-  const { w } = ws;
   const hc1 = n / c.dfResid;
   const ones: number[] = [];
+  const kind = type === "HC0" ? 0 : type === "HC1" ? 1 : type === "HC2" ? 2 : 3;
+  const limit = 1 - LEVERAGE_TOL;
   for (let start = 0; start < n; start += BLOCK) {
     const m = Math.min(BLOCK, n - start);
     ws.qRows(X, start, m);
-    if (fillH && lev) {
-      ws.leverage(m);
-      lev.set(ws.h.subarray(0, m), start);
+    if (lev) {
+      if (fillH) {
+        ws.leverage(m);
+        lev.set(ws.h.subarray(0, m), start);
+      } else ws.h.set(lev.subarray(start, start + m));
     }
-    for (let i = 0; i < m; i++) {
-      const e = resid[start + i];
-      const e2 = e * e;
-      if (type === "HC0") w[i] = e2;
-      else if (type === "HC1") w[i] = e2 * hc1;
-      else {
-        const hi = (lev as Float64Array)[start + i];
-        if (hi >= 1 - LEVERAGE_TOL) {
-          ones.push(rowNumbers[start + i]);
-          w[i] = 0;
-        } else w[i] = type === "HC2" ? e2 / (1 - hi) : e2 / ((1 - hi) * (1 - hi));
-      }
+    // w_i from e_i (and h_i): e², e²·n/df, e²/(1 − h), e²/(1 − h)²; a row with h = 1 is named below
+    if (ws.hcWeights(resid, start, m, kind, hc1, limit) > 0) {
+      for (let i = 0; i < m; i++) if ((lev as Float64Array)[start + i] >= limit) ones.push(rowNumbers[start + i]);
     }
     ws.meat(m); // M_ab += Σ w_i z_ai z_bi, b ≥ a
   }

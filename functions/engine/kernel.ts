@@ -53,6 +53,12 @@ export interface QWorkspace {
   leverage(m: number): void;
   /** M_ab += Σ_{i<m} w_i z_ai z_bi for b ≥ a (the upper triangle of a sandwich's meat). */
   meat(m: number): void;
+  /**
+   * w from the residuals e[start … start+m−1] and the leverages in h: kind 0 (HC0) e², 1 (HC1) e²·f,
+   * 2 (HC2) e²/(1 − h), 3 (HC3) e²/((1 − h)(1 − h)); a row with h ≥ limit gets 0 and is counted
+   * (returned), for the caller to name.
+   */
+  hcWeights(e: Float64Array, start: number, m: number, kind: number, f: number, limit: number): number;
 }
 
 /**
@@ -66,6 +72,8 @@ export interface ColumnOps {
   maxAbs(v: Float64Array): number;
   /** The compensated sum of col (stableSum's arithmetic, value by value in order) and how many values are ≤ 0. */
   scan(col: Float64Array): { sum: number; low: number };
+  /** Σ v_i², one addition after another in order (the plain loop's sum). */
+  sumSquares(v: Float64Array): number;
   /** r[i] = y[i] − b_0·X_0[i] − b_1·X_1[i] − …, the products subtracted in order of j, for every row. */
   residuals(X: Float64Array[], b: Float64Array, y: Float64Array, r: Float64Array): void;
 }
@@ -125,6 +133,11 @@ const jsColumnOps: ColumnOps = {
       if (v <= 0) low++;
     }
     return { sum: s + c, low };
+  },
+  sumSquares(v: Float64Array): number {
+    let s = 0;
+    for (let i = 0; i < v.length; i++) s += v[i] * v[i];
+    return s;
   },
   residuals(X: Float64Array[], b: Float64Array, y: Float64Array, r: Float64Array): void {
     r.set(y);
@@ -265,6 +278,24 @@ export const jsKernel: Kernel = {
           for (let b = a; b < k; b++) M[a * k + b] += dotBlock(W, a * rows, Z, b * rows, m);
         }
       },
+      hcWeights(e: Float64Array, start: number, m: number, kind: number, f: number, limit: number): number {
+        let ones = 0;
+        for (let i = 0; i < m; i++) {
+          const ei = e[start + i];
+          const e2 = ei * ei;
+          let wi = e2;
+          if (kind === 1) wi = e2 * f;
+          else if (kind >= 2) {
+            const hi = h[i];
+            if (hi >= limit) {
+              ones++;
+              wi = 0;
+            } else wi = kind === 2 ? e2 / (1 - hi) : e2 / ((1 - hi) * (1 - hi));
+          }
+          w[i] = wi;
+        }
+        return ones;
+      },
     };
   },
 };
@@ -284,6 +315,8 @@ interface KernelExports {
   dotsBlock(pX: number, pv: number, k: number, m: number, stride: number, pg: number): void;
   subtractBlock(pX: number, pv: number, pb: number, k: number, m: number, stride: number): void;
   dotColumn(pa: number, pb: number, m: number): number;
+  sumSquaresColumn(p: number, m: number, s0: number): number;
+  hcWeightsBlock(pe: number, ph: number, pw: number, m: number, kind: number, f: number, limit: number): number;
 }
 
 /** Rows per chunk of the column operations (two chunks and a pair of sums sit at the start of the heap). */
@@ -344,6 +377,16 @@ function wasmKernelOf(x: KernelExports): Kernel {
         low += x.scanColumn(pA, m, pS);
       }
       return { sum: S[0] + S[1], low };
+    },
+    sumSquares(v: Float64Array): number {
+      const A = chunkA();
+      let sum = 0;
+      for (let s = 0; s < v.length; s += CHUNK) {
+        const m = Math.min(CHUNK, v.length - s);
+        A.set(v.subarray(s, s + m));
+        sum = x.sumSquaresColumn(pA, m, sum);
+      }
+      return sum;
     },
     residuals(X: Float64Array[], b: Float64Array, y: Float64Array, r: Float64Array): void {
       const A = chunkA();
@@ -449,10 +492,10 @@ function wasmKernelOf(x: KernelExports): Kernel {
       return { T, C, tau, load, reduce };
     },
     qWorkspace(R: Float64Array, inv: Float64Array, k: number, rows: number): QWorkspace {
-      const r = regions([k * rows, k * rows, rows, k * k, k * k, 4, rows, k]);
+      const r = regions([k * rows, k * rows, rows, k * k, k * k, 4, rows, k, rows]);
       if (!r) return jsKernel.qWorkspace(R, inv, k, rows);
-      const [Z, , w, M, Rw, , h, invw] = r.views;
-      const [pZ, pWs, pw, pM, pR, pS, ph, pInv] = r.offsets;
+      const [Z, , w, M, Rw, , h, invw, eb] = r.views;
+      const [pZ, pWs, pw, pM, pR, pS, ph, pInv, pe] = r.offsets;
       Rw.set(R);
       invw.set(inv);
       return {
@@ -472,6 +515,11 @@ function wasmKernelOf(x: KernelExports): Kernel {
         meat(m: number): void {
           r.check();
           x.meatBlock(pZ, pw, pWs, pM, pS, k, m, rows);
+        },
+        hcWeights(e: Float64Array, start: number, m: number, kind: number, f: number, limit: number): number {
+          r.check();
+          eb.set(e.subarray(start, start + m));
+          return x.hcWeightsBlock(pe, ph, pw, m, kind, f, limit);
         },
       };
     },

@@ -69,8 +69,7 @@ export interface Dependency {
 }
 
 function norm2(a: Float64Array): number {
-  let s = 0;
-  for (let i = 0; i < a.length; i++) s += a[i] * a[i];
+  const s = kernel().sumSquares(a);
   if (s > 1e-280 && s < 1e280) return Math.sqrt(s);
   let m = 0; // rescale to avoid overflow or underflow
   for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs(a[i]));
@@ -160,8 +159,7 @@ export function leastSquares(X: Float64Array[], y: Float64Array, refineWhenNeede
     resid = new Float64Array(n);
     kernel().residuals(X, coef, y, resid);
   }
-  let rss = 0;
-  for (let i = 0; i < n; i++) rss += resid[i] * resid[i];
+  const rss = kernel().sumSquares(resid);
   return { qr: { n, k, R, Rinv, scale, coef, resid, rss, condition, refined }, dependent: null };
 }
 

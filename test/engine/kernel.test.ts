@@ -294,6 +294,16 @@ describe("column operations (logs, largest magnitude, compensated sum, residuals
     expect(jsKernel.scan(v).sum).toBe(n - 2);
   });
 
+  it("sumSquares equals the plain loop's sum in order (the same double), also past one chunk", () => {
+    for (const n of LENGTHS) {
+      const v = Float64Array.from({ length: n }, () => (r() - 0.5) * Math.pow(10, Math.floor(r() * 8) - 4));
+      let s = 0;
+      for (let i = 0; i < n; i++) s += v[i] * v[i];
+      expect(Object.is(wasm.sumSquares(v), s)).toBe(true);
+      expect(Object.is(jsKernel.sumSquares(v), s)).toBe(true);
+    }
+  });
+
   it("residuals equal the JavaScript loop, for several columns and lengths", () => {
     for (const n of LENGTHS) {
       const k = 1 + (n % 5);
@@ -385,6 +395,29 @@ describe("rows of Q, leverages and the sandwich's meat: WebAssembly equals JavaS
     const b = passes(wasm, X, R, inv, w, sizes);
     expect({ Z: bitDiff(a.Z, b.Z), h: bitDiff(a.h, b.h), M: bitDiff(a.M, b.M) }).toEqual({ Z: [], h: [], M: [] });
     expect(a.M.some((v) => v !== 0)).toBe(true);
+  });
+
+  it("HC weights of every kind (e², e²·n/df, e²/(1 − h), e²/(1 − h)²), a row at leverage 1 counted and given 0", () => {
+    const r = rng(5);
+    const m = 131;
+    const e = Float64Array.from({ length: m + 9 }, () => r() * 2 - 1);
+    const h = Float64Array.from({ length: m }, () => r() * 0.9);
+    h[17] = 1;
+    h[40] = 1 - 1e-12;
+    for (const kind of [0, 1, 2, 3]) {
+      const run = (K: Kernel) => {
+        const ws = K.qWorkspace(new Float64Array([1]), new Float64Array([1]), 1, BLOCK_ROWS);
+        ws.h.set(h);
+        const ones = ws.hcWeights(e, 9, m, kind, 1.0625, 1 - 1e-10);
+        return { ones, w: ws.w.slice(0, m) };
+      };
+      const a = run(jsKernel);
+      const b = run(wasm);
+      expect(b.ones).toBe(a.ones);
+      expect(a.ones).toBe(kind >= 2 ? 2 : 0);
+      expect(bitDiff(a.w, b.w)).toEqual([]);
+      if (kind === 3) expect(a.w[5]).toBe((e[14] * e[14]) / ((1 - h[5]) * (1 - h[5])));
+    }
   });
 
   it("a workspace used after a newer one was made throws instead of reading stale memory", () => {

@@ -473,3 +473,38 @@ export function subtractBlock(pX: usize, pv: usize, pb: usize, k: i32, m: i32, s
 export function dotColumn(pa: usize, pb: usize, m: i32): f64 {
   return dot(pa, pb, m, 0);
 }
+
+/** s0 + a[0]² + a[1]² + … in order, one addition after another (the JavaScript loop's sum, bit for bit). */
+export function sumSquaresColumn(p: usize, m: i32, s0: f64): f64 {
+  let s = s0;
+  for (let i = 0; i < m; i++) {
+    const v = load<f64>(p + (<usize>i << 3));
+    s += v * v;
+  }
+  return s;
+}
+
+/**
+ * The sandwich weights of one block from the residuals e (at pe) and leverages h (at ph), into pw:
+ * kind 0 e², 1 e²·f (HC1, f = n/df), 2 e²/(1 − h), 3 e²/((1 − h)(1 − h)). Returns how many rows have
+ * h ≥ limit (kinds 2 and 3: their weights are undefined; the caller names the rows).
+ */
+export function hcWeightsBlock(pe: usize, ph: usize, pw: usize, m: i32, kind: i32, f: f64, limit: f64): i32 {
+  let ones = 0;
+  for (let i = 0; i < m; i++) {
+    const o = <usize>i << 3;
+    const e = load<f64>(pe + o);
+    const e2 = e * e;
+    let w = e2;
+    if (kind == 1) w = e2 * f;
+    else if (kind >= 2) {
+      const h = load<f64>(ph + o);
+      if (h >= limit) {
+        ones++;
+        w = 0;
+      } else w = kind == 2 ? e2 / (1 - h) : e2 / ((1 - h) * (1 - h));
+    }
+    store<f64>(pw + o, w);
+  }
+  return ones;
+}
