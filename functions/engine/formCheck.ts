@@ -26,7 +26,7 @@
  *   lmtest::petest(…, vcov = …) does. The added column goes onto the fit's factor by partitioned
  *   regression (addedVariableOnFactor); see DEVELOPERS.md for when a new factorisation is made.
  */
-import { BLOCK_ROWS, leastSquares, projectOnFactor, RANK_TOL, roughRssOnFactor, rssOnFactor, upperInverse, type QrFit } from "./leastSquares";
+import { SIDE_ROWS, leastSquares, projectOnFactor, RANK_TOL, roughRssOnFactor, rssOnFactor, upperInverse, type QrFit } from "./leastSquares";
 import { factorReusable, fittedOf, REUSE_CONDITION } from "./specTests";
 import { chiSquareQuantile, chiSquareSf, studentTwoSided } from "./distributions";
 import { BLOCK, classicalCovariance, defaultLags, forEachQBlock, hacCovariance, hcCovariance, leastSquaresInput, LEVERAGE_TOL } from "./covariance";
@@ -166,7 +166,7 @@ export function boxCoxProfileOf(X: Float64Array[], qr: QrFit, intercept: boolean
     const vv = new Float64Array(L);
     const out = roughRssOnFactor(X, qr, L, (start, m, V) => {
       if (!onLattice) {
-        for (let l = 0; l < L; l++) transform(todo[l], c[l], V, l * BLOCK_ROWS, start, m);
+        for (let l = 0; l < L; l++) transform(todo[l], c[l], V, l * SIDE_ROWS, start, m);
         return;
       }
       for (let i = 0; i < m; i++) {
@@ -183,7 +183,7 @@ export function boxCoxProfileOf(X: Float64Array[], qr: QrFit, intercept: boolean
           const q = mult[l];
           const w = !lattice[l] ? Math.expm1(todo[l] * v) * inv[l] : q === 0 ? v : ((q > 0 ? up[q] : down[-q]) - 1) * inv[l];
           const val = w + c[l];
-          V[l * BLOCK_ROWS + i] = val;
+          V[l * SIDE_ROWS + i] = val;
           vv[l] += val * val;
         }
       }

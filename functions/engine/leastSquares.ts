@@ -24,7 +24,6 @@
  */
 import { count, fail } from "./problems";
 import { kernel } from "./kernel";
-import { dotBlock } from "./blocks";
 
 /**
  * Relative length below which a column counts as a linear combination of the earlier ones. Exact
@@ -35,6 +34,13 @@ export const RANK_TOL = 1e-11;
 
 /** Rows per block: BLOCK_ROWS·(k+1) doubles stay in the processor's cache for k up to about 20. */
 export const BLOCK_ROWS = 256;
+
+/**
+ * Rows per block of the projections on a factor (rssOnFactor, roughRssOnFactor, projectOnFactor):
+ * each block's columns are copied once into the kernel's buffers and read by a few vector
+ * operations, so longer blocks cost fewer copies and calls.
+ */
+export const SIDE_ROWS = 2048;
 
 /**
  * When κ·max|c|/min|c| (κ the 1-norm condition estimate of the column-scaled design, c the scaled
@@ -446,17 +452,6 @@ export function semiNormalSolve(R: Float64Array, k: number, c: Float64Array): vo
   }
 }
 
-/** Σ_j (c_j/scale_j)·X_j over rows [start, start + m), subtracted from r there. */
-export function subtractCombination(X: Float64Array[], scale: Float64Array, c: Float64Array, r: Float64Array, start: number, m: number): void {
-  const end = start + m;
-  for (let j = 0; j < X.length; j++) {
-    const b = c[j] / scale[j];
-    if (b === 0) continue;
-    const col = X[j];
-    for (let i = start; i < end; i++) r[i] -= b * col[i];
-  }
-}
-
 /**
  * v on the design X through its factor `qr` (as residualSS, the corrected semi-normal equations),
  * keeping what a partitioned regression needs: the coefficients c of the column-scaled design
@@ -468,24 +463,39 @@ export function projectOnFactor(X: Float64Array[], qr: QrFit, v: Float64Array, r
   const k = X.length;
   const n = v.length;
   const scale = qr.scale;
+  const B = SIDE_ROWS;
+  const ws = kernel().sidesWorkspace(k, 1, B);
+  const { V } = ws;
   const c = new Float64Array(k);
-  for (let j = 0; j < k; j++) c[j] = dotBlock(X[j], 0, v, 0, n) / scale[j];
-  semiNormalSolve(qr.R, k, c);
-  const t = new Float64Array(k);
-  const B = BLOCK_ROWS;
   for (let start = 0; start < n; start += B) {
     const m = Math.min(B, n - start);
-    for (let i = start; i < start + m; i++) r[i] = v[i];
-    subtractCombination(X, scale, c, r, start, m);
-    for (let j = 0; j < k; j++) t[j] += dotBlock(X[j], start, r, start, m);
+    V.set(v.subarray(start, start + m));
+    ws.load(X, start, m);
+    ws.dots(0, m, c, 0);
+  }
+  for (let j = 0; j < k; j++) c[j] /= scale[j];
+  semiNormalSolve(qr.R, k, c);
+  const b = Float64Array.from(c, (cj, j) => cj / scale[j]);
+  const t = new Float64Array(k);
+  for (let start = 0; start < n; start += B) {
+    const m = Math.min(B, n - start);
+    V.set(v.subarray(start, start + m));
+    ws.load(X, start, m);
+    ws.subtract(0, m, b, 0);
+    ws.dots(0, m, t, 0);
+    r.set(V.subarray(0, m), start);
   }
   for (let j = 0; j < k; j++) t[j] /= scale[j];
   semiNormalSolve(qr.R, k, t);
+  const bt = Float64Array.from(t, (tj, j) => tj / scale[j]);
   let rss = 0;
   for (let start = 0; start < n; start += B) {
     const m = Math.min(B, n - start);
-    subtractCombination(X, scale, t, r, start, m);
-    for (let i = start; i < start + m; i++) rss += r[i] * r[i];
+    V.set(r.subarray(start, start + m));
+    ws.load(X, start, m);
+    ws.subtract(0, m, bt, 0);
+    rss += ws.selfDot(0, m);
+    r.set(V.subarray(0, m), start);
   }
   for (let j = 0; j < k; j++) c[j] += t[j];
   return { c, rss };
@@ -504,7 +514,7 @@ function rssErrorBound(qr: QrFit, k: number, vv: number, rss: number): number {
 
 /**
  * RSS of L right-hand sides on the design X through its factor `qr`, each side generated block by
- * block: fill(start, m, V, pass, D) writes rows [start, start + m) of side l to V[l·BLOCK_ROWS + i], and
+ * block: fill(start, m, V, pass, D) writes rows [start, start + m) of side l to V[l·SIDE_ROWS + i], and
  * is called once per block in each of the two passes (a side is never held whole). Pass 1: X_sᵀv and
  * the semi-normal solution c; pass 2: r = v − X_s c and ‖r‖². The error of ‖r‖² is ‖X_s δc‖², second
  * order in the error δc of c; where its bound (rssErrorBound) exceeds 1e-16 the correction step of the
@@ -522,7 +532,7 @@ export function rssOnFactor(
 ): { rss: Float64Array; cross: Float64Array | null } {
   const k = X.length;
   const n = qr.n;
-  const B = BLOCK_ROWS;
+  const B = SIDE_ROWS;
   const scale = qr.scale;
   const ws = kernel().sidesWorkspace(k, L, B);
   const { V } = ws;
@@ -589,7 +599,7 @@ export function rssOnFactor(
 export function roughRssOnFactor(X: Float64Array[], qr: QrFit, L: number, fill: (start: number, m: number, V: Float64Array) => void): { rss: Float64Array; bound: Float64Array } {
   const k = X.length;
   const n = qr.n;
-  const B = BLOCK_ROWS;
+  const B = SIDE_ROWS;
   const ws = kernel().sidesWorkspace(k, L, B);
   const { V } = ws;
   const g = new Float64Array(L * k);

@@ -16,7 +16,7 @@
 import { fitUncached } from "../../functions/engine/model";
 import { parseOptions } from "../../functions/engine/options";
 import * as ls from "../../functions/engine/leastSquares";
-import { leastSquares, projectOnFactor, roughRssOnFactor, rssOnFactor, BLOCK_ROWS } from "../../functions/engine/leastSquares";
+import { leastSquares, projectOnFactor, roughRssOnFactor, rssOnFactor, SIDE_ROWS } from "../../functions/engine/leastSquares";
 import { boxCox, boxCoxOnLogs, boxCoxProfileOf, levelOnLogFactor, peTest } from "../../functions/engine/formCheck";
 import { auxiliary, breuschPaganKoenker, breuschPaganOf, breuschPaganOriginal, factorReusable, jarqueBera, jarqueBeraOf, reset, REUSE_CONDITION } from "../../functions/engine/specTests";
 import { hcCovariance, classicalCovariance, leastSquaresInput } from "../../functions/engine/covariance";
@@ -88,7 +88,7 @@ describe("solves on the fit's factor (corrected semi-normal equations)", () => {
     const out = rssOnFactor(f.design, f.qr, 2, (start, m, V) => {
       for (let i = 0; i < m; i++) {
         V[i] = v[start + i];
-        V[BLOCK_ROWS + i] = w[start + i];
+        V[SIDE_ROWS + i] = w[start + i];
       }
     });
     expect(rel(out.rss[0], fresh.rss)).toBeLessThan(1e-12);
