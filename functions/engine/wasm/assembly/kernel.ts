@@ -445,27 +445,12 @@ export function dotsBlock(pX: usize, pv: usize, k: i32, m: i32, stride: i32, pg:
   }
 }
 
-/** v[i] −= b_j·X_j[i] for j = 0 … k−1 in order, skipping b_j = 0, for i < m (one load and store of v per row pair). */
+/** v[i] −= b_j·X_j[i] for j = 0 … k−1 in order, skipping b_j = 0, for i < m (column by column, as the JavaScript loop). */
 export function subtractBlock(pX: usize, pv: usize, pb: usize, k: i32, m: i32, stride: i32): void {
   const colBytes = <usize>stride << 3;
-  let i = 0;
-  for (; i + 1 < m; i += 2) {
-    const o = <usize>i << 3;
-    let v = v128.load(pv + o);
-    for (let j = 0; j < k; j++) {
-      const w = load<f64>(pb + (<usize>j << 3));
-      if (w != 0) v = f64x2.sub(v, f64x2.mul(f64x2.splat(w), v128.load(pX + <usize>j * colBytes + o)));
-    }
-    v128.store(pv + o, v);
-  }
-  if (i < m) {
-    const o = <usize>i << 3;
-    let v = load<f64>(pv + o);
-    for (let j = 0; j < k; j++) {
-      const w = load<f64>(pb + (<usize>j << 3));
-      if (w != 0) v -= w * load<f64>(pX + <usize>j * colBytes + o);
-    }
-    store<f64>(pv + o, v);
+  for (let j = 0; j < k; j++) {
+    const w = load<f64>(pb + (<usize>j << 3));
+    if (w != 0) axpy(pX + <usize>j * colBytes, pv, m, w);
   }
 }
 
