@@ -13,6 +13,7 @@ import { breakTestTable, rollingTable } from "./cells/time";
 import { fitView, elasticitiesView, testsView, rollingView, breakView, makeCaller, cacheStats, readColumns, type CellFunction, type ElasticellApi } from "./paneApi";
 import { formCheckTable, heteroValue, normalValue, predictTable, smearingValue, testsTable } from "./cells/diagnostics";
 import { ivCheckTable } from "./cells/iv";
+import { wasmKernel } from "./engine/kernel";
 
 /**
  * Fits a log model by least squares and returns the coefficient table: Term, Transform, Coefficient, Std. error (its type in the header), t, p-value and the interval. Default form log-log, HC3 errors.
@@ -203,6 +204,9 @@ const published: ElasticellApi = {
   cacheStats,
 };
 (globalThis as unknown as { Elasticell: ElasticellApi }).Elasticell = published;
+// The WebAssembly kernel compiles now, not at the first formula: on a page's main thread it compiles
+// in the background, and the first fits use the JavaScript kernel (the same numbers) until it is ready.
+wasmKernel();
 
 /**
  * One row per distinct key (product, store, region): Group, Observations, then the elasticity and its standard error for each regressor, R² and the Breusch–Pagan p. A group that cannot be fitted shows why; the others still come.
