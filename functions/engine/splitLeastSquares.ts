@@ -341,7 +341,7 @@ function scan(state: PartState, op: PartOp): PartAnswer {
 
 /**
  * Keeps the usable rows (and, under zeros=drop, those with every logged value > 0), in place, then
- * logs y and the logged x columns as the cell path does (Math.log, column by column), and builds the
+ * logs y and the logged x columns as the cell path does (the kernel's log, Math.log's values), and builds the
  * fit's design: a column of ones when there is an intercept, then the x columns.
  */
 function prepare(state: PartState, op: PartOp): PartAnswer {
@@ -394,12 +394,13 @@ function prepare(state: PartState, op: PartOp): PartAnswer {
   const n = w;
   const y = rawY.subarray(0, n);
   const x = rawX.slice(0, kx).map((c) => c.subarray(0, n));
-  // one pass per column: the log (in place), the first value and constancy, max|x| and Σx² (norms)
+  // per column: the log in place (the kernel's, Math.log's values), then max|x| and Σx² (norms, in
+  // order: the sums of leastSquares.ts norm2) and whether every value equals the first
+  if (logY) kernel().logInPlace(y);
   let yMax = 0;
   let ySum = 0;
   for (let i = 0; i < n; i++) {
-    const v = logY ? Math.log(y[i]) : y[i];
-    y[i] = v;
+    const v = y[i];
     ySum += v;
     const b = Math.abs(v);
     if (b > yMax) yMax = b;
@@ -410,32 +411,14 @@ function prepare(state: PartState, op: PartOp): PartAnswer {
   const sumSq: number[] = [];
   for (let j = 0; j < kx; j++) {
     const c = x[j];
-    const f = n > 0 ? (logged[j] ? Math.log(c[0]) : c[0]) : NaN;
-    let same = true;
-    let s = 0;
-    let m = 0;
-    if (logged[j]) {
-      for (let i = 0; i < n; i++) {
-        const v = Math.log(c[i]);
-        c[i] = v;
-        if (v !== f) same = false;
-        s += v * v;
-        const b = Math.abs(v);
-        if (b > m) m = b;
-      }
-    } else {
-      for (let i = 0; i < n; i++) {
-        const v = c[i];
-        if (v !== f) same = false;
-        s += v * v;
-        const b = Math.abs(v);
-        if (b > m) m = b;
-      }
-    }
+    if (logged[j]) kernel().logInPlace(c);
+    const f = n > 0 ? c[0] : NaN;
+    let i = 1;
+    while (i < n && c[i] === f) i++;
     first.push(f);
-    constant.push(same);
-    xMax.push(m);
-    sumSq.push(s);
+    constant.push(i >= n);
+    xMax.push(kernel().maxAbs(c));
+    sumSq.push(kernel().sumSquares(c));
   }
   state.n = n;
   state.y = y;
