@@ -343,6 +343,16 @@ function wasmKernelOf(x: KernelExports): Kernel {
   if (base > x.memory.buffer.byteLength) x.memory.grow(Math.ceil((base - x.memory.buffer.byteLength) / PAGE));
   const chunkA = () => new Float64Array(x.memory.buffer, pA, CHUNK);
   const chunkB = () => new Float64Array(x.memory.buffer, pB, CHUNK);
+  /** acc through step(m, acc) for each chunk of v in turn, the chunk copied into A first. */
+  const fold = (v: Float64Array, acc: number, step: (m: number, acc: number) => number): number => {
+    const A = chunkA();
+    for (let s = 0; s < v.length; s += CHUNK) {
+      const m = Math.min(CHUNK, v.length - s);
+      A.set(v.subarray(s, s + m));
+      acc = step(m, acc);
+    }
+    return acc;
+  };
   const columnOps: ColumnOps = {
     logInPlace(col: Float64Array): void {
       const A = chunkA();
@@ -355,39 +365,15 @@ function wasmKernelOf(x: KernelExports): Kernel {
         else jsColumnOps.logInPlace(part); // a value that is not a positive normal double: Math.log's answer (−Infinity, NaN…)
       }
     },
-    maxAbs(v: Float64Array): number {
-      const A = chunkA();
-      let best = 0;
-      for (let s = 0; s < v.length; s += CHUNK) {
-        const m = Math.min(CHUNK, v.length - s);
-        A.set(v.subarray(s, s + m));
-        best = x.maxAbsColumn(pA, m, best);
-      }
-      return best;
-    },
+    maxAbs: (v: Float64Array) => fold(v, 0, (m, best) => x.maxAbsColumn(pA, m, best)),
     scan(col: Float64Array): { sum: number; low: number } {
-      const A = chunkA();
       const S = new Float64Array(x.memory.buffer, pS, 2);
       S[0] = 0;
       S[1] = 0;
-      let low = 0;
-      for (let s = 0; s < col.length; s += CHUNK) {
-        const m = Math.min(CHUNK, col.length - s);
-        A.set(col.subarray(s, s + m));
-        low += x.scanColumn(pA, m, pS);
-      }
+      const low = fold(col, 0, (m, count) => count + x.scanColumn(pA, m, pS));
       return { sum: S[0] + S[1], low };
     },
-    sumSquares(v: Float64Array): number {
-      const A = chunkA();
-      let sum = 0;
-      for (let s = 0; s < v.length; s += CHUNK) {
-        const m = Math.min(CHUNK, v.length - s);
-        A.set(v.subarray(s, s + m));
-        sum = x.sumSquaresColumn(pA, m, sum);
-      }
-      return sum;
-    },
+    sumSquares: (v: Float64Array) => fold(v, 0, (m, sum) => x.sumSquaresColumn(pA, m, sum)),
     residuals(X: Float64Array[], b: Float64Array, y: Float64Array, r: Float64Array): void {
       const A = chunkA();
       const B = chunkB();

@@ -225,19 +225,12 @@ interface ColumnScan extends NonPositive {
 /** The zeros and negatives of a column, and its compensated sum (the arithmetic of stableSum), in one pass. */
 function nonPositive(col: Float64Array, rowNumbers: Int32Array): ColumnScan {
   const np: ColumnScan = { zeros: 0, negatives: 0, zeroRows: new RowList(), negativeRows: new RowList(), sum: 0 };
-  // the usual case, every value positive, in one pass of the kernel (the same sum); else the rows are listed below
+  // the sum and the count in one pass of the kernel; the rows are listed only when some value is ≤ 0
   const quick = kernel().scan(col);
-  if (quick.low === 0) {
-    np.sum = quick.sum;
-    return np;
-  }
-  let s = 0;
-  let c = 0;
+  np.sum = quick.sum;
+  if (quick.low === 0) return np;
   for (let i = 0; i < col.length; i++) {
     const v = col[i];
-    const t = s + v;
-    c += Math.abs(s) >= Math.abs(v) ? s - t + v : v - t + s;
-    s = t;
     if (v <= 0) {
       if (v === 0) {
         np.zeros++;
@@ -248,7 +241,6 @@ function nonPositive(col: Float64Array, rowNumbers: Int32Array): ColumnScan {
       }
     }
   }
-  np.sum = s + c;
   return np;
 }
 
