@@ -88,17 +88,9 @@ function isBinary(col: Float64Array): boolean {
   return true;
 }
 
-/** Kahan–Babuška (Neumaier) sum, for means of long columns. */
+/** Kahan–Babuška (Neumaier) sum, value by value in order, for means of long columns (the kernel's scan). */
 export function stableSum(a: ArrayLike<number>): number {
-  let s = 0;
-  let c = 0;
-  for (let i = 0; i < a.length; i++) {
-    const v = a[i];
-    const t = s + v;
-    c += Math.abs(s) >= Math.abs(v) ? s - t + v : v - t + s;
-    s = t;
-  }
-  return s + c;
+  return kernel().scan(a instanceof Float64Array ? a : Float64Array.from(a)).sum;
 }
 
 export interface Dataset {
