@@ -25,7 +25,7 @@ import { count, ElxProblem, fail, RowList, rowsPhrase, unavailable } from "./pro
 import { describeNonPositive } from "./transforms";
 import { EXACT_FIT, INTERCEPT } from "./fit";
 import { REUSE_CONDITION } from "./specTests";
-import { powerOfTwoAbove, WINDOW_HIGH, WINDOW_LOW } from "./scaling";
+import { workingUnitOfMax } from "./scaling";
 import { chiSquareSf, studentQuantile, studentTwoSided } from "./distributions";
 
 /** Thrown when isCancelled() answers true between two steps. */
@@ -138,11 +138,6 @@ class Rounds {
     if (this.progress) this.progress(this.done, this.total);
     return out as T[];
   }
-}
-
-/** 1 when m lies in the window of scaling.ts (or is 0), else the power of two above it (workingUnit from a maximum). */
-function unitOfMax(m: number): number {
-  return m === 0 || (m >= WINDOW_LOW && m <= WINDOW_HIGH) ? 1 : powerOfTwoAbove(m);
 }
 
 /** ‖x_j‖ from the parts' sums, as leastSquares.ts norm2 (one part: the same number). */
@@ -398,8 +393,8 @@ export async function columnFit(
       if (first === 0) fail(`${name} is zero in every row used: remove it from x`);
     }
   });
-  const yUnit = unitOfMax(Math.max(...preps.map((a) => a.yMax)));
-  const xUnits = spec.xNames.map((_, j) => unitOfMax(Math.max(...preps.map((a) => a.xMax[j]))));
+  const yUnit = workingUnitOfMax(Math.max(...preps.map((a) => a.yMax)));
+  const xUnits = spec.xNames.map((_, j) => workingUnitOfMax(Math.max(...preps.map((a) => a.xMax[j]))));
 
   // 3. The factor and the solve (refined when the design needs it); the residuals come with the
   // second passes unless the refinement computed them.
@@ -425,7 +420,7 @@ export async function columnFit(
   const mean0 = (preps.reduce((s, a) => s + a.ySum, 0) * (1 / yUnit)) / n;
   const passes = await rounds.all<PassesAnswer>((p) => ({
     kind: "passes", R: qr.R, scale: qr.scale, hc, hc1: n / df, yUnit, mean: mean0, coef: qr.pending ? qr.coef : null,
-    bpUnit: reuseDesign ? (qr.pending ? 1 : unitOfMax(qr.maxResid)) : null, stride, offset: offsets[p], firstRow,
+    bpUnit: reuseDesign ? (qr.pending ? 1 : workingUnitOfMax(qr.maxResid)) : null, stride, offset: offsets[p], firstRow,
   }));
   if (qr.pending) {
     let rss = 0;
@@ -443,7 +438,7 @@ export async function columnFit(
   }
   // an exact fit's residuals are rounding noise: t, p and the tests are undefined (fit.ts isExact)
   const exact = qr.rss > EXACT_FIT * qr.sumY2 ? "" : `the fit is exact (every residual is zero up to rounding): ${spec.yName} is an exact linear combination of the regressors, which usually means it was computed from them or that an x column is ${spec.yName} in another form; that leaves t, p and the tests undefined`;
-  const eUnit = unitOfMax(qr.maxResid);
+  const eUnit = workingUnitOfMax(qr.maxResid);
   const reuse = !exact && reuseDesign;
   const ones = RowList.fromRuns(passes.map((a) => a.leverageOne));
   if (ones.count > 0) fail(`${rowsPhrase(ones)} alone ${ones.count === 1 ? "determines" : "determine"} a coefficient (leverage 1), so ${spec.se} is undefined; use se=HC1 or se=HC0, or add rows`);

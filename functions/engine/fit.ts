@@ -7,8 +7,9 @@
 import { count, fail, quote, unavailable } from "./problems";
 import { leastSquares, type Dependency, type QrFit } from "./leastSquares";
 import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, leastSquaresInput, originalUnits, standardError, type Covariance, type CovarianceInput } from "./covariance";
-import { normalised, scaled, workingUnit } from "./scaling";
+import { normalised, scaled, workingUnit, workingUnitOfMax } from "./scaling";
 import { originalMedian, transformLabel, type Dataset, type Transform } from "./transforms";
+import type { ColumnFacts } from "./kernel";
 import { fisherSf, studentQuantile, studentTwoSided } from "./distributions";
 import type { SeType } from "./options";
 import { requireSeType, type EstimatorInfo } from "./estimators";
@@ -322,7 +323,7 @@ export class OlsFit extends Model {
     super(data, intercept && keys.length === 0);
     const terms = this.terms;
     const w = data.roles.weights;
-    this.yUnit = workingUnit(data.y);
+    this.yUnit = data.yFacts?.col === data.y ? workingUnitOfMax(data.yFacts.maxAbs) : workingUnit(data.y);
     // plain least squares reads y without writing it: no copy when it needs no rescaling (v·1 = v)
     const y = this.yUnit === 1 && keys.length === 0 && !w ? data.y : scaled(data.y, this.yUnit);
     if (keys.length > 0) {
@@ -343,7 +344,9 @@ export class OlsFit extends Model {
       this.residuals = Float64Array.from(u, (v, i) => v / sw[i]);
       this.covInput = { columns: Xs, factor: this.qr, scores: u, ssr: this.qr.rss, dfResid: this.dfResid, rowNumbers: data.rowNumbers };
     } else {
-      const ls = leastSquares(this.design, y);
+      // Σx² of the logged columns came with their logs (the same doubles sumSquares gives); the intercept's is n
+      const known = this.design.map((c, j) => (this.intercept && j === 0 ? data.n : factsOf(data, j - (this.intercept ? 1 : 0), c)?.sumSq ?? null));
+      const ls = leastSquares(this.design, y, true, known);
       this.qr = ls.qr ?? explainDependency(ls.dependent as Dependency, terms);
       this.residuals = this.qr.resid;
       this.covInput = leastSquaresInput(this.design, this.qr, data.rowNumbers, this.dfResid);
@@ -595,4 +598,10 @@ function explainDependency(d: Dependency, terms: Term[]): never {
   const others = d.on.map((i) => terms[i].name);
   const list = others.length === 1 ? others[0] : `${others.slice(0, -1).join(", ")} and ${others[others.length - 1]}`;
   return fail(`${name} is an exact linear combination of ${list} (collinear): remove one of these columns`);
+}
+
+/** The facts of x column j of the dataset when they describe the column c (null otherwise). */
+export function factsOf(data: Dataset, j: number, c: Float64Array): ColumnFacts | null {
+  const f = j >= 0 ? data.xFacts[j] : null;
+  return f && f.col === c ? f : null;
 }

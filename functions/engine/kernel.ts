@@ -62,12 +62,24 @@ export interface QWorkspace {
 }
 
 /**
+ * What a column's later passes would compute, taken while it is at hand: max|v| (maxAbs's) and Σv²
+ * (sumSquares's, the same double), with the column they describe (a reader checks it is the same array).
+ */
+export interface ColumnFacts {
+  col: Float64Array;
+  maxAbs: number;
+  sumSq: number;
+}
+
+/**
  * Passes over whole columns (of any length). They use no workspace, so they may run between a
  * workspace's calls.
  */
 export interface ColumnOps {
   /** col[i] = log col[i] for every i, Math.log's values (fdlibm's log: V8's Math.log is fdlibm's). */
   logInPlace(col: Float64Array): void;
+  /** logInPlace, and the logged column's facts from the same read: max|log x| and Σ(log x)² in order. */
+  logWithFacts(col: Float64Array): ColumnFacts;
   /** max_i |v_i| (0 for an empty column; NaN never counts). */
   maxAbs(v: Float64Array): number;
   /** The compensated sum of col (stableSum's arithmetic, value by value in order) and how many values are ≤ 0. */
@@ -112,6 +124,10 @@ export interface Kernel extends ColumnOps {
 const jsColumnOps: ColumnOps = {
   logInPlace(col: Float64Array): void {
     for (let i = 0; i < col.length; i++) col[i] = Math.log(col[i]);
+  },
+  logWithFacts(col: Float64Array): ColumnFacts {
+    jsColumnOps.logInPlace(col);
+    return { col, maxAbs: jsColumnOps.maxAbs(col), sumSq: jsColumnOps.sumSquares(col) };
   },
   maxAbs(v: Float64Array): number {
     let m = 0;
@@ -317,6 +333,7 @@ interface KernelExports {
   dotColumn(pa: number, pb: number, m: number): number;
   sumSquaresColumn(p: number, m: number, s0: number): number;
   hcWeightsBlock(pe: number, ph: number, pw: number, m: number, kind: number, f: number, limit: number): number;
+  factsColumn(p: number, m: number, pS: number): void;
 }
 
 /** Rows per chunk of the column operations (two chunks and a pair of sums sit at the start of the heap). */
@@ -353,17 +370,33 @@ function wasmKernelOf(x: KernelExports): Kernel {
     }
     return acc;
   };
+  /** The log of each chunk in the module; with facts, max|log x| and Σ(log x)² of the logged chunks into S. */
+  const logChunks = (col: Float64Array, facts: boolean): Float64Array => {
+    const A = chunkA();
+    const S = new Float64Array(x.memory.buffer, pS, 2);
+    S[0] = 0;
+    S[1] = 0;
+    for (let s = 0; s < col.length; s += CHUNK) {
+      const m = Math.min(CHUNK, col.length - s);
+      const part = col.subarray(s, s + m);
+      A.set(part);
+      if (m & 1) A[m] = 1; // the odd chunk's second lane: a value the log takes
+      if (x.logColumn(pA, (m + 1) & ~1) === 0) part.set(A.subarray(0, m));
+      else {
+        jsColumnOps.logInPlace(part); // a value that is not a positive normal double: Math.log's answer (−Infinity, NaN…)
+        A.set(part);
+      }
+      if (facts) x.factsColumn(pA, m, pS);
+    }
+    return Float64Array.from(S);
+  };
   const columnOps: ColumnOps = {
     logInPlace(col: Float64Array): void {
-      const A = chunkA();
-      for (let s = 0; s < col.length; s += CHUNK) {
-        const m = Math.min(CHUNK, col.length - s);
-        const part = col.subarray(s, s + m);
-        A.set(part);
-        if (m & 1) A[m] = 1; // the odd chunk's second lane: a value the log takes
-        if (x.logColumn(pA, (m + 1) & ~1) === 0) part.set(A.subarray(0, m));
-        else jsColumnOps.logInPlace(part); // a value that is not a positive normal double: Math.log's answer (−Infinity, NaN…)
-      }
+      logChunks(col, false);
+    },
+    logWithFacts(col: Float64Array): ColumnFacts {
+      const S = logChunks(col, true);
+      return { col, maxAbs: S[0], sumSq: S[1] };
     },
     maxAbs: (v: Float64Array) => fold(v, 0, (m, best) => x.maxAbsColumn(pA, m, best)),
     scan(col: Float64Array): { sum: number; low: number } {

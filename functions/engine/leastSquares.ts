@@ -74,8 +74,8 @@ export interface Dependency {
   on: number[];
 }
 
-function norm2(a: Float64Array): number {
-  const s = kernel().sumSquares(a);
+function norm2(a: Float64Array, known: number | null = null): number {
+  const s = known ?? kernel().sumSquares(a);
   if (s > 1e-280 && s < 1e280) return Math.sqrt(s);
   let m = 0; // rescale to avoid overflow or underflow
   for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs(a[i]));
@@ -133,17 +133,18 @@ export type LeastSquares = { qr: QrFit; dependent: null } | { qr: null; dependen
  * @param y the response (not modified)
  * @param refineWhenNeeded false for auxiliary regressions whose statistic needs only the residual
  *   sum of squares or one t ratio to working accuracy (as R's lm.fit gives them)
+ * @param sumSq Σx_j² of column j where already known (kernel().sumSquares's double), else null
  * @returns `{ qr }` for a full-rank design, else `{ dependent }`: the first column within RANK_TOL of
  *   the span of earlier ones, with the columns it depends on (none: the column is all zeros)
  */
-export function leastSquares(X: Float64Array[], y: Float64Array, refineWhenNeeded = true): LeastSquares {
+export function leastSquares(X: Float64Array[], y: Float64Array, refineWhenNeeded = true, sumSq: (number | null)[] | null = null): LeastSquares {
   const k = X.length;
   const n = y.length;
   if (n <= k) fail(`${count(n, "usable row")} ${n === 1 ? "is" : "are"} too few for ${count(k, "coefficient")}`);
   const scale = new Float64Array(k);
   const inv = new Float64Array(k);
   for (let j = 0; j < k; j++) {
-    const s = norm2(X[j]);
+    const s = norm2(X[j], sumSq?.[j] ?? null);
     if (s === 0) return { qr: null, dependent: { column: j, on: [] } };
     scale[j] = s;
     inv[j] = 1 / s;

@@ -30,7 +30,11 @@ function maxAbs(v: ArrayLike<number>): number {
 
 /** 1 when max|v| lies in [2^−100, 2^100] (or v is all zero), else unitOf(v). */
 export function workingUnit(v: ArrayLike<number>): number {
-  const m = maxAbs(v);
+  return workingUnitOfMax(maxAbs(v));
+}
+
+/** workingUnit of a column whose max|v| is m. */
+export function workingUnitOfMax(m: number): number {
   return m === 0 || (m >= WINDOW_LOW && m <= WINDOW_HIGH) ? 1 : powerOfTwoAbove(m);
 }
 

@@ -11,7 +11,7 @@
  * Sources: Bellemare and Wichman (2020), "Elasticities and the inverse hyperbolic sine
  * transformation", Oxford Bulletin of Economics and Statistics 82(1), for asinh.
  */
-import { kernel } from "./kernel";
+import { kernel, type ColumnFacts } from "./kernel";
 import { cut, fail, count, quote, rowsPhrase, nearest, RowList } from "./problems";
 import type { Options } from "./options";
 import { subsetRoles, type RawData, type RoleColumns } from "./intake";
@@ -119,6 +119,12 @@ export interface Dataset {
   /** Means in original units, of the rows used. */
   yMean: number;
   xMeans: number[];
+  /**
+   * Facts of y and of each x column taken while it was transformed (max|v| and Σv²; null where the
+   * column was not logged here): readers check that the facts' column is the one they read.
+   */
+  yFacts: ColumnFacts | null;
+  xFacts: (ColumnFacts | null)[];
   /** How many values ≤ 0 the y column had among the rows read (before any drop), and of them how many < 0. */
   yNonPositive: number;
   yNegative: number;
@@ -454,16 +460,19 @@ export function prepare(raw: RawData, o: Options, logs: Prelogged | null = null)
   // is then the caller's too, and is copied before it is transformed.
   const own = (c: Float64Array, original: Float64Array) => (logs && c === original ? c.slice() : c);
   const ly = logs && y === raw.y && yTransform.kind === "log" ? logs.y : null;
+  let yFacts: ColumnFacts | null = null;
   if (ly) y = ly;
   else {
     y = own(y, raw.y);
-    if (yTransform.kind !== "level") transformInPlace(y, yTransform);
+    if (yTransform.kind !== "level") yFacts = transformInPlace(y, yTransform);
   }
+  const facts: (ColumnFacts | null)[] = [];
   x = x.map((c, j) => {
     const lx = logs && c === allX[j] && xT[j].kind === "log" ? logs.x[j] ?? null : null;
+    facts.push(null);
     if (lx) return lx;
     const out = own(c, allX[j]);
-    if (xT[j].kind !== "level") transformInPlace(out, xT[j]);
+    if (xT[j].kind !== "level") facts[j] = transformInPlace(out, xT[j]);
     return out;
   });
   const regressors = x.slice(0, kx);
@@ -501,6 +510,8 @@ export function prepare(raw: RawData, o: Options, logs: Prelogged | null = null)
     leftOutNegative: droppedNegative,
     yMean,
     xMeans,
+    yFacts,
+    xFacts: facts.slice(0, kx).concat(regressors.slice(kx).map(() => null)),
     yNonPositive: yNp.zeros + yNp.negatives,
     yNegative: yNp.negatives,
     yZerosUsed,
@@ -543,12 +554,11 @@ function indicators(codes: Int32Array, labels: string[], name: string): { name: 
   return order.slice(1).map((c) => ({ name: `${name}: ${labels[c]}`, column: Float64Array.from(codes, (v) => (v === c ? 1 : 0)) }));
 }
 
-function transformInPlace(col: Float64Array, t: Transform): void {
-  if (t.kind === "log") {
-    kernel().logInPlace(col); // Math.log's values
-  } else {
-    for (let i = 0; i < col.length; i++) col[i] = apply(t, col[i]);
-  }
+/** Transforms col in place; for the log, returns the logged column's facts (taken in the same read). */
+function transformInPlace(col: Float64Array, t: Transform): ColumnFacts | null {
+  if (t.kind === "log") return kernel().logWithFacts(col); // Math.log's values
+  for (let i = 0; i < col.length; i++) col[i] = apply(t, col[i]);
+  return null;
 }
 
 /**

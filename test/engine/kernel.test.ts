@@ -257,6 +257,21 @@ describe("column operations (logs, largest magnitude, compensated sum, residuals
     expect(bitDiff(a, b)).toEqual([]);
   });
 
+  it("logWithFacts logs as logInPlace and gives maxAbs's and sumSquares's doubles of the logged column", () => {
+    for (const n of LENGTHS) {
+      const v = Float64Array.from({ length: n }, () => Math.exp((r() - 0.5) * 20));
+      if (n > 100) v[77] = 0; // a chunk handed to Math.log (−Infinity): its facts too
+      for (const K of [wasm, jsKernel]) {
+        const a = v.slice();
+        const f = K.logWithFacts(a);
+        expect(f.col).toBe(a);
+        expect(bitDiff(a, Float64Array.from(v, Math.log))).toEqual([]);
+        expect(Object.is(f.maxAbs, jsKernel.maxAbs(a))).toBe(true);
+        expect(Object.is(f.sumSq, jsKernel.sumSquares(a))).toBe(true);
+      }
+    }
+  });
+
   it("logInPlace hands a chunk with zero, negative, subnormal, infinite or NaN values to Math.log (−Infinity, NaN, the subnormal's log)", () => {
     for (const odd of [0, -1, 5e-324, 1e-310, Infinity, NaN, -0]) {
       const v = Float64Array.from({ length: 3001 }, (_, i) => 1 + i / 7);

@@ -118,3 +118,20 @@ describe("rank rule", () => {
     for (const v of lre) expect(v).toBeGreaterThanOrEqual(7.5);
   });
 });
+
+describe("column norms known beforehand", () => {
+  it("Σx² given (as the logs' facts give it) yields the factor of the norms computed here, bit for bit", () => {
+    const { X, y } = design(5000, 6, 314);
+    const plain = solve(X, y);
+    const known = X.map((c) => c.reduce((s, v) => s + v * v, 0)); // the same sum in order
+    const r = leastSquares(X, y, true, known);
+    expect(r.qr).not.toBeNull();
+    const q = r.qr!;
+    expect(Array.from(q.scale)).toEqual(Array.from(plain.scale));
+    expect(Array.from(q.R)).toEqual(Array.from(plain.R));
+    expect(Array.from(q.coef)).toEqual(Array.from(plain.coef));
+    // null entries are computed as before
+    const some = leastSquares(X, y, true, known.map((v, j) => (j % 2 ? v : null))).qr!;
+    expect(Array.from(some.coef)).toEqual(Array.from(plain.coef));
+  });
+});

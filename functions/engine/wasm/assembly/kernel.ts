@@ -459,6 +459,12 @@ export function dotColumn(pa: usize, pb: usize, m: i32): f64 {
   return dot(pa, pb, m, 0);
 }
 
+/** max(m0, max |a[i]|) and s0 + Σ a[i]² in order for i < m, into pS[0] and pS[1] (both carried in from there). */
+export function factsColumn(p: usize, m: i32, pS: usize): void {
+  store<f64>(pS, maxAbsColumn(p, m, load<f64>(pS)));
+  store<f64>(pS, sumSquaresColumn(p, m, load<f64>(pS, 8)), 8);
+}
+
 /** s0 + a[0]² + a[1]² + … in order, one addition after another (the JavaScript loop's sum, bit for bit). */
 export function sumSquaresColumn(p: usize, m: i32, s0: f64): f64 {
   let s = s0;
