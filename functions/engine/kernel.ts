@@ -82,7 +82,7 @@ export interface ColumnOps {
   logWithFacts(col: Float64Array): ColumnFacts;
   /** max_i |v_i| (0 for an empty column; NaN never counts). */
   maxAbs(v: Float64Array): number;
-  /** The compensated sum of col (stableSum's arithmetic, value by value in order) and how many values are ≤ 0. */
+  /** The compensated sum of col (Neumaier's, over the even and the odd rows, then combined) and how many values are ≤ 0. */
   scan(col: Float64Array): { sum: number; low: number };
   /** Σ v_i², one addition after another in order (the plain loop's sum). */
   sumSquares(v: Float64Array): number;
@@ -120,6 +120,13 @@ export interface Kernel extends ColumnOps {
   qWorkspace(R: Float64Array, inv: Float64Array, k: number, rows: number): QWorkspace;
 }
 
+/** (s0 + c0) + (s1 + c1) for two compensated sums: the two leading parts added by one more Neumaier step. */
+function combineSums(s0: number, c0: number, s1: number, c1: number): number {
+  const t = s0 + s1;
+  const c = c0 + c1 + (Math.abs(s0) >= Math.abs(s1) ? s0 - t + s1 : s1 - t + s0);
+  return t + c;
+}
+
 /** The column operations in plain JavaScript. */
 const jsColumnOps: ColumnOps = {
   logInPlace(col: Float64Array): void {
@@ -138,17 +145,33 @@ const jsColumnOps: ColumnOps = {
     return m;
   },
   scan(col: Float64Array): { sum: number; low: number } {
-    let s = 0;
-    let c = 0;
+    // two Neumaier sums, over the even and over the odd rows, combined by one more compensated step
+    let s0 = 0;
+    let c0 = 0;
+    let s1 = 0;
+    let c1 = 0;
     let low = 0;
-    for (let i = 0; i < col.length; i++) {
+    let i = 0;
+    for (; i + 1 < col.length; i += 2) {
       const v = col[i];
-      const t = s + v;
-      c += Math.abs(s) >= Math.abs(v) ? s - t + v : v - t + s;
-      s = t;
+      const t = s0 + v;
+      c0 += Math.abs(s0) >= Math.abs(v) ? s0 - t + v : v - t + s0;
+      s0 = t;
+      const u = col[i + 1];
+      const t1 = s1 + u;
+      c1 += Math.abs(s1) >= Math.abs(u) ? s1 - t1 + u : u - t1 + s1;
+      s1 = t1;
+      if (v <= 0) low++;
+      if (u <= 0) low++;
+    }
+    if (i < col.length) {
+      const v = col[i];
+      const t = s0 + v;
+      c0 += Math.abs(s0) >= Math.abs(v) ? s0 - t + v : v - t + s0;
+      s0 = t;
       if (v <= 0) low++;
     }
-    return { sum: s + c, low };
+    return { sum: combineSums(s0, c0, s1, c1), low };
   },
   sumSquares(v: Float64Array): number {
     let s = 0;
@@ -356,7 +379,7 @@ function wasmKernelOf(x: KernelExports): Kernel {
   const pA = x.heapBase();
   const pB = pA + 8 * CHUNK;
   const pS = pB + 8 * CHUNK;
-  const base = align(pS + 16);
+  const base = align(pS + 32);
   if (base > x.memory.buffer.byteLength) x.memory.grow(Math.ceil((base - x.memory.buffer.byteLength) / PAGE));
   const chunkA = () => new Float64Array(x.memory.buffer, pA, CHUNK);
   const chunkB = () => new Float64Array(x.memory.buffer, pB, CHUNK);
@@ -400,11 +423,10 @@ function wasmKernelOf(x: KernelExports): Kernel {
     },
     maxAbs: (v: Float64Array) => fold(v, 0, (m, best) => x.maxAbsColumn(pA, m, best)),
     scan(col: Float64Array): { sum: number; low: number } {
-      const S = new Float64Array(x.memory.buffer, pS, 2);
-      S[0] = 0;
-      S[1] = 0;
+      const S = new Float64Array(x.memory.buffer, pS, 4);
+      S.fill(0);
       const low = fold(col, 0, (m, count) => count + x.scanColumn(pA, m, pS));
-      return { sum: S[0] + S[1], low };
+      return { sum: combineSums(S[0], S[2], S[1], S[3]), low };
     },
     sumSquares: (v: Float64Array) => fold(v, 0, (m, sum) => x.sumSquaresColumn(pA, m, sum)),
     residuals(X: Float64Array[], b: Float64Array, y: Float64Array, r: Float64Array): void {

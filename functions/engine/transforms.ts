@@ -88,7 +88,7 @@ function isBinary(col: Float64Array): boolean {
   return true;
 }
 
-/** Kahan–Babuška (Neumaier) sum, value by value in order, for means of long columns (the kernel's scan). */
+/** Kahan–Babuška (Neumaier) sum for means of long columns (the kernel's scan: over the even and the odd rows, then combined). */
 export function stableSum(a: ArrayLike<number>): number {
   return kernel().scan(a instanceof Float64Array ? a : Float64Array.from(a)).sum;
 }
@@ -220,7 +220,7 @@ interface ColumnScan extends NonPositive {
   sum: number;
 }
 
-/** The zeros and negatives of a column, and its compensated sum (the arithmetic of stableSum), in one pass. */
+/** The zeros and negatives of a column, and its compensated sum (stableSum's), in one pass of the kernel when every value is above zero. */
 function nonPositive(col: Float64Array, rowNumbers: Int32Array): ColumnScan {
   const np: ColumnScan = { zeros: 0, negatives: 0, zeroRows: new RowList(), negativeRows: new RowList(), sum: 0 };
   // the sum and the count in one pass of the kernel; the rows are listed only when some value is ≤ 0

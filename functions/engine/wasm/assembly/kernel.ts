@@ -354,23 +354,38 @@ export function maxAbsColumn(p: usize, m: i32, m0: f64): f64 {
 }
 
 /**
- * Continues the compensated sum (s, c) at pS (Neumaier's: the arithmetic of stableSum, value by value
- * in order) over a[0..m−1], writing it back, and returns how many values are ≤ 0.
+ * Continues two compensated sums (Neumaier's), one over the even and one over the odd rows: (s, c)
+ * of the even rows at pS[0], pS[2] and of the odd rows at pS[1], pS[3] (a chunk starts at an even
+ * row; a last odd row goes to the even sums), writing them back; returns how many values are ≤ 0.
  */
 export function scanColumn(p: usize, m: i32, pS: usize): i32 {
-  let s = load<f64>(pS);
-  let c = load<f64>(pS, 8);
-  let low = 0;
-  for (let i = 0; i < m; i++) {
-    const v = load<f64>(p + (<usize>i << 3));
-    const t = s + v;
-    c += abs<f64>(s) >= abs<f64>(v) ? s - t + v : v - t + s;
+  let s = v128.load(pS);
+  let c = v128.load(pS, 16);
+  let low = i64x2.splat(0);
+  const zero = f64x2.splat(0);
+  let i = 0;
+  for (; i + 1 < m; i += 2) {
+    const v = v128.load(p + (<usize>i << 3));
+    const t = f64x2.add(s, v);
+    const big = f64x2.add(f64x2.sub(s, t), v); // |s| ≥ |v|: (s − t) + v
+    const small = f64x2.add(f64x2.sub(v, t), s); // else (v − t) + s
+    c = f64x2.add(c, v128.bitselect(big, small, f64x2.ge(f64x2.abs(s), f64x2.abs(v))));
     s = t;
-    if (v <= 0) low++;
+    low = i64x2.sub(low, f64x2.le(v, zero)); // a true lane is −1
   }
-  store<f64>(pS, s);
-  store<f64>(pS, c, 8);
-  return low;
+  let count = <i32>(i64x2.extract_lane(low, 0) + i64x2.extract_lane(low, 1));
+  if (i < m) {
+    const v = load<f64>(p + (<usize>i << 3));
+    const s0 = f64x2.extract_lane(s, 0);
+    const t = s0 + v;
+    const c0 = f64x2.extract_lane(c, 0) + (abs<f64>(s0) >= abs<f64>(v) ? s0 - t + v : v - t + s0);
+    s = f64x2.replace_lane(s, 0, t);
+    c = f64x2.replace_lane(c, 0, c0);
+    if (v <= 0) count++;
+  }
+  v128.store(pS, s);
+  v128.store(pS, c, 16);
+  return count;
 }
 
 // fdlibm's __ieee754_log (the log of V8's Math.log), its constants and its steps, two lanes at once
