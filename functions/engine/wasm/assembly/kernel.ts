@@ -406,44 +406,55 @@ const LG7: f64 = 1.479819860511658591e-01;
  * Every lane computes every branch with the same operations fdlibm performs on the branch it takes,
  * so the selected value is fdlibm's. Returns the number of pairs holding a value that is not a
  * positive normal double (zero, negative, subnormal, infinite, NaN): the caller then logs that chunk
- * itself.
+ * itself (logColumn below; logPair is one pair, 1 when it holds such a value).
  */
-export function logColumn(p: usize, m: i32): i32 {
-  let bad = 0;
+// @ts-ignore: decorator
+@inline
+function logPair(o: usize): i32 {
   const one = f64x2.splat(1.0);
   const half = f64x2.splat(0.5);
-  for (let i = 0; i < m; i += 2) {
+  const x = v128.load(o);
+  let hx = i64x2.shr_u(x, 32); // the high word, as fdlibm reads it (the sign bit makes it large)
+  const bad = v128.any_true(v128.or(i64x2.gt_s(i64x2.splat(0x00100000), hx), i64x2.gt_s(hx, i64x2.splat(0x7fefffff)))) ? 1 : 0;
+  let k = i64x2.sub(i64x2.shr_u(hx, 20), i64x2.splat(1023));
+  hx = v128.and(hx, i64x2.splat(0x000fffff));
+  const up = v128.and(i64x2.add(hx, i64x2.splat(0x95f64)), i64x2.splat(0x100000));
+  // x or x/2 into [√2/2, √2): the new high word, the low word kept
+  const xm = v128.or(i64x2.shl(v128.or(hx, v128.xor(up, i64x2.splat(0x3ff00000))), 32), v128.and(x, i64x2.splat(0xffffffff)));
+  k = i64x2.add(k, i64x2.shr_u(up, 20));
+  const f = f64x2.sub(xm, one);
+  const dk = f64x2.convert_low_i32x4_s(v128.shuffle<i32>(k, k, 0, 2, 0, 2));
+  const tiny = i64x2.gt_s(i64x2.splat(3), v128.and(i64x2.add(hx, i64x2.splat(2)), i64x2.splat(0x000fffff)));
+  const s = f64x2.div(f, f64x2.add(f64x2.splat(2.0), f));
+  const z = f64x2.mul(s, s);
+  const w = f64x2.mul(z, z);
+  const wide = i64x2.gt_s(v128.or(i64x2.sub(hx, i64x2.splat(0x6147a)), i64x2.sub(i64x2.splat(0x6b851), hx)), i64x2.splat(0));
+  const t1 = f64x2.mul(w, f64x2.add(f64x2.splat(LG2), f64x2.mul(w, f64x2.add(f64x2.splat(LG4), f64x2.mul(w, f64x2.splat(LG6))))));
+  const t2 = f64x2.mul(z, f64x2.add(f64x2.splat(LG1), f64x2.mul(w, f64x2.add(f64x2.splat(LG3), f64x2.mul(w, f64x2.add(f64x2.splat(LG5), f64x2.mul(w, f64x2.splat(LG7))))))));
+  const R = f64x2.add(t2, t1);
+  const hi = f64x2.mul(dk, f64x2.splat(LN2_HI));
+  const lo = f64x2.mul(dk, f64x2.splat(LN2_LO));
+  const hfsq = f64x2.mul(f64x2.mul(half, f), f);
+  // (fdlibm's k = 0 forms equal these with dk = 0: a − b = −(b − a) and v ± 0 = v in IEEE arithmetic)
+  const a = f64x2.sub(hi, f64x2.sub(f64x2.sub(hfsq, f64x2.add(f64x2.mul(s, f64x2.add(hfsq, R)), lo)), f));
+  const b = f64x2.sub(hi, f64x2.sub(f64x2.sub(f64x2.mul(s, f64x2.sub(f, R)), lo), f));
+  const r1 = f64x2.mul(f64x2.mul(f, f), f64x2.sub(half, f64x2.mul(f64x2.splat(0.33333333333333333), f)));
+  const c0 = f64x2.sub(hi, f64x2.sub(f64x2.sub(r1, lo), f));
+  const c = v128.bitselect(f64x2.add(hi, lo), c0, f64x2.eq(f, f64x2.splat(0)));
+  v128.store(o, v128.bitselect(c, v128.bitselect(a, b, wide), tiny));
+  return bad;
+}
+
+export function logColumn(p: usize, m: i32): i32 {
+  let bad = 0;
+  let i = 0;
+  // two pairs per step: their independent chains of operations overlap in the processor
+  for (; i + 3 < m; i += 4) {
     const o = p + (<usize>i << 3);
-    const x = v128.load(o);
-    let hx = i64x2.shr_u(x, 32); // the high word, as fdlibm reads it (the sign bit makes it large)
-    if (v128.any_true(v128.or(i64x2.gt_s(i64x2.splat(0x00100000), hx), i64x2.gt_s(hx, i64x2.splat(0x7fefffff))))) bad++;
-    let k = i64x2.sub(i64x2.shr_u(hx, 20), i64x2.splat(1023));
-    hx = v128.and(hx, i64x2.splat(0x000fffff));
-    const up = v128.and(i64x2.add(hx, i64x2.splat(0x95f64)), i64x2.splat(0x100000));
-    // x or x/2 into [√2/2, √2): the new high word, the low word kept
-    const xm = v128.or(i64x2.shl(v128.or(hx, v128.xor(up, i64x2.splat(0x3ff00000))), 32), v128.and(x, i64x2.splat(0xffffffff)));
-    k = i64x2.add(k, i64x2.shr_u(up, 20));
-    const f = f64x2.sub(xm, one);
-    const dk = f64x2.convert_low_i32x4_s(v128.shuffle<i32>(k, k, 0, 2, 0, 2));
-    const tiny = i64x2.gt_s(i64x2.splat(3), v128.and(i64x2.add(hx, i64x2.splat(2)), i64x2.splat(0x000fffff)));
-    const s = f64x2.div(f, f64x2.add(f64x2.splat(2.0), f));
-    const z = f64x2.mul(s, s);
-    const w = f64x2.mul(z, z);
-    const wide = i64x2.gt_s(v128.or(i64x2.sub(hx, i64x2.splat(0x6147a)), i64x2.sub(i64x2.splat(0x6b851), hx)), i64x2.splat(0));
-    const t1 = f64x2.mul(w, f64x2.add(f64x2.splat(LG2), f64x2.mul(w, f64x2.add(f64x2.splat(LG4), f64x2.mul(w, f64x2.splat(LG6))))));
-    const t2 = f64x2.mul(z, f64x2.add(f64x2.splat(LG1), f64x2.mul(w, f64x2.add(f64x2.splat(LG3), f64x2.mul(w, f64x2.add(f64x2.splat(LG5), f64x2.mul(w, f64x2.splat(LG7))))))));
-    const R = f64x2.add(t2, t1);
-    const hi = f64x2.mul(dk, f64x2.splat(LN2_HI));
-    const lo = f64x2.mul(dk, f64x2.splat(LN2_LO));
-    const hfsq = f64x2.mul(f64x2.mul(half, f), f);
-    // (fdlibm's k = 0 forms equal these with dk = 0: a − b = −(b − a) and v ± 0 = v in IEEE arithmetic)
-    const a = f64x2.sub(hi, f64x2.sub(f64x2.sub(hfsq, f64x2.add(f64x2.mul(s, f64x2.add(hfsq, R)), lo)), f));
-    const b = f64x2.sub(hi, f64x2.sub(f64x2.sub(f64x2.mul(s, f64x2.sub(f, R)), lo), f));
-    const r1 = f64x2.mul(f64x2.mul(f, f), f64x2.sub(half, f64x2.mul(f64x2.splat(0.33333333333333333), f)));
-    const c0 = f64x2.sub(hi, f64x2.sub(f64x2.sub(r1, lo), f));
-    const c = v128.bitselect(f64x2.add(hi, lo), c0, f64x2.eq(f, f64x2.splat(0)));
-    v128.store(o, v128.bitselect(c, v128.bitselect(a, b, wide), tiny));
+    bad += logPair(o);
+    bad += logPair(o + 16);
   }
+  for (; i < m; i += 2) bad += logPair(p + (<usize>i << 3));
   return bad;
 }
 
