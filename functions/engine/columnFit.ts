@@ -277,6 +277,15 @@ async function refineAcross(rounds: Rounds, design: string, merged: Merged, R: F
   }
 }
 
+/**
+ * Relative error bound of an RSS found without the correction step (leastSquares.ts rssErrorBound):
+ * ε²(κ√(nk) + kκ²)²·‖v‖²/RSS, times 100 for safety.
+ */
+function rssErrorBound(kappa: number, n: number, k: number, vv: number, rss: number): number {
+  const e = Number.EPSILON * (kappa * Math.sqrt(n * k) + k * kappa * kappa);
+  return rss > 0 ? 100 * e * e * (vv / rss) : Infinity;
+}
+
 /** "A, B and C". */
 function andList(names: string[]): string {
   return names.length === 1 ? names[0] : `${names.slice(0, -1).join(", ")} and ${names[names.length - 1]}`;
@@ -326,7 +335,8 @@ export async function columnFit(
     leftOut.notNumber += s.notNumber;
   }
   const rowsRead = usable + leftOut.blank + leftOut.notNumber;
-  const rounds = new Rounds(exec, rowsRead, 8, progress, isCancelled);
+  // the steps of the usual path: scan, prepare, norms, factor, passes, bpSolve, release
+  const rounds = new Rounds(exec, rowsRead, 7, progress, isCancelled);
   rounds.done = rowsRead;
   if (rowsRead === 0) fail("no data rows were read: check that the ranges hold the data below their headers");
   const names = [spec.yName, ...spec.xNames];
@@ -478,36 +488,45 @@ export async function columnFit(
     }
   };
   if (reuse) {
-    // on the fit's factor: corrected semi-normal equations (leastSquares.ts residualSS)
-    const c = new Float64Array(k);
-    const solve = (gs: Float64Array[], out: Float64Array) => {
-      const g = new Float64Array(k);
-      for (let j = 0; j < k; j++) {
-        let s = 0;
-        for (const a of gs) s += a[j];
-        g[j] = s / qr.scale[j];
-      }
-      forwardSolveRt(qr.R, k, g);
-      for (let i = k - 1; i >= 0; i--) {
-        let s = g[i];
-        for (let j = i + 1; j < k; j++) s -= qr.R[i * k + j] * out[j];
-        out[i] = s / qr.R[i * k + i];
-      }
-    };
-    let sums: { bpG: Float64Array | null; bpSum: number }[] = passes;
+    // on the fit's factor: corrected semi-normal equations, as leastSquares.ts rssOnFactor (its
+    // first pass in "passes", its second in "bpSolve", the correction in closed form)
+    let sums: { bpG: Float64Array | null; bpVV: number; bpSum: number }[] = passes;
     if (eUnit !== 1) {
       // "passes" took e in scaling.ts's window (unit 1): its sums again in e's unit
-      sums = await rounds.all<{ bpG: Float64Array; bpSum: number }>(() => ({ kind: "bpSums", bpUnit: eUnit }));
+      sums = await rounds.all<{ bpG: Float64Array; bpVV: number; bpSum: number }>(() => ({ kind: "bpSums", bpUnit: eUnit }));
     }
-    solve(sums.map((a) => a.bpG as Float64Array), c);
+    const c = new Float64Array(k);
+    for (let j = 0; j < k; j++) {
+      let s = 0;
+      for (const a of sums) s += (a.bpG as Float64Array)[j];
+      c[j] = s / qr.scale[j];
+    }
+    forwardSolveRt(qr.R, k, c);
+    let pv = 0;
+    for (let j = 0; j < k; j++) pv += c[j] * c[j];
+    const vv = sums.reduce((s, a) => s + a.bpVV, 0);
+    const correct = rssErrorBound(qr.condition, n, k, vv, vv - pv) > 1e-16;
+    for (let i = k - 1; i >= 0; i--) {
+      let s = c[i];
+      for (let j = i + 1; j < k; j++) s -= qr.R[i * k + j] * c[j];
+      c[i] = s / qr.R[i * k + i];
+    }
+    const b = Float64Array.from(c, (v, j) => v / qr.scale[j]);
     const vMean = sums.reduce((s, a) => s + a.bpSum, 0) / n;
-    const first = await rounds.all<BpSolveAnswer>(() => ({ kind: "bpSolve", c, scale: qr.scale, mean: vMean, wantG: true, center: mean }));
-    tss = first.reduce((s, a) => s + a.ss, 0);
-    const dc = new Float64Array(k);
-    solve(first.map((a) => a.g), dc);
-    for (let j = 0; j < k; j++) c[j] += dc[j];
-    const second = await rounds.all<BpSolveAnswer>(() => ({ kind: "bpSolve", c, scale: qr.scale, mean: vMean, wantG: false, center: null }));
-    bpResult(second.reduce((s, a) => s + a.rss, 0), first.reduce((s, a) => s + a.tss, 0), k);
+    const second = await rounds.all<BpSolveAnswer>(() => ({ kind: "bpSolve", b, bpUnit: eUnit, mean: vMean, correct, center: mean }));
+    tss = second.reduce((s, a) => s + a.ss, 0);
+    let rss = second.reduce((s, a) => s + a.rr, 0);
+    if (correct) {
+      const t = new Float64Array(k);
+      for (let j = 0; j < k; j++) {
+        let s = 0;
+        for (const a of second) s += a.t[j];
+        t[j] = s / qr.scale[j];
+      }
+      forwardSolveRt(qr.R, k, t);
+      for (let j = 0; j < k; j++) rss -= t[j] * t[j];
+    }
+    bpResult(rss, second.reduce((s, a) => s + a.tss, 0), k);
   } else {
     const centred = await rounds.all<{ ss: number }>(() => ({ kind: "center", design: "fit", mean }));
     tss = centred.reduce((s, a) => s + a.ss, 0);
