@@ -190,8 +190,9 @@ function sumParts(hi: number[], lo: number[]): number {
  * merged factor, the rank test, one solve, and Björck's refinement across the parts when
  * κ·max|c|/min|c| > REFINE_ABOVE (and refineWhenNeeded); then the residuals in the parts.
  */
-async function splitLeastSquares(rounds: Rounds, design: string, k: number, unit: number, refineWhenNeeded: boolean, deferResiduals = false): Promise<SplitLs> {
-  const norms = await rounds.all<NormsAnswer>(() => ({ kind: "norms", design, parts: rounds.exec.parts }));
+async function splitLeastSquares(rounds: Rounds, design: string, k: number, unit: number, refineWhenNeeded: boolean, deferResiduals = false, known: NormsAnswer[] | null = null): Promise<SplitLs> {
+  // the fit's column norms come with "prepare"'s answers: one round fewer
+  const norms = known ?? (await rounds.all<NormsAnswer>(() => ({ kind: "norms", design, parts: rounds.exec.parts })));
   const scale = columnNorms(norms, k);
   for (let j = 0; j < k; j++) if (scale[j] === 0) return { qr: null, dependent: { column: j, on: [] } };
   const inv = Float64Array.from(scale, (s) => 1 / s);
@@ -335,9 +336,10 @@ export async function columnFit(
     leftOut.notNumber += s.notNumber;
   }
   const rowsRead = usable + leftOut.blank + leftOut.notNumber;
-  // the steps of the usual path: scan, prepare, norms, factor, passes, bpSolve, release
-  const rounds = new Rounds(exec, rowsRead, 7, progress, isCancelled);
+  // the rounds of the usual path: scan, prepare, factor, passes, bpSolve
+  const rounds = new Rounds(exec, rowsRead, 5, progress, isCancelled);
   rounds.done = rowsRead;
+  if (rowsRead > 0 && progress) progress(rounds.done, rounds.total); // the rows checked
   if (rowsRead === 0) fail("no data rows were read: check that the ranges hold the data below their headers");
   const names = [spec.yName, ...spec.xNames];
   if (usable === 0) {
@@ -387,7 +389,7 @@ export async function columnFit(
 
   // 2. The rows used, transformed, in the parts.
   const drop = offenders.length > 0; // zeros=drop here
-  const preps = await rounds.all<PrepareAnswer>(() => ({ kind: "prepare", kx, logY, logged, drop, intercept: spec.intercept, firstRow }));
+  const preps = await rounds.all<PrepareAnswer>(() => ({ kind: "prepare", kx, logY, logged, drop, intercept: spec.intercept, firstRow, parts: P }));
   let n = 0;
   for (const a of preps) {
     n += a.n;
@@ -413,7 +415,7 @@ export async function columnFit(
 
   // 3. The factor and the solve (refined when the design needs it); the residuals come with the
   // second passes unless the refinement computed them.
-  const ls = await splitLeastSquares(rounds, "fit", k, yUnit, true, true);
+  const ls = await splitLeastSquares(rounds, "fit", k, yUnit, true, true, preps.map((a) => a.norms));
   if (!ls.qr) return explainDependency(ls.dependent, terms);
   const qr = ls.qr;
   const df = n - k;
@@ -557,7 +559,8 @@ export async function columnFit(
     const j = bad % k;
     fail(`the fit gives a number that is not finite for ${bad === shown.length - 1 ? "R²" : terms[j]} (a standard error of zero, or values too extreme for double precision): check the data for extreme or repeated values`);
   }
-  await rounds.all(() => ({ kind: "release" }));
+  // what the fit leaves in the parts goes; nothing waits for it (each part takes its steps in order)
+  for (let p = 0; p < P; p++) exec.send(p, { kind: "release" }).catch(() => undefined);
   const sample = joinSamples(passes.map((a) => a.sample));
   const result: ColumnFitResult = {
     rowsRead, n, leftOut, terms, coefficients, standardErrors, t, p, lower, upper,

@@ -144,6 +144,8 @@ export interface PrepareAnswer {
   /** Σy of the transformed rows, in row order (R²'s first mean). */
   ySum: number;
   xMax: number[];
+  /** The fit design's column sums for its norms (the step "norms" on it, computed here). */
+  norms: NormsAnswer;
 }
 
 export interface NormsAnswer {
@@ -567,7 +569,8 @@ function prepare(state: PartState, op: PartOp): PartAnswer {
   }
   design.push(...x);
   state.designs = { fit: { X: design, y, blocks: null, resid: null, r: null, f: null, norms } };
-  const answer: PrepareAnswer = { n, dropped, droppedNegative, droppedRows: droppedRows.toRuns(), first, constant, yMax, ySum, xMax };
+  const fitNorms = normsOf(state.designs.fit, (op.parts as number | undefined) ?? 1);
+  const answer: PrepareAnswer = { n, dropped, droppedNegative, droppedRows: droppedRows.toRuns(), first, constant, yMax, ySum, xMax, norms: fitNorms };
   state.prepared = { key, answer };
   return { answer };
 }
@@ -584,8 +587,10 @@ function designOf(state: PartState, op: PartOp): PartDesign {
  * or above 1e280/parts): the driver then combines the scaled sums, as norm2 rescales.
  */
 function norms(state: PartState, op: PartOp): PartAnswer {
-  const d = designOf(state, op);
-  const parts = (op.parts as number | undefined) ?? 1;
+  return { answer: normsOf(designOf(state, op), (op.parts as number | undefined) ?? 1) };
+}
+
+function normsOf(d: PartDesign, parts: number): NormsAnswer {
   const sumSq: number[] = [];
   const mx: number[] = [];
   const scaledSumSq: number[] = [];
@@ -616,8 +621,7 @@ function norms(state: PartState, op: PartOp): PartAnswer {
     mx.push(m);
     scaledSumSq.push(t);
   }
-  const answer: NormsAnswer = { sumSq, maxAbs: mx, scaledSumSq };
-  return { answer };
+  return { sumSq, maxAbs: mx, scaledSumSq };
 }
 
 /** The part's row-blocked Householder QR of [X/scale | y/unit] from a zero triangle: T, (k+1)×(k+1). */
