@@ -336,8 +336,8 @@ export async function columnFit(
     leftOut.notNumber += s.notNumber;
   }
   const rowsRead = usable + leftOut.blank + leftOut.notNumber;
-  // the rounds of the usual path: scan, prepare, factor, passes, bpSolve
-  const rounds = new Rounds(exec, rowsRead, 5, progress, isCancelled);
+  // the rounds of the usual path: scan, prepare, factor, passes, bpSolve, release
+  const rounds = new Rounds(exec, rowsRead, 6, progress, isCancelled);
   rounds.done = rowsRead;
   if (rowsRead > 0 && progress) progress(rounds.done, rounds.total); // the rows checked
   if (rowsRead === 0) fail("no data rows were read: check that the ranges hold the data below their headers");
@@ -559,8 +559,7 @@ export async function columnFit(
     const j = bad % k;
     fail(`the fit gives a number that is not finite for ${bad === shown.length - 1 ? "R²" : terms[j]} (a standard error of zero, or values too extreme for double precision): check the data for extreme or repeated values`);
   }
-  // what the fit leaves in the parts goes; nothing waits for it (each part takes its steps in order)
-  for (let p = 0; p < P; p++) exec.send(p, { kind: "release" }).catch(() => undefined);
+  await rounds.all(() => ({ kind: "release" }));
   const sample = joinSamples(passes.map((a) => a.sample));
   const result: ColumnFitResult = {
     rowsRead, n, leftOut, terms, coefficients, standardErrors, t, p, lower, upper,
