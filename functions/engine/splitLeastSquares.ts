@@ -68,6 +68,8 @@ export interface PartState {
   prepared: { key: string; answer: PrepareAnswer } | null;
   /** The last "scan" (its parameters and answer): after "prepare" the storage no longer holds the raw rows. */
   scanned: { key: string; answer: ScanAnswer } | null;
+  /** Per column (y, then x): every value appended (NaN aside) is > 0; set by append, read by scan. */
+  positive?: boolean[];
   /** The intercept's column of ones (prepare), and the residuals' buffer (passes), kept between fits. */
   ones?: Float64Array;
   residBuffer?: Float64Array;
@@ -77,7 +79,7 @@ export interface PartState {
 export function newPartState(): PartState {
   return {
     rows: 0, kx: -1, rawY: new Float64Array(0), rawX: [], issue: new Uint8Array(0), index: new Int32Array(0),
-    n: 0, y: null, x: null, rowIndex: null, designs: {}, prepared: null, scanned: null, ones: undefined, residBuffer: undefined,
+    n: 0, y: null, x: null, rowIndex: null, designs: {}, prepared: null, scanned: null, positive: undefined, ones: undefined, residBuffer: undefined,
   };
 }
 
@@ -261,8 +263,11 @@ function append(state: PartState, op: PartOp): PartAnswer {
   // a row's code: its issue as read, else the first column (y, then x in order) that is not a number
   const code = state.issue.subarray(at, at + m);
   issueCodes(issues, code);
-  markColumn(y, code);
-  for (let j = 0; j < state.kx; j++) markColumn(x[j], code);
+  // y, then x: whether every value read so far (NaN aside) is > 0, so that scan can skip the column
+  if (at === 0) state.positive = new Array<boolean>(state.kx + 1).fill(true);
+  const positive = state.positive as boolean[];
+  positive[0] = markColumn(y, code) && positive[0];
+  for (let j = 0; j < state.kx; j++) positive[j + 1] = markColumn(x[j], code) && positive[j + 1];
   rowIndices(state.index, at, rowStart, m);
   state.rows += m;
   return { answer: { rows: state.rows } };
@@ -286,31 +291,51 @@ function issueCodes(issues: Uint8Array | null, code: Uint8Array): void {
   }
 }
 
-/** A usable row whose value in this column is not a finite number: BLANK (NaN) or NOT_NUMBER (±Infinity). */
-function markColumn(c: Float64Array, code: Uint8Array): void {
-  if (allFinite(c, code.length)) return;
+/**
+ * A usable row whose value in this column is not a finite number: BLANK (NaN) or NOT_NUMBER
+ * (±Infinity). Answers whether every value other than NaN is > 0 (so none is counted by scan's signs).
+ */
+function markColumn(c: Float64Array, code: Uint8Array): boolean {
+  const low = finiteLow(c, code.length);
+  if (low === low) return low > 0; // all finite (low is their minimum)
   for (let i = 0; i < code.length; i++) {
     if (code[i] !== USABLE) continue;
     const v = c[i];
     if (v - v !== 0) code[i] = v !== v ? BLANK : NOT_NUMBER;
   }
+  return lowest(c, code.length) > 0;
 }
 
-/** Whether c[0 … m) are all finite: Σ 0·c_i is 0 then, NaN otherwise (four sums, no branch per value). */
-function allFinite(c: Float64Array, m: number): boolean {
+/**
+ * The smallest of c[0 … m) when all are finite, else NaN (a Σ 0·c_i beside the minimum: 0 when all
+ * are finite, NaN otherwise; two of each, no branch but the minimum's).
+ */
+function finiteLow(c: Float64Array, m: number): number {
   let s0 = 0;
   let s1 = 0;
-  let s2 = 0;
-  let s3 = 0;
+  let m0 = Infinity;
+  let m1 = Infinity;
   let i = 0;
-  for (; i + 3 < m; i += 4) {
-    s0 += c[i] * 0;
-    s1 += c[i + 1] * 0;
-    s2 += c[i + 2] * 0;
-    s3 += c[i + 3] * 0;
+  for (; i + 1 < m; i += 2) {
+    const a = c[i];
+    const b = c[i + 1];
+    s0 += a * 0;
+    s1 += b * 0;
+    if (a < m0) m0 = a;
+    if (b < m1) m1 = b;
   }
-  for (; i < m; i++) s0 += c[i] * 0;
-  return s0 + s1 + (s2 + s3) === 0;
+  if (i < m) {
+    s0 += c[i] * 0;
+    if (c[i] < m0) m0 = c[i];
+  }
+  return s0 + s1 === 0 ? Math.min(m0, m1) : NaN;
+}
+
+/** The smallest of c[0 … m) other than NaN (Infinity when there is none). */
+function lowest(c: Float64Array, m: number): number {
+  let low = Infinity;
+  for (let i = 0; i < m; i++) if (c[i] < low) low = c[i];
+  return low;
 }
 
 function rowIndices(index: Int32Array, at: number, rowStart: number, m: number): void {
@@ -407,9 +432,11 @@ function scan(state: PartState, op: PartOp): PartAnswer {
   }
   usable = rows - blank - notNumber;
   const all = usable === rows;
-  signs(rawY, rows, all, issue, index, firstRow, np[0]);
+  // a column whose values were all > 0 as appended has no zeros or negatives to count
+  const positive = state.positive ?? [];
+  if (!positive[0]) signs(rawY, rows, all, issue, index, firstRow, np[0]);
   for (let j = 0; j < kx; j++) {
-    signs(rawX[j], rows, all, issue, index, firstRow, np[j + 1]);
+    if (!positive[j + 1]) signs(rawX[j], rows, all, issue, index, firstRow, np[j + 1]);
     const both = binaryAndSame(rawX[j], rawY, rows, all, issue);
     binary[j] = (both & 1) !== 0;
     sameAsY[j] = (both & 2) !== 0;
