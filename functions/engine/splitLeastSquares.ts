@@ -490,17 +490,49 @@ function keepRows(state: PartState, kx: number, logY: boolean, logged: boolean[]
 
 /**
  * Math.log of every value, in place, as the cell path logs a column (transforms.ts). The one place
- * the split engine takes logs: a vector log of the kernel (same values) goes here.
+ * the split engine takes logs (prepare calls it on blocks of PREPARE_ROWS rows): a vector log of the
+ * kernel (same values) goes here.
  */
 export function logInPlace(c: Float64Array): void {
   for (let i = 0; i < c.length; i++) c[i] = Math.log(c[i]);
 }
 
-/** out = [Σv in row order, max|v|]. */
-function sumAndMax(c: Float64Array, out: Float64Array): void {
-  let s = 0;
-  let m = 0;
-  for (let i = 0; i < c.length; i++) {
+/** Rows per block of prepare's log and sums (the block stays in the processor's first cache between the two). */
+const PREPARE_ROWS = 2048;
+
+/** y logged in place (when logY), block by block, with out = [Σy in row order, max|y|]. */
+function transformY(y: Float64Array, logY: boolean, out: Float64Array): void {
+  out[0] = 0;
+  out[1] = 0;
+  for (let s = 0; s < y.length; s += PREPARE_ROWS) {
+    const e = Math.min(y.length, s + PREPARE_ROWS);
+    if (logY) logInPlace(y.subarray(s, e));
+    sumAndMax(y, s, e, out);
+  }
+}
+
+/**
+ * An x column logged in place (when logged), block by block, with out = [1 when every value equals
+ * the first (or there is none) else 0, Σx² in row order (norm2's), max|x|].
+ */
+function transformX(c: Float64Array, logged: boolean, out: Float64Array): void {
+  out[0] = 1;
+  out[1] = 0;
+  out[2] = 0;
+  let f = NaN;
+  for (let s = 0; s < c.length; s += PREPARE_ROWS) {
+    const e = Math.min(c.length, s + PREPARE_ROWS);
+    if (logged) logInPlace(c.subarray(s, e));
+    if (s === 0) f = c[0];
+    columnStats(c, s, e, f, out);
+  }
+}
+
+/** Rows from … to − 1 added to out = [Σv in row order, max|v|]. */
+function sumAndMax(c: Float64Array, from: number, to: number, out: Float64Array): void {
+  let s = out[0];
+  let m = out[1];
+  for (let i = from; i < to; i++) {
     const v = c[i];
     s += v;
     const b = Math.abs(v);
@@ -510,13 +542,12 @@ function sumAndMax(c: Float64Array, out: Float64Array): void {
   out[1] = m;
 }
 
-/** out = [1 when every value equals the first (or there is none) else 0, Σv² in row order (norm2's), max|v|]. */
-function columnStats(c: Float64Array, out: Float64Array): void {
-  const f = c.length > 0 ? c[0] : NaN;
-  let same = true;
-  let s = 0;
-  let m = 0;
-  for (let i = 0; i < c.length; i++) {
+/** Rows from … to − 1 added to out = [every value equals f (1/0), Σv² in row order, max|v|]. */
+function columnStats(c: Float64Array, from: number, to: number, f: number, out: Float64Array): void {
+  let same = out[0] === 1;
+  let s = out[1];
+  let m = out[2];
+  for (let i = from; i < to; i++) {
     const v = c[i];
     if (v !== f) same = false;
     s += v * v;
@@ -566,8 +597,7 @@ function prepare(state: PartState, op: PartOp): PartAnswer {
   const x = rawX.slice(0, kx).map((c) => c.subarray(0, n));
   // per column: the log (in place), then the first value and constancy, max|x| and Σx² (norms)
   const st = new Float64Array(3);
-  if (logY) logInPlace(y);
-  sumAndMax(y, st);
+  transformY(y, logY, st);
   const ySum = st[0];
   const yMax = st[1];
   const first: number[] = [];
@@ -576,8 +606,7 @@ function prepare(state: PartState, op: PartOp): PartAnswer {
   const sumSq: number[] = [];
   for (let j = 0; j < kx; j++) {
     const c = x[j];
-    if (logged[j]) logInPlace(c);
-    columnStats(c, st);
+    transformX(c, logged[j], st);
     first.push(n > 0 ? c[0] : NaN);
     constant.push(st[0] === 1);
     sumSq.push(st[1]);
