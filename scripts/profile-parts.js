@@ -81,6 +81,26 @@ function data(n) {
   return { y, x };
 }
 
+/**
+ * Whether the machine has the cores free: the same loop of Math.log in one thread, then in two
+ * threads at once; answers how much longer each of the two took (1.0: two free cores).
+ */
+async function coreCheck() {
+  const { Worker } = require("worker_threads");
+  const code = `const { parentPort } = require("worker_threads"); parentPort.on("message", () => { const a = new Float64Array(1e6).fill(1.5); const t = performance.now(); let s = 0; for (let r = 0; r < 6; r++) for (let i = 0; i < a.length; i++) s += Math.log(a[i] + r); parentPort.postMessage(s > 0 ? performance.now() - t : 0); });`;
+  const ws = [new Worker(code, { eval: true }), new Worker(code, { eval: true })];
+  const run = (list) => Promise.all(list.map((w) => new Promise((res) => { w.once("message", res); w.postMessage(0); })));
+  await run(ws);
+  const ratios = [];
+  for (let r = 0; r < 3; r++) {
+    const [one] = await run([ws[0]]);
+    const two = await run(ws);
+    ratios.push(Math.max(...two) / one);
+  }
+  await Promise.all(ws.map((w) => w.terminate()));
+  return [...ratios].sort((a, b) => a - b)[1];
+}
+
 const SPEC = { yName: "Units", xNames: Array.from({ length: K }, (_, j) => `x${j + 1}`), form: "log-log", zeros: "stop", se: "HC3", level: 0.95, intercept: true };
 
 async function main() {
@@ -147,6 +167,8 @@ async function main() {
   };
 
   const f1 = (v) => (Number.isFinite(v) ? v.toFixed(1) : "–");
+  const slow = await coreCheck();
+  process.stdout.write(`free cores: a loop in two threads at once takes ${slow.toFixed(2)}× its time alone (1.0: two free cores; 2.0: one)\n`);
   process.stdout.write(`${rows.toLocaleString("en")} rows × ${K}, log-log, HC3, Breusch–Pagan; ${fresh ? "fresh worker threads for every fit" : "workers kept warm (three warm-up fits of 25,000 rows)"}; ${reps} runs per count, interleaved\n`);
   const results = {};
   for (let r = 0; r < reps; r++) {
