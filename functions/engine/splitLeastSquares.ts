@@ -778,7 +778,11 @@ class ResidualSums {
       sumY += v;
       sumY2 += v * v;
     }
-    Object.assign(this, { rss, maxAbs, sumY, sumY2 });
+    // (field by field: an Object.assign here made one object per block)
+    this.rss = rss;
+    this.maxAbs = maxAbs;
+    this.sumY = sumY;
+    this.sumY2 = sumY2;
   }
   answer(n: number): ResidualsAnswer {
     return { n, rss: this.rss, maxAbs: this.maxAbs, sumY: this.sumY, sumY2: this.sumY2 };
