@@ -19,7 +19,7 @@ import {
   appendOp, applyPartOp, chunkBuffers, mergeTriangles, newPartState,
   type BpSolveAnswer, type Merged, type NormsAnswer, type PartState, type PassesAnswer, type PrepareAnswer, type RefineStepAnswer, type ResidualsAnswer, type ScanAnswer,
 } from "./splitLeastSquares";
-import { applyQ, forwardSolveRt, solveTriangle, type Dependency, type QrFit, type TriangleSolve } from "./leastSquares";
+import { applyQ, forwardSolveRt, rssErrorBound, solveTriangle, type Dependency, type QrFit, type TriangleSolve } from "./leastSquares";
 import { classicalCovariance, sandwich, type CovarianceInput } from "./covariance";
 import { count, ElxProblem, fail, RowList, rowsPhrase, unavailable } from "./problems";
 import { describeNonPositive } from "./transforms";
@@ -185,8 +185,9 @@ function sumParts(hi: number[], lo: number[]): number {
  * merged factor, the rank test, one solve, and Björck's refinement across the parts when
  * κ·max|c|/min|c| > REFINE_ABOVE (and refineWhenNeeded); then the residuals in the parts.
  */
-async function splitLeastSquares(rounds: Rounds, design: string, k: number, unit: number, refineWhenNeeded: boolean, deferResiduals = false): Promise<SplitLs> {
-  const norms = await rounds.all<NormsAnswer>(() => ({ kind: "norms", design, parts: rounds.exec.parts }));
+async function splitLeastSquares(rounds: Rounds, design: string, k: number, unit: number, refineWhenNeeded: boolean, deferResiduals = false, known: NormsAnswer[] | null = null): Promise<SplitLs> {
+  // the fit's column norms come with "prepare"'s answers: one round fewer
+  const norms = known ?? (await rounds.all<NormsAnswer>(() => ({ kind: "norms", design, parts: rounds.exec.parts })));
   const scale = columnNorms(norms, k);
   for (let j = 0; j < k; j++) if (scale[j] === 0) return { qr: null, dependent: { column: j, on: [] } };
   const inv = Float64Array.from(scale, (s) => 1 / s);
@@ -321,8 +322,10 @@ export async function columnFit(
     leftOut.notNumber += s.notNumber;
   }
   const rowsRead = usable + leftOut.blank + leftOut.notNumber;
-  const rounds = new Rounds(exec, rowsRead, 8, progress, isCancelled);
+  // the rounds of the usual path: scan, prepare, factor, passes, bpSolve, release
+  const rounds = new Rounds(exec, rowsRead, 6, progress, isCancelled);
   rounds.done = rowsRead;
+  if (rowsRead > 0 && progress) progress(rounds.done, rounds.total); // the rows checked
   if (rowsRead === 0) fail("no data rows were read: check that the ranges hold the data below their headers");
   const names = [spec.yName, ...spec.xNames];
   if (usable === 0) {
@@ -372,7 +375,7 @@ export async function columnFit(
 
   // 2. The rows used, transformed, in the parts.
   const drop = offenders.length > 0; // zeros=drop here
-  const preps = await rounds.all<PrepareAnswer>(() => ({ kind: "prepare", kx, logY, logged, drop, intercept: spec.intercept, firstRow }));
+  const preps = await rounds.all<PrepareAnswer>(() => ({ kind: "prepare", kx, logY, logged, drop, intercept: spec.intercept, firstRow, parts: P }));
   let n = 0;
   for (const a of preps) {
     n += a.n;
@@ -398,7 +401,7 @@ export async function columnFit(
 
   // 3. The factor and the solve (refined when the design needs it); the residuals come with the
   // second passes unless the refinement computed them.
-  const ls = await splitLeastSquares(rounds, "fit", k, yUnit, true, true);
+  const ls = await splitLeastSquares(rounds, "fit", k, yUnit, true, true, preps.map((a) => a.norms));
   if (!ls.qr) return explainDependency(ls.dependent, terms);
   const qr = ls.qr;
   const df = n - k;
@@ -473,36 +476,45 @@ export async function columnFit(
     }
   };
   if (reuse) {
-    // on the fit's factor: corrected semi-normal equations (leastSquares.ts residualSS)
-    const c = new Float64Array(k);
-    const solve = (gs: Float64Array[], out: Float64Array) => {
-      const g = new Float64Array(k);
-      for (let j = 0; j < k; j++) {
-        let s = 0;
-        for (const a of gs) s += a[j];
-        g[j] = s / qr.scale[j];
-      }
-      forwardSolveRt(qr.R, k, g);
-      for (let i = k - 1; i >= 0; i--) {
-        let s = g[i];
-        for (let j = i + 1; j < k; j++) s -= qr.R[i * k + j] * out[j];
-        out[i] = s / qr.R[i * k + i];
-      }
-    };
-    let sums: { bpG: Float64Array | null; bpSum: number }[] = passes;
+    // on the fit's factor: corrected semi-normal equations, as leastSquares.ts rssOnFactor (its
+    // first pass in "passes", its second in "bpSolve", the correction in closed form)
+    let sums: { bpG: Float64Array | null; bpVV: number; bpSum: number }[] = passes;
     if (eUnit !== 1) {
       // "passes" took e in scaling.ts's window (unit 1): its sums again in e's unit
-      sums = await rounds.all<{ bpG: Float64Array; bpSum: number }>(() => ({ kind: "bpSums", bpUnit: eUnit }));
+      sums = await rounds.all<{ bpG: Float64Array; bpVV: number; bpSum: number }>(() => ({ kind: "bpSums", bpUnit: eUnit }));
     }
-    solve(sums.map((a) => a.bpG as Float64Array), c);
+    const c = new Float64Array(k);
+    for (let j = 0; j < k; j++) {
+      let s = 0;
+      for (const a of sums) s += (a.bpG as Float64Array)[j];
+      c[j] = s / qr.scale[j];
+    }
+    forwardSolveRt(qr.R, k, c);
+    let pv = 0;
+    for (let j = 0; j < k; j++) pv += c[j] * c[j];
+    const vv = sums.reduce((s, a) => s + a.bpVV, 0);
+    const correct = rssErrorBound(qr.condition, n, k, vv, vv - pv) > 1e-16;
+    for (let i = k - 1; i >= 0; i--) {
+      let s = c[i];
+      for (let j = i + 1; j < k; j++) s -= qr.R[i * k + j] * c[j];
+      c[i] = s / qr.R[i * k + i];
+    }
+    const b = Float64Array.from(c, (v, j) => v / qr.scale[j]);
     const vMean = sums.reduce((s, a) => s + a.bpSum, 0) / n;
-    const first = await rounds.all<BpSolveAnswer>(() => ({ kind: "bpSolve", c, scale: qr.scale, mean: vMean, wantG: true, center: mean }));
-    tss = first.reduce((s, a) => s + a.ss, 0);
-    const dc = new Float64Array(k);
-    solve(first.map((a) => a.g), dc);
-    for (let j = 0; j < k; j++) c[j] += dc[j];
-    const second = await rounds.all<BpSolveAnswer>(() => ({ kind: "bpSolve", c, scale: qr.scale, mean: vMean, wantG: false, center: null }));
-    bpResult(second.reduce((s, a) => s + a.rss, 0), first.reduce((s, a) => s + a.tss, 0), k);
+    const second = await rounds.all<BpSolveAnswer>(() => ({ kind: "bpSolve", b, bpUnit: eUnit, mean: vMean, correct, center: mean }));
+    tss = second.reduce((s, a) => s + a.ss, 0);
+    let rss = second.reduce((s, a) => s + a.rr, 0);
+    if (correct) {
+      const t = new Float64Array(k);
+      for (let j = 0; j < k; j++) {
+        let s = 0;
+        for (const a of second) s += a.t[j];
+        t[j] = s / qr.scale[j];
+      }
+      forwardSolveRt(qr.R, k, t);
+      for (let j = 0; j < k; j++) rss -= t[j] * t[j];
+    }
+    bpResult(rss, second.reduce((s, a) => s + a.tss, 0), k);
   } else {
     const centred = await rounds.all<{ ss: number }>(() => ({ kind: "center", design: "fit", mean }));
     tss = centred.reduce((s, a) => s + a.ss, 0);

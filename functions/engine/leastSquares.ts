@@ -507,9 +507,8 @@ export function projectOnFactor(X: Float64Array[], qr: QrFit, v: Float64Array, r
  * formula ‖v‖² − ‖R⁻ᵀX_sᵀv‖²: ε²(κ√(nk) + kκ²)²·‖v‖²/RSS, times 100 for safety (κ the condition estimate;
  * the rounding of X_sᵀv and the backward error of R, each amplified by κ through the projection).
  */
-function rssErrorBound(qr: QrFit, k: number, vv: number, rss: number): number {
-  const kappa = qr.condition;
-  const e = Number.EPSILON * (kappa * Math.sqrt(qr.n * k) + k * kappa * kappa);
+export function rssErrorBound(kappa: number, n: number, k: number, vv: number, rss: number): number {
+  const e = Number.EPSILON * (kappa * Math.sqrt(n * k) + k * kappa * kappa);
   return rss > 0 ? 100 * e * e * (vv / rss) : Infinity;
 }
 
@@ -557,7 +556,7 @@ export function rssOnFactor(
     forwardSolveRt(qr.R, k, c);
     let pv = 0;
     for (let j = 0; j < k; j++) pv += c[j] * c[j];
-    correct[l] = rssErrorBound(qr, k, vv[l], vv[l] - pv) > 1e-16 ? 1 : 0;
+    correct[l] = rssErrorBound(qr.condition, qr.n, k, vv[l], vv[l] - pv) > 1e-16 ? 1 : 0;
     for (let i = k - 1; i >= 0; i--) {
       let s = c[i];
       for (let j = i + 1; j < k; j++) s -= qr.R[i * k + j] * c[j];

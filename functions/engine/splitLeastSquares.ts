@@ -26,6 +26,7 @@ import type { ColumnChunk, PartOp } from "./columnFitTypes";
 import { applyQ, augmentedResidual, blockedQr, twoProdErr, type BlockReflectors } from "./leastSquares";
 import { BLOCK, LEVERAGE_TOL } from "./covariance";
 import { RowList, type RowRuns } from "./problems";
+import { dotBlock } from "./blocks";
 import { jsKernel, kernel } from "./kernel";
 
 /** Codes of ColumnChunk.issues and of a part's rows: usable, blank, not a number. */
@@ -67,13 +68,18 @@ export interface PartState {
   prepared: { key: string; answer: PrepareAnswer } | null;
   /** The last "scan" (its parameters and answer): after "prepare" the storage no longer holds the raw rows. */
   scanned: { key: string; answer: ScanAnswer } | null;
+  /** Per column (y, then x): every value appended (NaN aside) is > 0; set by append, read by scan. */
+  positive?: boolean[];
+  /** The intercept's column of ones (prepare), and the residuals' buffer (passes), kept between fits. */
+  ones?: Float64Array;
+  residBuffer?: Float64Array;
 }
 
 /** A new, empty part. */
 export function newPartState(): PartState {
   return {
     rows: 0, kx: -1, rawY: new Float64Array(0), rawX: [], issue: new Uint8Array(0), index: new Int32Array(0),
-    n: 0, y: null, x: null, rowIndex: null, designs: {}, prepared: null, scanned: null,
+    n: 0, y: null, x: null, rowIndex: null, designs: {}, prepared: null, scanned: null, positive: undefined, ones: undefined, residBuffer: undefined,
   };
 }
 
@@ -140,6 +146,8 @@ export interface PrepareAnswer {
   /** Σy of the transformed rows, in row order (R²'s first mean). */
   ySum: number;
   xMax: number[];
+  /** The fit design's column sums for its norms (the step "norms" on it, computed here). */
+  norms: NormsAnswer;
 }
 
 export interface NormsAnswer {
@@ -172,15 +180,19 @@ export interface PassesAnswer {
   meat: Float64Array | null;
   /** Sheet rows with leverage 1 under HC2/HC3. */
   leverageOne: RowRuns;
-  /** Breusch–Pagan on the fit's factor: Σ_i x_ij v_i per column, and Σ v (v = e² in the test's unit). */
+  /** Breusch–Pagan on the fit's factor: Σ_i x_ij v_i per column, Σv² and Σv (v = e² in the test's unit). */
   bpG: Float64Array | null;
+  bpVV: number;
   bpSum: number;
   sample: { fitted: Float64Array; residuals: Float64Array; rows: Int32Array };
 }
 
 export interface BpSolveAnswer {
-  g: Float64Array;
-  rss: number;
+  /** Xᵀr for the correction (empty unless asked). */
+  t: Float64Array;
+  /** Σr² before the correction. */
+  rr: number;
+  /** Σ(v − mean)². */
   tss: number;
   /** Σ(y − centre)² of the fit's y when a centre was given (else 0). */
   ss: number;
@@ -248,21 +260,86 @@ function append(state: PartState, op: PartOp): PartAnswer {
   grow(state, at + m, state.kx);
   state.rawY.set(y, at);
   for (let j = 0; j < state.kx; j++) state.rawX[j].set(x[j], at);
-  for (let i = 0; i < m; i++) {
-    let code = issues ? (issues[i] === 0 ? USABLE : issues[i] === 1 ? BLANK : NOT_NUMBER) : USABLE;
-    if (code === USABLE) {
-      let v = y[i];
-      if (v - v !== 0) code = v !== v ? BLANK : NOT_NUMBER;
-      for (let j = 0; j < state.kx && code === USABLE; j++) {
-        v = x[j][i];
-        if (v - v !== 0) code = v !== v ? BLANK : NOT_NUMBER;
-      }
-    }
-    state.issue[at + i] = code;
-    state.index[at + i] = rowStart + i;
-  }
+  // a row's code: its issue as read, else the first column (y, then x in order) that is not a number
+  const code = state.issue.subarray(at, at + m);
+  issueCodes(issues, code);
+  // y, then x: whether every value read so far (NaN aside) is > 0, so that scan can skip the column
+  if (at === 0) state.positive = new Array<boolean>(state.kx + 1).fill(true);
+  const positive = state.positive as boolean[];
+  positive[0] = markColumn(y, code) && positive[0];
+  for (let j = 0; j < state.kx; j++) positive[j + 1] = markColumn(x[j], code) && positive[j + 1];
+  rowIndices(state.index, at, rowStart, m);
   state.rows += m;
   return { answer: { rows: state.rows } };
+}
+
+
+// Small loops, each in its own function: a part step runs once per fit, and V8 optimises a hot loop
+// kept apart from the step's other loops (called once per column or block) far sooner and more
+// stably than the same loop inlined in a long step, which would be recompiled each time the step
+// reaches a loop it has not run yet (measured: DEVELOPERS.md, the split engine's figures).
+
+/** The codes of rows as read: USABLE where `issues` says 0 (or there are none), else BLANK or NOT_NUMBER. */
+function issueCodes(issues: Uint8Array | null, code: Uint8Array): void {
+  if (!issues) {
+    code.fill(USABLE);
+    return;
+  }
+  for (let i = 0; i < code.length; i++) {
+    const c = issues[i];
+    code[i] = c === 0 ? USABLE : c === 1 ? BLANK : NOT_NUMBER;
+  }
+}
+
+/**
+ * A usable row whose value in this column is not a finite number: BLANK (NaN) or NOT_NUMBER
+ * (±Infinity). Answers whether every value other than NaN is > 0 (so none is counted by scan's signs).
+ */
+function markColumn(c: Float64Array, code: Uint8Array): boolean {
+  const low = finiteLow(c, code.length);
+  if (low === low) return low > 0; // all finite (low is their minimum)
+  for (let i = 0; i < code.length; i++) {
+    if (code[i] !== USABLE) continue;
+    const v = c[i];
+    if (v - v !== 0) code[i] = v !== v ? BLANK : NOT_NUMBER;
+  }
+  return lowest(c, code.length) > 0;
+}
+
+/**
+ * The smallest of c[0 … m) when all are finite, else NaN (a Σ 0·c_i beside the minimum: 0 when all
+ * are finite, NaN otherwise; two of each, no branch but the minimum's).
+ */
+function finiteLow(c: Float64Array, m: number): number {
+  let s0 = 0;
+  let s1 = 0;
+  let m0 = Infinity;
+  let m1 = Infinity;
+  let i = 0;
+  for (; i + 1 < m; i += 2) {
+    const a = c[i];
+    const b = c[i + 1];
+    s0 += a * 0;
+    s1 += b * 0;
+    if (a < m0) m0 = a;
+    if (b < m1) m1 = b;
+  }
+  if (i < m) {
+    s0 += c[i] * 0;
+    if (c[i] < m0) m0 = c[i];
+  }
+  return s0 + s1 === 0 ? Math.min(m0, m1) : NaN;
+}
+
+/** The smallest of c[0 … m) other than NaN (Infinity when there is none). */
+function lowest(c: Float64Array, m: number): number {
+  let low = Infinity;
+  for (let i = 0; i < m; i++) if (c[i] < low) low = c[i];
+  return low;
+}
+
+function rowIndices(index: Int32Array, at: number, rowStart: number, m: number): void {
+  for (let i = 0; i < m; i++) index[at + i] = rowStart + i;
 }
 
 /** A part that never received a chunk still answers for every column (with no rows). */
@@ -270,6 +347,59 @@ function ensureColumns(state: PartState, kx: number): void {
   if (state.kx < 0) state.kx = kx;
   if (state.kx !== kx) throw new Error(`the part holds ${state.kx} x columns, the fit names ${kx}`);
   while (state.rawX.length < kx) state.rawX.push(new Float64Array(state.rawY.length));
+}
+
+function allUsable(issue: Uint8Array, rows: number): boolean {
+  for (let i = 0; i < rows; i++) if (issue[i] !== USABLE) return false;
+  return true;
+}
+
+/** The rows not usable added to `to` (sheet rows); answers [blank, not a number]. */
+function unusableRows(issue: Uint8Array, index: Int32Array, rows: number, firstRow: number, to: RowList): [number, number] {
+  let blank = 0;
+  let notNumber = 0;
+  for (let i = 0; i < rows; i++) {
+    if (issue[i] === USABLE) continue;
+    if (issue[i] === BLANK) blank++;
+    else notNumber++;
+    to.add(firstRow + index[i]);
+  }
+  return [blank, notNumber];
+}
+
+/** Rows not usable whose value in this column is not a finite number. */
+function notFinite(c: Float64Array, issue: Uint8Array, rows: number): number {
+  let bad = 0;
+  for (let i = 0; i < rows; i++) if (issue[i] !== USABLE && !(c[i] - c[i] === 0)) bad++;
+  return bad;
+}
+
+/** A column's zeros and negatives among the usable rows (all rows when `all`), with their sheet rows. */
+function signs(c: Float64Array, rows: number, all: boolean, issue: Uint8Array, index: Int32Array, firstRow: number, to: { zeros: number; negatives: number; zeroRows: RowList; negativeRows: RowList }): void {
+  for (let i = 0; i < rows; i++) {
+    const v = c[i];
+    if (v > 0 || (!all && issue[i] !== USABLE)) continue;
+    if (v === 0) {
+      to.zeros++;
+      to.zeroRows.add(firstRow + index[i]);
+    } else if (v < 0) {
+      to.negatives++;
+      to.negativeRows.add(firstRow + index[i]);
+    }
+  }
+}
+
+/** Over the usable rows: 1 when every value is 0 or 1, plus 2 when every value equals y's. */
+function binaryAndSame(c: Float64Array, y: Float64Array, rows: number, all: boolean, issue: Uint8Array): number {
+  let bin = true;
+  let same = true;
+  for (let i = 0; i < rows && (bin || same); i++) {
+    if (!all && issue[i] !== USABLE) continue;
+    const v = c[i];
+    if (v !== 0 && v !== 1) bin = false;
+    if (v !== y[i]) same = false;
+  }
+  return (bin ? 1 : 0) + (same ? 2 : 0);
 }
 
 function scan(state: PartState, op: PartOp): PartAnswer {
@@ -293,43 +423,23 @@ function scan(state: PartState, op: PartOp): PartAnswer {
   const np = Array.from({ length: kx + 1 }, () => ({ zeros: 0, negatives: 0, zeroRows: new RowList(), negativeRows: new RowList() }));
   const { rawY, rawX, issue, index } = state;
   // column by column: the rows not usable first, then each column over the usable rows
-  for (let i = 0; i < rows; i++) {
-    if (issue[i] === USABLE) continue;
-    if (issue[i] === BLANK) blank++;
-    else notNumber++;
-    unusable.add(firstRow + index[i]);
-    if (!(rawY[i] - rawY[i] === 0)) badCells[0]++;
-    for (let j = 0; j < kx; j++) if (!(rawX[j][i] - rawX[j][i] === 0)) badCells[j + 1]++;
+  if (!allUsable(issue, rows)) {
+    const counts = unusableRows(issue, index, rows, firstRow, unusable);
+    blank = counts[0];
+    notNumber = counts[1];
+    badCells[0] = notFinite(rawY, issue, rows);
+    for (let j = 0; j < kx; j++) badCells[j + 1] = notFinite(rawX[j], issue, rows);
   }
   usable = rows - blank - notNumber;
   const all = usable === rows;
-  const signs = (c: Float64Array, to: (typeof np)[number]) => {
-    for (let i = 0; i < rows; i++) {
-      const v = c[i];
-      if (v > 0 || (!all && issue[i] !== USABLE)) continue;
-      if (v === 0) {
-        to.zeros++;
-        to.zeroRows.add(firstRow + index[i]);
-      } else if (v < 0) {
-        to.negatives++;
-        to.negativeRows.add(firstRow + index[i]);
-      }
-    }
-  };
-  signs(rawY, np[0]);
+  // a column whose values were all > 0 as appended has no zeros or negatives to count
+  const positive = state.positive ?? [];
+  if (!positive[0]) signs(rawY, rows, all, issue, index, firstRow, np[0]);
   for (let j = 0; j < kx; j++) {
-    const c = rawX[j];
-    signs(c, np[j + 1]);
-    let bin = true;
-    let same = true;
-    for (let i = 0; i < rows && (bin || same); i++) {
-      if (!all && issue[i] !== USABLE) continue;
-      const v = c[i];
-      if (v !== 0 && v !== 1) bin = false;
-      if (v !== rawY[i]) same = false;
-    }
-    binary[j] = bin;
-    sameAsY[j] = same;
+    if (!positive[j + 1]) signs(rawX[j], rows, all, issue, index, firstRow, np[j + 1]);
+    const both = binaryAndSame(rawX[j], rawY, rows, all, issue);
+    binary[j] = (both & 1) !== 0;
+    sameAsY[j] = (both & 2) !== 0;
   }
   const answer: ScanAnswer = {
     usable, blank, notNumber, unusableRows: unusable.toRuns(), badCells, binary, sameAsY,
@@ -340,33 +450,17 @@ function scan(state: PartState, op: PartOp): PartAnswer {
 }
 
 /**
- * Keeps the usable rows (and, under zeros=drop, those with every logged value > 0), in place, then
- * logs y and the logged x columns as the cell path does (the kernel's log, Math.log's values), and builds the
- * fit's design: a column of ones when there is an intercept, then the x columns.
+ * The usable rows (and under zeros=drop those with every logged value > 0) moved up in place, in
+ * order; answers [rows kept, rows dropped, of which with a negative value].
  */
-function prepare(state: PartState, op: PartOp): PartAnswer {
-  const logY = op.logY as boolean;
-  const logged = op.logged as boolean[];
-  const drop = op.drop as boolean;
-  const intercept = op.intercept as boolean;
-  const firstRow = op.firstRow as number;
-  const kx = op.kx as number;
-  // The rows are transformed in place (no second copy of a big range): a part's rows serve fits with
-  // the same transforms and rows (another se= or level); other transforms need the rows again.
-  const key = JSON.stringify([kx, logY, logged, drop, intercept, firstRow]);
-  if (state.y) {
-    if (state.prepared?.key !== key) throw new Error("this part's rows were already transformed for a fit with other transforms: append them again for this one");
-    const d = state.designs.fit;
-    state.designs = { fit: { X: d.X, y: state.y, blocks: null, resid: null, r: null, f: null, norms: d.norms } };
-    return { answer: state.prepared.answer };
-  }
-  ensureColumns(state, kx);
+function keepRows(state: PartState, kx: number, logY: boolean, logged: boolean[], drop: boolean, firstRow: number, droppedRows: RowList): [number, number, number] {
   const { rawY, rawX, issue, index } = state;
-  const droppedRows = new RowList();
+  const rows = state.rows;
+  if (!drop && allUsable(issue, rows)) return [rows, 0, 0];
   let dropped = 0;
   let droppedNegative = 0;
   let w = 0;
-  for (let i = 0; i < state.rows; i++) {
+  for (let i = 0; i < rows; i++) {
     if (issue[i] !== USABLE) continue;
     if (drop) {
       let bad = logY && rawY[i] <= 0;
@@ -391,34 +485,98 @@ function prepare(state: PartState, op: PartOp): PartAnswer {
     }
     w++;
   }
-  const n = w;
+  return [w, dropped, droppedNegative];
+}
+
+/** Rows per block of prepare's log and sums (the block stays in the processor's first cache between the two). */
+const PREPARE_ROWS = 2048;
+
+/** y logged in place (when logY), block by block, with out = [Σy in row order, max|y|]. */
+function transformY(y: Float64Array, logY: boolean, out: Float64Array): void {
+  out[0] = 0;
+  out[1] = 0;
+  for (let s = 0; s < y.length; s += PREPARE_ROWS) {
+    const e = Math.min(y.length, s + PREPARE_ROWS);
+    if (logY) kernel().logInPlace(y.subarray(s, e)); // Math.log's values, as the cell path logs
+    sumAndMax(y, s, e, out);
+  }
+}
+
+/** Rows from … to − 1 added to out = [Σv in row order, max|v|]. */
+function sumAndMax(c: Float64Array, from: number, to: number, out: Float64Array): void {
+  let s = out[0];
+  let m = out[1];
+  for (let i = from; i < to; i++) {
+    const v = c[i];
+    s += v;
+    const b = Math.abs(v);
+    if (b > m) m = b;
+  }
+  out[0] = s;
+  out[1] = m;
+}
+
+/** The intercept's column of n ones, kept by the part for later fits of the same rows. */
+function onesColumn(state: PartState, n: number): Float64Array {
+  if (!state.ones || state.ones.length !== n) state.ones = new Float64Array(n).fill(1);
+  return state.ones;
+}
+
+/**
+ * Keeps the usable rows (and, under zeros=drop, those with every logged value > 0), in place, then
+ * logs y and the logged x columns as the cell path does (Math.log, column by column), and builds the
+ * fit's design: a column of ones when there is an intercept, then the x columns.
+ */
+function prepare(state: PartState, op: PartOp): PartAnswer {
+  const logY = op.logY as boolean;
+  const logged = op.logged as boolean[];
+  const drop = op.drop as boolean;
+  const intercept = op.intercept as boolean;
+  const firstRow = op.firstRow as number;
+  const kx = op.kx as number;
+  // The rows are transformed in place (no second copy of a big range): a part's rows serve fits with
+  // the same transforms and rows (another se= or level); other transforms need the rows again.
+  const key = JSON.stringify([kx, logY, logged, drop, intercept, firstRow]);
+  if (state.y) {
+    if (state.prepared?.key !== key) throw new Error("this part's rows were already transformed for a fit with other transforms: append them again for this one");
+    const d = state.designs.fit;
+    state.designs = { fit: { X: d.X, y: state.y, blocks: null, resid: null, r: null, f: null, norms: d.norms } };
+    return { answer: state.prepared.answer };
+  }
+  ensureColumns(state, kx);
+  const { rawY, rawX, index } = state;
+  const droppedRows = new RowList();
+  const kept = keepRows(state, kx, logY, logged, drop, firstRow, droppedRows);
+  const n = kept[0];
+  const dropped = kept[1];
+  const droppedNegative = kept[2];
   const y = rawY.subarray(0, n);
   const x = rawX.slice(0, kx).map((c) => c.subarray(0, n));
-  // per column: the log in place (the kernel's, Math.log's values), then max|x| and Σx² (norms, in
-  // order: the sums of leastSquares.ts norm2) and whether every value equals the first
-  if (logY) kernel().logInPlace(y);
-  let yMax = 0;
-  let ySum = 0;
-  for (let i = 0; i < n; i++) {
-    const v = y[i];
-    ySum += v;
-    const b = Math.abs(v);
-    if (b > yMax) yMax = b;
-  }
+  // per column: the log (in place), then the first value and constancy, max|x| and Σx² (norms)
+  const st = new Float64Array(3);
+  transformY(y, logY, st);
+  const ySum = st[0];
+  const yMax = st[1];
   const first: number[] = [];
   const constant: boolean[] = [];
   const xMax: number[] = [];
   const sumSq: number[] = [];
   for (let j = 0; j < kx; j++) {
     const c = x[j];
-    if (logged[j]) kernel().logInPlace(c);
-    const f = n > 0 ? c[0] : NaN;
+    if (logged[j]) {
+      // the kernel's log (Math.log's values) with max|x| and Σx² in order from the same read (norm2's sums)
+      const f = kernel().logWithFacts(c);
+      xMax.push(f.maxAbs);
+      sumSq.push(f.sumSq);
+    } else {
+      xMax.push(kernel().maxAbs(c));
+      sumSq.push(kernel().sumSquares(c));
+    }
+    // constant when every value equals the first (the scan stops at the first that differs)
     let i = 1;
-    while (i < n && c[i] === f) i++;
-    first.push(f);
+    while (i < n && c[i] === c[0]) i++;
+    first.push(n > 0 ? c[0] : NaN);
     constant.push(i >= n);
-    xMax.push(kernel().maxAbs(c));
-    sumSq.push(kernel().sumSquares(c));
   }
   state.n = n;
   state.y = y;
@@ -427,13 +585,14 @@ function prepare(state: PartState, op: PartOp): PartAnswer {
   const design: Float64Array[] = [];
   const norms = { sumSq: [...sumSq], maxAbs: [...xMax] };
   if (intercept) {
-    design.push(new Float64Array(n).fill(1));
+    design.push(onesColumn(state, n));
     norms.sumSq.unshift(n); // Σ1² added one by one: exact
     norms.maxAbs.unshift(n > 0 ? 1 : 0);
   }
   design.push(...x);
   state.designs = { fit: { X: design, y, blocks: null, resid: null, r: null, f: null, norms } };
-  const answer: PrepareAnswer = { n, dropped, droppedNegative, droppedRows: droppedRows.toRuns(), first, constant, yMax, ySum, xMax };
+  const fitNorms = normsOf(state.designs.fit, (op.parts as number | undefined) ?? 1);
+  const answer: PrepareAnswer = { n, dropped, droppedNegative, droppedRows: droppedRows.toRuns(), first, constant, yMax, ySum, xMax, norms: fitNorms };
   state.prepared = { key, answer };
   return { answer };
 }
@@ -450,8 +609,10 @@ function designOf(state: PartState, op: PartOp): PartDesign {
  * or above 1e280/parts): the driver then combines the scaled sums, as norm2 rescales.
  */
 function norms(state: PartState, op: PartOp): PartAnswer {
-  const d = designOf(state, op);
-  const parts = (op.parts as number | undefined) ?? 1;
+  return { answer: normsOf(designOf(state, op), (op.parts as number | undefined) ?? 1) };
+}
+
+function normsOf(d: PartDesign, parts: number): NormsAnswer {
   const sumSq: number[] = [];
   const mx: number[] = [];
   const scaledSumSq: number[] = [];
@@ -482,8 +643,7 @@ function norms(state: PartState, op: PartOp): PartAnswer {
     mx.push(m);
     scaledSumSq.push(t);
   }
-  const answer: NormsAnswer = { sumSq, maxAbs: mx, scaledSumSq };
-  return { answer };
+  return { sumSq, maxAbs: mx, scaledSumSq };
 }
 
 /** The part's row-blocked Householder QR of [X/scale | y/unit] from a zero triangle: T, (k+1)×(k+1). */
@@ -504,7 +664,7 @@ function factor(state: PartState, op: PartOp): PartAnswer {
   return { answer: { T }, transfer: [T.buffer as ArrayBuffer] };
 }
 
-/** Rows per block of the fused passes (even, so that the two-way column sums pair rows as a whole pass does). */
+/** Rows per block of the residual step's fused pass. */
 const PASS_ROWS = 1024;
 
 /**
@@ -536,14 +696,35 @@ function residuals(state: PartState, op: PartOp): PartAnswer {
   return { answer };
 }
 
-/** resid_i = y_i − Σ_j b_j x_ij for rows start … end − 1, one column at a time. */
+/**
+ * resid_i = y_i − Σ_j b_j x_ij for rows start … end − 1, the columns subtracted in order. Four
+ * columns per sweep of the rows: ((((r − b_0x_0) − b_1x_1) − b_2x_2) − b_3x_3) is the same arithmetic
+ * as four sweeps of one column, with a quarter of the loads and stores of r.
+ */
 function residualRows(X: Float64Array[], y: Float64Array, coef: Float64Array, resid: Float64Array, start: number, end: number): void {
   for (let i = start; i < end; i++) resid[i] = y[i];
-  for (let j = 0; j < X.length; j++) {
-    const bj = coef[j];
-    const xj = X[j];
-    for (let i = start; i < end; i++) resid[i] -= bj * xj[i];
-  }
+  const k = X.length;
+  let j = 0;
+  for (; j + 3 < k; j += 4) subtractFour(X, coef, j, resid, start, end, 0);
+  for (; j < k; j++) subtractOne(X[j], coef[j], resid, start, end, 0);
+}
+
+/** r[i − shift] −= b·x[i] for i in [from, to). */
+function subtractOne(x: Float64Array, b: number, r: Float64Array, from: number, to: number, shift: number): void {
+  for (let i = from; i < to; i++) r[i - shift] -= b * x[i];
+}
+
+/** Columns j … j+3 subtracted as subtractOne would, one after the other, in one sweep. */
+function subtractFour(X: Float64Array[], b: Float64Array, j: number, r: Float64Array, from: number, to: number, shift: number): void {
+  const b0 = b[j];
+  const b1 = b[j + 1];
+  const b2 = b[j + 2];
+  const b3 = b[j + 3];
+  const x0 = X[j];
+  const x1 = X[j + 1];
+  const x2 = X[j + 2];
+  const x3 = X[j + 3];
+  for (let i = from; i < to; i++) r[i - shift] = (((r[i - shift] - b0 * x0[i]) - b1 * x1[i]) - b2 * x2[i]) - b3 * x3[i];
 }
 
 /** Σe², max|e|, Σy and Σy², added in row order block by block (the order of one pass over the rows). */
@@ -563,7 +744,11 @@ class ResidualSums {
       sumY += v;
       sumY2 += v * v;
     }
-    Object.assign(this, { rss, maxAbs, sumY, sumY2 });
+    // (field by field: an Object.assign here made one object per block)
+    this.rss = rss;
+    this.maxAbs = maxAbs;
+    this.sumY = sumY;
+    this.sumY2 = sumY2;
   }
   answer(n: number): ResidualsAnswer {
     return { n, rss: this.rss, maxAbs: this.maxAbs, sumY: this.sumY, sumY2: this.sumY2 };
@@ -643,11 +828,15 @@ function center(state: PartState, op: PartOp): PartAnswer {
   return { answer: { corr, ss } };
 }
 
+/** HC weight kinds of hcWeights. */
+const HC_KIND = { HC0: 0, HC1: 1, HC2: 2, HC3: 3 } as const;
+
 /**
  * The second passes over the fit's rows, in one pass of Q's rows: the residuals r = y − Σ b_j x_j
  * when coef is given (as the step "residuals" computes them, with its sums); the HC meat Σ ω_i z_i z_iᵀ with z_i = R⁻ᵀx_i and h_i = |z_i|² (as covariance.ts hcCovariance,
- * on the kernel's workspace); the Breusch–Pagan sums on the fit's own design, v = (e/eUnit)² (as
- * specTests.ts onFitDesign, residualSS's first solve); and the sample of rows for the picture.
+ * on the kernel's workspace); the first pass of Breusch–Pagan on the fit's own design, v = (e/eUnit)²
+ * (as specTests.ts onFitDesign, leastSquares.ts rssOnFactor's first pass: Xᵀv and Σv² by blocks);
+ * and the sample of rows for the picture.
  */
 function passes(state: PartState, op: PartOp): PartAnswer {
   const d = state.designs.fit;
@@ -662,27 +851,25 @@ function passes(state: PartState, op: PartOp): PartAnswer {
   const firstRow = op.firstRow as number;
   const yUnit = op.yUnit as number;
   const coef = (op.coef as Float64Array | null | undefined) ?? null;
-  if (coef) d.resid = new Float64Array(n);
+  if (coef) d.resid = residBuffer(state, n);
   const resid = d.resid as Float64Array;
   const rowIndex = state.rowIndex as Int32Array;
   const eUnit = op.bpUnit as number | null;
   const mean = op.mean as number;
 
-  let corr = 0;
+  const running = new Float64Array(1);
   const rsum = coef ? new ResidualSums() : null;
   const ones = new RowList();
+  const hcKind = hc ? HC_KIND[hc] : -1;
   const needH = hc === "HC2" || hc === "HC3";
   const inv = new Float64Array(k);
   for (let j = 0; j < k; j++) inv[j] = 1 / scale[j];
   const ws = hc ? kernel().qWorkspace(R, inv, k, BLOCK) : null;
-  const v = eUnit !== null ? new Float64Array(n) : null;
-  const sums = v ? new ColumnSums(k) : null;
-  const vInv = eUnit !== null ? 1 / eUnit : 1;
-  let bpSum = 0;
+  const bp = eUnit !== null ? new BpFirstPass(k, 1 / eUnit) : null;
   for (let start = 0; start < n; start += BLOCK) {
     const m = Math.min(BLOCK, n - start);
     const end = start + m;
-    for (let i = start; i < end; i++) corr += y[i] - mean;
+    addDifferences(y, mean, start, end, running);
     if (coef && rsum) {
       residualRows(X, y, coef, resid, start, end);
       rsum.add(resid, y, start, end);
@@ -690,40 +877,14 @@ function passes(state: PartState, op: PartOp): PartAnswer {
     if (ws) {
       ws.qRows(X, start, m);
       if (needH) ws.leverage(m);
-      const w = ws.w;
-      const h = ws.h;
-      for (let i = 0; i < m; i++) {
-        const e = resid[start + i];
-        const e2 = e * e;
-        if (hc === "HC0") w[i] = e2;
-        else if (hc === "HC1") w[i] = e2 * hc1;
-        else {
-          const hi = h[i];
-          if (hi >= 1 - LEVERAGE_TOL) {
-            ones.add(firstRow + rowIndex[start + i]);
-            w[i] = 0;
-          } else w[i] = hc === "HC2" ? e2 / (1 - hi) : e2 / ((1 - hi) * (1 - hi));
-        }
+      if (ws.hcWeights(resid, start, m, hcKind, hc1, 1 - LEVERAGE_TOL) > 0) {
+        for (let i = 0; i < m; i++) if (ws.h[i] >= 1 - LEVERAGE_TOL) ones.add(firstRow + rowIndex[start + i]);
       }
       ws.meat(m); // M_ab += Σ w_i z_ai z_bi, b ≥ a
     }
-    if (v && sums) {
-      // v = working(e)², as specTests.ts squaredResiduals; kept for the solves that follow
-      for (let i = start; i < end; i++) {
-        const e = resid[i] * vInv;
-        const vi = e * e;
-        v[i] = vi;
-        bpSum += vi;
-      }
-      sums.add(X, v, start, end);
-    }
+    if (bp) bp.add(X, resid, start, m);
   }
   const meat = ws ? ws.M.slice() : null;
-  let bpG: Float64Array | null = null;
-  if (v && sums) {
-    state.designs.bp = { X, y: v, blocks: null, resid: null, r: null, f: null };
-    bpG = sums.result();
-  }
 
   const stride = op.stride as number;
   const offset = op.offset as number;
@@ -739,138 +900,130 @@ function passes(state: PartState, op: PartOp): PartAnswer {
     rows[t] = rowIndex[first];
   }
   const residAnswer: ResidualsAnswer | null = rsum ? rsum.answer(n) : null;
-  const answer: PassesAnswer = { corr, resid: residAnswer, meat, leverageOne: ones.toRuns(), bpG, bpSum, sample: { fitted, residuals: res, rows } };
+  const answer: PassesAnswer = {
+    corr: running[0], resid: residAnswer, meat, leverageOne: ones.toRuns(),
+    bpG: bp ? bp.g : null, bpVV: bp ? bp.vv : 0, bpSum: bp ? bp.sum : 0, sample: { fitted, residuals: res, rows },
+  };
   return { answer, transfer: [fitted.buffer as ArrayBuffer, res.buffer as ArrayBuffer, rows.buffer as ArrayBuffer] };
 }
 
+/** The part's buffer of n residuals (kept between fits of the same rows). */
+function residBuffer(state: PartState, n: number): Float64Array {
+  if (!state.residBuffer || state.residBuffer.length !== n) state.residBuffer = new Float64Array(n);
+  return state.residBuffer;
+}
+
+/** running[0] += Σ (y_i − mean) over rows start … end − 1, in row order. */
+function addDifferences(y: Float64Array, mean: number, start: number, end: number, running: Float64Array): void {
+  let s = running[0];
+  for (let i = start; i < end; i++) s += y[i] - mean;
+  running[0] = s;
+}
+
+/** v = (e/eUnit)² of rows start … start + m − 1 into b[0 … m) (specTests.ts squaredResiduals); answers Σv in row order added to s. */
+function squaredBlock(resid: Float64Array, start: number, m: number, vInv: number, b: Float64Array, s: number): number {
+  for (let i = 0; i < m; i++) {
+    const e = resid[start + i] * vInv;
+    const v = e * e;
+    b[i] = v;
+    s += v;
+  }
+  return s;
+}
+
 /**
- * The Breusch–Pagan sums of "passes" again with another unit: v = (e/eUnit)², Σ_i x_ij v_i and
- * Σ v (for a fit whose residuals fall outside scaling.ts's window, after "passes" assumed unit 1).
+ * The first pass of Breusch–Pagan on the fit's design (the first pass of leastSquares.ts rssOnFactor),
+ * block by block of BLOCK rows from the part's first row, inside the fused passes: Σ_i x_ij v_i per
+ * column and Σv² by dotBlock, Σv in row order.
+ */
+class BpFirstPass {
+  readonly g: Float64Array;
+  vv = 0;
+  sum = 0;
+  private readonly b = new Float64Array(BLOCK);
+  constructor(k: number, private readonly vInv: number) {
+    this.g = new Float64Array(k);
+  }
+
+  add(X: Float64Array[], resid: Float64Array, start: number, m: number): void {
+    const b = this.b;
+    this.sum = squaredBlock(resid, start, m, this.vInv, b, this.sum);
+    this.vv += dotBlock(b, 0, b, 0, m);
+    for (let j = 0; j < X.length; j++) this.g[j] += dotBlock(X[j], start, b, 0, m);
+  }
+}
+
+/**
+ * The first pass of Breusch–Pagan again with another unit, v = (e/eUnit)² (for a fit whose residuals
+ * fall outside scaling.ts's window, after "passes" assumed unit 1).
  */
 function bpSums(state: PartState, op: PartOp): PartAnswer {
   const d = state.designs.fit;
   const resid = d.resid as Float64Array;
   const n = resid.length;
-  const inv = 1 / (op.bpUnit as number);
-  const v = new Float64Array(n);
-  let bpSum = 0;
-  for (let i = 0; i < n; i++) {
-    const e = resid[i] * inv;
-    const vi = e * e;
-    v[i] = vi;
-    bpSum += vi;
-  }
-  const sums = new ColumnSums(d.X.length);
-  sums.add(d.X, v, 0, n);
-  state.designs.bp = { X: d.X, y: v, blocks: null, resid: null, r: null, f: null };
-  return { answer: { bpG: sums.result(), bpSum } };
+  const bp = new BpFirstPass(d.X.length, 1 / (op.bpUnit as number));
+  for (let start = 0; start < n; start += BLOCK) bp.add(d.X, resid, start, Math.min(BLOCK, n - start));
+  return { answer: { bpG: bp.g, bpVV: bp.vv, bpSum: bp.sum } };
 }
 
 /**
- * Σ_i x_ij v_i per column with the two partial sums of leastSquares.ts residualSS (even rows, odd
- * rows), added block by block: blocks start at even rows, so each row joins the same partial sum,
- * in the same order, as in one pass over the whole column.
- */
-class ColumnSums {
-  private readonly s0: Float64Array;
-  private readonly s1: Float64Array;
-  constructor(k: number) {
-    this.s0 = new Float64Array(k);
-    this.s1 = new Float64Array(k);
-  }
-
-  /** Rows start … end−1 (start even). */
-  add(X: Float64Array[], v: Float64Array, start: number, end: number): void {
-    for (let j = 0; j < X.length; j++) {
-      const col = X[j];
-      let s0 = this.s0[j];
-      let s1 = this.s1[j];
-      let i = start;
-      for (; i + 1 < end; i += 2) {
-        s0 += col[i] * v[i];
-        s1 += col[i + 1] * v[i + 1];
-      }
-      if (i < end) s0 += col[i] * v[i];
-      this.s0[j] = s0;
-      this.s1[j] = s1;
-    }
-  }
-
-  /** The same rows' sums where v is held as a block buffer: b[i − start] for row i. */
-  addBlock(X: Float64Array[], b: Float64Array, start: number, end: number): void {
-    for (let j = 0; j < X.length; j++) {
-      const col = X[j];
-      let s0 = this.s0[j];
-      let s1 = this.s1[j];
-      let i = start;
-      for (; i + 1 < end; i += 2) {
-        s0 += col[i] * b[i - start];
-        s1 += col[i + 1] * b[i + 1 - start];
-      }
-      if (i < end) s0 += col[i] * b[i - start];
-      this.s0[j] = s0;
-      this.s1[j] = s1;
-    }
-  }
-
-  result(): Float64Array {
-    const g = new Float64Array(this.s0.length);
-    for (let j = 0; j < g.length; j++) g[j] = this.s0[j] + this.s1[j];
-    return g;
-  }
-}
-
-/**
- * Breusch–Pagan on the fit's factor (corrected semi-normal equations, leastSquares.ts residualSS):
- * r = v − Σ (c_j/scale_j) x_j; answers Xᵀr (for the correction), Σr² and Σ(v − mean)². One pass
- * over the rows, block by block, with the arithmetic and order of sums of whole-column passes.
+ * The second pass of Breusch–Pagan on the fit's factor (leastSquares.ts rssOnFactor): r = v −
+ * Σ b_j x_j block by block, Σr² and, when the driver asks for the correction, Xᵀr; Σ(v − mean)² in row
+ * order; and, when a centre is given, Σ(y − centre)² of the fit's y (R²'s centred sum) in the same pass.
  */
 function bpSolve(state: PartState, op: PartOp): PartAnswer {
-  const d = state.designs.bp;
-  if (!d) throw new Error("the Breusch–Pagan sums were not started");
-  const c = op.c as Float64Array;
-  const scale = op.scale as Float64Array;
+  const d = state.designs.fit;
+  const resid = d.resid as Float64Array;
+  if (!resid) throw new Error("the Breusch–Pagan sums were not started");
+  const b = op.b as Float64Array;
+  const vInv = 1 / (op.bpUnit as number);
   const mean = op.mean as number;
+  const correct = op.correct as boolean;
   const X = d.X;
   const k = X.length;
-  const vy = d.y;
-  const n = vy.length;
-  const b = new Float64Array(k);
-  for (let j = 0; j < k; j++) b[j] = c[j] / scale[j];
-  const wantG = op.wantG as boolean;
-  const sums = wantG ? new ColumnSums(k) : null;
+  const n = resid.length;
   const withCentre = op.center !== null && op.center !== undefined;
   const centre = withCentre ? (op.center as number) : 0;
-  const fy = state.designs.fit.y;
-  const r = new Float64Array(Math.min(PASS_ROWS, n));
-  let rss = 0;
-  let tss = 0;
-  let ss = 0;
-  for (let start = 0; start < n; start += PASS_ROWS) {
-    const end = Math.min(n, start + PASS_ROWS);
-    const m = end - start;
-    for (let i = 0; i < m; i++) r[i] = vy[start + i];
-    for (let j = 0; j < k; j++) {
-      const bj = b[j];
-      const col = X[j];
-      for (let i = 0; i < m; i++) r[i] -= bj * col[start + i];
-    }
-    for (let i = 0; i < m; i++) {
-      rss += r[i] * r[i];
-      const u = vy[start + i] - mean;
-      tss += u * u;
-    }
-    // R²'s centred sum of squares of the fit's y, in the same round when asked
-    if (withCentre) {
-      for (let i = start; i < end; i++) {
-        const u = fy[i] - centre;
-        ss += u * u;
-      }
-    }
-    if (sums) sums.addBlock(X, r, start, end);
+  const fy = state.y as Float64Array;
+  const r = new Float64Array(BLOCK);
+  const t = new Float64Array(correct ? k : 0);
+  const sums = new Float64Array(3); // Σ(v − mean)², Σ(y − centre)², scratch
+  let rr = 0;
+  for (let start = 0; start < n; start += BLOCK) {
+    const m = Math.min(BLOCK, n - start);
+    squaredBlock(resid, start, m, vInv, r, 0);
+    addCentred(r, 0, m, mean, sums, 0);
+    subtractColumns(X, b, start, m, r);
+    rr += dotBlock(r, 0, r, 0, m);
+    if (correct) for (let j = 0; j < k; j++) t[j] += dotBlock(X[j], start, r, 0, m);
+    if (withCentre) addCentred(fy, start, m, centre, sums, 1);
   }
-  const answer: BpSolveAnswer = { g: sums ? sums.result() : new Float64Array(0), rss, tss, ss };
+  const answer: BpSolveAnswer = { t, rr, tss: sums[0], ss: sums[1] };
   return { answer };
+}
+
+/** sums[at] += Σ (a_i − c)² over a[from … from + m), in row order. */
+function addCentred(a: Float64Array, from: number, m: number, c: number, sums: Float64Array, at: number): void {
+  let s = sums[at];
+  for (let i = from; i < from + m; i++) {
+    const u = a[i] - c;
+    s += u * u;
+  }
+  sums[at] = s;
+}
+
+/**
+ * r[i] −= Σ_j b_j x_j[start + i] for i < m, column by column, skipping zero coefficients (leastSquares.ts
+ * subtractCombination's order); four columns per sweep where none of the four is skipped.
+ */
+function subtractColumns(X: Float64Array[], b: Float64Array, start: number, m: number, r: Float64Array): void {
+  const k = X.length;
+  let j = 0;
+  for (; j + 3 < k; j += 4) {
+    if (b[j] !== 0 && b[j + 1] !== 0 && b[j + 2] !== 0 && b[j + 3] !== 0) subtractFour(X, b, j, r, start, start + m, start);
+    else for (let q = j; q < j + 4; q++) if (b[q] !== 0) subtractOne(X[q], b[q], r, start, start + m, start);
+  }
+  for (; j < k; j++) if (b[j] !== 0) subtractOne(X[j], b[j], r, start, start + m, start);
 }
 
 /**

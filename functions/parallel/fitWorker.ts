@@ -9,7 +9,7 @@
  */
 import type { PartOp } from "../engine/columnFitTypes";
 import { ElxProblem } from "../engine/problems";
-import { newPartState, stepPart } from "./engineLink";
+import { newPartState, stepPart, warmUpParts } from "./engineLink";
 import type { PartRequest, WorkerMessage } from "./protocol";
 
 /** What the worker needs of its global scope: send a message, hear messages. */
@@ -56,6 +56,9 @@ export function serveParts(scope: WorkerScope): (data: unknown) => void {
 // Started as a worker: a global scope with postMessage and no document.
 declare const self: unknown;
 const scope = typeof self !== "undefined" ? (self as Partial<WorkerScope> & { document?: unknown }) : undefined;
+// It warms the engine up first (a failed warm-up only leaves the code cold), then says it is ready.
 if (scope && typeof scope.postMessage === "function" && typeof scope.addEventListener === "function" && scope.document === undefined) {
-  serveParts(scope as WorkerScope);
+  void warmUpParts()
+    .catch(() => undefined)
+    .then(() => serveParts(scope as WorkerScope));
 }
