@@ -10,7 +10,7 @@
 import { effectsTable, elasticitiesTable, elasticityValue, fitTable, summaryTable, zerosTable } from "./cells/regression";
 import { byGroupTable } from "./cells/groups";
 import { breakTestTable, rollingTable } from "./cells/time";
-import { fitView, elasticitiesView, testsView, rollingView, breakView, makeCaller, cacheStats, readColumns, type CellFunction, type ElasticellApi } from "./paneApi";
+import { fitView, elasticitiesView, testsView, rollingView, breakView, makeCaller, cacheStats, kernelName, readColumns, type CellFunction, type ElasticellApi } from "./paneApi";
 import { formCheckTable, heteroValue, normalValue, predictTable, smearingValue, testsTable } from "./cells/diagnostics";
 import { ivCheckTable } from "./cells/iv";
 import { wasmKernel } from "./engine/kernel";
@@ -202,6 +202,7 @@ const published: ElasticellApi = {
   breakView,
   readColumns,
   cacheStats,
+  kernelName,
 };
 (globalThis as unknown as { Elasticell: ElasticellApi }).Elasticell = published;
 // The WebAssembly kernel compiles now, not at the first formula: on a page's main thread it compiles

@@ -4,6 +4,7 @@
  * same cached fits as the cells, functions.js publishes this object on `globalThis.Elasticell` when it
  * loads (no DOM, no host API). The pane only reads: nothing here writes to a workbook.
  */
+import { kernel } from "./engine/kernel";
 import { getFit, cacheStats } from "./engine/model";
 import { parseOptions, seTypeOf, type Estimator } from "./engine/options";
 import { ElxProblem } from "./engine/problems";
@@ -213,6 +214,11 @@ export function makeCaller(functions: Record<string, CellFunction>) {
 
 export { cacheStats };
 
+/** The engine's kernel now in force ("wasm" once the WebAssembly module is compiled, else "js"). */
+export function kernelName(): string {
+  return kernel().name;
+}
+
 /** The object functions.js publishes on globalThis.Elasticell (the pane reads it by this type). */
 export interface ElasticellApi {
   functions: Record<string, CellFunction>;
@@ -224,4 +230,5 @@ export interface ElasticellApi {
   breakView: typeof breakView;
   readColumns: typeof readColumns;
   cacheStats: typeof cacheStats;
+  kernelName: typeof kernelName;
 }

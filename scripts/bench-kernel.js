@@ -14,6 +14,10 @@
  *   QR            leastSquares() alone (scaling, the block factorisation, the solve, the residuals)
  *   HC3           the HC3 covariance of a fitted model: one pass over the rows of Q (leverage and
  *                 the meat)
+ *   logs          the logs of the 11 raw columns (ColumnOps.logInPlace: Math.log against the
+ *                 kernel's fdlibm log, two lanes at a time; the same doubles)
+ *   BP projection the Breusch–Pagan test's regression of e² on the fit's factor (rssOnFactor: two
+ *                 passes over the rows through the sides workspace)
  *   FIT+HC3+BP    from the host's row arrays: intake, logs, the fit, HC3 errors, the studentized
  *                 Breusch–Pagan p-value (the test reuses the fit's factor), as FIT then HETEROTEST
  */
@@ -35,7 +39,7 @@ const ROOT = path.join(__dirname, "..");
 const E = (m) => require(path.join(ROOT, "functions", "engine", m));
 const { kernel, useKernel, wasmKernel } = E("kernel.ts");
 const { BLOCK_ROWS } = E("leastSquares.ts");
-const { leastSquares } = E("leastSquares.ts");
+const { leastSquares, rssOnFactor } = E("leastSquares.ts");
 const { fitUncached } = E("model.ts");
 const { parseOptions } = E("options.ts");
 const { breuschPaganKoenker } = E("specTests.ts");
@@ -139,6 +143,9 @@ for (const n of QUICK ? [100000] : [100000, 1000000]) {
   const X = [new Float64Array(n).fill(1), ...cols.map((c) => c.map(Math.log))];
   const ly = y.map(Math.log);
   const inv = X.map((c) => 1 / Math.sqrt(c.reduce((s, v) => s + v * v, 0)));
+  compare(`logs ${n} × 11`, () => {
+    for (const c of [y, ...cols]) kernel().logInPlace(c.slice());
+  });
   compare(`blocks ${n} × 10`, () => blockFactor(X, ly, inv));
   compare(`QR ${n} × 10`, () => leastSquares(X, ly));
   // Host row arrays, one cell different per run so nothing is answered from a cache.
@@ -151,6 +158,8 @@ for (const n of QUICK ? [100000] : [100000, 1000000]) {
   }
   const fitted = fitUncached({ y: yRows, x: xRows, options, yOrigin: null, xOrigin: null });
   compare(`HC3 ${n} × 10`, () => hcCovariance(fitted.covarianceInput(), "HC3", null));
+  const e2 = fitted.qr.resid.map((e) => e * e);
+  compare(`BP projection ${n} × 10`, () => rssOnFactor(fitted.design, fitted.qr, 1, (start, m, V) => V.set(e2.subarray(start, start + m))));
   compare(`FIT+HC3+BP ${n} × 10`, (r) => {
     yRows[0][0] = y[0] * (1 + r * 1e-9);
     const fit = fitUncached({ y: yRows, x: xRows, options, yOrigin: null, xOrigin: null });

@@ -171,6 +171,13 @@ async function inView(selector: string): Promise<boolean> {
   }, selector);
 }
 
+describe("the engine on the page", () => {
+  it("compiles the engine's WebAssembly kernel in the background on the page's main thread (over 4 KB: not allowed synchronously there), and the engine then uses it", async () => {
+    await page.waitForFunction(() => (window as any).Elasticell?.kernelName() === "wasm", null, { timeout: 20000 });
+    expect(problems.filter((p) => /WebAssembly|wasm/i.test(p))).toEqual([]);
+  });
+});
+
 describe("the README's steps, followed literally (item 6)", () => {
   it("say first that the default zeros=stop refuses the demo data, and offer the zero choices in one click", async () => {
     await readmeSteps();
