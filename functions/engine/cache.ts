@@ -11,6 +11,13 @@
 const F64 = new Float64Array(1);
 const U32 = new Uint32Array(F64.buffer);
 
+/**
+ * The hash's two 32-bit lanes while a row is handed to a helper (a, then b). The hot loops keep the
+ * lanes in locals and pass them here only for rows with a cell that is not a number, so the loops
+ * hold no call and see only rows of numbers (one kind of array: no boxed doubles).
+ */
+export const LANES = new Int32Array(2);
+
 function mixString(h: number, s: string): number {
   for (let i = 0; i < s.length; i++) h = Math.imul(h ^ s.charCodeAt(i), 0x01000193);
   return h;
@@ -30,58 +37,124 @@ function cellTag(x: unknown): string {
   }
 }
 
+/** The lanes at the start of a range of `height` rows (seeded per argument: y, x, keys). */
+export function startLanes(seed: number, height: number): void {
+  LANES[0] = Math.imul(((0x811c9dc5 ^ seed) | 0) ^ height, 0x01000193);
+  LANES[1] = (0x27d4eb2f ^ Math.imul(seed, 0x9e3779b9)) | 0;
+}
+
+/** Mixes a row entry that is not an array (a ragged argument) into LANES. */
+export function mixLoose(c: unknown): void {
+  const s = cellTag(c);
+  LANES[0] = mixString(LANES[0], s);
+  LANES[1] = mixString(Math.imul(LANES[1] ^ s.length, 0x5bd1e995), s);
+}
+
 /**
- * Hash of an argument as the host passes it (a 2-D array of cells, or a scalar), as text.
- * Two 32-bit lanes, each a multiply–xorshift of every number's 64 bits (one multiply per lane per
- * cell: about 3 ns a cell, so a cache hit on 10^7 cells costs some 30 ms), with row lengths and a
- * type tag for any cell that is not a number, so 0, blank, "" and FALSE hash apart.
+ * Mixes cells from..end of a row into LANES (its length already mixed): numbers by their 64 bits,
+ * anything else by its tag. The same steps as the hot loops, for rows they hand over.
  */
-export function hashCells(v: unknown, seed = 0): string {
-  let a = (0x811c9dc5 ^ seed) | 0;
-  let b = (0x27d4eb2f ^ Math.imul(seed, 0x9e3779b9)) | 0;
-  // (no closure over a and b: captured variables would live in a heap context and slow every cell)
-  if (!Array.isArray(v)) {
-    const s = cellTag(v);
-    a = mixString(a, s);
-    b = mixString(Math.imul(b ^ s.length, 0x5bd1e995), s);
-  } else {
-    a = Math.imul(a ^ v.length, 0x01000193);
-    for (let i = 0; i < v.length; i++) {
-      const row = v[i];
-      if (!Array.isArray(row)) {
-        const s = cellTag(row);
-        a = mixString(a, s);
-        b = mixString(Math.imul(b ^ s.length, 0x5bd1e995), s);
-        continue;
-      }
-      a = Math.imul(a ^ (row.length + 0x9e37), 0x01000193);
-      for (let j = 0; j < row.length; j++) {
-        const c = row[j];
-        if (typeof c === "number") {
-          F64[0] = c;
-          const lo = U32[0];
-          const hi = U32[1];
-          a = Math.imul(a ^ lo, 0x01000193);
-          a = ((a ^ (a >>> 15)) + hi) | 0;
-          b = Math.imul(b + hi, 0x5bd1e995);
-          b = b ^ (b >>> 13) ^ lo;
-        } else {
-          const s = cellTag(c);
-          a = mixString(Math.imul(a ^ 0x3c6ef372, 0x01000193), s);
-          b = mixString(Math.imul(b ^ s.length, 0x5bd1e995), s) ^ (b >>> 13);
-        }
-      }
+export function mixRowFrom(row: readonly unknown[], from: number): void {
+  let a = LANES[0];
+  let b = LANES[1];
+  for (let j = from; j < row.length; j++) {
+    const c = row[j];
+    if (typeof c === "number") {
+      F64[0] = c;
+      const lo = U32[0];
+      const hi = U32[1];
+      a = Math.imul(a ^ lo, 0x01000193);
+      a = ((a ^ (a >>> 15)) + hi) | 0;
+      b = Math.imul(b + hi, 0x5bd1e995);
+      b = b ^ (b >>> 13) ^ lo;
+    } else {
+      const s = cellTag(c);
+      a = mixString(Math.imul(a ^ 0x3c6ef372, 0x01000193), s);
+      b = mixString(Math.imul(b ^ s.length, 0x5bd1e995), s) ^ (b >>> 13);
     }
   }
-  // final avalanche of each lane (murmur3's finaliser)
-  const fin = (h: number) => {
-    h ^= h >>> 16;
-    h = Math.imul(h, 0x85ebca6b);
-    h ^= h >>> 13;
-    h = Math.imul(h, 0xc2b2ae35);
-    return (h ^ (h >>> 16)) >>> 0;
-  };
+  LANES[0] = a;
+  LANES[1] = b;
+}
+
+/** The row length step, before a row's cells. */
+export function mixRowLength(a: number, length: number): number {
+  return Math.imul(a ^ (length + 0x9e37), 0x01000193);
+}
+
+/** The key text of the lanes: each lane through murmur3's finaliser, as two hex words. */
+export function finishLanes(a: number, b: number): string {
   return fin(a).toString(16) + ":" + fin(b ^ a).toString(16);
+}
+
+function fin(h: number): number {
+  h ^= h >>> 16;
+  h = Math.imul(h, 0x85ebca6b);
+  h ^= h >>> 13;
+  h = Math.imul(h, 0xc2b2ae35);
+  return (h ^ (h >>> 16)) >>> 0;
+}
+
+/**
+ * Hash of an argument as the host passes it (a 2-D array of cells, or a scalar), as text.
+ * Two 32-bit lanes over every cell in row order. A number's step takes its 64 bits (low word lo,
+ * high word hi) and is a bijection of each lane for fixed inputs: lane a is injective in lo for a
+ * fixed hi and lane b in hi for a fixed lo, so a change in one word of one cell always changes the
+ * key, and a change in both words or in several cells collides with probability about 2^-64. Row
+ * lengths and a type tag for any cell that is not a number are mixed in, so 0, −0, blank, "" and
+ * FALSE hash apart. intake.ts readGrid computes the same hash while it reads the cells.
+ */
+export function hashCells(v: unknown, seed = 0): string {
+  if (!Array.isArray(v)) {
+    startLanes(seed, 0);
+    LANES[0] = (0x811c9dc5 ^ seed) | 0; // a scalar: no row count
+    mixLoose(v);
+    return finishLanes(LANES[0], LANES[1]);
+  }
+  startLanes(seed, v.length);
+  if (v.length > 0) mixRow(v[0]); // the header row (text) apart: the loop below sees rows of numbers
+  let a = LANES[0];
+  let b = LANES[1];
+  for (let i = 1; i < v.length; i++) {
+    const row = v[i];
+    if (!Array.isArray(row)) {
+      LANES[0] = a;
+      LANES[1] = b;
+      mixLoose(row);
+      a = LANES[0];
+      b = LANES[1];
+      continue;
+    }
+    const w = row.length;
+    a = Math.imul(a ^ (w + 0x9e37), 0x01000193);
+    let j = 0;
+    for (; j < w; j++) {
+      const c = row[j];
+      if (typeof c !== "number") break;
+      F64[0] = c;
+      const lo = U32[0];
+      const hi = U32[1];
+      a = Math.imul(a ^ lo, 0x01000193);
+      a = ((a ^ (a >>> 15)) + hi) | 0;
+      b = Math.imul(b + hi, 0x5bd1e995);
+      b = b ^ (b >>> 13) ^ lo;
+    }
+    if (j < w) {
+      LANES[0] = a;
+      LANES[1] = b;
+      mixRowFrom(row, j);
+      a = LANES[0];
+      b = LANES[1];
+    }
+  }
+  return finishLanes(a, b);
+}
+
+/** Mixes one whole row entry (array or not) into LANES. */
+function mixRow(row: unknown): void {
+  if (!Array.isArray(row)) return mixLoose(row);
+  LANES[0] = mixRowLength(LANES[0], row.length);
+  mixRowFrom(row, 0);
 }
 
 export interface Sized {

@@ -2,7 +2,7 @@
  * From cells to a cached fit: intake → transforms → estimator, once per distinct input.
  */
 import { BoundedCache, hashCells, type Sized } from "./cache";
-import { readYX, type Origin } from "./intake";
+import { readGrid, readYX, type CellGrid, type Origin } from "./intake";
 import { modelKey, type Options } from "./options";
 import { ElxProblem, fail } from "./problems";
 import { prepare } from "./transforms";
@@ -30,28 +30,38 @@ export interface ModelInput {
   xOrigin: Origin | null;
 }
 
-function keyOf(input: ModelInput): string {
+/** The ranges read once (readGrid), when they are rectangular 2-D arrays: their hashes are part of the key. */
+interface Grids {
+  y: CellGrid | null;
+  x: CellGrid | null;
+}
+
+function keyOf(input: ModelInput, g: Grids): string {
   const o = (p: Origin | null) => (p ? `${p.row},${p.column}` : "-");
-  return [hashCells(input.y, 1), hashCells(input.x, 2), modelKey(input.options), o(input.yOrigin), o(input.xOrigin)].join("/");
+  return [g.y ? g.y.hash : hashCells(input.y, 1), g.x ? g.x.hash : hashCells(input.x, 2), modelKey(input.options), o(input.yOrigin), o(input.xOrigin)].join("/");
 }
 
 /** Fits without the cache (for tests and for callers that build their own data). */
-export function fitUncached(input: ModelInput): AnyFit {
-  const raw = readYX(input.y, input.x, input.yOrigin, input.xOrigin, input.options);
+export function fitUncached(input: ModelInput, grids: Grids | null = null): AnyFit {
+  const raw = readYX(input.y, input.x, input.yOrigin, input.xOrigin, input.options, grids);
   const data = prepare(raw, input.options);
   return estimatorOf(input.options).build(data, input.options) as AnyFit;
 }
 
-/** The fit for these cells and options, from the cache when the same content was fitted before. */
+/**
+ * The fit for these cells and options, from the cache when the same content was fitted before.
+ * The host's rows are read once: the pass that hashes them also fills the columns a miss fits.
+ */
 export function getFit(input: ModelInput): AnyFit {
-  const key = keyOf(input);
+  const grids: Grids = { y: readGrid(input.y, 1), x: readGrid(input.x, 2) };
+  const key = keyOf(input, grids);
   const hit = cache.get(key);
   if (hit) {
     if (hit.problem) throw hit.problem;
     return hit.fit as AnyFit;
   }
   try {
-    const fit = fitUncached(input);
+    const fit = fitUncached(input, grids);
     cache.set(key, { fit, size: fit.n * (fit.k + 6) });
     return fit;
   } catch (e) {
