@@ -238,7 +238,7 @@ export interface CellGrid {
   cells: unknown[][];
   height: number;
   width: number;
-  /** Per column, one value per row: each row's numbers as they are up to its first cell that is not a number; the rest of that row, and row 0, are left 0. */
+  /** Per column, one value per row: each row's numbers as they are up to its first cell that is not a number; the rest of that row, and row 0, hold no meaning (readRange reads those rows from the cells). */
   columns: Float64Array[];
   /** 1 for a row readRange reads again from the cells: row 0, and any row with a cell that is not a finite number. */
   odd: Uint8Array;
@@ -257,9 +257,10 @@ export function readGrid(v: unknown, seed: number): CellGrid | null {
   if (!Array.isArray(first) || first.length === 0) return null;
   const h = v.length;
   const w = first.length;
-  const columns: Float64Array[] = [];
-  for (let j = 0; j < w; j++) columns.push(new Float64Array(h));
-  const odd = new Uint8Array(h);
+  const kept = takeSpare(h, w);
+  const columns: Float64Array[] = kept ? kept.columns : [];
+  if (!kept) for (let j = 0; j < w; j++) columns.push(new Float64Array(h));
+  const odd = kept ? kept.odd : new Uint8Array(h);
   odd[0] = 1;
   // row 0 (usually the header's text) apart, so the loop below sees rows of numbers
   startLanes(seed, h);
@@ -297,6 +298,41 @@ export function readGrid(v: unknown, seed: number): CellGrid | null {
     odd[i] = bad;
   }
   return { cells: v as unknown[][], height: h, width: w, columns, odd, hash: finishLanes(a, b) };
+}
+
+/**
+ * The columns of grids a cache hit did not need, kept for the next read of the same shape (the
+ * same ranges are read by every cell that refers to them), so such a read allocates nothing. At most
+ * one set per shape and SPARE_DOUBLES doubles in all.
+ */
+const spare = new Map<string, { columns: Float64Array[]; odd: Uint8Array }>();
+const SPARE_DOUBLES = 4_000_000;
+let spareDoubles = 0;
+
+function takeSpare(h: number, w: number): { columns: Float64Array[]; odd: Uint8Array } | null {
+  const key = `${h}x${w}`;
+  const s = spare.get(key);
+  if (s === undefined) return null;
+  spare.delete(key);
+  spareDoubles -= h * w;
+  return s;
+}
+
+/**
+ * Gives a grid's columns back for the next readGrid of its shape. Only for a grid nothing else holds
+ * (its key found a cached fit): the grid is emptied, its columns will hold another range's cells.
+ */
+export function recycleGrid(g: CellGrid): void {
+  const size = g.height * g.width;
+  const key = `${g.height}x${g.width}`;
+  if (g.columns.length !== g.width || size > SPARE_DOUBLES || spare.has(key)) return;
+  if (spareDoubles + size > SPARE_DOUBLES) {
+    spare.clear();
+    spareDoubles = 0;
+  }
+  spare.set(key, { columns: g.columns, odd: g.odd });
+  spareDoubles += size;
+  g.columns = [];
 }
 
 /**

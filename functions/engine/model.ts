@@ -2,7 +2,7 @@
  * From cells to a cached fit: intake → transforms → estimator, once per distinct input.
  */
 import { BoundedCache, hashCells, type Sized } from "./cache";
-import { readGrid, readYX, type CellGrid, type Origin } from "./intake";
+import { readGrid, readYX, recycleGrid, type CellGrid, type Origin } from "./intake";
 import { modelKey, type Options } from "./options";
 import { ElxProblem, fail } from "./problems";
 import { prepare } from "./transforms";
@@ -57,6 +57,9 @@ export function getFit(input: ModelInput): AnyFit {
   const key = keyOf(input, grids);
   const hit = cache.get(key);
   if (hit) {
+    // the columns are not needed: the next read of ranges of this shape fills them again
+    if (grids.y) recycleGrid(grids.y);
+    if (grids.x) recycleGrid(grids.x);
     if (hit.problem) throw hit.problem;
     return hit.fit as AnyFit;
   }

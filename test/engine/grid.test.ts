@@ -4,7 +4,8 @@
  * messages as readYX from the cells alone. No statistics here: every expectation compares two
  * readings of the same invented cells.
  */
-import { readGrid, readYX, type RawData } from "../../functions/engine/intake";
+import { readGrid, readYX, recycleGrid, type RawData } from "../../functions/engine/intake";
+import { getFit, fitUncached, clearCache } from "../../functions/engine/model";
 import { hashCells } from "../../functions/engine/cache";
 import { parseOptions } from "../../functions/engine/options";
 import { ElxProblem } from "../../functions/engine/problems";
@@ -57,10 +58,13 @@ describe("readGrid hashes exactly as hashCells", () => {
     const rows = [["p", "q"], [1, 2], [3, "x"], [NaN, 4], [-0, 5], [null, 6], [7, Infinity], [8, 9]];
     const g = readGrid(rows, 2);
     expect(g).not.toBeNull();
-    expect(Array.from(g!.columns[0]).slice(1)).toEqual([1, 3, NaN, -0, 0, 7, 8]);
-    expect(Object.is(g!.columns[0][4], -0)).toBe(true);
-    expect(Array.from(g!.columns[1]).slice(1)).toEqual([2, 0, 4, 5, 0, Infinity, 9]); // [null, 6]: odd, left for readRange
     expect(Array.from(g!.odd)).toEqual([1, 0, 1, 1, 0, 1, 1, 0]);
+    // the rows that are not odd: their cells as they are (-0 kept); odd rows are read from the cells again
+    const clean = [1, 4, 7];
+    expect(clean.map((i) => g!.columns[0][i])).toEqual([1, -0, 8]);
+    expect(Object.is(g!.columns[0][4], -0)).toBe(true);
+    expect(clean.map((i) => g!.columns[1][i])).toEqual([2, 5, 9]);
+    expect([g!.columns[0][2], g!.columns[0][6], g!.columns[1][3], g!.columns[1][6]]).toEqual([3, 7, 4, Infinity]);
   });
 });
 
@@ -214,5 +218,54 @@ describe("readYX through the grid reads what it reads from the cells", () => {
       }
       same(yy, xx, rng.next() < 0.5 ? "form=level-level" : "");
     }
+  });
+});
+
+describe("columns given back after a cache hit", () => {
+  it("the next grid of that shape reuses them, and readYX through it still reads its own cells (stale values never show)", () => {
+    const rng = new Rng(5);
+    for (let t = 0; t < 50; t++) {
+      const yy = randomRows(rng, 12, 1, 0.15);
+      const xx = randomRows(rng, 12, 3, 0.15);
+      yy[0] = ["y"];
+      xx[0] = ["a", "b", "c"];
+      const old = readGrid(randomRows(rng, 12, 3, 0.3), 2)!;
+      const oldColumns = old.columns;
+      recycleGrid(old);
+      expect(old.columns).toEqual([]); // emptied: nothing reads it again
+      const g = readGrid(xx, 2)!;
+      expect(g.columns).toBe(oldColumns);
+      const o = parseOptions("form=level-level");
+      const without = reading(() => readYX(yy, xx, null, null, o));
+      expect(plain(reading(() => readYX(yy, xx, null, null, o, { y: readGrid(yy, 1), x: g })))).toEqual(plain(without));
+    }
+  });
+
+  it("getFit after a hit: a new content of the same shape is fitted from its own cells", () => {
+    clearCache();
+    const o = parseOptions("form=log-log; se=HC3");
+    const rows = (shift: number) => {
+      const y: unknown[][] = [["Units"]];
+      const x: unknown[][] = [["Price", "Promo"]];
+      for (let i = 0; i < 40; i++) {
+        y.push([100 + ((i * 37 + shift) % 23)]);
+        x.push([1 + ((i * 13 + shift) % 7) / 10, i % 2]);
+      }
+      return { y, x };
+    };
+    const a = rows(0);
+    const first = getFit({ y: a.y, x: a.x, options: o, yOrigin: null, xOrigin: null });
+    expect(getFit({ y: rows(0).y, x: rows(0).x, options: o, yOrigin: null, xOrigin: null })).toBe(first); // a hit: its grids given back
+    for (const shift of [1, 2, 3]) {
+      const b = rows(shift);
+      const fit = getFit({ y: b.y, x: b.x, options: o, yOrigin: null, xOrigin: null });
+      const fresh = fitUncached({ y: rows(shift).y, x: rows(shift).x, options: o, yOrigin: null, xOrigin: null });
+      expect(Array.from(fit.coef)).toEqual(Array.from(fresh.coef));
+      expect(getFit({ y: rows(shift).y, x: rows(shift).x, options: o, yOrigin: null, xOrigin: null })).toBe(fit);
+    }
+    // the fits in the cache keep their own columns: none was overwritten by a later read
+    const again = fitUncached({ y: rows(0).y, x: rows(0).x, options: o, yOrigin: null, xOrigin: null });
+    expect(Array.from(first.data.y)).toEqual(Array.from(again.data.y));
+    expect(first.data.x.map((c) => Array.from(c))).toEqual(again.data.x.map((c) => Array.from(c)));
   });
 });
