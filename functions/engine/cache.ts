@@ -4,8 +4,9 @@
  * The host passes fresh arrays on every call, so identity means nothing; the key is a 64-bit hash
  * (two 32-bit lanes, multiply–xorshift mixing of every cell's bits and type) of the
  * ranges, their shapes and origins, plus the model-relevant options. Hashing is one pass over the
- * cells, far cheaper than a fit. The cache is bounded by entry count and by the doubles it holds,
- * evicting the least recently used.
+ * cells, far cheaper than a fit; the cell functions' fits take it from intake.ts readGrid, which
+ * computes the same hash in the pass that reads the cells into columns. The cache is bounded by
+ * entry count and by the doubles it holds, evicting the least recently used.
  */
 
 const F64 = new Float64Array(1);
