@@ -1,8 +1,8 @@
 /**
  * The fit cache: one fit per distinct input, keyed by content.
  *
- * The host passes fresh arrays on every call, so identity means nothing; the key is a 64-bit hash
- * (two 32-bit lanes, multiply–xorshift mixing of every cell's bits and type) of the
+ * The host passes fresh arrays on every call, so identity means nothing; the key is a 128-bit hash
+ * (four 32-bit lanes, multiply–xorshift mixing of every cell's bits and type) of the
  * ranges, their shapes and origins, plus the model-relevant options. Hashing is one pass over the
  * cells, far cheaper than a fit; the cell functions' fits take it from intake.ts readGrid, which
  * computes the same hash in the pass that reads the cells into columns. The cache is bounded by
@@ -13,11 +13,12 @@ const F64 = new Float64Array(1);
 const U32 = new Uint32Array(F64.buffer);
 
 /**
- * The hash's two 32-bit lanes while a row is handed to a helper (a, then b). The hot loops keep the
- * lanes in locals and pass them here only for rows with a cell that is not a number, so the loops
- * hold no call and see only rows of numbers (one kind of array: no boxed doubles).
+ * The hash's four 32-bit lanes while a row is handed to a helper: a and b take the cells of even
+ * columns (0, 2, …), c and d those of odd columns, so a row's cells feed two independent chains.
+ * The hot loops keep the lanes in locals and pass them here only for rows with a cell that is not a
+ * number, so the loops hold no call and see only rows of numbers (one kind of array: no boxed doubles).
  */
-export const LANES = new Int32Array(2);
+export const LANES = new Int32Array(4);
 
 function mixString(h: number, s: string): number {
   for (let i = 0; i < s.length; i++) h = Math.imul(h ^ s.charCodeAt(i), 0x01000193);
@@ -42,9 +43,11 @@ function cellTag(x: unknown): string {
 export function startLanes(seed: number, height: number): void {
   LANES[0] = Math.imul(((0x811c9dc5 ^ seed) | 0) ^ height, 0x01000193);
   LANES[1] = (0x27d4eb2f ^ Math.imul(seed, 0x9e3779b9)) | 0;
+  LANES[2] = (0x9e3779b9 ^ Math.imul(seed, 0x85ebca6b)) | 0;
+  LANES[3] = (0x165667b1 ^ Math.imul(seed, 0xc2b2ae35)) | 0;
 }
 
-/** Mixes a row entry that is not an array (a ragged argument) into LANES. */
+/** Mixes a row entry that is not an array (a ragged argument) into lanes a and b. */
 export function mixLoose(c: unknown): void {
   const s = cellTag(c);
   LANES[0] = mixString(LANES[0], s);
@@ -53,12 +56,14 @@ export function mixLoose(c: unknown): void {
 
 /**
  * Mixes cells from..end of a row into LANES (its length already mixed): numbers by their 64 bits,
- * anything else by its tag. The same steps as the hot loops, for rows they hand over.
+ * anything else by its tag, each into the lanes of its column's parity. The same steps as the hot
+ * loops, for rows they hand over.
  */
 export function mixRowFrom(row: readonly unknown[], from: number): void {
-  let a = LANES[0];
-  let b = LANES[1];
   for (let j = from; j < row.length; j++) {
+    const p = (j & 1) << 1; // lanes p and p + 1
+    let a = LANES[p];
+    let b = LANES[p + 1];
     const c = row[j];
     if (typeof c === "number") {
       F64[0] = c;
@@ -73,19 +78,19 @@ export function mixRowFrom(row: readonly unknown[], from: number): void {
       a = mixString(Math.imul(a ^ 0x3c6ef372, 0x01000193), s);
       b = mixString(Math.imul(b ^ s.length, 0x5bd1e995), s) ^ (b >>> 13);
     }
+    LANES[p] = a;
+    LANES[p + 1] = b;
   }
-  LANES[0] = a;
-  LANES[1] = b;
 }
 
-/** The row length step, before a row's cells. */
+/** The row length step, before a row's cells (lane a). */
 export function mixRowLength(a: number, length: number): number {
   return Math.imul(a ^ (length + 0x9e37), 0x01000193);
 }
 
-/** The key text of the lanes: each lane through murmur3's finaliser, as two hex words. */
-export function finishLanes(a: number, b: number): string {
-  return fin(a).toString(16) + ":" + fin(b ^ a).toString(16);
+/** The key text of the lanes: each lane through murmur3's finaliser, as four hex words. */
+export function finishLanes(a: number, b: number, c: number, d: number): string {
+  return fin(a).toString(16) + ":" + fin(b ^ a).toString(16) + ":" + fin(c).toString(16) + ":" + fin(d ^ c).toString(16);
 }
 
 function fin(h: number): number {
@@ -98,24 +103,27 @@ function fin(h: number): number {
 
 /**
  * Hash of an argument as the host passes it (a 2-D array of cells, or a scalar), as text.
- * Two 32-bit lanes over every cell in row order. A number's step takes its 64 bits (low word lo,
- * high word hi) and is a bijection of each lane for fixed inputs: lane a is injective in lo for a
- * fixed hi and lane b in hi for a fixed lo, so a change in one word of one cell always changes the
- * key, and a change in both words or in several cells collides with probability about 2^-64. Row
- * lengths and a type tag for any cell that is not a number are mixed in, so 0, −0, blank, "" and
- * FALSE hash apart. intake.ts readGrid computes the same hash while it reads the cells.
+ * Four 32-bit lanes over every cell in row order, a cell of an even column into lanes a and b, of
+ * an odd column into c and d. A number's step takes its 64 bits (low word lo, high word hi) and is a
+ * bijection of each lane for fixed inputs: lane a (c) is injective in lo for a fixed hi, lane b (d)
+ * in hi for a fixed lo, so a change in one word of one cell always changes the key, and a change in
+ * both words or in several cells collides with probability about 2^-64 or less. Row lengths and a
+ * type tag for any cell that is not a number are mixed in, so 0, −0, blank, "" and FALSE hash apart.
+ * intake.ts readGrid computes the same hash while it reads the cells.
  */
 export function hashCells(v: unknown, seed = 0): string {
   if (!Array.isArray(v)) {
     startLanes(seed, 0);
     LANES[0] = (0x811c9dc5 ^ seed) | 0; // a scalar: no row count
     mixLoose(v);
-    return finishLanes(LANES[0], LANES[1]);
+    return finishLanes(LANES[0], LANES[1], LANES[2], LANES[3]);
   }
   startLanes(seed, v.length);
   if (v.length > 0) mixRow(v[0]); // the header row (text) apart: the loop below sees rows of numbers
   let a = LANES[0];
   let b = LANES[1];
+  let c = LANES[2];
+  let d = LANES[3];
   for (let i = 1; i < v.length; i++) {
     const row = v[i];
     if (!Array.isArray(row)) {
@@ -129,26 +137,52 @@ export function hashCells(v: unknown, seed = 0): string {
     const w = row.length;
     a = Math.imul(a ^ (w + 0x9e37), 0x01000193);
     let j = 0;
-    for (; j < w; j++) {
-      const c = row[j];
-      if (typeof c !== "number") break;
-      F64[0] = c;
-      const lo = U32[0];
-      const hi = U32[1];
+    for (; j + 1 < w; j += 2) {
+      const u = row[j];
+      const t = row[j + 1];
+      if (typeof u !== "number" || typeof t !== "number") break;
+      F64[0] = u;
+      let lo = U32[0];
+      let hi = U32[1];
       a = Math.imul(a ^ lo, 0x01000193);
       a = ((a ^ (a >>> 15)) + hi) | 0;
       b = Math.imul(b + hi, 0x5bd1e995);
       b = b ^ (b >>> 13) ^ lo;
+      F64[0] = t;
+      lo = U32[0];
+      hi = U32[1];
+      c = Math.imul(c ^ lo, 0x01000193);
+      c = ((c ^ (c >>> 15)) + hi) | 0;
+      d = Math.imul(d + hi, 0x5bd1e995);
+      d = d ^ (d >>> 13) ^ lo;
+    }
+    if (j === w - 1) {
+      // the last cell of an odd width (an even column: lanes a and b)
+      const u = row[j];
+      if (typeof u === "number") {
+        F64[0] = u;
+        const lo = U32[0];
+        const hi = U32[1];
+        a = Math.imul(a ^ lo, 0x01000193);
+        a = ((a ^ (a >>> 15)) + hi) | 0;
+        b = Math.imul(b + hi, 0x5bd1e995);
+        b = b ^ (b >>> 13) ^ lo;
+        j++;
+      }
     }
     if (j < w) {
       LANES[0] = a;
       LANES[1] = b;
+      LANES[2] = c;
+      LANES[3] = d;
       mixRowFrom(row, j);
       a = LANES[0];
       b = LANES[1];
+      c = LANES[2];
+      d = LANES[3];
     }
   }
-  return finishLanes(a, b);
+  return finishLanes(a, b, c, d);
 }
 
 /** Mixes one whole row entry (array or not) into LANES. */

@@ -238,7 +238,7 @@ export interface CellGrid {
   cells: unknown[][];
   height: number;
   width: number;
-  /** Per column, one value per row: each row's numbers as they are up to its first cell that is not a number; the rest of that row, and row 0, hold no meaning (readRange reads those rows from the cells). */
+  /** Per column, one value per row: the cells of each row that is not odd, as they are; odd rows hold no meaning (readRange reads them from the cells). */
   columns: Float64Array[];
   /** 1 for a row readRange reads again from the cells: row 0, and any row with a cell that is not a finite number. */
   odd: Uint8Array;
@@ -268,36 +268,67 @@ export function readGrid(v: unknown, seed: number): CellGrid | null {
   mixRowFrom(first, 0);
   let a = LANES[0];
   let b = LANES[1];
+  let c = LANES[2];
+  let d = LANES[3];
   for (let i = 1; i < h; i++) {
     const row: unknown = v[i];
     if (!Array.isArray(row) || row.length !== w) return null;
     a = Math.imul(a ^ (w + 0x9e37), 0x01000193);
     let bad = 0;
     let j = 0;
-    for (; j < w; j++) {
-      const c: unknown = row[j];
-      if (typeof c !== "number") break;
-      columns[j][i] = c;
-      if (c - c !== 0) bad = 1; // NaN or ±Infinity
-      GRID_F64[0] = c;
-      const lo = GRID_U32[0];
-      const hi = GRID_U32[1];
+    // two cells a step, an even column's into lanes a and b, an odd column's into c and d (as hashCells)
+    for (; j + 1 < w; j += 2) {
+      const u: unknown = row[j];
+      const t: unknown = row[j + 1];
+      if (typeof u !== "number" || typeof t !== "number") break;
+      columns[j][i] = u;
+      columns[j + 1][i] = t;
+      if (u - u !== 0 || t - t !== 0) bad = 1; // NaN or ±Infinity
+      GRID_F64[0] = u;
+      let lo = GRID_U32[0];
+      let hi = GRID_U32[1];
       a = Math.imul(a ^ lo, 0x01000193);
       a = ((a ^ (a >>> 15)) + hi) | 0;
       b = Math.imul(b + hi, 0x5bd1e995);
       b = b ^ (b >>> 13) ^ lo;
+      GRID_F64[0] = t;
+      lo = GRID_U32[0];
+      hi = GRID_U32[1];
+      c = Math.imul(c ^ lo, 0x01000193);
+      c = ((c ^ (c >>> 15)) + hi) | 0;
+      d = Math.imul(d + hi, 0x5bd1e995);
+      d = d ^ (d >>> 13) ^ lo;
+    }
+    if (j === w - 1) {
+      const u: unknown = row[j];
+      if (typeof u === "number") {
+        columns[j][i] = u;
+        if (u - u !== 0) bad = 1;
+        GRID_F64[0] = u;
+        const lo = GRID_U32[0];
+        const hi = GRID_U32[1];
+        a = Math.imul(a ^ lo, 0x01000193);
+        a = ((a ^ (a >>> 15)) + hi) | 0;
+        b = Math.imul(b + hi, 0x5bd1e995);
+        b = b ^ (b >>> 13) ^ lo;
+        j++;
+      }
     }
     if (j < w) {
       LANES[0] = a;
       LANES[1] = b;
+      LANES[2] = c;
+      LANES[3] = d;
       mixRowFrom(row, j);
       a = LANES[0];
       b = LANES[1];
+      c = LANES[2];
+      d = LANES[3];
       bad = 1;
     }
     odd[i] = bad;
   }
-  return { cells: v as unknown[][], height: h, width: w, columns, odd, hash: finishLanes(a, b) };
+  return { cells: v as unknown[][], height: h, width: w, columns, odd, hash: finishLanes(a, b, c, d) };
 }
 
 /**

@@ -54,7 +54,7 @@ describe("readGrid hashes exactly as hashCells", () => {
     expect(readGrid([[1], 2], 1)).toBeNull();
   });
 
-  it("its columns hold each row's numbers up to its first other cell, and its odd rows are row 0 and those with a cell that is not a finite number", () => {
+  it("its columns hold the cells of rows of finite numbers, and its odd rows are row 0 and those with a cell that is not a finite number", () => {
     const rows = [["p", "q"], [1, 2], [3, "x"], [NaN, 4], [-0, 5], [null, 6], [7, Infinity], [8, 9]];
     const g = readGrid(rows, 2);
     expect(g).not.toBeNull();
@@ -64,7 +64,6 @@ describe("readGrid hashes exactly as hashCells", () => {
     expect(clean.map((i) => g!.columns[0][i])).toEqual([1, -0, 8]);
     expect(Object.is(g!.columns[0][4], -0)).toBe(true);
     expect(clean.map((i) => g!.columns[1][i])).toEqual([2, 5, 9]);
-    expect([g!.columns[0][2], g!.columns[0][6], g!.columns[1][3], g!.columns[1][6]]).toEqual([3, 7, 4, Infinity]);
   });
 });
 
