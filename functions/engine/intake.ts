@@ -249,7 +249,9 @@ export interface CellGrid {
 /**
  * One pass over a rectangular 2-D array of rows: the columns, the rows that need a closer look, and
  * the content hash. Anything else (a scalar, a list, ragged rows) gives null: hash it with hashCells
- * and read it the usual way, which also says what is wrong with it.
+ * and read it the usual way, which also says what is wrong with it. So does a range of more than
+ * SPARE_DOUBLES cells (more than one call carries; the pane's large ranges), whose columns a cache
+ * hit could not keep for the next read.
  */
 export function readGrid(v: unknown, seed: number): CellGrid | null {
   if (!Array.isArray(v) || v.length === 0) return null;
@@ -257,6 +259,7 @@ export function readGrid(v: unknown, seed: number): CellGrid | null {
   if (!Array.isArray(first) || first.length === 0) return null;
   const h = v.length;
   const w = first.length;
+  if (h * w > SPARE_DOUBLES) return null; // a large range: hashed first and read only on a miss, so a hit allocates nothing
   const kept = takeSpare(h, w);
   const columns: Float64Array[] = kept ? kept.columns : [];
   if (!kept) for (let j = 0; j < w; j++) columns.push(new Float64Array(h));

@@ -54,6 +54,12 @@ describe("readGrid hashes exactly as hashCells", () => {
     expect(readGrid([[1], 2], 1)).toBeNull();
   });
 
+  it("gives no grid past 4 million cells (read the usual way, so a cache hit on a large range allocates nothing)", () => {
+    const row = [1, 2, 3, 4];
+    expect(readGrid(new Array(1_000_000).fill(row), 2)).not.toBeNull();
+    expect(readGrid(new Array(1_000_001).fill(row), 2)).toBeNull();
+  });
+
   it("its columns hold the cells of rows of finite numbers, and its odd rows are row 0 and those with a cell that is not a finite number", () => {
     const rows = [["p", "q"], [1, 2], [3, "x"], [NaN, 4], [-0, 5], [null, 6], [7, Infinity], [8, 9]];
     const g = readGrid(rows, 2);
