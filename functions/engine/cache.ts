@@ -4,9 +4,8 @@
  * The host passes fresh arrays on every call, so identity means nothing; the key is a 128-bit hash
  * (four 32-bit lanes, multiply–xorshift mixing of every cell's bits and type) of the
  * ranges, their shapes and origins, plus the model-relevant options. Hashing is one pass over the
- * cells, far cheaper than a fit; the cell functions' fits take it from intake.ts readGrid, which
- * computes the same hash in the pass that reads the cells into columns. The cache is bounded by
- * entry count and by the doubles it holds, evicting the least recently used.
+ * cells, far cheaper than a fit (about half a read into columns). The cache is bounded by entry
+ * count and by the doubles it holds, evicting the least recently used.
  */
 
 const F64 = new Float64Array(1);
@@ -15,10 +14,10 @@ const U32 = new Uint32Array(F64.buffer);
 /**
  * The hash's four 32-bit lanes while a row is handed to a helper: a and b take the cells of even
  * columns (0, 2, …), c and d those of odd columns, so a row's cells feed two independent chains.
- * The hot loops keep the lanes in locals and pass them here only for rows with a cell that is not a
- * number, so the loops hold no call and see only rows of numbers (one kind of array: no boxed doubles).
+ * The hot loop keeps the lanes in locals and passes them here only for rows with a cell that is not
+ * a number, so the loop holds no call and sees only rows of numbers (one kind of array: no boxed doubles).
  */
-export const LANES = new Int32Array(4);
+const LANES = new Int32Array(4);
 
 function mixString(h: number, s: string): number {
   for (let i = 0; i < s.length; i++) h = Math.imul(h ^ s.charCodeAt(i), 0x01000193);
@@ -40,7 +39,7 @@ function cellTag(x: unknown): string {
 }
 
 /** The lanes at the start of a range of `height` rows (seeded per argument: y, x, keys). */
-export function startLanes(seed: number, height: number): void {
+function startLanes(seed: number, height: number): void {
   LANES[0] = Math.imul(((0x811c9dc5 ^ seed) | 0) ^ height, 0x01000193);
   LANES[1] = (0x27d4eb2f ^ Math.imul(seed, 0x9e3779b9)) | 0;
   LANES[2] = (0x9e3779b9 ^ Math.imul(seed, 0x85ebca6b)) | 0;
@@ -48,7 +47,7 @@ export function startLanes(seed: number, height: number): void {
 }
 
 /** Mixes a row entry that is not an array (a ragged argument) into lanes a and b. */
-export function mixLoose(c: unknown): void {
+function mixLoose(c: unknown): void {
   const s = cellTag(c);
   LANES[0] = mixString(LANES[0], s);
   LANES[1] = mixString(Math.imul(LANES[1] ^ s.length, 0x5bd1e995), s);
@@ -59,7 +58,7 @@ export function mixLoose(c: unknown): void {
  * anything else by its tag, each into the lanes of its column's parity. The same steps as the hot
  * loops, for rows they hand over.
  */
-export function mixRowFrom(row: readonly unknown[], from: number): void {
+function mixRowFrom(row: readonly unknown[], from: number): void {
   for (let j = from; j < row.length; j++) {
     const p = (j & 1) << 1; // lanes p and p + 1
     let a = LANES[p];
@@ -84,12 +83,12 @@ export function mixRowFrom(row: readonly unknown[], from: number): void {
 }
 
 /** The row length step, before a row's cells (lane a). */
-export function mixRowLength(a: number, length: number): number {
+function mixRowLength(a: number, length: number): number {
   return Math.imul(a ^ (length + 0x9e37), 0x01000193);
 }
 
 /** The key text of the lanes: each lane through murmur3's finaliser, as four hex words. */
-export function finishLanes(a: number, b: number, c: number, d: number): string {
+function finishLanes(a: number, b: number, c: number, d: number): string {
   return fin(a).toString(16) + ":" + fin(b ^ a).toString(16) + ":" + fin(c).toString(16) + ":" + fin(d ^ c).toString(16);
 }
 
@@ -109,7 +108,6 @@ function fin(h: number): number {
  * in hi for a fixed lo, so a change in one word of one cell always changes the key, and a change in
  * both words or in several cells collides with probability about 2^-64 or less. Row lengths and a
  * type tag for any cell that is not a number are mixed in, so 0, −0, blank, "" and FALSE hash apart.
- * intake.ts readGrid computes the same hash while it reads the cells.
  */
 export function hashCells(v: unknown, seed = 0): string {
   if (!Array.isArray(v)) {

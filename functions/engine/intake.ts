@@ -14,7 +14,6 @@
  * Cost: one pass over the cells. Columns are Float64Array (column-major), compacted in place.
  */
 import { cut, fail, count, quote, rowsPhrase, nearest, RowList } from "./problems";
-import { LANES, finishLanes, mixRowFrom, mixRowLength, startLanes } from "./cache";
 
 /** Why a cell cannot be used. 0 = usable. */
 export const enum CellIssue {
@@ -226,12 +225,9 @@ export function keyText(v: unknown): string | null {
   return null; // error cells and anything else: no key
 }
 
-const GRID_F64 = new Float64Array(1);
-const GRID_U32 = new Uint32Array(GRID_F64.buffer);
-
 /**
- * A range read once into columns, with its cache key computed on the way (the hash of cache.ts
- * hashCells, the same text), so a call that misses the cache reads the host's rows once for both.
+ * A range read once into columns: every row of finite numbers straight into them, the other rows
+ * flagged for readRange to read from the cells. One tight pass that sees only rows of numbers.
  */
 export interface CellGrid {
   /** The rows it was read from (readRange uses the grid only for these very rows). */
@@ -242,131 +238,37 @@ export interface CellGrid {
   columns: Float64Array[];
   /** 1 for a row readRange reads again from the cells: row 0, and any row with a cell that is not a finite number. */
   odd: Uint8Array;
-  /** hashCells(cells, seed). */
-  hash: string;
 }
 
 /**
- * One pass over a rectangular 2-D array of rows: the columns, the rows that need a closer look, and
- * the content hash. Anything else (a scalar, a list, ragged rows) gives null: hash it with hashCells
- * and read it the usual way, which also says what is wrong with it. So does a range of more than
- * SPARE_DOUBLES cells (more than one call carries; the pane's large ranges), whose columns a cache
- * hit could not keep for the next read.
+ * One pass over a rectangular 2-D array of rows: the columns and the rows that need a closer look.
+ * Anything else (a scalar, a list, ragged rows) gives null: read it the usual way, which also says
+ * what is wrong with it.
  */
-export function readGrid(v: unknown, seed: number): CellGrid | null {
+export function readGrid(v: unknown): CellGrid | null {
   if (!Array.isArray(v) || v.length === 0) return null;
   const first: unknown = v[0];
   if (!Array.isArray(first) || first.length === 0) return null;
   const h = v.length;
   const w = first.length;
-  if (h * w > SPARE_DOUBLES) return null; // a large range: hashed first and read only on a miss, so a hit allocates nothing
-  const kept = takeSpare(h, w);
-  const columns: Float64Array[] = kept ? kept.columns : [];
-  if (!kept) for (let j = 0; j < w; j++) columns.push(new Float64Array(h));
-  const odd = kept ? kept.odd : new Uint8Array(h);
-  odd[0] = 1;
-  // row 0 (usually the header's text) apart, so the loop below sees rows of numbers
-  startLanes(seed, h);
-  LANES[0] = mixRowLength(LANES[0], w);
-  mixRowFrom(first, 0);
-  let a = LANES[0];
-  let b = LANES[1];
-  let c = LANES[2];
-  let d = LANES[3];
+  const columns: Float64Array[] = [];
+  for (let j = 0; j < w; j++) columns.push(new Float64Array(h));
+  const odd = new Uint8Array(h);
+  odd[0] = 1; // row 0 (usually the header's text) is left to readRange, so the loop sees rows of numbers
   for (let i = 1; i < h; i++) {
     const row: unknown = v[i];
     if (!Array.isArray(row) || row.length !== w) return null;
-    a = Math.imul(a ^ (w + 0x9e37), 0x01000193);
     let bad = 0;
     let j = 0;
-    // two cells a step, an even column's into lanes a and b, an odd column's into c and d (as hashCells)
-    for (; j + 1 < w; j += 2) {
-      const u: unknown = row[j];
-      const t: unknown = row[j + 1];
-      if (typeof u !== "number" || typeof t !== "number") break;
-      columns[j][i] = u;
-      columns[j + 1][i] = t;
-      if (u - u !== 0 || t - t !== 0) bad = 1; // NaN or ±Infinity
-      GRID_F64[0] = u;
-      let lo = GRID_U32[0];
-      let hi = GRID_U32[1];
-      a = Math.imul(a ^ lo, 0x01000193);
-      a = ((a ^ (a >>> 15)) + hi) | 0;
-      b = Math.imul(b + hi, 0x5bd1e995);
-      b = b ^ (b >>> 13) ^ lo;
-      GRID_F64[0] = t;
-      lo = GRID_U32[0];
-      hi = GRID_U32[1];
-      c = Math.imul(c ^ lo, 0x01000193);
-      c = ((c ^ (c >>> 15)) + hi) | 0;
-      d = Math.imul(d + hi, 0x5bd1e995);
-      d = d ^ (d >>> 13) ^ lo;
+    for (; j < w; j++) {
+      const c: unknown = row[j];
+      if (typeof c !== "number") break;
+      columns[j][i] = c;
+      if (c - c !== 0) bad = 1; // NaN or ±Infinity
     }
-    if (j === w - 1) {
-      const u: unknown = row[j];
-      if (typeof u === "number") {
-        columns[j][i] = u;
-        if (u - u !== 0) bad = 1;
-        GRID_F64[0] = u;
-        const lo = GRID_U32[0];
-        const hi = GRID_U32[1];
-        a = Math.imul(a ^ lo, 0x01000193);
-        a = ((a ^ (a >>> 15)) + hi) | 0;
-        b = Math.imul(b + hi, 0x5bd1e995);
-        b = b ^ (b >>> 13) ^ lo;
-        j++;
-      }
-    }
-    if (j < w) {
-      LANES[0] = a;
-      LANES[1] = b;
-      LANES[2] = c;
-      LANES[3] = d;
-      mixRowFrom(row, j);
-      a = LANES[0];
-      b = LANES[1];
-      c = LANES[2];
-      d = LANES[3];
-      bad = 1;
-    }
-    odd[i] = bad;
+    odd[i] = j < w ? 1 : bad;
   }
-  return { cells: v as unknown[][], height: h, width: w, columns, odd, hash: finishLanes(a, b, c, d) };
-}
-
-/**
- * The columns of grids a cache hit did not need, kept for the next read of the same shape (the
- * same ranges are read by every cell that refers to them), so such a read allocates nothing. At most
- * one set per shape and SPARE_DOUBLES doubles in all.
- */
-const spare = new Map<string, { columns: Float64Array[]; odd: Uint8Array }>();
-const SPARE_DOUBLES = 4_000_000;
-let spareDoubles = 0;
-
-function takeSpare(h: number, w: number): { columns: Float64Array[]; odd: Uint8Array } | null {
-  const key = `${h}x${w}`;
-  const s = spare.get(key);
-  if (s === undefined) return null;
-  spare.delete(key);
-  spareDoubles -= h * w;
-  return s;
-}
-
-/**
- * Gives a grid's columns back for the next readGrid of its shape. Only for a grid nothing else holds
- * (its key found a cached fit): the grid is emptied, its columns will hold another range's cells.
- */
-export function recycleGrid(g: CellGrid): void {
-  const size = g.height * g.width;
-  const key = `${g.height}x${g.width}`;
-  if (g.columns.length !== g.width || size > SPARE_DOUBLES || spare.has(key)) return;
-  if (spareDoubles + size > SPARE_DOUBLES) {
-    spare.clear();
-    spareDoubles = 0;
-  }
-  spare.set(key, { columns: g.columns, odd: g.odd });
-  spareDoubles += size;
-  g.columns = [];
+  return { cells: v as unknown[][], height: h, width: w, columns, odd };
 }
 
 /**

@@ -2,7 +2,7 @@
  * From cells to a cached fit: intake → transforms → estimator, once per distinct input.
  */
 import { BoundedCache, hashCells, type Sized } from "./cache";
-import { readGrid, readYX, recycleGrid, type CellGrid, type Origin } from "./intake";
+import { readGrid, readYX, type CellGrid, type Origin } from "./intake";
 import { modelKey, type Options } from "./options";
 import { ElxProblem, fail } from "./problems";
 import { prepare } from "./transforms";
@@ -30,15 +30,15 @@ export interface ModelInput {
   xOrigin: Origin | null;
 }
 
-/** The ranges read once (readGrid), when they are rectangular 2-D arrays: their hashes are part of the key. */
+/** The ranges read by readGrid, when they are rectangular 2-D arrays. */
 interface Grids {
   y: CellGrid | null;
   x: CellGrid | null;
 }
 
-function keyOf(input: ModelInput, g: Grids): string {
+function keyOf(input: ModelInput): string {
   const o = (p: Origin | null) => (p ? `${p.row},${p.column}` : "-");
-  return [g.y ? g.y.hash : hashCells(input.y, 1), g.x ? g.x.hash : hashCells(input.x, 2), modelKey(input.options), o(input.yOrigin), o(input.xOrigin)].join("/");
+  return [hashCells(input.y, 1), hashCells(input.x, 2), modelKey(input.options), o(input.yOrigin), o(input.xOrigin)].join("/");
 }
 
 /** Fits without the cache (for tests and for callers that build their own data). */
@@ -50,21 +50,17 @@ export function fitUncached(input: ModelInput, grids: Grids | null = null): AnyF
 
 /**
  * The fit for these cells and options, from the cache when the same content was fitted before.
- * The host's rows are read once: the pass that hashes them also fills the columns a miss fits.
+ * A hit costs one hash pass over the cells; a miss then reads them into columns with readGrid.
  */
 export function getFit(input: ModelInput): AnyFit {
-  const grids: Grids = { y: readGrid(input.y, 1), x: readGrid(input.x, 2) };
-  const key = keyOf(input, grids);
+  const key = keyOf(input);
   const hit = cache.get(key);
   if (hit) {
-    // the columns are not needed: the next read of ranges of this shape fills them again
-    if (grids.y) recycleGrid(grids.y);
-    if (grids.x) recycleGrid(grids.x);
     if (hit.problem) throw hit.problem;
     return hit.fit as AnyFit;
   }
   try {
-    const fit = fitUncached(input, grids);
+    const fit = fitUncached(input, { y: readGrid(input.y), x: readGrid(input.x) });
     cache.set(key, { fit, size: fit.n * (fit.k + 6) });
     return fit;
   } catch (e) {
