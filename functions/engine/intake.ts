@@ -226,13 +226,61 @@ export function keyText(v: unknown): string | null {
 }
 
 /**
+ * A range read once into columns: every row of finite numbers straight into them, the other rows
+ * flagged for readRange to read from the cells. One tight pass that sees only rows of numbers.
+ */
+export interface CellGrid {
+  /** The rows it was read from (readRange uses the grid only for these very rows). */
+  cells: unknown[][];
+  height: number;
+  width: number;
+  /** Per column, one value per row: the cells of each row that is not odd, as they are; odd rows hold no meaning (readRange reads them from the cells). */
+  columns: Float64Array[];
+  /** 1 for a row readRange reads again from the cells: row 0, and any row with a cell that is not a finite number. */
+  odd: Uint8Array;
+}
+
+/**
+ * One pass over a rectangular 2-D array of rows: the columns and the rows that need a closer look.
+ * Anything else (a scalar, a list, ragged rows) gives null: read it the usual way, which also says
+ * what is wrong with it.
+ */
+export function readGrid(v: unknown): CellGrid | null {
+  if (!Array.isArray(v) || v.length === 0) return null;
+  const first: unknown = v[0];
+  if (!Array.isArray(first) || first.length === 0) return null;
+  const h = v.length;
+  const w = first.length;
+  const columns: Float64Array[] = [];
+  for (let j = 0; j < w; j++) columns.push(new Float64Array(h));
+  const odd = new Uint8Array(h);
+  odd[0] = 1; // row 0 (usually the header's text) is left to readRange, so the loop sees rows of numbers
+  for (let i = 1; i < h; i++) {
+    const row: unknown = v[i];
+    if (!Array.isArray(row) || row.length !== w) return null;
+    let bad = 0;
+    let j = 0;
+    for (; j < w; j++) {
+      const c: unknown = row[j];
+      if (typeof c !== "number") break;
+      columns[j][i] = c;
+      if (c - c !== 0) bad = 1; // NaN or ±Infinity
+    }
+    odd[i] = j < w ? 1 : bad;
+  }
+  return { cells: v as unknown[][], height: h, width: w, columns, odd };
+}
+
+/**
  * Reads one range into numeric columns (and key columns as their key text).
  * @param cells row-major 2-D array of cell values
  * @param defaultNames names to use without a header row
  * @param originRow sheet row of the range's first row (1 when unknown: rows are then range rows)
  * @param keyColumns columns read as keys: text is a value there, blank and error cells are issues
+ * @param grid these cells already read by readGrid: its columns are used (as views), and only its
+ *   odd rows are read again from the cells
  */
-export function readRange(cells: unknown[][], defaultNames: (j: number) => string, originRow: number, header = isHeaderRow(cells[0]), keyColumns: ReadonlySet<number> = NO_KEYS): RangeRead {
+export function readRange(cells: unknown[][], defaultNames: (j: number) => string, originRow: number, header = isHeaderRow(cells[0]), keyColumns: ReadonlySet<number> = NO_KEYS, grid: CellGrid | null = null): RangeRead {
   const width = cells[0].length;
   const start = header ? 1 : 0;
   const rows = cells.length - start;
@@ -240,19 +288,31 @@ export function readRange(cells: unknown[][], defaultNames: (j: number) => strin
   let unnamed: number[] = [];
   if (header) ({ names, unnamed } = headerNames(cells[0], defaultNames));
   else for (let j = 0; j < width; j++) names.push(defaultNames(j));
+  if (grid !== null && (grid.cells !== cells || grid.width !== width)) grid = null;
   const columns: Float64Array[] = [];
   const keys: ((string | null)[] | null)[] = [];
+  const keyList: number[] = [];
   for (let j = 0; j < width; j++) {
     const isKey = keyColumns.has(j);
-    columns.push(new Float64Array(isKey ? 0 : rows));
+    columns.push(isKey ? new Float64Array(0) : grid !== null ? grid.columns[j].subarray(start) : new Float64Array(rows));
     keys.push(isKey ? new Array<string | null>(rows) : null);
+    if (isKey) keyList.push(j);
   }
+  const odd = grid !== null ? grid.odd.subarray(start) : null;
   const text: TextCells[] = [];
   for (let j = 0; j < width; j++) text.push({ count: 0, numeric: 0, first: -1, firstText: "", firstNumeric: -1, firstNumericText: "" });
   let numericText: Uint8Array | null = null;
   const issues = new Uint8Array(rows);
   const plain = keyColumns.size === 0;
   for (let i = 0; i < rows; i++) {
+    if (odd !== null && odd[i] === 0) {
+      // every cell a finite number, already in the columns: only key columns take their text
+      if (keyList.length > 0) {
+        const r = cells[i + start];
+        for (let q = 0; q < keyList.length; q++) (keys[keyList[q]] as (string | null)[])[i] = keyText(r[keyList[q]]);
+      }
+      continue;
+    }
     const row = cells[i + start];
     if (plain) {
       // the usual row: finite numbers only (its issue stays 0); any other cell goes the full way below
@@ -501,10 +561,14 @@ export function subsetRoles(r: RoleColumns, kept: ArrayLike<number>): RoleColumn
  * @param yOrigin, xOrigin where the ranges start on the sheet, when the host said
  * @param roles the columns of x named in role options: keys (absorb, factors, cluster, panel, time)
  *   are read as text, weights and instruments as numbers; the rest are the regressors
+ * @param grids yCells and xCells already read by readGrid (used only while they are these very rows)
  */
-export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null, xOrigin: Origin | null, roles: RoleSpec = NO_ROLES): RawData {
-  let ym = asMatrix(yCells, "y");
-  let xm = asMatrix(xCells, "x");
+export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null, xOrigin: Origin | null, roles: RoleSpec = NO_ROLES, grids: { y: CellGrid | null; x: CellGrid | null } | null = null): RawData {
+  // a grid of these very cells has checked the shape already
+  const yGrid = grids !== null && grids.y !== null && grids.y.cells === yCells ? grids.y : null;
+  const xGrid = grids !== null && grids.x !== null && grids.x.cells === xCells ? grids.x : null;
+  let ym = yGrid ? yGrid.cells : asMatrix(yCells, "y");
+  let xm = xGrid ? xGrid.cells : asMatrix(xCells, "x");
   let yRow = yOrigin?.row ?? 1;
   let xRow = xOrigin?.row ?? 1;
   if (ym.length === 1 && ym[0].length > 1) {
@@ -559,8 +623,8 @@ export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null,
     fail("every column of x has a role (keys, weights or instruments): x needs at least one regressor");
   }
 
-  const yr = readRange(ym, () => "y", yRow, yHead);
-  const xr = readRange(xm, defaultXName, xRow, xHead, keyCols);
+  const yr = readRange(ym, () => "y", yRow, yHead, NO_KEYS, yGrid);
+  const xr = readRange(xm, defaultXName, xRow, xHead, keyCols, xGrid);
   if (yr.rows !== xr.rows) {
     fail(`y has ${count(yr.rows, "row")} of data and x has ${xr.rows}${yr.header || xr.header ? " (after the header row)" : ""}; give both ranges the same rows`);
   }
@@ -601,7 +665,8 @@ export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null,
   const numericText = yr.numericText || xr.numericText;
   let leftOut = 0;
   let w = 0;
-  for (let i = 0; i < rows; i++) {
+  if (wCol === null && !anyIssue(yr.issues, xr.issues, rows)) w = keepAll(used, rowNumbers, yr.firstRow, rows); // the usual range: every row used, nothing moves
+  else for (let i = 0; i < rows; i++) {
     if (yr.issues[i] !== 0 || xr.issues[i] !== 0) {
       leftOut++;
       blankRows.add(yr.firstRow + i);
@@ -679,6 +744,21 @@ export function readYX(yCells: unknown, xCells: unknown, yOrigin: Origin | null,
     dataRows: rows,
     yHeader: yr.header,
   };
+}
+
+/** Whether any of the first `rows` rows has an issue in y or in x. */
+function anyIssue(a: Uint8Array, b: Uint8Array, rows: number): boolean {
+  for (let i = 0; i < rows; i++) if ((a[i] | b[i]) !== 0) return true;
+  return false;
+}
+
+/** Every row used, in place: used[i] = i and its sheet row. Returns the count. */
+function keepAll(used: Int32Array, rowNumbers: Int32Array, firstRow: number, rows: number): number {
+  for (let i = 0; i < rows; i++) {
+    used[i] = i;
+    rowNumbers[i] = firstRow + i;
+  }
+  return rows;
 }
 
 /** The first cell (in sheet order) holding text that reads as a number, in y or x. */

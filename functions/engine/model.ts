@@ -2,7 +2,7 @@
  * From cells to a cached fit: intake → transforms → estimator, once per distinct input.
  */
 import { BoundedCache, hashCells, type Sized } from "./cache";
-import { readYX, type Origin } from "./intake";
+import { readGrid, readYX, type CellGrid, type Origin } from "./intake";
 import { modelKey, type Options } from "./options";
 import { ElxProblem, fail } from "./problems";
 import { prepare } from "./transforms";
@@ -30,19 +30,28 @@ export interface ModelInput {
   xOrigin: Origin | null;
 }
 
+/** The ranges read by readGrid, when they are rectangular 2-D arrays. */
+interface Grids {
+  y: CellGrid | null;
+  x: CellGrid | null;
+}
+
 function keyOf(input: ModelInput): string {
   const o = (p: Origin | null) => (p ? `${p.row},${p.column}` : "-");
   return [hashCells(input.y, 1), hashCells(input.x, 2), modelKey(input.options), o(input.yOrigin), o(input.xOrigin)].join("/");
 }
 
 /** Fits without the cache (for tests and for callers that build their own data). */
-export function fitUncached(input: ModelInput): AnyFit {
-  const raw = readYX(input.y, input.x, input.yOrigin, input.xOrigin, input.options);
+export function fitUncached(input: ModelInput, grids: Grids | null = null): AnyFit {
+  const raw = readYX(input.y, input.x, input.yOrigin, input.xOrigin, input.options, grids);
   const data = prepare(raw, input.options);
   return estimatorOf(input.options).build(data, input.options) as AnyFit;
 }
 
-/** The fit for these cells and options, from the cache when the same content was fitted before. */
+/**
+ * The fit for these cells and options, from the cache when the same content was fitted before.
+ * A hit costs one hash pass over the cells; a miss then reads them into columns with readGrid.
+ */
 export function getFit(input: ModelInput): AnyFit {
   const key = keyOf(input);
   const hit = cache.get(key);
@@ -51,7 +60,7 @@ export function getFit(input: ModelInput): AnyFit {
     return hit.fit as AnyFit;
   }
   try {
-    const fit = fitUncached(input);
+    const fit = fitUncached(input, { y: readGrid(input.y), x: readGrid(input.x) });
     cache.set(key, { fit, size: fit.n * (fit.k + 6) });
     return fit;
   } catch (e) {
