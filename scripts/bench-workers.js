@@ -204,4 +204,4 @@ if (process.argv[2] === "--child") {
   else main();
 }
 
-module.exports = { benchWorkers };
+module.exports = { benchWorkers, chunks, SPEC, K };

@@ -13,8 +13,8 @@
  *   node scripts/profile-parts.js --fresh            fresh threads for every fit (a page's first fit)
  *   node scripts/profile-parts.js --steps            every step of every part
  *
- * Data: seeded, invented for timing only (positive regressors, log-log, heteroskedastic noise), as in
- * scripts/bench-workers.js, handed over in chunks of 65,536 rows. Timed: the append of the chunks and
+ * Data: the seeded rows of scripts/bench-workers.js, invented for timing only (positive regressors,
+ * log-log, heteroskedastic noise), handed over in chunks of 65,536 rows. Timed: the append of the chunks and
  * the fit (log-log, HC3, studentized Breusch–Pagan), after three warm-up fits of 25,000 rows on the
  * same workers (unless --fresh). Run `npm run build` first.
  */
@@ -25,7 +25,7 @@ const path = require("path");
 
 const ROOT = path.join(__dirname, "..");
 const BUNDLE = path.join(ROOT, "dist", "fitWorker.js");
-const K = 10;
+const { chunks, SPEC, K } = require("./bench-workers");
 const CHUNK = 65536;
 
 const argv = process.argv.slice(2);
@@ -52,31 +52,13 @@ globalThis.addEventListener = (type, fn) => listen(type, (ev) => { started = { t
 require(${JSON.stringify(BUNDLE)});
 `;
 
-function mulberry32(seed) {
-  let s = seed >>> 0;
-  return () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
-/** n rows of y and K x columns (whole columns; the chunks are cut from them untimed). */
+/** n rows of y and K x columns: bench-workers.js's rows, its chunks joined (the chunks are cut from them untimed). */
 function data(n) {
-  const u = mulberry32(20261203);
-  const normal = () => Math.sqrt(-2 * Math.log(1 - u())) * Math.cos(2 * Math.PI * u());
   const y = new Float64Array(n);
   const x = Array.from({ length: K }, () => new Float64Array(n));
-  for (let i = 0; i < n; i++) {
-    let eta = 2;
-    for (let j = 0; j < K; j++) {
-      const v = Math.exp(0.4 * normal() + 0.05 * j);
-      x[j][i] = v;
-      eta += ((j % 2 === 0 ? -1 : 1) * 0.6 * Math.log(v)) / (j + 1);
-    }
-    y[i] = Math.exp(eta + 0.2 * (1 + Math.abs(Math.log(x[0][i]))) * normal());
+  for (const c of chunks(n)) {
+    y.set(c.y, c.rowStart);
+    for (let j = 0; j < K; j++) x[j].set(c.x[j], c.rowStart);
   }
   return { y, x };
 }
@@ -101,7 +83,6 @@ async function coreCheck() {
   return [...ratios].sort((a, b) => a - b)[1];
 }
 
-const SPEC = { yName: "Units", xNames: Array.from({ length: K }, (_, j) => `x${j + 1}`), form: "log-log", zeros: "stop", se: "HC3", level: 0.95, intercept: true };
 
 async function main() {
   if (!fs.existsSync(BUNDLE)) throw new Error("dist/fitWorker.js is missing: run npm run build");
