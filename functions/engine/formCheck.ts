@@ -26,7 +26,7 @@
  *   lmtest::petest(…, vcov = …) does. The added column goes onto the fit's factor by partitioned
  *   regression (addedVariableOnFactor); see DEVELOPERS.md for when a new factorisation is made.
  */
-import { SIDE_ROWS, leastSquares, projectOnFactor, RANK_TOL, roughRssOnFactor, rssOnFactor, upperInverse, type QrFit } from "./leastSquares";
+import { conditionEstimate, SIDE_ROWS, leastSquares, projectOnFactor, RANK_TOL, roughRssOnFactor, rssOnFactor, upperInverse, type QrFit } from "./leastSquares";
 import { factorReusable, fittedOf, REUSE_CONDITION } from "./specTests";
 import { chiSquareQuantile, chiSquareSf, studentTwoSided } from "./distributions";
 import { BLOCK, classicalCovariance, defaultLags, forEachQBlock, hacCovariance, hcCovariance, leastSquaresInput, LEVERAGE_TOL } from "./covariance";
@@ -458,24 +458,6 @@ function leveragesOf(X: Float64Array[], qr: QrFit): Float64Array {
   return h;
 }
 
-/** κ₁ of an upper-triangular factor (as leastSquares estimates it). */
-function conditionOf(R: Float64Array, k: number): number {
-  const Ri = upperInverse(R, k);
-  let a = 0;
-  let b = 0;
-  for (let j = 0; j < k; j++) {
-    let sa = 0;
-    let sb = 0;
-    for (let i = 0; i <= j; i++) {
-      sa += Math.abs(R[i * k + j]);
-      sb += Math.abs(Ri[i * k + j]);
-    }
-    a = Math.max(a, sa);
-    b = Math.max(b, sb);
-  }
-  return a * b;
-}
-
 /**
  * The factor of the design's rows `keep` from the fit's factor, without a new factorisation: the
  * Cholesky factor of RᵀR − Σ x_s,i x_s,iᵀ over the rows left out (same column scaling). As a
@@ -519,10 +501,11 @@ function keptRowsFactor(X: Float64Array[], qr: QrFit, keep: number[]): QrFit | n
       U[j * k + c] = v / ujj;
     }
   }
-  const condition = conditionOf(U, k);
+  const Rinv = upperInverse(U, k);
+  const condition = conditionEstimate(U, Rinv, k); // κ₁, as leastSquares estimates it
   if (!(condition < REUSE_CONDITION)) return null;
   const n = keep.length;
-  return { n, k, R: U, Rinv: upperInverse(U, k), scale: qr.scale, coef: new Float64Array(k), resid: new Float64Array(0), rss: NaN, condition, refined: false };
+  return { n, k, R: U, Rinv, scale: qr.scale, coef: new Float64Array(k), resid: new Float64Array(0), rss: NaN, condition, refined: false };
 }
 
 /**
