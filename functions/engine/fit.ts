@@ -7,7 +7,7 @@
 import { count, fail, quote, unavailable } from "./problems";
 import { leastSquares, type Dependency, type QrFit } from "./leastSquares";
 import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, leastSquaresInput, originalUnits, standardError, type Covariance, type CovarianceInput } from "./covariance";
-import { normalised, scaled, workingUnit, workingUnitOfMax } from "./scaling";
+import { normalised, scaled, workingUnit } from "./scaling";
 import { originalMedian, transformLabel, type Dataset, type Transform } from "./transforms";
 import type { ColumnFacts } from "./kernel";
 import { fisherSf, studentQuantile, studentTwoSided } from "./distributions";
@@ -323,7 +323,7 @@ export class OlsFit extends Model {
     super(data, intercept && keys.length === 0);
     const terms = this.terms;
     const w = data.roles.weights;
-    this.yUnit = data.yFacts?.col === data.y ? workingUnitOfMax(data.yFacts.maxAbs) : workingUnit(data.y);
+    this.yUnit = workingUnit(data.y, data.yFacts?.col === data.y ? data.yFacts.maxAbs : null);
     // plain least squares reads y without writing it: no copy when it needs no rescaling (v·1 = v)
     const y = this.yUnit === 1 && keys.length === 0 && !w ? data.y : scaled(data.y, this.yUnit);
     if (keys.length > 0) {

@@ -464,40 +464,37 @@ export function projectOnFactor(X: Float64Array[], qr: QrFit, v: Float64Array, r
   const k = X.length;
   const n = v.length;
   const scale = qr.scale;
-  const B = SIDE_ROWS;
-  const ws = kernel().sidesWorkspace(k, 1, B);
+  const ws = kernel().sidesWorkspace(k, 1, SIDE_ROWS);
   const { V } = ws;
+  /** For each block of rows: src's rows as the side, X's rows loaded, then step(start, m). */
+  const blocks = (src: Float64Array, step: (start: number, m: number) => void): void => {
+    for (let start = 0; start < n; start += SIDE_ROWS) {
+      const m = Math.min(SIDE_ROWS, n - start);
+      V.set(src.subarray(start, start + m));
+      ws.load(X, start, m);
+      step(start, m);
+    }
+  };
   const c = new Float64Array(k);
-  for (let start = 0; start < n; start += B) {
-    const m = Math.min(B, n - start);
-    V.set(v.subarray(start, start + m));
-    ws.load(X, start, m);
-    ws.dots(0, m, c, 0);
-  }
+  blocks(v, (_, m) => ws.dots(0, m, c, 0));
   for (let j = 0; j < k; j++) c[j] /= scale[j];
   semiNormalSolve(qr.R, k, c);
   const b = Float64Array.from(c, (cj, j) => cj / scale[j]);
   const t = new Float64Array(k);
-  for (let start = 0; start < n; start += B) {
-    const m = Math.min(B, n - start);
-    V.set(v.subarray(start, start + m));
-    ws.load(X, start, m);
+  blocks(v, (start, m) => {
     ws.subtract(0, m, b, 0);
     ws.dots(0, m, t, 0);
     r.set(V.subarray(0, m), start);
-  }
+  });
   for (let j = 0; j < k; j++) t[j] /= scale[j];
   semiNormalSolve(qr.R, k, t);
   const bt = Float64Array.from(t, (tj, j) => tj / scale[j]);
   let rss = 0;
-  for (let start = 0; start < n; start += B) {
-    const m = Math.min(B, n - start);
-    V.set(r.subarray(start, start + m));
-    ws.load(X, start, m);
+  blocks(r, (start, m) => {
     ws.subtract(0, m, bt, 0);
     rss += ws.selfDot(0, m);
     r.set(V.subarray(0, m), start);
-  }
+  });
   for (let j = 0; j < k; j++) c[j] += t[j];
   return { c, rss };
 }

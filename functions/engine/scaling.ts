@@ -28,9 +28,9 @@ function maxAbs(v: ArrayLike<number>): number {
   return m;
 }
 
-/** 1 when max|v| lies in [2^−100, 2^100] (or v is all zero), else unitOf(v). */
-export function workingUnit(v: ArrayLike<number>): number {
-  return workingUnitOfMax(maxAbs(v));
+/** 1 when max|v| lies in [2^−100, 2^100] (or v is all zero), else unitOf(v); max|v| is taken from `knownMax` when given. */
+export function workingUnit(v: ArrayLike<number>, knownMax: number | null = null): number {
+  return workingUnitOfMax(knownMax ?? maxAbs(v));
 }
 
 /** workingUnit of a column whose max|v| is m. */
@@ -38,9 +38,9 @@ export function workingUnitOfMax(m: number): number {
   return m === 0 || (m >= WINDOW_LOW && m <= WINDOW_HIGH) ? 1 : powerOfTwoAbove(m);
 }
 
-/** v itself when its magnitude is inside the window, else a copy scaled by a power of two. */
-export function working(v: Float64Array): Float64Array {
-  const u = workingUnit(v);
+/** v itself when its magnitude is inside the window, else a copy scaled by a power of two (max|v| from `knownMax` when given). */
+export function working(v: Float64Array, knownMax: number | null = null): Float64Array {
+  const u = workingUnit(v, knownMax);
   return u === 1 ? v : scaled(v, u);
 }
 

@@ -27,7 +27,7 @@ import { chiSquareSf, fisherSf } from "./distributions";
 import { count, fail, requireFeasible, unavailable } from "./problems";
 import { factsOf, type OlsFit } from "./fit";
 import type { QrFit } from "./leastSquares";
-import { scaled, working, workingUnit, workingUnitOfMax } from "./scaling";
+import { working } from "./scaling";
 
 export interface TestResult {
   name: string;
@@ -107,12 +107,8 @@ export function onFitDesign(fit: OlsFit, v: Float64Array): AuxFit | null {
 
 /** The model's regressors other than the intercept (as fitted: transformed; scaled if extreme). */
 function regressors(fit: OlsFit): Float64Array[] {
-  return fit.memo("test:regressors", () =>
-    fit.data.x.map((c, j) => {
-      const f = factsOf(fit.data, j, c); // max|x| from the log's read, when it describes c
-      const u = f ? workingUnitOfMax(f.maxAbs) : workingUnit(c);
-      return u === 1 ? c : scaled(c, u);
-    }));
+  // max|x| from the log's read, where it describes the column
+  return fit.memo("test:regressors", () => fit.data.x.map((c, j) => working(c, factsOf(fit.data, j, c)?.maxAbs ?? null)));
 }
 
 /** Residuals in a unit where their fourth powers are finite (the tests do not depend on it). */
