@@ -23,7 +23,7 @@
  * Cost: about 2·n·k² flops and one pass over the data (two when refinement is needed).
  */
 import { count, fail } from "./problems";
-import { kernel } from "./kernel";
+import { kernel, type SidesWorkspace } from "./kernel";
 
 /**
  * Relative length below which a column counts as a linear combination of the earlier ones. Exact
@@ -510,6 +510,26 @@ export function rssErrorBound(kappa: number, n: number, k: number, vv: number, r
 }
 
 /**
+ * The first pass over L sides (rssOnFactor, roughRssOnFactor): block by block of SIDE_ROWS rows,
+ * fill(start, m) writes the sides into ws.V, and g[l·k + j] += X_jᵀv_l, vv[l] += ‖v_l‖².
+ */
+function sidesFirstPass(ws: SidesWorkspace, X: Float64Array[], n: number, L: number, fill: (start: number, m: number) => void): { g: Float64Array; vv: Float64Array } {
+  const k = X.length;
+  const g = new Float64Array(L * k);
+  const vv = new Float64Array(L);
+  for (let start = 0; start < n; start += SIDE_ROWS) {
+    const m = Math.min(SIDE_ROWS, n - start);
+    fill(start, m);
+    ws.load(X, start, m);
+    for (let l = 0; l < L; l++) {
+      vv[l] += ws.selfDot(l, m);
+      ws.dots(l, m, g, l * k);
+    }
+  }
+  return { g, vv };
+}
+
+/**
  * RSS of L right-hand sides on the design X through its factor `qr`, each side generated block by
  * block: fill(start, m, V, pass, D) writes rows [start, start + m) of side l to V[l·SIDE_ROWS + i], and
  * is called once per block in each of the two passes (a side is never held whole). Pass 1: X_sᵀv and
@@ -534,17 +554,7 @@ export function rssOnFactor(
   const ws = kernel().sidesWorkspace(k, L, B);
   const { V } = ws;
   const D = cross ? ws.D : null;
-  const g = new Float64Array(L * k);
-  const vv = new Float64Array(L);
-  for (let start = 0; start < n; start += B) {
-    const m = Math.min(B, n - start);
-    fill(start, m, V, 0, null);
-    ws.load(X, start, m);
-    for (let l = 0; l < L; l++) {
-      vv[l] += ws.selfDot(l, m);
-      ws.dots(l, m, g, l * k);
-    }
-  }
+  const { g, vv } = sidesFirstPass(ws, X, n, L, (start, m) => fill(start, m, V, 0, null));
   const c = new Float64Array(k);
   const coefs = new Float64Array(L * k);
   const correct = new Uint8Array(L);
@@ -596,20 +606,8 @@ export function rssOnFactor(
 export function roughRssOnFactor(X: Float64Array[], qr: QrFit, L: number, fill: (start: number, m: number, V: Float64Array) => void): { rss: Float64Array; bound: Float64Array } {
   const k = X.length;
   const n = qr.n;
-  const B = SIDE_ROWS;
-  const ws = kernel().sidesWorkspace(k, L, B);
-  const { V } = ws;
-  const g = new Float64Array(L * k);
-  const vv = new Float64Array(L);
-  for (let start = 0; start < n; start += B) {
-    const m = Math.min(B, n - start);
-    fill(start, m, V);
-    ws.load(X, start, m);
-    for (let l = 0; l < L; l++) {
-      vv[l] += ws.selfDot(l, m);
-      ws.dots(l, m, g, l * k);
-    }
-  }
+  const ws = kernel().sidesWorkspace(k, L, SIDE_ROWS);
+  const { g, vv } = sidesFirstPass(ws, X, n, L, (start, m) => fill(start, m, ws.V));
   const rss = new Float64Array(L);
   const bound = new Float64Array(L);
   const c = new Float64Array(k);
