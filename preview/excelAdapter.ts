@@ -5,10 +5,7 @@
  * they are read (reading one early throws), and writes are applied at sync.
  */
 import { formatAddress, MAX_ROWS, parseAddress, quoteSheet, type Address } from "../taskpane/address";
-import { isError, type Sheet, type Workbook } from "./workbook";
-
-/** Rows of the computed sheet served per slice of the page's time (about 2 ms of work each). */
-const SLICE_ROWS = 1000;
+import { isError, SLICE_ROWS, type Sheet, type Workbook } from "./workbook";
 
 /**
  * A turn for the page: a message through a channel (setTimeout(0) is held back to 4 ms once nested,
@@ -120,17 +117,16 @@ export class RangeProxy extends Proxy {
     this.context.book.setInputs(sheet, updates);
   }
   /**
-   * Values of the computed sheet, in slices of SLICE_ROWS rows with a turn for the page between
-   * them: the host answers a request in its own process, and here the work shares the page's thread.
+   * Values of the computed sheet: its rows computed in slices of SLICE_ROWS with a turn for the page
+   * between them (the host answers a request in its own process; here the work shares the page's
+   * thread), then the response's arrays made at once, as the host's response is parsed on arrival.
    */
   private async resolveComputed(sheet: Sheet, a: Address): Promise<boolean> {
-    const out: unknown[][] = [];
     for (let top = a.top; top <= a.bottom; top += SLICE_ROWS) {
-      const part = sheet.valuesBlock({ top, left: a.left, bottom: Math.min(a.bottom, top + SLICE_ROWS - 1), right: a.right });
-      for (const line of part) out.push(line);
+      sheet.baseSlice(top, Math.min(a.bottom, top + SLICE_ROWS - 1));
       if (top + SLICE_ROWS <= a.bottom) await turn();
     }
-    this.data.values = out;
+    this.data.values = sheet.valuesBlock(a);
     return true;
   }
   resolve(): boolean | Promise<boolean> {

@@ -59,6 +59,18 @@ export interface SheetBase {
   row(r: number): CellValue[];
 }
 
+/** Rows of the computed sheet computed at a time (about 2 ms of work), and how many such slices are kept. */
+export const SLICE_ROWS = 1000;
+const MAX_SLICES = 24;
+
+/** Base values of rows top..bottom: numbers row-major in `numbers`, other values by index in `other`. */
+export interface BaseSlice {
+  top: number;
+  bottom: number;
+  numbers: Float64Array;
+  other: Map<number, CellValue>;
+}
+
 /** A computed cell: its typed text is made only when asked for (the formula bar), not for every read. */
 class BaseCell implements Cell {
   constructor(readonly value: CellValue) {}
@@ -104,45 +116,74 @@ export class Sheet {
     return c ? c.value : null;
   }
 
-  /** Base rows computed lately, by their first and last row (reading y then x over the same rows computes them once). */
-  private readonly blockRows = new Map<string, CellValue[][]>();
+  /** Base rows computed lately, by their first row: numbers in typed arrays, kept off the young generation. */
+  private readonly slices = new Map<number, BaseSlice>();
+  private slicesOf: SheetBase | null = null;
+
+  /**
+   * Computes (or finds) the base values of rows top..bottom, every base column: numbers row-major in a
+   * Float64Array, anything else (text, blank, an error) by its index in `other`. A typed array's
+   * values live outside the JS heap, so slices held between the page's turns cost a minor collection
+   * nothing to keep (arrays of rows held that long are copied by every scavenge they survive).
+   */
+  baseSlice(top: number, bottom: number): BaseSlice | null {
+    const b = this.base;
+    if (!b) return null;
+    if (this.slicesOf !== b) {
+      this.slices.clear();
+      this.slicesOf = b;
+    }
+    const hit = this.slices.get(top);
+    if (hit && hit.bottom === bottom) return hit;
+    const width = b.columns;
+    const numbers = new Float64Array((bottom - top + 1) * width);
+    const other = new Map<number, CellValue>();
+    for (let r = top; r <= bottom; r++) {
+      const row = r >= 1 && r <= b.rows ? b.row(r) : [];
+      const at = (r - top) * width;
+      for (let c = 0; c < width; c++) {
+        const v = row[c] ?? null;
+        if (typeof v === "number") numbers[at + c] = v;
+        else other.set(at + c, v);
+      }
+    }
+    const slice = { top, bottom, numbers, other };
+    // the slices of one block (y and then x read over the same rows compute them once)
+    if (this.slices.size >= MAX_SLICES) this.slices.delete(this.slices.keys().next().value as number);
+    this.slices.set(top, slice);
+    return slice;
+  }
 
   /**
    * The values of a rectangle as the host's values property gives them ("" for blank, an error's
-   * code), computing each base row once (the last rows computed are kept, so reading y and then x
-   * over the same rows costs one pass) and laying typed cells over them.
+   * code), from the base slices of SLICE_ROWS rows starting at `a.top` (computed now unless
+   * baseSlice computed them already), with typed cells laid over them.
    */
   valuesBlock(a: { top: number; left: number; bottom: number; right: number }): unknown[][] {
     const b = this.base;
-    let rows: CellValue[][] = [];
-    if (b) {
-      const top = Math.max(1, a.top);
-      const bottom = Math.min(b.rows, a.bottom);
-      const k = `${top}:${bottom}`;
-      const hit = this.blockRows.get(k);
-      if (hit) rows = hit;
-      else {
-        for (let r = top; r <= bottom; r++) rows.push(b.row(r));
-        // only the last slice is kept: rows kept longer outlive the young generation and cost a full collection later
-        this.blockRows.clear();
-        this.blockRows.set(k, rows);
-      }
-    }
     const out: unknown[][] = new Array(a.bottom - a.top + 1);
     const width = a.right - a.left + 1;
     const typed = this.cells.size > 0;
-    for (let r = a.top; r <= a.bottom; r++) {
-      const base = b && r >= 1 && r <= b.rows ? rows[r - Math.max(1, a.top)] : null;
-      const line: unknown[] = new Array(width);
-      for (let c = a.left; c <= a.right; c++) {
-        let v: CellValue = base && c <= (b as SheetBase).columns ? base[c - 1] ?? null : null;
-        if (typed) {
-          const t = this.cells.get(key(r, c));
-          if (t) v = t.cleared ? null : t.value;
+    for (let top = a.top; top <= a.bottom; top += SLICE_ROWS) {
+      const bottom = Math.min(a.bottom, top + SLICE_ROWS - 1);
+      const slice = this.baseSlice(top, bottom);
+      for (let r = top; r <= bottom; r++) {
+        const line: unknown[] = new Array(width);
+        const at = (r - top) * (b ? b.columns : 0);
+        for (let c = a.left; c <= a.right; c++) {
+          let v: CellValue = null;
+          if (slice && c <= (b as SheetBase).columns) {
+            const i = at + c - 1;
+            v = slice.other.size > 0 && slice.other.has(i) ? (slice.other.get(i) as CellValue) : slice.numbers[i];
+          }
+          if (typed) {
+            const t = this.cells.get(key(r, c));
+            if (t) v = t.cleared ? null : t.value;
+          }
+          line[c - a.left] = v === null ? "" : isError(v) ? v.code : v;
         }
-        line[c - a.left] = v === null ? "" : isError(v) ? v.code : v;
+        out[r - a.top] = line;
       }
-      out[r - a.top] = line;
     }
     return out;
   }

@@ -1,19 +1,86 @@
 #!/usr/bin/env node
 /*
  * `npm test`: build the bundle (host-door tests load dist/functions.js), then run Jest. When
- * ELX_JEST_JSON names a file, Jest also writes its JSON report there (CI prints the
- * "N passed, N failed" line from it).
+ * ELX_JEST_JSON names a file, Jest's JSON report goes there (CI prints the "N passed, N failed" line
+ * from it).
+ *
+ * Without arguments, two Jest runs side by side, one core each: the browser suites (test/browser/)
+ * one after another, and every other suite. Two headless browsers at once on two cores leave a page's
+ * main thread waiting for a core for 50 to 230 ms at a time (measured: long tasks in 4 of 14 runs of
+ * the 200,000-row pane fit beside another browser suite, none in 10 beside the Node suites), and the
+ * browser tests measure that thread's longest task. The other run's output is printed when it ends.
+ * With arguments (`npm test -- test/engine`), one Jest run with them, as Jest's own command line.
  */
-const { spawnSync } = require("child_process");
+const { spawn, spawnSync } = require("child_process");
+const fs = require("fs");
+const os = require("os");
 const path = require("path");
 
 const root = path.resolve(__dirname, "..");
-const run = (cmd, args) => spawnSync(cmd, args, { cwd: root, stdio: "inherit", shell: false });
+const jestBin = path.join(root, "node_modules", "jest", "bin", "jest.js");
 
-const build = run(process.execPath, [path.join(root, "node_modules", "webpack-cli", "bin", "cli.js"), "--mode", "production"]);
+const build = spawnSync(process.execPath, [path.join(root, "node_modules", "webpack-cli", "bin", "cli.js"), "--mode", "production"], { cwd: root, stdio: "inherit" });
 if (build.status !== 0) process.exit(build.status ?? 1);
 
-const jestArgs = [path.join(root, "node_modules", "jest", "bin", "jest.js"), ...process.argv.slice(2)];
-if (process.env.ELX_JEST_JSON) jestArgs.push("--json", `--outputFile=${process.env.ELX_JEST_JSON}`);
-const jest = run(process.execPath, jestArgs);
-process.exit(jest.status ?? 1);
+const report = process.env.ELX_JEST_JSON;
+const extra = process.argv.slice(2);
+
+if (extra.length > 0) {
+  const args = [jestBin, ...extra];
+  if (report) args.push("--json", `--outputFile=${report}`);
+  const jest = spawnSync(process.execPath, args, { cwd: root, stdio: "inherit" });
+  process.exit(jest.status ?? 1);
+}
+
+/** Starts one Jest run; `live` prints as it goes, otherwise the output is kept for the end. */
+function jestRun(name, args, live) {
+  const out = path.join(fs.mkdtempSync(path.join(os.tmpdir(), "elx-jest-")), `${name}.json`);
+  const child = spawn(process.execPath, [jestBin, ...args, "--json", `--outputFile=${out}`], { cwd: root, stdio: live ? "inherit" : ["ignore", "pipe", "pipe"] });
+  const kept = [];
+  if (!live) {
+    child.stdout.on("data", (d) => kept.push(d));
+    child.stderr.on("data", (d) => kept.push(d));
+  }
+  return new Promise((resolve) => {
+    child.on("close", (code, signal) => {
+      let json = null;
+      try {
+        json = JSON.parse(fs.readFileSync(out, "utf8"));
+      } catch {
+        json = null;
+      }
+      resolve({ name, code: code ?? (signal ? 1 : 0), output: Buffer.concat(kept).toString("utf8"), json });
+    });
+  });
+}
+
+(async () => {
+  const browser = jestRun("browser", ["--runInBand", "--testPathPatterns", "test/browser/"], true);
+  const rest = jestRun("rest", ["--runInBand", "--testPathIgnorePatterns", "test/browser/"], false);
+  const runs = await Promise.all([browser, rest]);
+  const other = runs[1];
+  process.stderr.write(`\n── the other Jest run (every suite outside test/browser/) ──\n${other.output}`);
+  const sum = (k) => runs.reduce((s, r) => s + (r.json ? r.json[k] || 0 : 0), 0);
+  const missing = runs.filter((r) => !r.json).map((r) => r.name);
+  const merged = {
+    success: runs.every((r) => r.code === 0 && r.json && r.json.success),
+    numTotalTestSuites: sum("numTotalTestSuites"),
+    numPassedTestSuites: sum("numPassedTestSuites"),
+    numFailedTestSuites: sum("numFailedTestSuites") + missing.length,
+    numTotalTests: sum("numTotalTests"),
+    numPassedTests: sum("numPassedTests"),
+    numFailedTests: sum("numFailedTests") + missing.length,
+    numPendingTests: sum("numPendingTests"),
+    testResults: runs.flatMap((r) => (r.json ? r.json.testResults : [])),
+  };
+  const failedSuites = merged.testResults.filter((t) => t.status === "failed").map((t) => path.relative(root, t.name));
+  process.stderr.write(
+    `\nBoth runs: ${merged.numPassedTestSuites} of ${merged.numTotalTestSuites} suites passed; ${merged.numPassedTests} tests passed, ${merged.numFailedTests} failed` +
+      (merged.numPendingTests ? `, ${merged.numPendingTests} skipped` : "") +
+      (failedSuites.length ? `\nFailed suites: ${failedSuites.join(", ")}` : "") +
+      (missing.length ? `\nNo report from the ${missing.join(" and ")} run (it stopped before writing one).` : "") +
+      "\n",
+  );
+  if (report) fs.writeFileSync(report, JSON.stringify(merged));
+  process.exit(merged.success ? 0 : 1);
+})();
