@@ -171,7 +171,7 @@ export class Host {
    * Where a typed address lies once clipped to its sheet's used cells, without reading any value:
    * what the pane needs to choose between one read and the chunked reader (taskpane/chunks.ts).
    */
-  measure(text: string): Promise<Outcome<{ area: Address; requested: string; clipped: boolean }>> {
+  measure(text: string): Promise<Outcome<{ area: Address; requested: string; clipped: boolean; used: Address }>> {
     const parsed = parseAddress(text);
     if (!parsed.ok) return Promise.resolve(parsed);
     return this.guard(`"${text}"`, async (context) => {
@@ -189,8 +189,32 @@ export class Host {
       const area = intersect(area0, usedArea);
       if (!area) return { ok: false, message: `${formatAddress(area0)} is empty (the sheet's values lie in ${formatAddress({ ...usedArea, sheet: null })})` };
       const clipped = area.top !== area0.top || area.bottom !== area0.bottom || area.left !== area0.left || area.right !== area0.right;
-      return { ok: true, value: { area, requested: text.trim(), clipped } };
+      return { ok: true, value: { area, requested: text.trim(), clipped, used: { ...usedArea, sheet: String(sheet.name) } } };
     });
+  }
+
+  /**
+   * How many rows of `column` (one column) hold a value, read in blocks of at most BLOCK_ROWS rows
+   * from its top (at most `limit` rows): what lies below a values block's ranges after rows were added.
+   */
+  async countFilled(column: Address, limit = 1_000_000): Promise<Outcome<{ rows: number; last: number }>> {
+    const BLOCK_ROWS = 100_000;
+    let rows = 0;
+    let last = 0;
+    const bottom = Math.min(column.bottom, column.top + limit - 1);
+    for (let top = column.top; top <= bottom; top += BLOCK_ROWS) {
+      const part = { ...column, right: column.left, top, bottom: Math.min(bottom, top + BLOCK_ROWS - 1) };
+      const read = await this.readValues([part]);
+      if (!read.ok) return read;
+      read.value[0].forEach((line, i) => {
+        const v = line[0];
+        if (v !== "" && v !== null && v !== undefined) {
+          rows++;
+          last = part.top + i;
+        }
+      });
+    }
+    return { ok: true, value: { rows, last } };
   }
 
   /** The values only (no value types, no formulas) of several areas, in one request. */

@@ -777,7 +777,12 @@ export class Pane {
       const updated: ValuesEntry = { ...entry, spec: r.run.spec, computedAt: r.run.computedAt, written: next };
       await this.host.setSetting(REGISTRY_KEY, this.valuesEntries().map((e) => (e.id === id ? updated : e)));
       this.renderBlocks();
-      show("elx-done", `Refreshed ${esc(entry.area)}: ${esc(fmt(r.run.result.n))} rows used, computed ${esc(r.run.computedAt)}.`);
+      // rows added below the block's ranges are not taken in silently: say how many there are
+      const below = my.value.used.bottom > yArea.bottom ? await this.host.countFilled({ ...yArea, top: yArea.bottom + 1, bottom: my.value.used.bottom }) : null;
+      const grown = below && below.ok && below.value.rows > 0
+        ? ` <span id="elx-refresh-below">${esc(fmt(below.value.rows))} ${below.value.rows === 1 ? "row" : "rows"} below ${esc(formatAddress(yArea))} ${below.value.rows === 1 ? "holds" : "hold"} a value in y's column (down to row ${esc(fmt(below.value.last))}) and ${below.value.rows === 1 ? "was" : "were"} not read: the refresh reads the block's own ranges. To take ${below.value.rows === 1 ? "it" : "them"} in, give y and x ranges that reach row ${esc(fmt(below.value.last))}, check them and write a new block.</span>`
+        : "";
+      show(grown ? "elx-warned" : "elx-done", `Refreshed ${esc(entry.area)}: ${esc(fmt(r.run.result.n))} rows used, computed ${esc(r.run.computedAt)}.${grown}`);
     } finally {
       this.completedRefreshes++;
     }

@@ -9,7 +9,7 @@ import { leastSquares, type Dependency, type QrFit } from "./leastSquares";
 import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, leastSquaresInput, originalUnits, standardError, type Covariance, type CovarianceInput } from "./covariance";
 import { normalised, scaled, workingUnit } from "./scaling";
 import { originalMedian, transformLabel, type Dataset, type Transform } from "./transforms";
-import type { ColumnFacts } from "./kernel";
+import { kernel, type ColumnFacts } from "./kernel";
 import { fisherSf, studentQuantile, studentTwoSided } from "./distributions";
 import type { SeType } from "./options";
 import { requireSeType, type EstimatorInfo } from "./estimators";
@@ -538,12 +538,7 @@ export class OlsFit extends Model {
    * rule does not depend on where y is centred) cannot be told from zero in double precision.
    */
   isExact(): boolean {
-    return this.memo("exact", () => {
-      let yy = 0;
-      const y = this.scaledY;
-      for (let i = 0; i < y.length; i++) yy += y[i] * y[i];
-      return !(this.qr.rss > EXACT_FIT * yy);
-    });
+    return this.memo("exact", () => !(this.qr.rss > EXACT_FIT * kernel().sumSquares(this.scaledY)));
   }
 }
 

@@ -182,10 +182,16 @@ describe("a range past what a formula carries (200,000 rows × 11 columns)", () 
     await page.evaluate(() => {
       for (let r = 2; r < 22; r++) (window as any).ElxPreview.setInput(`B${r}`, "40");
     });
+    // two weeks appended below the ranges: read by no refresh, and said so
+    await page.evaluate((below) => {
+      const p = (window as any).ElxPreview;
+      for (const r of [below, below + 1]) ["A", "B", "C", "D", "E", "F", "G", "H", "I", "J", "K"].forEach((c, j) => p.setInput(`${c}${r}`, String(j === 0 ? 40 : 2 + j)));
+    }, ROWS + 2);
     const n0 = await page.evaluate(() => (window as any).ElxPane.completedRefreshes);
     await page.click("#elx-blocks-list button[data-refresh]");
     await page.waitForFunction((b) => (window as any).ElxPane.completedRefreshes > b, n0, { timeout: 60000 });
     expect(await page.textContent("#elx-blocks-msg")).toMatch(/^Refreshed Sales!M5:S26: [\d,]+ rows used, computed /);
+    expect(await page.textContent("#elx-refresh-below")).toBe(`2 rows below Sales!A1:A${ROWS + 1} hold a value in y's column (down to row ${(ROWS + 3).toLocaleString("en-GB")}) and were not read: the refresh reads the block's own ranges. To take them in, give y and x ranges that reach row ${(ROWS + 3).toLocaleString("en-GB")}, check them and write a new block.`);
     const now = await page.evaluate(() => ({ price: (window as any).ElxPreview.value("O14") }));
     expect(typeof now.price).toBe("number");
     expect(now.price).not.toBe(old.price);
