@@ -36,6 +36,7 @@ import type { SeType } from "./options";
 import { brentMax, brentRoot } from "./optimize";
 import { stableSum } from "./transforms";
 import { scaled, working, workingUnit } from "./scaling";
+import { kernel } from "./kernel";
 
 export const LAMBDA_MIN = -2;
 export const LAMBDA_MAX = 2;
@@ -102,7 +103,16 @@ export function boxCoxProfileOf(X: Float64Array[], qr: QrFit, intercept: boolean
   // w(λ) = expm1(λu)/λ, which tends to u as λ → 0 (expm1 keeps the digits there)
   const transform = (lambda: number, c: number, out: Float64Array, o: number, start: number, m: number) => {
     if (Math.abs(lambda) < 1e-12) for (let i = 0; i < m; i++) out[o + i] = u[start + i] + c;
-    else for (let i = 0; i < m; i++) out[o + i] = Math.expm1(lambda * u[start + i]) / lambda + c;
+    else kernel().expm1Scaled(u.subarray(start, start + m), lambda, c, out.subarray(o, o + m));
+  };
+  // e^{SCREEN_STEP·u}, the one exp per row every screened λ on the lattice is a power of (made once)
+  let stepExp: Float64Array | null = null;
+  const stepPowers = (): Float64Array => {
+    if (!stepExp) {
+      stepExp = new Float64Array(n);
+      kernel().expScaled(u, SCREEN_STEP, stepExp);
+    }
+    return stepExp;
   };
   // w′(λ) from u and w(λ) (without its constant c[0]), plus the constant's derivative c[1]
   const derivative = (lambda: number, c: [number, number], w: Float64Array, D: Float64Array, start: number, m: number) => {
@@ -136,7 +146,7 @@ export function boxCoxProfileOf(X: Float64Array[], qr: QrFit, intercept: boolean
       // the transform is computed once, in the first pass, and kept for the second
       const out = rssOnFactor(X, qr, 1, (start, m, V, pass, D) => {
         if (pass === 0) transform(l, c[0], yt, start, start, m);
-        for (let i = 0; i < m; i++) V[i] = yt[start + i];
+        V.set(yt.subarray(start, start + m));
         if (D) derivative(l, c, yt, D, start, m);
       }, true);
       got = { ll: value(out.rss[0]), slope: (-n * (out.cross as Float64Array)[0]) / out.rss[0] };
@@ -164,14 +174,14 @@ export function boxCoxProfileOf(X: Float64Array[], qr: QrFit, intercept: boolean
     const down = new Float64Array(top + 1);
     const inv = todo.map((l) => 1 / l);
     const vv = new Float64Array(L);
+    const E = onLattice ? stepPowers() : null;
     const out = roughRssOnFactor(X, qr, L, (start, m, V) => {
-      if (!onLattice) {
-        for (let l = 0; l < L; l++) transform(todo[l], c[l], V, l * SIDE_ROWS, start, m);
-        return;
-      }
+      // λ off the lattice: their own transform, as computed λ have it
+      for (let l = 0; l < L; l++) if (!lattice[l]) transform(todo[l], c[l], V, l * SIDE_ROWS, start, m);
+      if (!E) return;
       for (let i = 0; i < m; i++) {
         const v = u[start + i];
-        const a = Math.exp(SCREEN_STEP * v);
+        const a = E[start + i];
         const b = 1 / a;
         up[0] = 1;
         down[0] = 1;
@@ -180,8 +190,9 @@ export function boxCoxProfileOf(X: Float64Array[], qr: QrFit, intercept: boolean
           down[p] = down[p - 1] * b;
         }
         for (let l = 0; l < L; l++) {
+          if (!lattice[l]) continue;
           const q = mult[l];
-          const w = !lattice[l] ? Math.expm1(todo[l] * v) * inv[l] : q === 0 ? v : ((q > 0 ? up[q] : down[-q]) - 1) * inv[l];
+          const w = q === 0 ? v : ((q > 0 ? up[q] : down[-q]) - 1) * inv[l];
           const val = w + c[l];
           V[l * SIDE_ROWS + i] = val;
           vv[l] += val * val;
@@ -403,7 +414,7 @@ export function levelOnLogFactor(logFit: OlsFit, exactFit: number): LevelModel |
   const n = logFit.n;
   const ly = logFit.data.y;
   const y = new Float64Array(n);
-  for (let i = 0; i < n; i++) y[i] = Math.exp(ly[i]);
+  kernel().expScaled(ly, 1, y);
   const yUnit = workingUnit(y);
   const scaledY = yUnit === 1 ? y : scaled(y, yUnit);
   const r = new Float64Array(n);
@@ -575,9 +586,11 @@ export function peTest(logFit: OlsFit, levelFit: LevelModel, se: SeType, lags: n
   const keep: number[] = [];
   for (let i = 0; i < n; i++) if (fl[i] > 0) keep.push(i);
   let a: { t: number; df: number } | null = null;
+  const k = kernel();
   if (keep.length === n) {
-    const zLevels = new Float64Array(n);
-    for (let i = 0; i < n; i++) zLevels[i] = Math.log(fl[i]) - fg[i];
+    const zLevels = Float64Array.from(fl);
+    k.logInPlace(zLevels);
+    for (let i = 0; i < n; i++) zLevels[i] -= fg[i];
     a = addedVariableOnFit(levelFit, zLevels, se, leverages) ?? addedVariableT(levelFit.design, zLevels, levelFit.data.y, se, lags);
   } else {
     const m = keep.length;
@@ -586,8 +599,9 @@ export function peTest(logFit: OlsFit, levelFit: LevelModel, se: SeType, lags: n
       for (let i = 0; i < m; i++) out[i] = c[keep[i]];
       return out;
     };
-    const zLevels = new Float64Array(m);
-    for (let i = 0; i < m; i++) zLevels[i] = Math.log(fl[keep[i]]) - fg[keep[i]];
+    const zLevels = sub(fl);
+    k.logInPlace(zLevels);
+    for (let i = 0; i < m; i++) zLevels[i] -= fg[keep[i]];
     const Xk = levelFit.design.map(sub);
     // the level model on the rows kept: the factor of those rows from the fit's, when it serves
     const qk = factorReusable(levelFit) ? keptRowsFactor(levelFit.design, levelFit.qr, keep) : null;
@@ -599,7 +613,8 @@ export function peTest(logFit: OlsFit, levelFit: LevelModel, se: SeType, lags: n
     a = a ?? addedVariableT(Xk, zLevels, sub(levelFit.data.y), se, lags);
   }
   const zLogs = new Float64Array(n);
-  for (let i = 0; i < n; i++) zLogs[i] = fl[i] - Math.exp(fg[i]);
+  k.expScaled(fg, 1, zLogs);
+  for (let i = 0; i < n; i++) zLogs[i] = fl[i] - zLogs[i];
   const b = addedVariableOnFit(logFit, zLogs, se, leverages) ?? addedVariableT(logFit.design, zLogs, logFit.data.y, se, lags);
   return {
     levels: { t: a.t, p: studentTwoSided(a.t, a.df), leftOut: n - keep.length },

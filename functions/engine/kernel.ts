@@ -88,6 +88,10 @@ export interface ColumnOps {
   sumSquares(v: Float64Array): number;
   /** r[i] = y[i] − b_0·X_0[i] − b_1·X_1[i] − …, the products subtracted in order of j, for every row. */
   residuals(X: Float64Array[], b: Float64Array, y: Float64Array, r: Float64Array): void;
+  /** out[i] = Math.exp(s·src[i]) for every i (fdlibm's exp: V8's Math.exp is fdlibm's); out may be src. */
+  expScaled(src: Float64Array, s: number, out: Float64Array): void;
+  /** out[i] = Math.expm1(λ·src[i])/λ + c for every i (fdlibm's expm1, as V8's Math.expm1); out may be src. */
+  expm1Scaled(src: Float64Array, lambda: number, c: number, out: Float64Array): void;
 }
 
 /**
@@ -186,6 +190,12 @@ const jsColumnOps: ColumnOps = {
       const xj = X[j];
       for (let i = 0; i < n; i++) r[i] -= bj * xj[i];
     }
+  },
+  expScaled(src: Float64Array, s: number, out: Float64Array): void {
+    for (let i = 0; i < src.length; i++) out[i] = Math.exp(s * src[i]);
+  },
+  expm1Scaled(src: Float64Array, lambda: number, c: number, out: Float64Array): void {
+    for (let i = 0; i < src.length; i++) out[i] = Math.expm1(lambda * src[i]) / lambda + c;
   },
 };
 
@@ -357,6 +367,8 @@ interface KernelExports {
   sumSquaresColumn(p: number, m: number, s0: number): number;
   hcWeightsBlock(pe: number, ph: number, pw: number, m: number, kind: number, f: number, limit: number): number;
   factsColumn(p: number, m: number, pS: number): void;
+  expColumn(p: number, m: number, s: number): number;
+  expm1Column(p: number, m: number, lambda: number, c: number): number;
 }
 
 /** Rows per chunk of the column operations (two chunks and a pair of sums sit at the start of the heap). */
@@ -413,7 +425,29 @@ function wasmKernelOf(x: KernelExports): Kernel {
     }
     return Float64Array.from(S);
   };
+  /**
+   * out = f(src) chunk by chunk in the module (run returns how many pairs it could not take); a chunk
+   * the module refuses (a value outside its ordinary domain) is computed by the JavaScript twin.
+   */
+  const mapChunks = (src: Float64Array, out: Float64Array, run: (m: number) => number, twin: (part: Float64Array, dst: Float64Array) => void): void => {
+    const A = chunkA();
+    for (let s = 0; s < src.length; s += CHUNK) {
+      const m = Math.min(CHUNK, src.length - s);
+      const part = src.subarray(s, s + m);
+      A.set(part);
+      if (m & 1) A[m] = 0; // the odd chunk's second lane: a value inside the domain
+      const dst = out.subarray(s, s + m);
+      if (run((m + 1) & ~1) === 0) dst.set(A.subarray(0, m));
+      else twin(part, dst);
+    }
+  };
   const columnOps: ColumnOps = {
+    expScaled(src: Float64Array, sc: number, out: Float64Array): void {
+      mapChunks(src, out, (m) => x.expColumn(pA, m, sc), (part, dst) => jsColumnOps.expScaled(part, sc, dst));
+    },
+    expm1Scaled(src: Float64Array, lambda: number, c: number, out: Float64Array): void {
+      mapChunks(src, out, (m) => x.expm1Column(pA, m, lambda, c), (part, dst) => jsColumnOps.expm1Scaled(part, lambda, c, dst));
+    },
     logInPlace(col: Float64Array): void {
       logChunks(col, false);
     },

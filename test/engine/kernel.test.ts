@@ -334,6 +334,60 @@ describe("column operations (logs, largest magnitude, compensated sum, residuals
   });
 });
 
+describe("exponentials (expScaled, expm1Scaled): WebAssembly equals Math.exp and Math.expm1 bit for bit", () => {
+  const r = rng(20261204);
+  const LENGTHS = [0, 1, 2, 3, 7, 2047, 2048, 2049, 5001];
+  /**
+   * Arguments spread over every branch of fdlibm's exp and expm1: below 2^−54 and 2^−28 (x itself,
+   * 1 + x), up to 0.5·ln2 (no reduction), 0.5–1.5·ln2 (k = ±1), k from −56 to 56 in expm1 (its forms
+   * for k ≤ −2, 2 … 19 and 20 … 56) and up to ±708 in exp, with the branch edges themselves.
+   */
+  function spread(n: number): Float64Array {
+    const scales = [1e-300, 1e-17, 1e-9, 1e-3, 0.1, 0.34, 0.5, 1, 1.04, 2, 5, 13.9, 14, 30, 38, 300, 707];
+    const v = Float64Array.from({ length: n }, (_, i) => (r() * 2 - 1) * scales[i % scales.length]);
+    const L = Math.LN2;
+    v.set([0, -0, 0.5 * L, -0.5 * L, 1.5 * L, -1.5 * L, 19.5 * L, 20 * L, -20 * L, 56 * L - 1e-9, 37.99, -37.99, 707.9, -707.9, 2 ** -54, 2 ** -28, -(2 ** -28)], 0);
+    return v;
+  }
+
+  it("exp(s·x) for s = 1, 0.2 and −1.7 on 60,000 arguments: Math.exp's doubles, and the JavaScript kernel's", () => {
+    const v = spread(60001);
+    for (const s of [1, 0.2, -1.7]) {
+      const a = new Float64Array(v.length);
+      wasm.expScaled(v, s, a);
+      expect(bitDiff(a, Float64Array.from(v, (x) => Math.exp(s * x)))).toEqual([]);
+      const b = new Float64Array(v.length);
+      jsKernel.expScaled(v, s, b);
+      expect(bitDiff(a, b)).toEqual([]);
+    }
+  });
+
+  it("expm1(λ·x)/λ + c for λ from −5 to 5 (and 1.3e−5) on 60,000 arguments: Math.expm1's doubles, and the JavaScript kernel's", () => {
+    const v = spread(60001).map((x) => x / 8); // λ·x from −5·38/8 to 5·38/8 (past the module's domain at the largest)
+    for (const [lambda, c] of [[0.37, 0], [-2, 0.5], [1.3e-5, -1], [5, 0], [-5, 2], [1, 0]]) {
+      const a = new Float64Array(v.length);
+      wasm.expm1Scaled(v, lambda, c, a);
+      expect(bitDiff(a, Float64Array.from(v, (x) => Math.expm1(lambda * x) / lambda + c))).toEqual([]);
+      const b = new Float64Array(v.length);
+      jsKernel.expm1Scaled(v, lambda, c, b);
+      expect(bitDiff(a, b)).toEqual([]);
+    }
+  });
+
+  it("hand a chunk outside their ordinary domain (|s·x| ≥ 708, |λ·x| ≥ 38, ±Infinity, NaN) to Math.exp and Math.expm1, also in place and at odd lengths", () => {
+    for (const n of LENGTHS) {
+      const v = Float64Array.from({ length: n }, () => r() * 4 - 2);
+      if (n > 3) v.set([800, -800, Infinity, NaN], n - 4);
+      const e = v.slice();
+      wasm.expScaled(e, 1, e);
+      expect(bitDiff(e, Float64Array.from(v, Math.exp))).toEqual([]);
+      const f = v.slice();
+      wasm.expm1Scaled(f, 20, 0.25, f);
+      expect(bitDiff(f, Float64Array.from(v, (x) => Math.expm1(20 * x) / 20 + 0.25))).toEqual([]);
+    }
+  });
+});
+
 describe("sides on a block of columns (rssOnFactor's passes): WebAssembly equals JavaScript bitwise", () => {
   const r = rng(77);
   for (const [k, L, m] of [[1, 1, 1], [3, 2, 256], [11, 1, 255], [6, 3, 7], [17, 2, 130]]) {

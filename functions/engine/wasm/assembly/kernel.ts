@@ -458,6 +458,146 @@ export function logColumn(p: usize, m: i32): i32 {
   return bad;
 }
 
+// fdlibm's __ieee754_exp and expm1 (those of V8's Math.exp and Math.expm1), two lanes at once: their
+// constants, and every branch of the ordinary domain computed on both lanes and selected per lane
+const INVLN2: f64 = 1.44269504088896338700e+00;
+const P1: f64 = 1.66666666666666019037e-01;
+const P2: f64 = -2.77777777770155933842e-03;
+const P3: f64 = 6.61375632143793436117e-05;
+const P4: f64 = -1.65339022054652515390e-06;
+const P5: f64 = 4.13813679705723846039e-08;
+const Q1: f64 = -3.33333333333331316428e-02;
+const Q2: f64 = 1.58730158725481460165e-03;
+const Q3: f64 = -7.93650757867487942473e-05;
+const Q4: f64 = 4.00821782732936239552e-06;
+const Q5: f64 = -2.01099218183624371326e-07;
+
+/** 2^k as a double for the integer k held (as a double) in each lane of dk, |k| ≤ 1022. */
+// @ts-ignore: decorator
+@inline
+function twoTo(dk: v128): v128 {
+  const k = i64x2.extend_low_i32x4_s(i32x4.trunc_sat_f64x2_s_zero(dk));
+  return i64x2.shl(i64x2.add(k, i64x2.splat(1023)), 52);
+}
+
+/**
+ * fdlibm's exp of the pair at o (times sc), stored back; 1 when a lane is outside (−708, 708) or NaN
+ * (where fdlibm scales subnormals, overflows or passes specials through; the caller then computes the
+ * chunk itself). The reduction x = k·ln2 + (hi − lo): k = ±1 below 1.5·ln2 (high word 0x3ff0a2b2),
+ * else trunc(x/ln2 ± 1/2), hi = x − k·ln2_hi, lo = k·ln2_lo (fdlibm's ±1 forms are these with k = ±1);
+ * no reduction at or below 0.5·ln2, and 1 + x below 2^−28, as fdlibm's branches, selected per lane.
+ */
+// @ts-ignore: decorator
+@inline
+function expPair(o: usize, sc: f64): i32 {
+  const one = f64x2.splat(1.0);
+  const two = f64x2.splat(2.0);
+  const x = f64x2.mul(f64x2.splat(sc), v128.load(o));
+  const ax = f64x2.abs(x);
+  const bad = i64x2.all_true(f64x2.lt(ax, f64x2.splat(708.0))) ? 0 : 1;
+  const hx = i64x2.shr_u(ax, 32);
+  const reduced = i64x2.gt_s(hx, i64x2.splat(0x3fd62e42));
+  const tiny = i64x2.gt_s(i64x2.splat(0x3e300000), hx);
+  const neg = f64x2.lt(x, f64x2.splat(0));
+  const near = i64x2.gt_s(i64x2.splat(0x3ff0a2b2), hx);
+  const kt = f64x2.trunc(f64x2.add(f64x2.mul(f64x2.splat(INVLN2), x), v128.bitselect(f64x2.splat(-0.5), f64x2.splat(0.5), neg)));
+  const dk = v128.bitselect(v128.bitselect(f64x2.splat(-1.0), one, neg), kt, near);
+  const hi = f64x2.sub(x, f64x2.mul(dk, f64x2.splat(LN2_HI)));
+  const lo = f64x2.mul(dk, f64x2.splat(LN2_LO));
+  const xr = v128.bitselect(f64x2.sub(hi, lo), x, reduced);
+  const t = f64x2.mul(xr, xr);
+  const poly = f64x2.add(f64x2.splat(P1), f64x2.mul(t, f64x2.add(f64x2.splat(P2), f64x2.mul(t, f64x2.add(f64x2.splat(P3), f64x2.mul(t, f64x2.add(f64x2.splat(P4), f64x2.mul(t, f64x2.splat(P5)))))))));
+  const c = f64x2.sub(xr, f64x2.mul(t, poly));
+  const xc = f64x2.mul(xr, c);
+  const r0 = f64x2.sub(one, f64x2.sub(f64x2.div(xc, f64x2.sub(c, two)), xr));
+  const y = f64x2.sub(one, f64x2.sub(f64x2.sub(lo, f64x2.div(xc, f64x2.sub(two, c))), hi));
+  // only one of the two quotients is used per lane: r0 where no reduction, y·2^k where there is one
+  const r = v128.bitselect(f64x2.mul(y, twoTo(dk)), r0, reduced);
+  v128.store(o, v128.bitselect(f64x2.add(one, x), r, tiny));
+  return bad;
+}
+
+/** In place a[i] = exp(sc·a[i]) for i < m (m even); returns the pairs expPair refused. */
+export function expColumn(p: usize, m: i32, sc: f64): i32 {
+  let bad = 0;
+  let i = 0;
+  // two pairs per step: their independent chains of operations overlap in the processor
+  for (; i + 3 < m; i += 4) {
+    const o = p + (<usize>i << 3);
+    bad += expPair(o, sc);
+    bad += expPair(o + 16, sc);
+  }
+  for (; i < m; i += 2) bad += expPair(p + (<usize>i << 3), sc);
+  return bad;
+}
+
+/**
+ * expm1(λ·a)/λ + c0 of the pair at o by fdlibm's expm1, stored back; 1 when a lane of λ·a is outside
+ * (−38, 38) or NaN (where fdlibm returns −1, overflows or passes specials through). The reduction as
+ * expPair's, with its correction c = (hi − x) − lo; fdlibm's seven forms by k (0, −1, 1, ≤ −2, 2 … 19,
+ * 20 … 56, and x itself below 2^−54) computed on both lanes and selected per lane.
+ */
+// @ts-ignore: decorator
+@inline
+function expm1Pair(o: usize, lambda: f64, c0: f64): i32 {
+  const one = f64x2.splat(1.0);
+  const half = f64x2.splat(0.5);
+  const x = f64x2.mul(f64x2.splat(lambda), v128.load(o));
+  const ax = f64x2.abs(x);
+  const bad = i64x2.all_true(f64x2.lt(ax, f64x2.splat(38.0))) ? 0 : 1;
+  const hx = i64x2.shr_u(ax, 32);
+  const reduced = i64x2.gt_s(hx, i64x2.splat(0x3fd62e42));
+  const tiny = i64x2.gt_s(i64x2.splat(0x3c900000), hx);
+  const neg = f64x2.lt(x, f64x2.splat(0));
+  const near = i64x2.gt_s(i64x2.splat(0x3ff0a2b2), hx);
+  const kt = f64x2.trunc(f64x2.add(f64x2.mul(f64x2.splat(INVLN2), x), v128.bitselect(f64x2.splat(-0.5), half, neg)));
+  const dk = v128.bitselect(v128.bitselect(f64x2.splat(-1.0), one, neg), kt, near);
+  const hi = f64x2.sub(x, f64x2.mul(dk, f64x2.splat(LN2_HI)));
+  const lo = f64x2.mul(dk, f64x2.splat(LN2_LO));
+  const xr = v128.bitselect(f64x2.sub(hi, lo), x, reduced);
+  const cc = v128.and(f64x2.sub(f64x2.sub(hi, xr), lo), reduced);
+  const hfx = f64x2.mul(half, xr);
+  const hxs = f64x2.mul(xr, hfx);
+  const r1 = f64x2.add(one, f64x2.mul(hxs, f64x2.add(f64x2.splat(Q1), f64x2.mul(hxs, f64x2.add(f64x2.splat(Q2), f64x2.mul(hxs, f64x2.add(f64x2.splat(Q3), f64x2.mul(hxs, f64x2.add(f64x2.splat(Q4), f64x2.mul(hxs, f64x2.splat(Q5)))))))))));
+  const t = f64x2.sub(f64x2.splat(3.0), f64x2.mul(r1, hfx));
+  const e = f64x2.mul(hxs, f64x2.div(f64x2.sub(r1, t), f64x2.sub(f64x2.splat(6.0), f64x2.mul(xr, t))));
+  const res0 = f64x2.sub(xr, f64x2.sub(f64x2.mul(xr, e), hxs));
+  const e2 = f64x2.sub(f64x2.sub(f64x2.mul(xr, f64x2.sub(e, cc)), cc), hxs);
+  const resM1 = f64x2.sub(f64x2.mul(half, f64x2.sub(xr, e2)), half);
+  const resP1 = v128.bitselect(
+    f64x2.mul(f64x2.splat(-2.0), f64x2.sub(e2, f64x2.add(xr, half))),
+    f64x2.add(one, f64x2.mul(f64x2.splat(2.0), f64x2.sub(xr, e2))),
+    f64x2.lt(xr, f64x2.splat(-0.25)),
+  );
+  const pk = twoTo(dk);
+  const mk = twoTo(f64x2.neg(dk)); // 2^−k
+  const resLow = f64x2.sub(f64x2.mul(f64x2.sub(one, f64x2.sub(e2, xr)), pk), one);
+  const resMid = f64x2.mul(f64x2.sub(f64x2.sub(one, mk), f64x2.sub(e2, xr)), pk);
+  const resHigh = f64x2.mul(f64x2.add(f64x2.sub(xr, f64x2.add(e2, mk)), one), pk);
+  const k = i64x2.extend_low_i32x4_s(i32x4.trunc_sat_f64x2_s_zero(dk));
+  let r = v128.bitselect(resHigh, resMid, i64x2.gt_s(k, i64x2.splat(19)));
+  r = v128.bitselect(resLow, r, i64x2.gt_s(i64x2.splat(-1), k));
+  r = v128.bitselect(resP1, r, i64x2.eq(k, i64x2.splat(1)));
+  r = v128.bitselect(resM1, r, i64x2.eq(k, i64x2.splat(-1)));
+  r = v128.bitselect(r, res0, reduced);
+  r = v128.bitselect(x, r, tiny);
+  v128.store(o, f64x2.add(f64x2.div(r, f64x2.splat(lambda)), f64x2.splat(c0)));
+  return bad;
+}
+
+/** In place a[i] = expm1(λ·a[i])/λ + c0 for i < m (m even); returns the pairs expm1Pair refused. */
+export function expm1Column(p: usize, m: i32, lambda: f64, c0: f64): i32 {
+  let bad = 0;
+  let i = 0;
+  for (; i + 3 < m; i += 4) {
+    const o = p + (<usize>i << 3);
+    bad += expm1Pair(o, lambda, c0);
+    bad += expm1Pair(o + 16, lambda, c0);
+  }
+  for (; i < m; i += 2) bad += expm1Pair(p + (<usize>i << 3), lambda, c0);
+  return bad;
+}
+
 // ---------------------------------------------------------------------------------------------
 // Sides on a block of columns (the projections of leastSquares.ts's rssOnFactor)
 // ---------------------------------------------------------------------------------------------
