@@ -62,7 +62,7 @@ export function readsAs(form: Form, term: string, binary: boolean): string {
 export function leftOutSentence(r: ColumnFitResult): string {
   const parts: string[] = [];
   if (r.leftOut.blank) parts.push(`${fmt(r.leftOut.blank)} with a blank cell`);
-  if (r.leftOut.notNumber) parts.push(`${fmt(r.leftOut.notNumber)} with text, a logical or an error where a number was needed`);
+  if (r.leftOut.notNumber) parts.push(`${fmt(r.leftOut.notNumber)} with text or an error where a number was needed`);
   if (r.leftOut.nonPositive) parts.push(`${fmt(r.leftOut.nonPositive)} with a zero or negative under a log (zeros=drop)`);
   const total = r.leftOut.blank + r.leftOut.notNumber + r.leftOut.nonPositive;
   return total === 0 ? "no row left out" : `${fmt(total)} ${total === 1 ? "row" : "rows"} left out: ${parts.join("; ")}`;
@@ -92,9 +92,9 @@ export function talliesHtml(tallies: ColumnTally[], form: Form): string {
   const rows = tallies.map((t) => {
     const binary = t.role === "x" && t.numbers > 0 && t.other === 0;
     const logged = t.role === "y" ? logY : logX && !binary;
-    return `<tr><th scope="row">${esc(t.name)}${t.role === "y" ? " (y)" : ""}</th><td>${fmt(t.numbers)}</td><td>${fmt(t.blank)}</td><td>${fmt(t.text + t.logical + t.error)}</td><td>${fmt(t.zeros)}</td><td>${fmt(t.negatives)}</td><td>${binary ? "binary" : logged ? "log" : "levels"}</td></tr>`;
+    return `<tr><th scope="row">${esc(t.name)}${t.role === "y" ? " (y)" : ""}</th><td>${fmt(t.numbers)}${t.logical ? ` (${fmt(t.logical)} TRUE/FALSE, read as 1/0)` : ""}</td><td>${fmt(t.blank)}</td><td>${fmt(t.text + t.error)}</td><td>${fmt(t.zeros)}</td><td>${fmt(t.negatives)}</td><td>${binary ? "binary" : logged ? "log" : "levels"}</td></tr>`;
   }).join("");
-  return `<div class="elx-table-wrap"><table id="elx-big-check" class="elx-compact"><caption>Per column, over the data rows read</caption><thead><tr><th scope="col">Column</th><th scope="col">Numbers</th><th scope="col">Blank</th><th scope="col">Text, logical or error</th><th scope="col">Zeros</th><th scope="col">Below zero</th><th scope="col">Taken as</th></tr></thead><tbody>${rows}</tbody></table></div>`;
+  return `<div class="elx-table-wrap"><table id="elx-big-check" class="elx-compact"><caption>Per column, over the data rows read</caption><thead><tr><th scope="col">Column</th><th scope="col">Numbers</th><th scope="col">Blank</th><th scope="col">Text or error</th><th scope="col">Zeros</th><th scope="col">Below zero</th><th scope="col">Taken as</th></tr></thead><tbody>${rows}</tbody></table></div>`;
 }
 
 /** The results of a big fit as the pane shows them. */

@@ -40,6 +40,7 @@ export interface ColumnTally {
   numbers: number;
   blank: number;
   text: number;
+  /** Of the numbers, how many were TRUE/FALSE (read as 1/0). */
   logical: number;
   error: number;
   zeros: number;
@@ -114,15 +115,11 @@ export type ReadOutcome =
 
 const ERROR_CODES = /^#(NULL!|DIV\/0!|VALUE!|REF!|NAME\?|NUM!|N\/A|GETTING_DATA|SPILL!|CALC!|FIELD!|BUSY!|BLOCKED!|CONNECT!|EXTERNAL!|PYTHON!|UNKNOWN!)$/;
 
-/** The issue code of a non-number cell (intake.ts CellIssue: 1 blank, 2 text or a logical, 3 an error) and the tally it counts in. */
+/** The issue code of a cell that is neither a number nor TRUE/FALSE (intake.ts CellIssue: 1 blank, 2 text, 3 an error) and the tally it counts in. */
 function kindOf(v: unknown, t: ColumnTally): number {
   if (v === "" || v === null || v === undefined) {
     t.blank++;
     return 1;
-  }
-  if (typeof v === "boolean") {
-    t.logical++;
-    return 2;
   }
   if (typeof v === "string" && ERROR_CODES.test(v)) {
     t.error++;
@@ -172,11 +169,14 @@ export async function readChunks(host: Host, plan: BigPlan, sink: (chunk: Column
       for (let i = 0; i < m; i++) {
         let issue = 0;
         const yRow = yv[i];
-        const v = yRow ? yRow[0] : "";
+        const y0 = yRow ? yRow[0] : "";
+        // TRUE/FALSE count as 1/0, as the cells' intake (intake.ts) and the pane's data check read them
+        const v = typeof y0 === "boolean" ? (y0 ? 1 : 0) : y0;
         if (typeof v === "number" && Number.isFinite(v)) {
           y[i] = v;
           const t = tallies[0];
           t.numbers++;
+          if (v !== y0) t.logical++;
           if (v === 0) t.zeros++;
           else if (v < 0) t.negatives++;
           if (v !== 0 && v !== 1) t.other++;
@@ -186,11 +186,13 @@ export async function readChunks(host: Host, plan: BigPlan, sink: (chunk: Column
         }
         const xRow = xv[i] ?? [];
         for (let j = 0; j < kx; j++) {
-          const w = xRow[j];
+          const w0 = xRow[j];
+          const w = typeof w0 === "boolean" ? (w0 ? 1 : 0) : w0;
           const t = tallies[j + 1];
           if (typeof w === "number" && Number.isFinite(w)) {
             x[j][i] = w;
             t.numbers++;
+            if (w !== w0) t.logical++;
             if (w === 0) t.zeros++;
             else if (w < 0) t.negatives++;
             if (w !== 0 && w !== 1) t.other++;

@@ -57,7 +57,7 @@ export interface PartExecutor {
 export interface LeftOut {
   /** A blank cell in y or an x column. */
   blank: number;
-  /** Text, a logical or an error value where a number was needed. */
+  /** Text or an error value where a number was needed (TRUE/FALSE are read as 1/0). */
   notNumber: number;
   /** A logged value ≤ 0 under zeros=drop. */
   nonPositive: number;

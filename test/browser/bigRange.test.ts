@@ -140,7 +140,7 @@ describe("a range past what a formula carries (200,000 rows × 11 columns)", () 
       cautions: document.querySelector("#elx-big-body .elx-cautions")?.textContent ?? "",
     }));
     expect(shown.headers).toEqual(["Term", "Reads as", "Coefficient", "Std. error", "Low (95%)", "High (95%)", "p-value"]);
-    expect(shown.leftOut).toBe(`${(blank + text + zero).toLocaleString("en-GB")} rows left out: 5 with a blank cell; 8 with text, a logical or an error where a number was needed; ${zero.toLocaleString("en-GB")} with a zero or negative under a log (zeros=drop)`);
+    expect(shown.leftOut).toBe(`${(blank + text + zero).toLocaleString("en-GB")} rows left out: 5 with a blank cell; 8 with text or an error where a number was needed; ${zero.toLocaleString("en-GB")} with a zero or negative under a log (zeros=drop)`);
     expect(shown.bp).toMatch(/^Breusch–Pagan \(studentized, on the fit's regressors\): /);
     expect(shown.picture).toBe(true);
     expect(shown.cautions).toContain("associations, not causes");

@@ -88,7 +88,7 @@ describe("the chunked reader's limits", () => {
 });
 
 describe("reading in blocks", () => {
-  it("converts every cell to a double or NaN, counts each kind per column and each left-out row once, by its first reason", async () => {
+  it("converts every cell to a double or NaN (TRUE/FALSE to 1/0, as the cells' intake), counts each kind per column and each left-out row once, by its first reason", async () => {
     const book = smallBook(30);
     const host = hostOver(book);
     const plan = await planChunks(host, area("A1:A31"), area("B1:C31"), 21); // 7 rows per block of 3 columns
@@ -102,17 +102,17 @@ describe("reading in blocks", () => {
     const price = chunks.flatMap((c) => Array.from(c.x[0]));
     const issues = chunks.flatMap((c) => Array.from(c.issues as Uint8Array));
     expect(y[0]).toBe(10);
-    expect(Number.isNaN(y[11])).toBe(true);
+    expect(y[11]).toBe(1); // TRUE, read as the cells' intake reads it
     expect(Number.isNaN(price[4])).toBe(true);
     expect(price[5]).toBeCloseTo(2.5, 15);
-    // 1 blank, 2 text or logical, 3 error (intake.ts CellIssue); the row with text then a blank: text
-    expect([issues[4], issues[8], issues[11], issues[19], issues[20]]).toEqual([1, 2, 2, 3, 2]);
-    expect(issues.filter((v) => v !== 0)).toHaveLength(5);
+    // 1 blank, 2 text, 3 error (intake.ts CellIssue); the row with text then a blank: text; TRUE is a number
+    expect([issues[4], issues[8], issues[11], issues[19], issues[20]]).toEqual([1, 2, 0, 3, 2]);
+    expect(issues.filter((v) => v !== 0)).toHaveLength(4);
     expect(outcome.ok).toBe(true);
     if (!outcome.ok) return;
-    expect(outcome.leftOut).toEqual({ blank: 1, notNumber: 4 });
+    expect(outcome.leftOut).toEqual({ blank: 1, notNumber: 3 });
     expect(outcome.tallies.map((t) => [t.name, t.numbers, t.blank, t.text, t.logical, t.error])).toEqual([
-      ["Units", 29, 0, 0, 1, 0],
+      ["Units", 30, 0, 0, 1, 0],
       ["Price", 27, 1, 1, 0, 1],
       ["Promo", 28, 1, 1, 0, 0],
     ]);
