@@ -8,6 +8,7 @@
  */
 import { Host, type Runner } from "../../taskpane/host";
 import { BIG_MAX_CELLS, BLOCK_CELLS, FORMULA_MAX_CELLS, needsChunks, planChunks, readChunks, rowsPerBlock, type BigPlan } from "../../taskpane/chunks";
+import { talliesHtml } from "../../taskpane/bigResults";
 import { PreviewContext } from "../../preview/excelAdapter";
 import { Workbook, type CellValue } from "../../preview/workbook";
 import { SYNTHETIC_COLUMNS, syntheticRow } from "../../preview/synthetic";
@@ -118,6 +119,10 @@ describe("reading in blocks", () => {
     ]);
     expect(outcome.tallies[2].other).toBe(0); // Promo is 0/1: binary
     expect(outcome.watched).toBe(true);
+    // the data check the pane shows: TRUE/FALSE among the numbers, named under the table
+    const html = talliesHtml(outcome.tallies, "log-log");
+    expect(html).toContain('<th scope="row">Units (y)</th><td>30</td><td>0</td><td>0</td>');
+    expect(html).toContain("TRUE/FALSE cells, counted among the numbers and read as 1/0 (as formulas read them): Units 1.");
   });
 
   it("reads the synthetic sheet's rows exactly as generated, without building its cells", async () => {
