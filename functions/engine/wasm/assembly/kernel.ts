@@ -481,11 +481,24 @@ function twoTo(dk: v128): v128 {
 }
 
 /**
+ * fdlibm's k of the reduction x = k·ln2 + (hi − lo), as doubles: ±1 below 1.5·ln2 (high word of |x|
+ * under 0x3ff0a2b2), else trunc(x/ln2 ± 1/2); hi = x − k·ln2_hi and lo = k·ln2_lo then are fdlibm's
+ * (its ±1 forms are these with k = ±1).
+ */
+// @ts-ignore: decorator
+@inline
+function reductionK(x: v128, hx: v128): v128 {
+  const neg = f64x2.lt(x, f64x2.splat(0));
+  const near = i64x2.gt_s(i64x2.splat(0x3ff0a2b2), hx);
+  const kt = f64x2.trunc(f64x2.add(f64x2.mul(f64x2.splat(INVLN2), x), v128.bitselect(f64x2.splat(-0.5), f64x2.splat(0.5), neg)));
+  return v128.bitselect(v128.bitselect(f64x2.splat(-1.0), f64x2.splat(1.0), neg), kt, near);
+}
+
+/**
  * fdlibm's exp of the pair at o (times sc), stored back; 1 when a lane is outside (−708, 708) or NaN
  * (where fdlibm scales subnormals, overflows or passes specials through; the caller then computes the
- * chunk itself). The reduction x = k·ln2 + (hi − lo): k = ±1 below 1.5·ln2 (high word 0x3ff0a2b2),
- * else trunc(x/ln2 ± 1/2), hi = x − k·ln2_hi, lo = k·ln2_lo (fdlibm's ±1 forms are these with k = ±1);
- * no reduction at or below 0.5·ln2, and 1 + x below 2^−28, as fdlibm's branches, selected per lane.
+ * chunk itself). The reduction by reductionK above 0.5·ln2, none at or below it, and 1 + x below
+ * 2^−28, as fdlibm's branches, selected per lane.
  */
 // @ts-ignore: decorator
 @inline
@@ -498,10 +511,7 @@ function expPair(o: usize, sc: f64): i32 {
   const hx = i64x2.shr_u(ax, 32);
   const reduced = i64x2.gt_s(hx, i64x2.splat(0x3fd62e42));
   const tiny = i64x2.gt_s(i64x2.splat(0x3e300000), hx);
-  const neg = f64x2.lt(x, f64x2.splat(0));
-  const near = i64x2.gt_s(i64x2.splat(0x3ff0a2b2), hx);
-  const kt = f64x2.trunc(f64x2.add(f64x2.mul(f64x2.splat(INVLN2), x), v128.bitselect(f64x2.splat(-0.5), f64x2.splat(0.5), neg)));
-  const dk = v128.bitselect(v128.bitselect(f64x2.splat(-1.0), one, neg), kt, near);
+  const dk = reductionK(x, hx);
   const hi = f64x2.sub(x, f64x2.mul(dk, f64x2.splat(LN2_HI)));
   const lo = f64x2.mul(dk, f64x2.splat(LN2_LO));
   const xr = v128.bitselect(f64x2.sub(hi, lo), x, reduced);
@@ -548,10 +558,7 @@ function expm1Pair(o: usize, lambda: f64, c0: f64): i32 {
   const hx = i64x2.shr_u(ax, 32);
   const reduced = i64x2.gt_s(hx, i64x2.splat(0x3fd62e42));
   const tiny = i64x2.gt_s(i64x2.splat(0x3c900000), hx);
-  const neg = f64x2.lt(x, f64x2.splat(0));
-  const near = i64x2.gt_s(i64x2.splat(0x3ff0a2b2), hx);
-  const kt = f64x2.trunc(f64x2.add(f64x2.mul(f64x2.splat(INVLN2), x), v128.bitselect(f64x2.splat(-0.5), half, neg)));
-  const dk = v128.bitselect(v128.bitselect(f64x2.splat(-1.0), one, neg), kt, near);
+  const dk = reductionK(x, hx);
   const hi = f64x2.sub(x, f64x2.mul(dk, f64x2.splat(LN2_HI)));
   const lo = f64x2.mul(dk, f64x2.splat(LN2_LO));
   const xr = v128.bitselect(f64x2.sub(hi, lo), x, reduced);
