@@ -92,11 +92,11 @@ export function talliesHtml(tallies: ColumnTally[], form: Form): string {
   const rows = tallies.map((t) => {
     const binary = t.role === "x" && t.numbers > 0 && t.other === 0;
     const logged = t.role === "y" ? logY : logX && !binary;
-    return `<tr><th scope="row">${esc(t.name)}${t.role === "y" ? " (y)" : ""}</th><td>${fmt(t.numbers)}</td><td>${fmt(t.blank)}</td><td>${fmt(t.text + t.error)}</td><td>${fmt(t.zeros)}</td><td>${fmt(t.negatives)}</td><td>${binary ? "binary" : logged ? "log" : "levels"}</td></tr>`;
+    return `<tr><th scope="row">${esc(t.name)}${t.role === "y" ? " (y)" : ""}</th><td>${fmt(t.numbers)}</td><td>${fmt(t.blank + t.text + t.error)}</td><td>${fmt(t.zeros)}</td><td>${fmt(t.negatives)}</td><td>${binary ? "binary" : logged ? "log" : "levels"}</td></tr>`;
   }).join("");
   const logical = tallies.filter((t) => t.logical > 0).map((t) => `${esc(t.name)} ${fmt(t.logical)}`);
   const note = logical.length ? `<p id="elx-big-logical" class="elx-muted">TRUE/FALSE cells, counted among the numbers and read as 1/0 (as formulas read them): ${logical.join("; ")}.</p>` : "";
-  return `<div class="elx-table-wrap"><table id="elx-big-check" class="elx-compact"><caption>Per column, over the data rows read</caption><thead><tr><th scope="col">Column</th><th scope="col">Numbers</th><th scope="col">Blank</th><th scope="col">Text or error</th><th scope="col">Zeros</th><th scope="col">Below zero</th><th scope="col">Taken as</th></tr></thead><tbody>${rows}</tbody></table></div>${note}`;
+  return `<div class="elx-table-wrap"><table id="elx-big-check" class="elx-compact"><caption>Per column, over the data rows read</caption><thead><tr><th scope="col">Column</th><th scope="col">Values</th><th scope="col">Blank, text or error</th><th scope="col">Zeros</th><th scope="col">Below zero</th><th scope="col">Taken as</th></tr></thead><tbody>${rows}</tbody></table></div>${note}`;
 }
 
 /** The results of a big fit as the pane shows them. */

@@ -121,7 +121,8 @@ describe("reading in blocks", () => {
     expect(outcome.watched).toBe(true);
     // the data check the pane shows: TRUE/FALSE among the numbers, named under the table
     const html = talliesHtml(outcome.tallies, "log-log");
-    expect(html).toContain('<th scope="row">Units (y)</th><td>30</td><td>0</td><td>0</td>');
+    expect(html).toContain('<th scope="row">Units (y)</th><td>30</td><td>0</td><td>0</td>'); // values, blank/text/error, zeros
+    expect(html).toContain('<th scope="row">Price</th><td>27</td><td>3</td>');
     expect(html).toContain("TRUE/FALSE cells, counted among the numbers and read as 1/0 (as formulas read them): Units 1.");
   });
 
