@@ -82,6 +82,20 @@ export function forEachQBlock(X: Float64Array[], qr: QrFit, visit: (start: numbe
   }
 }
 
+/** Leverages of a design from its factor, h_i = ‖R⁻ᵀx_i‖² of the scaled row (Σ_j z_ji², j ascending), by the kernel in force. */
+export function leveragesOf(X: Float64Array[], qr: QrFit): Float64Array {
+  const h = new Float64Array(qr.n);
+  const inv = Float64Array.from(qr.scale, (s) => 1 / s);
+  const ws = kernel().qWorkspace(qr.R, inv, qr.k, BLOCK);
+  for (let start = 0; start < qr.n; start += BLOCK) {
+    const m = Math.min(BLOCK, qr.n - start);
+    ws.qRows(X, start, m);
+    ws.leverage(m);
+    h.set(ws.h.subarray(0, m), start);
+  }
+  return h;
+}
+
 /** Rinv · M · Rinvᵀ for symmetric M (row-major k×k), in the space of the unit-length columns. */
 export function sandwich(qr: QrFit, M: Float64Array): Float64Array {
   const { k, Rinv } = qr;

@@ -29,7 +29,7 @@
 import { conditionEstimate, SIDE_ROWS, leastSquares, projectOnFactor, RANK_TOL, roughRssOnFactor, rssOnFactor, upperInverse, type QrFit } from "./leastSquares";
 import { factorReusable, fittedOf, REUSE_CONDITION } from "./specTests";
 import { chiSquareQuantile, chiSquareSf, studentTwoSided } from "./distributions";
-import { BLOCK, classicalCovariance, defaultLags, forEachQBlock, hacCovariance, hcCovariance, leastSquaresInput, LEVERAGE_TOL } from "./covariance";
+import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, leastSquaresInput, leveragesOf, LEVERAGE_TOL } from "./covariance";
 import { fail, unavailable } from "./problems";
 import type { OlsFit } from "./fit";
 import type { SeType } from "./options";
@@ -454,19 +454,6 @@ function addedVariableT(X: Float64Array[], z0: Float64Array, y0: Float64Array, s
   const j = k - 1;
   // V is the covariance of the unit-length columns' coefficients c_j = b_j·‖x_j‖ (covariance.ts)
   return { t: (q.coef[j] * q.scale[j]) / Math.sqrt(V[j * k + j]), df: q.n - k };
-}
-
-/** Leverages of a design from its factor: h_i = ‖R⁻ᵀx_i‖² of the scaled row. */
-function leveragesOf(X: Float64Array[], qr: QrFit): Float64Array {
-  const h = new Float64Array(qr.n);
-  const k = qr.k;
-  forEachQBlock(X, qr, (start, m, Z) => {
-    for (let j = 0; j < k; j++) {
-      const o = j * BLOCK;
-      for (let i = 0; i < m; i++) h[start + i] += Z[o + i] * Z[o + i];
-    }
-  });
-  return h;
 }
 
 /**
