@@ -448,11 +448,13 @@ function logPair(o: usize): i32 {
 export function logColumn(p: usize, m: i32): i32 {
   let bad = 0;
   let i = 0;
-  // two pairs per step: their independent chains of operations overlap in the processor
-  for (; i + 3 < m; i += 4) {
+  // four pairs per step: their independent chains of operations overlap in the processor
+  for (; i + 7 < m; i += 8) {
     const o = p + (<usize>i << 3);
     bad += logPair(o);
     bad += logPair(o + 16);
+    bad += logPair(o + 32);
+    bad += logPair(o + 48);
   }
   for (; i < m; i += 2) bad += logPair(p + (<usize>i << 3));
   return bad;
