@@ -23,6 +23,7 @@
  * Absorbed parameters a: one key G; two keys G_A + G_B − C, with C the connected components of the
  * bipartite graph whose edges are the rows (Abowd, Creecy and Kramarz 2002), found by union–find.
  */
+import { mapped } from "./blocks";
 import { count, fail } from "./problems";
 import { leastSquares, type QrFit } from "./leastSquares";
 
@@ -406,7 +407,7 @@ export class Absorber {
     if (this.keys.length !== 1) return null;
     const { codes, total } = this.keys[0];
     const w = this.weights;
-    return Float64Array.from(codes, (g, i) => (w ? w[i] : 1) / total[g]);
+    return mapped(codes, (g, i) => (w ? w[i] : 1) / total[g]);
   }
 
   /**
@@ -516,7 +517,7 @@ export function fitAbsorbed(absorber: Absorber, y: Float64Array, X: Float64Array
   if (n - k - a < 1) {
     fail(`${count(n, "row")} leave no residual degrees of freedom for ${count(k, "slope")} and ${count(a, "absorbed parameter")}: use fewer regressors or coarser fixed effects`);
   }
-  const sw = w ? Float64Array.from(w, Math.sqrt) : null;
+  const sw = w ? mapped(w, Math.sqrt) : null;
   const yt = new Float64Array(n);
   absorber.demean(y, yt);
   const Xt = X.map((c, j) => {
@@ -538,7 +539,7 @@ export function fitAbsorbed(absorber: Absorber, y: Float64Array, X: Float64Array
   }
   const qr = ls.qr;
   const u = qr.resid;
-  const resid = sw ? Float64Array.from(u, (v, i) => v / sw[i]) : u;
+  const resid = sw ? mapped(u, (v, i) => v / sw[i]) : u;
   const ybar = weightedMean(y, w);
   let tss = 0;
   let within = 0;

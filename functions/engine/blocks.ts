@@ -30,3 +30,15 @@ export function axpyBlock(C: Float64Array, a: number, b: number, m: number, w: n
   }
   for (; i < m; i++) C[b + i] -= w * C[a + i];
 }
+
+/**
+ * out[i] = f(src[i], i) for i < src.length, as Float64Array.from(src, f) gives, in a plain loop:
+ * V8 runs Float64Array.from with a map function through its generic path, measured at 70–300 ns an
+ * element against a few ns here (10^6 elements: 190–330 ms against 10–20 ms).
+ */
+export function mapped<T>(src: ArrayLike<T>, f: (v: T, i: number) => number): Float64Array {
+  const n = src.length;
+  const out = new Float64Array(n);
+  for (let i = 0; i < n; i++) out[i] = f(src[i], i);
+  return out;
+}

@@ -20,6 +20,7 @@
  * coefficient, so its error and p are those of the change itself; a change in the elasticity then
  * reflects a change in the coefficient, not a move along the curve.
  */
+import { mapped } from "./blocks";
 import { readYX, type Origin } from "./intake";
 import { prepare } from "./transforms";
 import { estimatorOf, seTypeOf } from "./estimators";
@@ -132,7 +133,7 @@ export function breakTest(y: unknown, x: unknown, at: unknown, o: Options, yOrig
       source = "at-row";
     }
   }
-  const pick = (c: Float64Array) => (order ? Float64Array.from(order, (i) => c[i]) : c);
+  const pick = (c: Float64Array) => (order ? mapped(order, (i) => c[i]) : c);
   const d: BreakData = {
     X: fit.design.map(pick),
     y: pick(data.y),

@@ -35,6 +35,7 @@
  * reported sup-F and its break are those of separate fits.
  * Cost: O(n·k²) for all candidates together, against O(n²·k²) for a fit per candidate.
  */
+import { mapped } from "./blocks";
 import { forwardSolveRt, leastSquares, RANK_TOL, type Dependency, type QrFit } from "./leastSquares";
 import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, leastSquaresInput, originalUnits } from "./covariance";
 import { chiSquareSf, fisherSf, studentTwoSided } from "./distributions";
@@ -294,7 +295,7 @@ function robustWaldForm(Z: Float64Array[], qr: QrFit, type: Exclude<BreakCovaria
   }
   const M = new Float64Array(k * k);
   const z = new Float64Array(m);
-  const inv = Float64Array.from(scale, (v) => 1 / v);
+  const inv = mapped(scale, (v) => 1 / v);
   const hac = type === "HAC";
   const G = hac ? new Float64Array(n * k) : null; // g_t, row-major n×k
   const hc1 = n / (n - m);
@@ -479,7 +480,7 @@ function sweepColumns(X: Float64Array[]): Float64Array[] {
     let corr = 0;
     for (let i = 0; i < n; i++) corr += c[i] - m;
     m += corr / n;
-    return Float64Array.from(c, (v) => v - m);
+    return mapped(c, (v) => v - m);
   });
 }
 
@@ -495,7 +496,7 @@ export function supF(d: BreakData, trim: number, allowed: Uint8Array | null = nu
   const { from, to } = candidateRange(n, k, trim);
   const pooled = pooledFit(d);
   const W = sweepColumns(d.X);
-  const inv = Float64Array.from(W, (c) => {
+  const inv = mapped(W, (c) => {
     let ss = 0;
     for (let i = 0; i < n; i++) ss += c[i] * c[i];
     return 1 / Math.sqrt(ss);

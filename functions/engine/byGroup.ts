@@ -6,6 +6,7 @@
  * group's numbers equal ELX.ELASTICITIES on its rows. A group that cannot be fitted keeps its reason
  * and the others still come. Rows with a blank or error key are left out and counted (groupKey).
  */
+import { mapped } from "./blocks";
 import { readYX, asMatrix, keyText, subsetRoles, type Origin, type RawData } from "./intake";
 import { prepare } from "./transforms";
 import { estimatorOf } from "./estimators";
@@ -77,7 +78,7 @@ export function fitGroups(keys: unknown, y: unknown, x: unknown, o: Options, yOr
   if (order.length === 0) fail("every key is blank or an error: give keys the product, store or region of each row");
   const groups = order.map((key): GroupFit => {
     const idx = members.get(key) as number[];
-    const pick = (c: Float64Array) => Float64Array.from(idx, (w) => c[w]);
+    const pick = (c: Float64Array) => mapped(idx, (w) => c[w]);
     const sub: RawData = {
       ...raw,
       y: pick(raw.y),

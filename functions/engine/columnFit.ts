@@ -14,6 +14,7 @@
  * Refusals are ElxProblems worded as the cell path words them. isCancelled() is asked before every
  * step; a FitCancelled is thrown when it answers true.
  */
+import { mapped } from "./blocks";
 import type { ColumnChunk, ColumnFitResult, ColumnFitSpec, LeftOut, PartExecutor, PartOp } from "./columnFitTypes";
 import {
   appendOp, applyPartOp, chunkBuffers, mergeTriangles, newPartState,
@@ -190,7 +191,7 @@ async function splitLeastSquares(rounds: Rounds, design: string, k: number, unit
   const norms = known ?? (await rounds.all<NormsAnswer>(() => ({ kind: "norms", design, parts: rounds.exec.parts })));
   const scale = columnNorms(norms, k);
   for (let j = 0; j < k; j++) if (scale[j] === 0) return { qr: null, dependent: { column: j, on: [] } };
-  const inv = Float64Array.from(scale, (s) => 1 / s);
+  const inv = mapped(scale, (s) => 1 / s);
   const factor = async (keep: boolean): Promise<Merged> => {
     const Ts = await rounds.all<{ T: Float64Array }>(() => ({ kind: "factor", design, inv, keep, unit }));
     return mergeTriangles(Ts.map((a) => a.T), k, keep);
@@ -499,7 +500,7 @@ export async function columnFit(
       for (let j = i + 1; j < k; j++) s -= qr.R[i * k + j] * c[j];
       c[i] = s / qr.R[i * k + i];
     }
-    const b = Float64Array.from(c, (v, j) => v / qr.scale[j]);
+    const b = mapped(c, (v, j) => v / qr.scale[j]);
     const vMean = sums.reduce((s, a) => s + a.bpSum, 0) / n;
     const second = await rounds.all<BpSolveAnswer>(() => ({ kind: "bpSolve", b, bpUnit: eUnit, mean: vMean, correct, center: mean }));
     tss = second.reduce((s, a) => s + a.ss, 0);

@@ -17,6 +17,7 @@
  * a y of extreme magnitude (1e155, 1e−150) cannot push V_jj out of the range of doubles while the
  * standard error itself is an ordinary number.
  */
+import { mapped } from "./blocks";
 import { count, fail, requireFeasible, rowsPhrase } from "./problems";
 import type { QrFit } from "./leastSquares";
 import { kernel } from "./kernel";
@@ -73,7 +74,7 @@ export const BLOCK = 256;
  * kernel in force (kernel.ts). Z is valid during the visit only.
  */
 export function forEachQBlock(X: Float64Array[], qr: QrFit, visit: (start: number, m: number, Z: Float64Array) => void): void {
-  const inv = Float64Array.from(qr.scale, (s) => 1 / s);
+  const inv = mapped(qr.scale, (s) => 1 / s);
   const ws = kernel().qWorkspace(qr.R, inv, qr.k, BLOCK);
   for (let start = 0; start < qr.n; start += BLOCK) {
     const m = Math.min(BLOCK, qr.n - start);
@@ -85,7 +86,7 @@ export function forEachQBlock(X: Float64Array[], qr: QrFit, visit: (start: numbe
 /** Leverages of a design from its factor, h_i = ‖R⁻ᵀx_i‖² of the scaled row (Σ_j z_ji², j ascending), by the kernel in force. */
 export function leveragesOf(X: Float64Array[], qr: QrFit): Float64Array {
   const h = new Float64Array(qr.n);
-  const inv = Float64Array.from(qr.scale, (s) => 1 / s);
+  const inv = mapped(qr.scale, (s) => 1 / s);
   const ws = kernel().qWorkspace(qr.R, inv, qr.k, BLOCK);
   for (let start = 0; start < qr.n; start += BLOCK) {
     const m = Math.min(BLOCK, qr.n - start);
@@ -141,7 +142,7 @@ export function hcCovariance(c: CovarianceInput, type: "HC0" | "HC1" | "HC2" | "
   // Leverages are computed in the same pass when they are needed and not known yet.
   const lev = needH ? h ?? new Float64Array(n) : null;
   const fillH = needH && h === null;
-  const inv = Float64Array.from(qr.scale, (s) => 1 / s);
+  const inv = mapped(qr.scale, (s) => 1 / s);
   const ws = kernel().qWorkspace(qr.R, inv, k, BLOCK);
   const hc1 = n / c.dfResid;
   const ones: number[] = [];
@@ -258,7 +259,7 @@ export function standardError(c: Covariance, j: number): number {
 /** The standard error of the combination x0ᵀb: √(Σ (x0_i/‖x_i‖) W_ij (x0_j/‖x_j‖))·unit. */
 export function combinationError(c: Covariance, x0: Float64Array): number {
   const k = c.scale.length;
-  const u = Float64Array.from(x0, (v, i) => v / c.scale[i]);
+  const u = mapped(x0, (v, i) => v / c.scale[i]);
   let s = 0;
   for (let a = 0; a < k; a++) {
     let r = 0;

@@ -4,6 +4,7 @@
  * Like a results object in statsmodels, expensive parts (leverages, each covariance type, medians)
  * are computed on first use and memoised, without side effects on other fields.
  */
+import { mapped } from "./blocks";
 import { count, fail, quote, unavailable } from "./problems";
 import { leastSquares, type Dependency, type QrFit } from "./leastSquares";
 import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, leastSquaresInput, originalUnits, standardError, type Covariance, type CovarianceInput } from "./covariance";
@@ -123,7 +124,7 @@ export abstract class Model {
       if (panel) {
         // panel covariances come in the coefficients' units of the factorised columns: back to W
         const k = this.k;
-        W = Float64Array.from(panel.V, (v, i) => v * scale[Math.floor(i / k)] * scale[i % k]);
+        W = mapped(panel.V, (v, i) => v * scale[Math.floor(i / k)] * scale[i % k]);
         c = { type, W, scale, unit, V: originalUnits(W, scale, unit), df: panel.df === this.dfResid ? undefined : panel.df, negative: panel.negative, lags: panel.lags, groups: panel.groups, label: panel.label };
         this.covCache.set(key, c);
         return c;
@@ -179,7 +180,7 @@ export abstract class Model {
   within(col: Float64Array): Float64Array {
     let out = this.absorber ? this.absorber.demean(col) : col;
     const w = this.data.roles.weights;
-    if (w) out = Float64Array.from(out, (v, i) => v * Math.sqrt(w[i]));
+    if (w) out = mapped(out, (v, i) => v * Math.sqrt(w[i]));
     return out;
   }
 
@@ -193,7 +194,7 @@ export abstract class Model {
       const b = this.coef;
       const X = this.design;
       const expo = this.info.exponentialMean;
-      const d = Float64Array.from(f, (v, i) => {
+      const d = mapped(f, (v, i) => {
         let s = expo ? Math.log(v) : v;
         for (let j = 0; j < X.length; j++) s -= b[j] * X[j][i];
         return s;
@@ -336,12 +337,12 @@ export class OlsFit extends Model {
       this.absorbedR2 = { full: fe.rSquared, within: fe.withinRSquared };
       this.covInput = { columns: fe.X, factor: fe.qr, scores: fe.u, ssr: fe.qr.rss, dfResid: this.dfResid, rowNumbers: data.rowNumbers };
     } else if (w) {
-      const sw = Float64Array.from(w, Math.sqrt);
-      const Xs = this.design.map((c) => Float64Array.from(c, (v, i) => v * sw[i]));
-      const ls = leastSquares(Xs, Float64Array.from(y, (v, i) => v * sw[i]));
+      const sw = mapped(w, Math.sqrt);
+      const Xs = this.design.map((c) => mapped(c, (v, i) => v * sw[i]));
+      const ls = leastSquares(Xs, mapped(y, (v, i) => v * sw[i]));
       this.qr = ls.qr ?? explainDependency(ls.dependent as Dependency, terms);
       const u = this.qr.resid;
-      this.residuals = Float64Array.from(u, (v, i) => v / sw[i]);
+      this.residuals = mapped(u, (v, i) => v / sw[i]);
       this.covInput = { columns: Xs, factor: this.qr, scores: u, ssr: this.qr.rss, dfResid: this.dfResid, rowNumbers: data.rowNumbers };
     } else {
       // Σx² of the logged columns came with their logs (the same doubles sumSquares gives); the intercept's is n
@@ -367,12 +368,12 @@ export class OlsFit extends Model {
   }
 
   get coef(): Float64Array {
-    return this.yUnit === 1 ? this.qr.coef : this.memo("coef", () => Float64Array.from(this.qr.coef, (v) => v * this.yUnit));
+    return this.yUnit === 1 ? this.qr.coef : this.memo("coef", () => mapped(this.qr.coef, (v) => v * this.yUnit));
   }
 
   /** Residuals in y's units. */
   get resid(): Float64Array {
-    return this.yUnit === 1 ? this.residuals : this.memo("resid", () => Float64Array.from(this.residuals, (v) => v * this.yUnit));
+    return this.yUnit === 1 ? this.residuals : this.memo("resid", () => mapped(this.residuals, (v) => v * this.yUnit));
   }
 
   /** Residuals in units of yUnit (for sums of squares and the tests). */
@@ -385,7 +386,7 @@ export class OlsFit extends Model {
     return this.memo("fitted", () => {
       const y = this.data.y;
       const e = this.resid;
-      return Float64Array.from(y, (v, i) => v - e[i]);
+      return mapped(y, (v, i) => v - e[i]);
     });
   }
 

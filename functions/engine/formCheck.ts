@@ -26,6 +26,7 @@
  *   lmtest::petest(…, vcov = …) does. The added column goes onto the fit's factor by partitioned
  *   regression (addedVariableOnFactor); see DEVELOPERS.md for when a new factorisation is made.
  */
+import { mapped } from "./blocks";
 import { conditionEstimate, SIDE_ROWS, leastSquares, projectOnFactor, RANK_TOL, roughRssOnFactor, rssOnFactor, upperInverse, type QrFit } from "./leastSquares";
 import { factorReusable, fittedOf, REUSE_CONDITION } from "./specTests";
 import { chiSquareQuantile, chiSquareSf, studentTwoSided } from "./distributions";
@@ -424,7 +425,7 @@ export function levelOnLogFactor(logFit: OlsFit, exactFit: number): LevelModel |
   if (!(rss > exactFit * yy)) return null;
   const fitted = new Float64Array(n);
   for (let i = 0; i < n; i++) fitted[i] = y[i] - r[i] * yUnit;
-  const qr: QrFit = { ...logFit.qr, coef: Float64Array.from(c, (v, j) => v / logFit.qr.scale[j]), resid: r, rss, refined: false };
+  const qr: QrFit = { ...logFit.qr, coef: mapped(c, (v, j) => v / logFit.qr.scale[j]), resid: r, rss, refined: false };
   return { n, k: logFit.k, design: logFit.design, qr, plain: true, yUnit, data: { y }, scaledY, scaledResid: r, fitted };
 }
 

@@ -13,6 +13,7 @@
  *
  * Cost: one pass over the cells. Columns are Float64Array (column-major), compacted in place.
  */
+import { mapped } from "./blocks";
 import { cut, fail, count, quote, rowsPhrase, nearest, RowList } from "./problems";
 
 /** Why a cell cannot be used. 0 = usable. */
@@ -559,7 +560,7 @@ export function subsetKeys(col: KeyColumn, kept: ArrayLike<number>): KeyColumn {
 
 /** The role columns restricted to some of their rows (kept[w] = old row index). */
 export function subsetRoles(r: RoleColumns, kept: ArrayLike<number>): RoleColumns {
-  const pick = (c: Float64Array) => Float64Array.from({ length: kept.length }, (_, w) => c[kept[w]]);
+  const pick = (c: Float64Array) => mapped({ length: kept.length }, (_, w) => c[kept[w]]);
   const keys = (c: KeyColumn) => subsetKeys(c, kept);
   return {
     absorb: r.absorb.map(keys),

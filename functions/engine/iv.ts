@@ -28,6 +28,7 @@
  *
  * Cost: one QR of Z per endogenous regressor and one QR of X̂, each about 2·n·k² flops.
  */
+import { mapped } from "./blocks";
 import { leastSquares, type Dependency, type QrFit } from "./leastSquares";
 import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, originalUnits, type CovarianceInput } from "./covariance";
 import { clusterCovariance } from "./panelCovariance";
@@ -231,7 +232,7 @@ export class IvFit {
     this.n = n;
     this.intercept = d.intercept;
     this.rowNumbers = d.rowNumbers ?? Int32Array.from({ length: n }, (_, i) => i + 1);
-    const sw = d.weights ? Float64Array.from(d.weights, Math.sqrt) : null;
+    const sw = d.weights ? mapped(d.weights, Math.sqrt) : null;
     this.sqrtWeights = sw;
     const off = d.intercept ? 1 : 0;
     const one = sw ? Float64Array.from(sw) : new Float64Array(n).fill(1);
@@ -329,7 +330,7 @@ export class IvFit {
     }
     this.rss = rss;
     this.exact = !(rss > EXACT_FIT * yy);
-    this.resid = sw ? Float64Array.from(eW, (v, i) => v / sw[i]) : eW;
+    this.resid = sw ? mapped(eW, (v, i) => v / sw[i]) : eW;
     this.factor = second;
     this.covarianceInput = { columns: Xhat, factor: second, scores: eW, ssr: rss, dfResid: n - k, rowNumbers: this.rowNumbers };
   }
@@ -337,7 +338,7 @@ export class IvFit {
   /** Fitted values Xb (unweighted). */
   get fitted(): Float64Array {
     const sw = this.sqrtWeights;
-    return Float64Array.from(this.resid, (e, i) => (sw ? this.yUsed[i] / sw[i] : this.yUsed[i]) - e);
+    return mapped(this.resid, (e, i) => (sw ? this.yUsed[i] / sw[i] : this.yUsed[i]) - e);
   }
 
   /** σ̂ = √(Σw e²/(n − k)). */
@@ -405,7 +406,7 @@ export class IvFit {
   }
 
   standardErrors(c: IvCovariance): Float64Array {
-    return Float64Array.from({ length: this.k }, (_, j) => Math.sqrt(Math.max(0, c.V[j * this.k + j])));
+    return mapped({ length: this.k }, (_, j) => Math.sqrt(Math.max(0, c.V[j * this.k + j])));
   }
 
   /** Coefficient table under a covariance: estimate, error, t, p and the interval at `level`. */

@@ -19,6 +19,7 @@
  * exp(e), the normal factor exp(s²/2) with s² = e'e/(n−k−a)); residual tests (TESTS, HETEROTEST,
  * NORMALTEST, FORMCHECK) and single-outcome intervals are refused (see README.md).
  */
+import { mapped } from "./blocks";
 import { Model } from "./fit";
 import { fitIv, IvFit } from "./iv";
 import { ivCheck, type CheckCovariance, type IvCheck } from "./ivCheck";
@@ -127,7 +128,7 @@ export class TwoStageFit extends Model {
   }
 
   get fitted(): Float64Array {
-    return this.memo("fitted", () => Float64Array.from(this.data.y, (v, i) => v - this.iv.resid[i]));
+    return this.memo("fitted", () => mapped(this.data.y, (v, i) => v - this.iv.resid[i]));
   }
 
   get meanTransform(): Transform {

@@ -661,6 +661,13 @@ export const WASM_BY_DEFAULT = true;
 let active: Kernel | null = null;
 
 /** The kernel in force (the JavaScript kernel while the WebAssembly one is still compiling). */
+/** A new column of exp(v_i): Math.exp's doubles, by the kernel in force. */
+export function expOf(v: Float64Array): Float64Array {
+  const out = new Float64Array(v.length);
+  kernel().expScaled(v, 1, out);
+  return out;
+}
+
 export function kernel(): Kernel {
   if (active !== null) return active;
   const wasm = WASM_BY_DEFAULT ? wasmKernel() : null;

@@ -22,6 +22,7 @@
  *
  * Cost: about 2·n·k² flops and one pass over the data (two when refinement is needed).
  */
+import { mapped } from "./blocks";
 import { count, fail } from "./problems";
 import { kernel, type SidesWorkspace } from "./kernel";
 
@@ -479,7 +480,7 @@ export function projectOnFactor(X: Float64Array[], qr: QrFit, v: Float64Array, r
   blocks(v, (_, m) => ws.dots(0, m, c, 0));
   for (let j = 0; j < k; j++) c[j] /= scale[j];
   semiNormalSolve(qr.R, k, c);
-  const b = Float64Array.from(c, (cj, j) => cj / scale[j]);
+  const b = mapped(c, (cj, j) => cj / scale[j]);
   const t = new Float64Array(k);
   blocks(v, (start, m) => {
     ws.subtract(0, m, b, 0);
@@ -488,7 +489,7 @@ export function projectOnFactor(X: Float64Array[], qr: QrFit, v: Float64Array, r
   });
   for (let j = 0; j < k; j++) t[j] /= scale[j];
   semiNormalSolve(qr.R, k, t);
-  const bt = Float64Array.from(t, (tj, j) => tj / scale[j]);
+  const bt = mapped(t, (tj, j) => tj / scale[j]);
   let rss = 0;
   blocks(r, (start, m) => {
     ws.subtract(0, m, bt, 0);

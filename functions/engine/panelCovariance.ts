@@ -21,6 +21,7 @@
  * - Driscoll and Kraay (1998): h_t = Σ_{i∈t} x_i u_i per period; S = Σ_{|l|≤L} w_l Σ_t h_t h_{t−l}ᵀ,
  *   Bartlett weights over the periods in time order; V = B S B; no small-sample factor.
  */
+import { mapped } from "./blocks";
 import { fail, requireFeasible, rowsPhrase } from "./problems";
 import type { QrFit } from "./leastSquares";
 import { BLOCK, defaultLags, forEachQBlock, LEVERAGE_TOL, originalUnits, sandwich as unitSandwich } from "./covariance";
@@ -358,5 +359,5 @@ export function negativeVarianceReason(term: string): string {
 
 /** Standard errors; a negative variance gives NaN, which the cell layer must turn into #N/A with negativeVarianceReason. */
 export function panelStandardErrors(c: PanelCovariance, k: number): Float64Array {
-  return Float64Array.from({ length: k }, (_, j) => (c.V[j * k + j] >= 0 ? Math.sqrt(c.V[j * k + j]) : NaN));
+  return mapped({ length: k }, (_, j) => (c.V[j * k + j] >= 0 ? Math.sqrt(c.V[j * k + j]) : NaN));
 }

@@ -18,6 +18,8 @@
  * dispersion φ = Σ u²/μ̂ /(n − k). They are the OLS sandwich formulas on the weighted design √μ̂·X with
  * the Pearson residuals u/√μ̂, so the same code computes them.
  */
+import { mapped } from "./blocks";
+import { expOf } from "./kernel";
 import { scaled, workingUnit } from "./scaling";
 import { leastSquares, type QrFit } from "./leastSquares";
 import { normalQuantile, normalTwoSided } from "./distributions";
@@ -129,8 +131,8 @@ export class PpmlFit extends Model {
     this.checkExistence(positive);
     const X = this.design;
     const k = this.k;
-    let mu: Float64Array = Float64Array.from(y, (v) => v + 0.1);
-    let eta: Float64Array = Float64Array.from(mu, Math.log);
+    let mu: Float64Array = mapped(y, (v) => v + 0.1);
+    let eta: Float64Array = mapped(mu, Math.log);
     let beta: Float64Array = new Float64Array(k);
     let dev = deviance(y, mu, wts);
     let iter = 0;
@@ -148,13 +150,13 @@ export class PpmlFit extends Model {
       lastQr = leastSquares(A, z).qr ?? explain();
       let next: Float64Array = Float64Array.from(lastQr.coef);
       let newEta = linear(X, next);
-      let newMu = Float64Array.from(newEta, Math.exp);
+      let newMu = expOf(newEta);
       let newDev = deviance(y, newMu, wts);
       // Step halving when the deviance is not finite or rises (as R's glm.fit does).
       for (let h = 0; h < 40 && iter > 1 && (!Number.isFinite(newDev) || newDev > dev * (1 + 1e-12)); h++) {
-        next = Float64Array.from(next, (v, j) => (v + beta[j]) / 2);
+        next = mapped(next, (v, j) => (v + beta[j]) / 2);
         newEta = linear(X, next);
-        newMu = Float64Array.from(newEta, Math.exp);
+        newMu = expOf(newEta);
         newDev = deviance(y, newMu, wts);
       }
       if (!Number.isFinite(newDev)) break;
@@ -176,8 +178,8 @@ export class PpmlFit extends Model {
     if (unit !== 1) {
       const shift = Math.log(unit);
       beta[0] += shift;
-      eta = Float64Array.from(eta, (v) => v + shift);
-      mu = Float64Array.from(mu, (v) => v * unit);
+      eta = mapped(eta, (v) => v + shift);
+      mu = mapped(mu, (v) => v * unit);
       dev *= unit;
     }
     const yOwn = data.y;
@@ -193,7 +195,7 @@ export class PpmlFit extends Model {
     }
     const q = leastSquares(A, z).qr ?? explain();
     // √w·(y − μ̂)/√μ̂: with the columns √(wμ̂)·x the score of a row is w·x(y − μ̂)
-    const pearson = Float64Array.from(yOwn, (v, i) => ((wts ? Math.sqrt(wts[i]) : 1) * (v - mu[i])) / Math.sqrt(mu[i]));
+    const pearson = mapped(yOwn, (v, i) => ((wts ? Math.sqrt(wts[i]) : 1) * (v - mu[i])) / Math.sqrt(mu[i]));
     let ssr = 0;
     for (let i = 0; i < n; i++) ssr += pearson[i] * pearson[i];
     this.qr = q;
@@ -215,7 +217,7 @@ export class PpmlFit extends Model {
     const n = this.n;
     const rowsPos: number[] = [];
     for (let i = 0; i < n; i++) if (y[i] > 0) rowsPos.push(i);
-    const sub = (c: Float64Array) => Float64Array.from(rowsPos, (i) => c[i]);
+    const sub = (c: Float64Array) => mapped(rowsPos, (i) => c[i]);
     let cols = this.design.map((c, j) => ({ j, c }));
     // Check dependencies on the y > 0 rows one at a time, dropping each dependent column found.
     for (let guard = 0; guard < this.k; guard++) {
@@ -230,7 +232,7 @@ export class PpmlFit extends Model {
       else {
         const fitPos = leastSquares(basis.map((e) => sub(e.c)), sub(target.c)).qr;
         if (!fitPos) return; // the basis is itself dependent: the fit's own rank check names it
-        zAll = Float64Array.from(target.c, (v, i) => {
+        zAll = mapped(target.c, (v, i) => {
           let s = v;
           basis.forEach((e, m) => (s -= fitPos.coef[m] * e.c[i]));
           return s;
@@ -267,7 +269,7 @@ export class PpmlFit extends Model {
 
   /** y − μ̂ in y's units. */
   get resid(): Float64Array {
-    return Float64Array.from(this.data.y, (v, i) => v - this.mu[i]);
+    return mapped(this.data.y, (v, i) => v - this.mu[i]);
   }
 
   get fitted(): Float64Array {

@@ -19,6 +19,8 @@
  * weights ω̂) and u = √w·(y − μ̂)/√μ̂, so the score is w·x̃_i(y_i − μ̂_i) and the bread (X̃ᵀŴX̃)⁻¹;
  * panelHc's HC1 is then HC0·n/(n − k − a) = n/(n − p_all).
  */
+import { mapped } from "./blocks";
+import { expOf } from "./kernel";
 import { leastSquares, type QrFit } from "./leastSquares";
 import { count, fail, unavailable } from "./problems";
 import { Absorber, collinearWithEffects, dropSingletons, keepRows, recode, type FixedEffectKey } from "./absorb";
@@ -137,8 +139,8 @@ export function ppmlAbsorbed(input: PpmlAbsorbedInput): PpmlAbsorbedFit {
   let ybar = 0;
   for (let i = 0; i < n; i++) ybar += y[i];
   ybar /= n;
-  let mu: Float64Array = Float64Array.from(y, (v) => (v + ybar) / 2);
-  let eta: Float64Array = Float64Array.from(mu, Math.log);
+  let mu: Float64Array = mapped(y, (v) => (v + ybar) / 2);
+  let eta: Float64Array = mapped(mu, Math.log);
   let dev = deviance(y, mu, w);
   let beta: Float64Array = new Float64Array(k);
   let converged = false;
@@ -170,19 +172,19 @@ export function ppmlAbsorbed(input: PpmlAbsorbedInput): PpmlAbsorbedFit {
     }
     const ls = leastSquares(Xs, zt);
     const qr = ls.qr ?? collinear(ls.dependent as { column: number; on: number[] });
-    const etaNew = Float64Array.from(z, (v, i) => v - qr.resid[i] / Math.sqrt(omega[i]));
+    const etaNew = mapped(z, (v, i) => v - qr.resid[i] / Math.sqrt(omega[i]));
     return { coef: Float64Array.from(qr.coef), etaNew, qr, Xs, ab };
   };
   for (iter = 1; iter <= maxIter; iter++) {
     const s = step();
     let etaNew = s.etaNew;
     let next = s.coef;
-    let muNew = Float64Array.from(etaNew, Math.exp);
+    let muNew = expOf(etaNew);
     let devNew = deviance(y, muNew, w);
     for (let h = 0; h < 40 && iter > 1 && (!Number.isFinite(devNew) || devNew > dev * (1 + 1e-12)); h++) {
-      etaNew = Float64Array.from(etaNew, (v, i) => (v + eta[i]) / 2);
-      next = Float64Array.from(next, (v, j) => (v + beta[j]) / 2);
-      muNew = Float64Array.from(etaNew, Math.exp);
+      etaNew = mapped(etaNew, (v, i) => (v + eta[i]) / 2);
+      next = mapped(next, (v, j) => (v + beta[j]) / 2);
+      muNew = expOf(etaNew);
       devNew = deviance(y, muNew, w);
     }
     if (!Number.isFinite(devNew)) break;
@@ -203,7 +205,7 @@ export function ppmlAbsorbed(input: PpmlAbsorbedInput): PpmlAbsorbedFit {
   }
   // The factor at the converged μ̂ carries the covariances.
   const fin = step();
-  const u = Float64Array.from(y, (v, i) => (w ? Math.sqrt(w[i]) : 1) * (v - mu[i]) / Math.sqrt(mu[i]));
+  const u = mapped(y, (v, i) => (w ? Math.sqrt(w[i]) : 1) * (v - mu[i]) / Math.sqrt(mu[i]));
   const scores: ScoreModel = {
     X: fin.Xs,
     qr: fin.qr,

@@ -12,6 +12,7 @@
  * covariance) times the factor; interval=individual gives exp(x'b ± t·sqrt(s² + x'Vx)) with the
  * classical V, an interval for one new observation that needs no factor since exp is increasing.
  */
+import { expOf } from "./kernel";
 import { unavailable } from "./problems";
 import type { OlsFit } from "./fit";
 import type { AnyFit } from "./model";
@@ -21,16 +22,16 @@ import type { Retransform } from "./options";
 /** Duan's smearing factor: mean of exp(e_i), summed with compensation. */
 export function duanFactor(fit: OlsFit): number {
   return fit.memo("duan", () => {
-    const e = fit.resid;
+    const ex = expOf(fit.resid);
     let s = 0;
     let c = 0;
-    for (let i = 0; i < e.length; i++) {
-      const v = Math.exp(e[i]);
+    for (let i = 0; i < ex.length; i++) {
+      const v = ex[i];
       const t = s + v;
       c += Math.abs(s) >= v ? s - t + v : v - t + s;
       s = t;
     }
-    return (s + c) / e.length;
+    return (s + c) / ex.length;
   });
 }
 

@@ -26,7 +26,7 @@ import type { ColumnChunk, PartOp } from "./columnFitTypes";
 import { applyQ, augmentedResidual, blockedQr, twoProdErr, type BlockReflectors } from "./leastSquares";
 import { BLOCK, LEVERAGE_TOL } from "./covariance";
 import { RowList, type RowRuns } from "./problems";
-import { dotBlock } from "./blocks";
+import { dotBlock, mapped } from "./blocks";
 import { jsKernel, kernel } from "./kernel";
 
 /** Codes of ColumnChunk.issues and of a part's rows: usable, blank, not a number. */
@@ -1042,7 +1042,7 @@ function auxDesign(state: PartState, op: PartOp): PartAnswer {
     if (u === 1) cols.push(c);
     else {
       const inv = 1 / u;
-      cols.push(Float64Array.from(c, (v) => v * inv));
+      cols.push(mapped(c, (v) => v * inv));
     }
   });
   const inv = 1 / eUnit;

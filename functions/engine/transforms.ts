@@ -11,6 +11,7 @@
  * Sources: Bellemare and Wichman (2020), "Elasticities and the inverse hyperbolic sine
  * transformation", Oxford Bulletin of Economics and Statistics 82(1), for asinh.
  */
+import { mapped } from "./blocks";
 import { kernel, type ColumnFacts } from "./kernel";
 import { cut, fail, count, quote, rowsPhrase, nearest, RowList } from "./problems";
 import type { Options } from "./options";
@@ -435,7 +436,7 @@ export function prepare(raw: RawData, o: Options, logs: Prelogged | null = null)
       if (kept.length === 0) {
         fail(`every value of ${roles.absorb.map((c) => c.name).join(" and ")} occurs in only one row${info.exponentialMean ? " or has y = 0 in every row" : ""}, so fixed effects leave nothing to estimate from: absorb a coarser column, or leave absorb= out`);
       }
-      const pick = (c: Float64Array) => Float64Array.from(kept, (i) => c[i]);
+      const pick = (c: Float64Array) => mapped(kept, (i) => c[i]);
       y = pick(y);
       x = x.map(pick);
       rowNumbers = Int32Array.from(kept, (i) => rowNumbers[i]);
@@ -551,7 +552,7 @@ function indicators(codes: Int32Array, labels: string[], name: string): { name: 
     }
   }
   if (order.length < 2) fail(`${name} has one value (${labels[order[0]]}) in the rows used, so factors= makes no indicator term: remove it from factors=`);
-  return order.slice(1).map((c) => ({ name: `${name}: ${labels[c]}`, column: Float64Array.from(codes, (v) => (v === c ? 1 : 0)) }));
+  return order.slice(1).map((c) => ({ name: `${name}: ${labels[c]}`, column: mapped(codes, (v) => (v === c ? 1 : 0)) }));
 }
 
 /** Transforms col in place; for the log, returns the logged column's facts (taken in the same read). */

@@ -16,6 +16,7 @@
  * and order-dependent errors (HAC) would mix times. Rows with a blank period are left out and
  * counted, as with every role column.
  */
+import { mapped } from "./blocks";
 import { leastSquares, type Dependency } from "./leastSquares";
 import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, leastSquaresInput, originalUnits } from "./covariance";
 import { ElxProblem, count, fail } from "./problems";
@@ -255,7 +256,7 @@ export interface WindowFit {
 export function fitRows(X: Float64Array[], y: Float64Array, names: string[], rowNumbers: Int32Array, rows: Int32Array, covariance: BreakCovariance, lags: number | null = null): WindowFit {
   const m = rows.length;
   const contiguous = m > 0 && rows[m - 1] - rows[0] === m - 1;
-  const pick = (c: Float64Array) => (contiguous ? c.slice(rows[0], rows[0] + m) : Float64Array.from(rows, (i) => c[i]));
+  const pick = (c: Float64Array) => (contiguous ? c.slice(rows[0], rows[0] + m) : mapped(rows, (i) => c[i]));
   const Xw = X.map(pick);
   const yw = pick(y);
   const rn = contiguous ? rowNumbers.slice(rows[0], rows[0] + m) : Int32Array.from(rows, (i) => rowNumbers[i]);

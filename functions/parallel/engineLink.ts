@@ -3,6 +3,7 @@
  * state, the append step, the driver, the in-thread executor and the cancellation error. The worker
  * (fitWorker.ts), the pool and the session import these names from here only.
  */
+import { mapped } from "../engine/blocks";
 import type { PartOp } from "../engine/columnFitTypes";
 import { applyPartOp, appendOp, type PartAnswer, type PartState } from "../engine/splitLeastSquares";
 import { columnFit, localExecutor } from "../engine/columnFit";
@@ -34,8 +35,8 @@ export async function warmUpParts(): Promise<void> {
   };
   const spec = { yName: "y", xNames: Array.from({ length: WARM_COLUMNS }, (_, j) => `x${j + 1}`), form: "log-log" as const, zeros: "stop" as const, se: "HC3" as const, level: 0.95, intercept: true };
   for (let f = 0; f < WARM_FITS; f++) {
-    const x = Array.from({ length: WARM_COLUMNS }, () => Float64Array.from({ length: WARM_ROWS }, next));
-    const y = Float64Array.from({ length: WARM_ROWS }, (_, i) => x[0][i] * next());
+    const x = Array.from({ length: WARM_COLUMNS }, () => mapped({ length: WARM_ROWS }, next));
+    const y = mapped({ length: WARM_ROWS }, (_, i) => x[0][i] * next());
     const exec = localExecutor(1);
     await exec.send(0, appendOp({ rowStart: 0, y, x }));
     await columnFit(exec, spec);
