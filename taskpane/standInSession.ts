@@ -5,6 +5,7 @@
  * doubles only (never as cells) and answers exactly as ELX.FIT would for the same rows and options.
  * The pane uses it when the worker session is not in the build (see taskpane/bigSession.ts).
  */
+import { mappedInt } from "../functions/engine/blocks";
 import type { BigFitSession, BigOutcome } from "../functions/parallel/types";
 import type { ColumnChunk, ColumnFitResult, ColumnFitSpec } from "../functions/engine/columnFitTypes";
 import { parseOptions } from "../functions/engine/options";
@@ -63,7 +64,7 @@ export function openStandInSession(rows: number, note = ""): BigFitSession {
         if (cancelled) return stopped;
       }
       const raw: RawData = {
-        yName: spec.yName, xNames: [...spec.xNames], columnNames: [...spec.xNames], regressorOf: Int32Array.from(spec.xNames, (_, j) => j),
+        yName: spec.yName, xNames: [...spec.xNames], columnNames: [...spec.xNames], regressorOf: mappedInt(spec.xNames, (_, j) => j),
         roles: { absorb: [], factors: [], cluster: [], panel: null, time: null, weights: null, weightsName: null, instruments: [], instrumentNames: [] },
         leftOutWeight: 0, leftOutWeightRows: new RowList(), y, x, rowNumbers, leftOutBlank: total - n, leftOutBlankRows: blankRows,
         numericTextRows: new RowList(), numericTextExample: null, unnamed: [], trailingBlank: 0, firstRow: 1, dataRows: total, yHeader: true,

@@ -23,7 +23,7 @@
  * Absorbed parameters a: one key G; two keys G_A + G_B − C, with C the connected components of the
  * bipartite graph whose edges are the rows (Abowd, Creecy and Kramarz 2002), found by union–find.
  */
-import { mapped } from "./blocks";
+import { mapped, mappedInt } from "./blocks";
 import { count, fail } from "./problems";
 import { leastSquares, type QrFit } from "./leastSquares";
 
@@ -74,7 +74,7 @@ export function timeCodes(values: ArrayLike<string | number>): { codes: Int32Arr
   }
   if (numeric) distinct.sort((a, b) => (a as number) - (b as number));
   const map = new Map<string | number, number>(distinct.map((v, t) => [v, t]));
-  return { codes: Int32Array.from({ length: values.length }, (_, i) => map.get(values[i]) as number), levels: distinct.length };
+  return { codes: mappedInt({ length: values.length }, (_, i) => map.get(values[i]) as number), levels: distinct.length };
 }
 
 /** Whether a column after absorbing is too short (relative to before) to be anything but rounding. */
@@ -624,7 +624,7 @@ export function recoverEffects(keys: { codes: Int32Array; levels: number }[], d:
     const rb = find(a.levels + b.codes[i]);
     if (ra !== rb) parent[ra] = rb;
   }
-  const ca = Int32Array.from({ length: a.levels }, (_, g) => find(g));
-  const cb = Int32Array.from({ length: b.levels }, (_, t) => find(a.levels + t));
+  const ca = mappedInt({ length: a.levels }, (_, g) => find(g));
+  const cb = mappedInt({ length: b.levels }, (_, t) => find(a.levels + t));
   return { effects: [alpha, gamma], components: [ca, cb] };
 }

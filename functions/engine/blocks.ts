@@ -42,3 +42,11 @@ export function mapped<T>(src: ArrayLike<T>, f: (v: T, i: number) => number): Fl
   for (let i = 0; i < n; i++) out[i] = f(src[i], i);
   return out;
 }
+
+/** out[i] = f(src[i], i) as an Int32Array: Int32Array.from with a map function is as slow as Float64Array.from's (see mapped). */
+export function mappedInt<T>(src: ArrayLike<T>, f: (v: T, i: number) => number): Int32Array {
+  const n = src.length;
+  const out = new Int32Array(n);
+  for (let i = 0; i < n; i++) out[i] = f(src[i], i);
+  return out;
+}

@@ -20,7 +20,7 @@
  * coefficient, so its error and p are those of the change itself; a change in the elasticity then
  * reflects a change in the coefficient, not a move along the curve.
  */
-import { mapped } from "./blocks";
+import { mapped, mappedInt } from "./blocks";
 import { readYX, type Origin } from "./intake";
 import { prepare } from "./transforms";
 import { estimatorOf, seTypeOf } from "./estimators";
@@ -138,7 +138,7 @@ export function breakTest(y: unknown, x: unknown, at: unknown, o: Options, yOrig
     X: fit.design.map(pick),
     y: pick(data.y),
     names,
-    rowNumbers: order ? Int32Array.from(order, (i) => data.rowNumbers[i]) : data.rowNumbers,
+    rowNumbers: order ? mappedInt(order, (i) => data.rowNumbers[i]) : data.rowNumbers,
   };
   // With a known break, a search that cannot run (too few rows for the trim) keeps its reason in
   // its own row and the known-break tests still come.

@@ -6,7 +6,7 @@
  * group's numbers equal ELX.ELASTICITIES on its rows. A group that cannot be fitted keeps its reason
  * and the others still come. Rows with a blank or error key are left out and counted (groupKey).
  */
-import { mapped } from "./blocks";
+import { mapped, mappedInt } from "./blocks";
 import { readYX, asMatrix, keyText, subsetRoles, type Origin, type RawData } from "./intake";
 import { prepare } from "./transforms";
 import { estimatorOf } from "./estimators";
@@ -83,7 +83,7 @@ export function fitGroups(keys: unknown, y: unknown, x: unknown, o: Options, yOr
       ...raw,
       y: pick(raw.y),
       x: raw.x.map(pick),
-      rowNumbers: Int32Array.from(idx, (w) => raw.rowNumbers[w]),
+      rowNumbers: mappedInt(idx, (w) => raw.rowNumbers[w]),
       roles: subsetRoles(raw.roles, idx),
       leftOutBlank: leftOut.get(key) as number,
       leftOutBlankRows: new RowList(),

@@ -13,7 +13,7 @@
  *
  * Cost: one pass over the cells. Columns are Float64Array (column-major), compacted in place.
  */
-import { mapped } from "./blocks";
+import { mapped, mappedInt } from "./blocks";
 import { cut, fail, count, quote, rowsPhrase, nearest, RowList } from "./problems";
 
 /** Why a cell cannot be used. 0 = usable. */
@@ -554,7 +554,7 @@ export function subsetKeys(col: KeyColumn, kept: ArrayLike<number>): KeyColumn {
       labels.push(col.labels[c]);
     }
   }
-  const codes = Int32Array.from({ length: kept.length }, (_, w) => remap[col.codes[kept[w]]]);
+  const codes = mappedInt({ length: kept.length }, (_, w) => remap[col.codes[kept[w]]]);
   return { name: col.name, codes, labels, numericOrder: col.numericOrder };
 }
 

@@ -28,7 +28,7 @@
  *
  * Cost: one QR of Z per endogenous regressor and one QR of X̂, each about 2·n·k² flops.
  */
-import { mapped } from "./blocks";
+import { mapped, mappedInt } from "./blocks";
 import { leastSquares, type Dependency, type QrFit } from "./leastSquares";
 import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, originalUnits, type CovarianceInput } from "./covariance";
 import { clusterCovariance } from "./panelCovariance";
@@ -231,7 +231,7 @@ export class IvFit {
     const n = d.y.length;
     this.n = n;
     this.intercept = d.intercept;
-    this.rowNumbers = d.rowNumbers ?? Int32Array.from({ length: n }, (_, i) => i + 1);
+    this.rowNumbers = d.rowNumbers ?? mappedInt({ length: n }, (_, i) => i + 1);
     const sw = d.weights ? mapped(d.weights, Math.sqrt) : null;
     this.sqrtWeights = sw;
     const off = d.intercept ? 1 : 0;

@@ -11,7 +11,7 @@
  * Sources: Bellemare and Wichman (2020), "Elasticities and the inverse hyperbolic sine
  * transformation", Oxford Bulletin of Economics and Statistics 82(1), for asinh.
  */
-import { mapped } from "./blocks";
+import { mapped, mappedInt } from "./blocks";
 import { kernel, type ColumnFacts } from "./kernel";
 import { cut, fail, count, quote, rowsPhrase, nearest, RowList } from "./problems";
 import type { Options } from "./options";
@@ -439,7 +439,7 @@ export function prepare(raw: RawData, o: Options, logs: Prelogged | null = null)
       const pick = (c: Float64Array) => mapped(kept, (i) => c[i]);
       y = pick(y);
       x = x.map(pick);
-      rowNumbers = Int32Array.from(kept, (i) => rowNumbers[i]);
+      rowNumbers = mappedInt(kept, (i) => rowNumbers[i]);
       roles = { ...subsetRoles({ ...roles, instruments: [] }, kept), instruments: x.slice(kx), instrumentNames: roles.instrumentNames };
     }
   }

@@ -16,7 +16,7 @@
  * and order-dependent errors (HAC) would mix times. Rows with a blank period are left out and
  * counted, as with every role column.
  */
-import { mapped } from "./blocks";
+import { mapped, mappedInt } from "./blocks";
 import { leastSquares, type Dependency } from "./leastSquares";
 import { classicalCovariance, defaultLags, hacCovariance, hcCovariance, leastSquaresInput, originalUnits } from "./covariance";
 import { ElxProblem, count, fail } from "./problems";
@@ -259,7 +259,7 @@ export function fitRows(X: Float64Array[], y: Float64Array, names: string[], row
   const pick = (c: Float64Array) => (contiguous ? c.slice(rows[0], rows[0] + m) : mapped(rows, (i) => c[i]));
   const Xw = X.map(pick);
   const yw = pick(y);
-  const rn = contiguous ? rowNumbers.slice(rows[0], rows[0] + m) : Int32Array.from(rows, (i) => rowNumbers[i]);
+  const rn = contiguous ? rowNumbers.slice(rows[0], rows[0] + m) : mappedInt(rows, (i) => rowNumbers[i]);
   const k = X.length;
   if (m <= k) fail(`${count(m, "usable row")} in this window ${m === 1 ? "is" : "are"} too few for ${k} coefficients (the intercept counts): need at least ${k + 1}`);
   const ls = leastSquares(Xw, yw);
