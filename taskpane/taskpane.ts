@@ -1041,7 +1041,10 @@ export class Pane {
   private room(eng: EngineApi, id: string, opts: string, standIn: { y: unknown[][]; x: unknown[][] }, extra: unknown[] = []): { height: number; width: number; now: Outcome<unknown> } {
     const shape = (r: Outcome<unknown>) => {
       const t = r.ok ? table2d(r.value) : null;
-      return t ? { height: t.length, width: Math.max(...t.map((row) => row.length)) } : null;
+      if (!t) return null;
+      let width = 0; // a loop: spreading a long table's rows into Math.max's arguments overflows the stack
+      for (const row of t) if (row.length > width) width = row.length;
+      return { height: t.length, width };
     };
     const now = this.callFor(eng, id, opts, extra);
     const shapes = [shape(now), shape(this.callFor(eng, id, opts.replace(/zeros=\w+/, "zeros=drop"), extra)), shape(eng.call(id, standIn.y, standIn.x, ...extra, opts, null))].filter((v): v is { height: number; width: number } => v !== null);

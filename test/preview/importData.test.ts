@@ -84,6 +84,17 @@ describe("reading a pasted block or a CSV file", () => {
     expect(read("\uFEFFy,x\r\n1,2\r\n").rows).toEqual([["y", "x"], [1, 2]]);
   });
 
+  it("reads a file of 300,000 rows (past what spreading the rows into arguments would take) and refuses one past 2,000,000 cells by its size", () => {
+    const lines = ["Units,Price"];
+    for (let i = 0; i < 300000; i++) lines.push(`${100 + (i % 50)},${(2 + (i % 7) / 10).toFixed(1)}`);
+    const r = read(lines.join("\n"));
+    expect(r.rows.length).toBe(300001);
+    expect(r.rows[300000]).toEqual([149, 2]); // row 299,999: 100 + 49, 2 + 0/10
+    const wide = ["a,b,c,d,e,f,g"];
+    for (let i = 0; i < 300000; i++) wide.push("1,2,3,4,5,6,7");
+    expect(parseDelimited(wide.join("\n"), { source: "The file big.csv" })).toEqual({ error: "The file big.csv has 300,001 rows × 7 columns, more than the 2,000,000 cells this preview takes; keep the columns you need" });
+  });
+
   it("refuses empty text", () => {
     expect(parseDelimited("\n \n", { source: "The pasted block" })).toEqual({ error: "The pasted block holds no values" });
   });
