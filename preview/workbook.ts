@@ -59,9 +59,13 @@ export interface SheetBase {
   row(r: number): CellValue[];
 }
 
-/** Rows of the computed sheet computed at a time (about 2 ms of work), and how many such slices are kept. */
+/**
+ * Rows of the computed sheet computed at a time (about 2 ms of work), and how many such slices are
+ * kept: a block of the pane's reader is at most 100,000 cells, so 100 slices hold every row of one
+ * block while y and then x are read over it (at 11 columns, 8.8 MB outside the JS heap).
+ */
 export const SLICE_ROWS = 1000;
-const MAX_SLICES = 24;
+const MAX_SLICES = 100;
 
 /** Base values of rows top..bottom: numbers row-major in `numbers`, other values by index in `other`. */
 export interface BaseSlice {
