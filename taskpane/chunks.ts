@@ -23,7 +23,7 @@
  * checksum (a change elsewhere is then not seen: the pane says so).
  */
 import { columnCount, formatAddress, rowCount, type Address } from "./address";
-import type { Host } from "./host";
+import type { Host, Outcome } from "./host";
 import type { ColumnChunk } from "../functions/engine/columnFitTypes";
 import { defaultXName, headerNames, isHeaderRow, uniqueNames } from "../functions/engine/intake";
 
@@ -138,6 +138,29 @@ function checksum(blocks: unknown[][][]): number {
     h = (Math.imul(h, 31) + 7) | 0;
   }
   return h;
+}
+
+/**
+ * How many rows of a one-column area hold a value (not blank), and the last of them, read in blocks
+ * of rowsPerBlock(1) rows: what lies below a values block's ranges after rows were added.
+ */
+export async function countFilled(host: Host, column: Address): Promise<Outcome<{ rows: number; last: number }>> {
+  const step = rowsPerBlock(1);
+  let rows = 0;
+  let last = 0;
+  for (let top = column.top; top <= column.bottom; top += step) {
+    const part = { ...column, right: column.left, top, bottom: Math.min(column.bottom, top + step - 1) };
+    const read = await host.readValues([part]);
+    if (!read.ok) return read;
+    read.value[0].forEach((line, i) => {
+      const v = line[0];
+      if (v !== "" && v !== null && v !== undefined) {
+        rows++;
+        last = part.top + i;
+      }
+    });
+  }
+  return { ok: true, value: { rows, last } };
 }
 
 /**

@@ -193,30 +193,6 @@ export class Host {
     });
   }
 
-  /**
-   * How many rows of `column` (one column) hold a value, read in blocks of at most BLOCK_ROWS rows
-   * from its top (at most `limit` rows): what lies below a values block's ranges after rows were added.
-   */
-  async countFilled(column: Address, limit = 1_000_000): Promise<Outcome<{ rows: number; last: number }>> {
-    const BLOCK_ROWS = 100_000;
-    let rows = 0;
-    let last = 0;
-    const bottom = Math.min(column.bottom, column.top + limit - 1);
-    for (let top = column.top; top <= bottom; top += BLOCK_ROWS) {
-      const part = { ...column, right: column.left, top, bottom: Math.min(bottom, top + BLOCK_ROWS - 1) };
-      const read = await this.readValues([part]);
-      if (!read.ok) return read;
-      read.value[0].forEach((line, i) => {
-        const v = line[0];
-        if (v !== "" && v !== null && v !== undefined) {
-          rows++;
-          last = part.top + i;
-        }
-      });
-    }
-    return { ok: true, value: { rows, last } };
-  }
-
   /** The values only (no value types, no formulas) of several areas, in one request. */
   readValues(areas: Address[]): Promise<Outcome<unknown[][][]>> {
     return this.guard(areas.map((a) => formatAddress(a)).join(" and "), async (context) => {

@@ -16,7 +16,7 @@ import { CAUTIONS, formAssumptions, smearingNote, testReadings } from "./assumpt
 import { buildBlock, type BlockItem } from "./formulas";
 import { detectRoles, instrumentParagraph, keySentence, optionSafe, roleAssumptions, roleColumns, roleOptions, type ColumnRoles, type RoleChoices } from "./roles";
 import { formatAddress, parseAddress, rowCount, columnCount, type Address } from "./address";
-import { needsChunks, planChunks, readChunks, type BigPlan, type ColumnTally } from "./chunks";
+import { countFilled, needsChunks, planChunks, readChunks, type BigPlan, type ColumnTally } from "./chunks";
 import { bigRefusal, REGISTRY_KEY, resultsParts, specOf, specOptions, stamp, talliesHtml, valuesBlock, type BigChoices, type BigRun, type ValuesEntry } from "./bigResults";
 import { openSession } from "./bigSession";
 import type { ColumnFitResult, ColumnFitSpec } from "../functions/engine/columnFitTypes";
@@ -778,7 +778,7 @@ export class Pane {
       await this.host.setSetting(REGISTRY_KEY, this.valuesEntries().map((e) => (e.id === id ? updated : e)));
       this.renderBlocks();
       // rows added below the block's ranges are not taken in silently: say how many there are
-      const below = my.value.used.bottom > yArea.bottom ? await this.host.countFilled({ ...yArea, top: yArea.bottom + 1, bottom: my.value.used.bottom }) : null;
+      const below = my.value.used.bottom > yArea.bottom ? await countFilled(this.host, { ...yArea, top: yArea.bottom + 1, bottom: my.value.used.bottom }) : null;
       const grown = below && below.ok && below.value.rows > 0
         ? ` <span id="elx-refresh-below">${esc(fmt(below.value.rows))} ${below.value.rows === 1 ? "row" : "rows"} below ${esc(formatAddress(yArea))} ${below.value.rows === 1 ? "holds" : "hold"} a value in y's column (down to row ${esc(fmt(below.value.last))}) and ${below.value.rows === 1 ? "was" : "were"} not read: the refresh reads the block's own ranges. To take ${below.value.rows === 1 ? "it" : "them"} in, give y and x ranges that reach row ${esc(fmt(below.value.last))}, check them and write a new block.</span>`
         : "";

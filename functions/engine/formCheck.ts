@@ -420,9 +420,7 @@ export function levelOnLogFactor(logFit: OlsFit, exactFit: number): LevelModel |
   const scaledY = yUnit === 1 ? y : scaled(y, yUnit);
   const r = new Float64Array(n);
   const { c, rss } = projectOnFactor(logFit.design, logFit.qr, scaledY, r);
-  let yy = 0;
-  for (let i = 0; i < n; i++) yy += scaledY[i] * scaledY[i];
-  if (!(rss > exactFit * yy)) return null;
+  if (!(rss > exactFit * kernel().sumSquares(scaledY))) return null;
   const fitted = new Float64Array(n);
   for (let i = 0; i < n; i++) fitted[i] = y[i] - r[i] * yUnit;
   const qr: QrFit = { ...logFit.qr, coef: mapped(c, (v, j) => v / logFit.qr.scale[j]), resid: r, rss, refined: false };

@@ -274,8 +274,8 @@ export function readGrid(v: unknown): CellGrid | null {
 }
 
 /**
- * readGrid's loop for a single column (y, or a lone x): the same result, without the inner loop
- * (measured 27 → 15 ms for 10^6 rows; it also keeps the loop for wider rows to wide rows alone).
+ * readGrid's loop for a single column (y, or a lone x): the same result without the inner loop
+ * (measured 27 → 15 ms for 10^6 rows), and readGrid's own loop then sees wider rows only.
  */
 function readGridColumn(v: unknown[], columns: Float64Array[], odd: Uint8Array): CellGrid | null {
   const h = v.length;
@@ -554,13 +554,13 @@ export function subsetKeys(col: KeyColumn, kept: ArrayLike<number>): KeyColumn {
       labels.push(col.labels[c]);
     }
   }
-  const codes = mappedInt({ length: kept.length }, (_, w) => remap[col.codes[kept[w]]]);
+  const codes = mappedInt(kept, (i) => remap[col.codes[i]]);
   return { name: col.name, codes, labels, numericOrder: col.numericOrder };
 }
 
 /** The role columns restricted to some of their rows (kept[w] = old row index). */
 export function subsetRoles(r: RoleColumns, kept: ArrayLike<number>): RoleColumns {
-  const pick = (c: Float64Array) => mapped({ length: kept.length }, (_, w) => c[kept[w]]);
+  const pick = (c: Float64Array) => mapped(kept, (i) => c[i]);
   const keys = (c: KeyColumn) => subsetKeys(c, kept);
   return {
     absorb: r.absorb.map(keys),

@@ -405,48 +405,43 @@ function wasmKernelOf(x: KernelExports): Kernel {
     }
     return acc;
   };
-  /** The log of each chunk in the module; with facts, max|log x| and Σ(log x)² of the logged chunks into S. */
-  const logChunks = (col: Float64Array, facts: boolean): Float64Array => {
-    const A = chunkA();
-    const S = new Float64Array(x.memory.buffer, pS, 2);
-    S[0] = 0;
-    S[1] = 0;
-    for (let s = 0; s < col.length; s += CHUNK) {
-      const m = Math.min(CHUNK, col.length - s);
-      const part = col.subarray(s, s + m);
-      A.set(part);
-      if (m & 1) A[m] = 1; // the odd chunk's second lane: a value the log takes
-      if (x.logColumn(pA, (m + 1) & ~1) === 0) part.set(A.subarray(0, m));
-      else {
-        jsColumnOps.logInPlace(part); // a value that is not a positive normal double: Math.log's answer (−Infinity, NaN…)
-        A.set(part);
-      }
-      if (facts) x.factsColumn(pA, m, pS);
-    }
-    return Float64Array.from(S);
-  };
   /**
-   * out = f(src) chunk by chunk in the module (run returns how many pairs it could not take); a chunk
-   * the module refuses (a value outside its ordinary domain) is computed by the JavaScript twin.
+   * out = f(src) chunk by chunk in the module: each chunk copied into A (an odd one padded with `pad`,
+   * a value inside the operation's domain), run over it (it returns how many pairs it could not
+   * take), copied out; a chunk the module refuses is computed by the JavaScript twin. `after(m)` then
+   * sees the chunk's results in A.
    */
-  const mapChunks = (src: Float64Array, out: Float64Array, run: (m: number) => number, twin: (part: Float64Array, dst: Float64Array) => void): void => {
+  const mapChunks = (src: Float64Array, out: Float64Array, pad: number, run: (m: number) => number, twin: (part: Float64Array, dst: Float64Array) => void, after: ((m: number) => void) | null = null): void => {
     const A = chunkA();
     for (let s = 0; s < src.length; s += CHUNK) {
       const m = Math.min(CHUNK, src.length - s);
       const part = src.subarray(s, s + m);
       A.set(part);
-      if (m & 1) A[m] = 0; // the odd chunk's second lane: a value inside the domain
+      if (m & 1) A[m] = pad;
       const dst = out.subarray(s, s + m);
       if (run((m + 1) & ~1) === 0) dst.set(A.subarray(0, m));
-      else twin(part, dst);
+      else {
+        twin(part, dst);
+        if (after) A.set(dst);
+      }
+      if (after) after(m);
     }
+  };
+  /** The log of each chunk in the module; with facts, max|log x| and Σ(log x)² of the logged chunks into S. */
+  const logChunks = (col: Float64Array, facts: boolean): Float64Array => {
+    const S = new Float64Array(x.memory.buffer, pS, 2);
+    S[0] = 0;
+    S[1] = 0;
+    // a chunk with a value that is not a positive normal double takes Math.log's answers (−Infinity, NaN…)
+    mapChunks(col, col, 1, (m) => x.logColumn(pA, m), (_, dst) => jsColumnOps.logInPlace(dst), facts ? (m) => x.factsColumn(pA, m, pS) : null);
+    return Float64Array.from(S);
   };
   const columnOps: ColumnOps = {
     expScaled(src: Float64Array, sc: number, out: Float64Array): void {
-      mapChunks(src, out, (m) => x.expColumn(pA, m, sc), (part, dst) => jsColumnOps.expScaled(part, sc, dst));
+      mapChunks(src, out, 0, (m) => x.expColumn(pA, m, sc), (part, dst) => jsColumnOps.expScaled(part, sc, dst));
     },
     expm1Scaled(src: Float64Array, lambda: number, c: number, out: Float64Array): void {
-      mapChunks(src, out, (m) => x.expm1Column(pA, m, lambda, c), (part, dst) => jsColumnOps.expm1Scaled(part, lambda, c, dst));
+      mapChunks(src, out, 0, (m) => x.expm1Column(pA, m, lambda, c), (part, dst) => jsColumnOps.expm1Scaled(part, lambda, c, dst));
     },
     logInPlace(col: Float64Array): void {
       logChunks(col, false);

@@ -13,7 +13,6 @@
  */
 import { kernel } from "./kernel";
 
-
 /** Below and above these magnitudes a column is rescaled before squares are taken. */
 export const WINDOW_LOW = Math.pow(2, -100);
 export const WINDOW_HIGH = Math.pow(2, 100);

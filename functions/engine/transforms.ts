@@ -467,10 +467,9 @@ export function prepare(raw: RawData, o: Options, logs: Prelogged | null = null)
     y = own(y, raw.y);
     if (yTransform.kind !== "level") yFacts = transformInPlace(y, yTransform);
   }
-  const facts: (ColumnFacts | null)[] = [];
+  const facts: (ColumnFacts | null)[] = x.map(() => null);
   x = x.map((c, j) => {
     const lx = logs && c === allX[j] && xT[j].kind === "log" ? logs.x[j] ?? null : null;
-    facts.push(null);
     if (lx) return lx;
     const out = own(c, allX[j]);
     if (xT[j].kind !== "level") facts[j] = transformInPlace(out, xT[j]);
