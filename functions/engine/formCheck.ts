@@ -115,7 +115,8 @@ export function boxCoxProfileOf(X: Float64Array[], qr: QrFit, intercept: boolean
     }
     return stepExp;
   };
-  // w′(λ) from u and w(λ) (without its constant c[0]), plus the constant's derivative c[1]
+  // w′(λ) from u and w(λ) (without its constant c[0]), plus the constant's derivative c[1]; the kernel's
+  // slope holds the same arithmetic for a block of the sides workspace
   const derivative = (lambda: number, c: [number, number], w: Float64Array, D: Float64Array, start: number, m: number) => {
     const small = Math.abs(lambda) < 1e-12;
     for (let i = 0; i < m; i++) {
@@ -145,10 +146,13 @@ export function boxCoxProfileOf(X: Float64Array[], qr: QrFit, intercept: boolean
       got = { ll: value(ls.qr.rss), slope: (-n * cross) / ls.qr.rss };
     } else {
       // the transform is computed once, in the first pass, and kept for the second
-      const out = rssOnFactor(X, qr, 1, (start, m, V, pass, D) => {
+      const out = rssOnFactor(X, qr, 1, (start, m, V, pass, D, ws) => {
         if (pass === 0) transform(l, c[0], yt, start, start, m);
         V.set(yt.subarray(start, start + m));
-        if (D) derivative(l, c, yt, D, start, m);
+        if (D) {
+          ws.aux(u, null, start, m);
+          ws.slope(0, m, l, c[0], c[1]);
+        }
       }, true);
       got = { ll: value(out.rss[0]), slope: (-n * (out.cross as Float64Array)[0]) / out.rss[0] };
     }
@@ -170,41 +174,20 @@ export function boxCoxProfileOf(X: Float64Array[], qr: QrFit, intercept: boolean
     // powers up to 10 (the grid); λ off the lattice or beyond it (±5) take their own expm1
     const lattice = mult.map((m, i) => Math.abs(m) <= 10 && Math.abs(m * SCREEN_STEP - todo[i]) <= 1e-12 * (1 + Math.abs(todo[i])));
     const onLattice = lattice.some((x) => x);
-    const top = Math.max(0, ...mult.filter((_, i) => lattice[i]).map(Math.abs));
-    const up = new Float64Array(top + 1);
-    const down = new Float64Array(top + 1);
     const inv = todo.map((l) => 1 / l);
-    const vv = new Float64Array(L);
     const E = onLattice ? stepPowers() : null;
-    const out = roughRssOnFactor(X, qr, L, (start, m, V) => {
+    const out = roughRssOnFactor(X, qr, L, (start, m, V, ws) => {
       // λ off the lattice: their own transform, as computed λ have it
       for (let l = 0; l < L; l++) if (!lattice[l]) transform(todo[l], c[l], V, l * SIDE_ROWS, start, m);
       if (!E) return;
-      for (let i = 0; i < m; i++) {
-        const v = u[start + i];
-        const a = E[start + i];
-        const b = 1 / a;
-        up[0] = 1;
-        down[0] = 1;
-        for (let p = 1; p <= top; p++) {
-          up[p] = up[p - 1] * a;
-          down[p] = down[p - 1] * b;
-        }
-        for (let l = 0; l < L; l++) {
-          if (!lattice[l]) continue;
-          const q = mult[l];
-          const w = q === 0 ? v : ((q > 0 ? up[q] : down[-q]) - 1) * inv[l];
-          const val = w + c[l];
-          V[l * SIDE_ROWS + i] = val;
-          vv[l] += val * val;
-        }
-      }
+      ws.aux(u, E, start, m);
+      for (let l = 0; l < L; l++) if (lattice[l]) ws.lattice(l, m, mult[l], inv[l], c[l]);
     });
     todo.forEach((l, i) => {
       let bound = out.bound[i];
       if (lattice[i] && mult[i] !== 0) {
         // ‖δw‖ ≤ (|m| + 2)ε(√n + |λ|·‖w‖)/|λ|; the RSS moves by at most 2‖δw‖√RSS + ‖δw‖²
-        const dw = ((Math.abs(mult[i]) + 2) * Number.EPSILON * (Math.sqrt(n) + Math.abs(l) * Math.sqrt(vv[i]))) / Math.abs(l);
+        const dw = ((Math.abs(mult[i]) + 2) * Number.EPSILON * (Math.sqrt(n) + Math.abs(l) * Math.sqrt(out.vv[i]))) / Math.abs(l);
         const rss = out.rss[i];
         bound += rss > 0 ? (2 * dw) / Math.sqrt(rss) + (dw * dw) / rss : Infinity;
       }

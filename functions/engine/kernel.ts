@@ -112,6 +112,19 @@ export interface SidesWorkspace {
   selfDot(l: number, m: number): number;
   /** Σ_{i<m} V_l[i]·D_l[i] (dotBlock's order). */
   crossDot(l: number, m: number): number;
+  /** The block's rows start … start+m−1 of u, and of a where given, for lattice and slope. */
+  aux(u: Float64Array, a: Float64Array | null, start: number, m: number): void;
+  /**
+   * V_l[i] = (b^|q| − 1)·inv + c with b = a_i for q > 0 and b = 1/a_i for q < 0, the power a chain of
+   * |q| products from 1; V_l[i] = u_i + c for q = 0 (u and a from aux).
+   */
+  lattice(l: number, m: number, q: number, inv: number, c: number): void;
+  /**
+   * D_l[i] = the Box–Cox transform's derivative in λ from u_i (aux) and w_i = V_l[i] (constant c0
+   * included): u²(1/2 + x(1/3 + x(1/8 + x/30))) with x = λu where |x| < 1e-4 or |λ| < 1e-12, else
+   * (u(λ(w − c0) + 1) − (w − c0))/λ; plus c1.
+   */
+  slope(l: number, m: number, lambda: number, c0: number, c1: number): void;
 }
 
 export interface Kernel extends ColumnOps {
@@ -234,6 +247,9 @@ export const jsKernel: Kernel = {
     const D = new Float64Array(L * rows);
     let X: Float64Array[] = [];
     let at = 0;
+    let U: Float64Array = new Float64Array(0);
+    let A: Float64Array | null = null;
+    let from = 0;
     return {
       V,
       D,
@@ -255,6 +271,36 @@ export const jsKernel: Kernel = {
       },
       selfDot: (l: number, m: number) => dotBlock(V, l * rows, V, l * rows, m),
       crossDot: (l: number, m: number) => dotBlock(V, l * rows, D, l * rows, m),
+      aux(u: Float64Array, a: Float64Array | null, start: number): void {
+        U = u;
+        A = a;
+        from = start;
+      },
+      lattice(l: number, m: number, q: number, inv: number, c: number): void {
+        const ov = l * rows;
+        if (q === 0) {
+          for (let i = 0; i < m; i++) V[ov + i] = U[from + i] + c;
+          return;
+        }
+        const times = Math.abs(q);
+        const E = A as Float64Array;
+        for (let i = 0; i < m; i++) {
+          const b = q > 0 ? E[from + i] : 1 / E[from + i];
+          let p = b;
+          for (let t = 1; t < times; t++) p *= b;
+          V[ov + i] = (p - 1) * inv + c;
+        }
+      },
+      slope(l: number, m: number, lambda: number, c0: number, c1: number): void {
+        const ov = l * rows;
+        const small = Math.abs(lambda) < 1e-12;
+        for (let i = 0; i < m; i++) {
+          const v = U[from + i];
+          const x = lambda * v;
+          const wi = V[ov + i] - c0;
+          D[ov + i] = (small || Math.abs(x) < 1e-4 ? v * v * (0.5 + x * (1 / 3 + x * (1 / 8 + x / 30))) : (v * (lambda * wi + 1) - wi) / lambda) + c1;
+        }
+      },
     };
   },
   qrWorkspace(k: number, rows: number): QrWorkspace {
@@ -358,6 +404,8 @@ interface KernelExports {
   meatBlock(pZ: number, pw: number, pWs: number, pM: number, pS: number, k: number, m: number, stride: number): void;
   leverageBlock(pZ: number, ph: number, k: number, m: number, stride: number): void;
   axpyColumn(pa: number, pb: number, m: number, w: number): void;
+  latticeSide(pv: number, pu: number, pa: number, m: number, q: number, inv: number, c: number): void;
+  slopeSide(pd: number, pw: number, pu: number, m: number, lambda: number, c0: number, c1: number): void;
   maxAbsColumn(p: number, m: number, m0: number): number;
   scanColumn(p: number, m: number, pS: number): number;
   logColumn(p: number, m: number): number;
@@ -511,10 +559,10 @@ function wasmKernelOf(x: KernelExports): Kernel {
       // the block's columns `stride` doubles apart: 8 more than the rows, so that they do not all fall
       // on the same sets of the processor's cache (2,048 doubles apart they would, 16 KB each)
       const stride = rows + 8;
-      const r = regions([k * stride, L * rows, L * rows, k, k]);
+      const r = regions([k * stride, L * rows, L * rows, k, k, rows, rows]);
       if (!r) return jsKernel.sidesWorkspace(k, L, rows);
-      const [Xb, V, D, g, b] = r.views;
-      const [pX, pV, pD, pg, pb] = r.offsets;
+      const [Xb, V, D, g, b, Ub, Ab] = r.views;
+      const [pX, pV, pD, pg, pb, pU, pA] = r.offsets;
       return {
         V,
         D,
@@ -541,6 +589,19 @@ function wasmKernelOf(x: KernelExports): Kernel {
         crossDot(l: number, m: number): number {
           r.check();
           return x.dotColumn(pV + 8 * l * rows, pD + 8 * l * rows, m);
+        },
+        aux(u: Float64Array, a: Float64Array | null, start: number, m: number): void {
+          r.check();
+          Ub.set(u.subarray(start, start + m));
+          if (a) Ab.set(a.subarray(start, start + m));
+        },
+        lattice(l: number, m: number, q: number, inv: number, c: number): void {
+          r.check();
+          x.latticeSide(pV + 8 * l * rows, pU, pA, m, q, inv, c);
+        },
+        slope(l: number, m: number, lambda: number, c0: number, c1: number): void {
+          r.check();
+          x.slopeSide(pD + 8 * l * rows, pV + 8 * l * rows, pU, m, lambda, c0, c1);
         },
       };
     },

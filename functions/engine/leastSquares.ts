@@ -545,7 +545,7 @@ function sidesFirstPass(ws: SidesWorkspace, X: Float64Array[], n: number, L: num
  */
 export function rssOnFactor(
   X: Float64Array[], qr: QrFit, L: number,
-  fill: (start: number, m: number, V: Float64Array, pass: 0 | 1, D: Float64Array | null) => void,
+  fill: (start: number, m: number, V: Float64Array, pass: 0 | 1, D: Float64Array | null, ws: SidesWorkspace) => void,
   cross = false,
 ): { rss: Float64Array; cross: Float64Array | null } {
   const k = X.length;
@@ -555,7 +555,7 @@ export function rssOnFactor(
   const ws = kernel().sidesWorkspace(k, L, B);
   const { V } = ws;
   const D = cross ? ws.D : null;
-  const { g, vv } = sidesFirstPass(ws, X, n, L, (start, m) => fill(start, m, V, 0, null));
+  const { g, vv } = sidesFirstPass(ws, X, n, L, (start, m) => fill(start, m, V, 0, null, ws));
   const c = new Float64Array(k);
   const coefs = new Float64Array(L * k);
   const correct = new Uint8Array(L);
@@ -577,7 +577,7 @@ export function rssOnFactor(
   const t = new Float64Array(L * k);
   for (let start = 0; start < n; start += B) {
     const m = Math.min(B, n - start);
-    fill(start, m, V, 1, D);
+    fill(start, m, V, 1, D, ws);
     ws.load(X, start, m);
     for (let l = 0; l < L; l++) {
       ws.subtract(l, m, coefs, l * k);
@@ -602,13 +602,14 @@ export function rssOnFactor(
 /**
  * One pass for L sides (generated as in rssOnFactor): the RSS by the normal-equations formula
  * ‖v‖² − ‖R⁻ᵀX_sᵀv‖², with a bound of its relative error, 10ε(√n + kκ²)·‖v‖²/RSS (Infinity where the
- * formula cancels away, RSS below 1e-6·‖v‖²). For screening many sides (a grid), never for a reported value.
+ * formula cancels away, RSS below 1e-6·‖v‖²), and ‖v‖² itself. For screening many sides (a grid), never
+ * for a reported value.
  */
-export function roughRssOnFactor(X: Float64Array[], qr: QrFit, L: number, fill: (start: number, m: number, V: Float64Array) => void): { rss: Float64Array; bound: Float64Array } {
+export function roughRssOnFactor(X: Float64Array[], qr: QrFit, L: number, fill: (start: number, m: number, V: Float64Array, ws: SidesWorkspace) => void): { rss: Float64Array; bound: Float64Array; vv: Float64Array } {
   const k = X.length;
   const n = qr.n;
   const ws = kernel().sidesWorkspace(k, L, SIDE_ROWS);
-  const { g, vv } = sidesFirstPass(ws, X, n, L, (start, m) => fill(start, m, ws.V));
+  const { g, vv } = sidesFirstPass(ws, X, n, L, (start, m) => fill(start, m, ws.V, ws));
   const rss = new Float64Array(L);
   const bound = new Float64Array(L);
   const c = new Float64Array(k);
@@ -622,5 +623,5 @@ export function roughRssOnFactor(X: Float64Array[], qr: QrFit, L: number, fill: 
     const kappa = qr.condition;
     bound[l] = rss[l] > 1e-6 * vv[l] ? (10 * Number.EPSILON * (Math.sqrt(n) + k * kappa * kappa) * vv[l]) / rss[l] : Infinity;
   }
-  return { rss, bound };
+  return { rss, bound, vv };
 }

@@ -418,6 +418,66 @@ describe("sides on a block of columns (rssOnFactor's passes): WebAssembly equals
   }
 });
 
+describe("Box–Cox sides (the screened lattice and the transform's slope): WebAssembly equals JavaScript bitwise", () => {
+  const r = rng(91);
+  const step = 0.2;
+  // u spans the series' switch at |λu| = 1e-4 and large |λu|; a = e^{step·u}, as formCheck.ts makes it
+  const make = (n: number) => {
+    const u = Float64Array.from({ length: n }, (_, i) => (i % 5 === 0 ? (r() - 0.5) * 1e-3 : (r() - 0.5) * 6));
+    const a = Float64Array.from(u, (v) => Math.exp(step * v));
+    return { u, a };
+  };
+  for (const [m, start] of [[1, 0], [2, 3], [255, 5], [256, 0], [131, 40]]) {
+    it(`${m} rows from row ${start}: every power −10 … 10, and the slope at λ from −2 to 2 (0 included)`, () => {
+      const { u, a } = make(start + m + 8);
+      const qs = Array.from({ length: 21 }, (_, i) => i - 10);
+      const lambdas = [-2, -0.6, -1e-13, 0, 1e-5, 0.4, 1, 2];
+      const run = (K: Kernel) => {
+        const ws = K.sidesWorkspace(3, qs.length, BLOCK_ROWS);
+        ws.aux(u, a, start, m);
+        qs.forEach((q, l) => ws.lattice(l, m, q, q === 0 ? 0 : 1 / (q * step), 0.125 * l));
+        const V = ws.V.slice();
+        const D: number[] = [];
+        lambdas.forEach((lam, l) => {
+          ws.slope(l, m, lam, 0.125 * l, -0.5);
+          D.push(...ws.D.subarray(l * BLOCK_ROWS, l * BLOCK_ROWS + m));
+        });
+        return { V, D };
+      };
+      const js = run(jsKernel);
+      const w = run(wasm);
+      expect({ V: bitDiff(js.V, w.V), D: bitDiff(js.D, w.D) }).toEqual({ V: [], D: [] });
+    });
+  }
+
+  it("the lattice is expm1(qhu)/(qh) + c within (|q| + 2)ε, and the slope is d/dλ of expm1(λu)/λ (JavaScript kernel)", () => {
+    // references: the identity e^{qhu} = (e^{hu})^q, and w′(λ) = (u·e^{λu} − w)/λ with w = expm1(λu)/λ
+    // (its Taylor series u²/2 + λu³/3 + λ²u⁴/8 + … where λu is small), computed by Math.expm1 and Math.exp
+    const m = 200;
+    const { u, a } = make(m);
+    const ws = jsKernel.sidesWorkspace(1, 1, BLOCK_ROWS);
+    ws.aux(u, a, 0, m);
+    for (const q of [-10, -3, -1, 1, 4, 10]) {
+      const lam = q * step;
+      ws.lattice(0, m, q, 1 / lam, 0.5);
+      for (let i = 0; i < m; i++) {
+        const want = Math.expm1(lam * u[i]) / lam;
+        const scale = Math.abs(want) + Math.exp(lam * u[i]) / Math.abs(lam);
+        expect(Math.abs(ws.V[i] - 0.5 - want)).toBeLessThanOrEqual((Math.abs(q) + 4) * Number.EPSILON * scale);
+      }
+    }
+    for (const lam of [-1.5, -0.2, 0, 0.3, 2]) {
+      for (let i = 0; i < m; i++) ws.V[i] = lam === 0 ? u[i] : Math.expm1(lam * u[i]) / lam;
+      ws.slope(0, m, lam, 0, 0);
+      for (let i = 0; i < m; i++) {
+        const v = u[i];
+        const want = Math.abs(lam * v) < 1e-3 ? v * v * (1 / 2 + (lam * v) / 3 + (lam * lam * v * v) / 8) : (v * Math.exp(lam * v) - Math.expm1(lam * v) / lam) / lam;
+        expect(Math.abs(ws.D[i] - want)).toBeLessThanOrEqual(1e-9 * (1 + Math.abs(want)));
+      }
+    }
+  });
+});
+
 describe("rows of Q, leverages and the sandwich's meat: WebAssembly equals JavaScript bitwise", () => {
   const rows = 256;
   /** A well-conditioned upper-triangular R (row-major k×k) with both signs on the diagonal. */

@@ -674,3 +674,83 @@ export function hcWeightsBlock(pe: usize, ph: usize, pw: usize, m: i32, kind: i3
   }
   return ones;
 }
+
+// ---------------------------------------------------------------------------------------------
+// Box–Cox sides (formCheck.ts's profile): the screened lattice and the transform's derivative
+// ---------------------------------------------------------------------------------------------
+
+/**
+ * v[i] = (b^|q| − 1)·inv + c for i < m, with b = a[i] when q > 0 and b = 1/a[i] when q < 0, the power
+ * by multiplying 1 by b |q| times in turn (the JavaScript loop's chain); v[i] = u[i] + c when q = 0.
+ */
+export function latticeSide(pv: usize, pu: usize, pa: usize, m: i32, q: i32, inv: f64, c: f64): void {
+  const C = f64x2.splat(c);
+  let i = 0;
+  if (q == 0) {
+    for (; i + 1 < m; i += 2) {
+      const o = <usize>i << 3;
+      v128.store(pv + o, f64x2.add(v128.load(pu + o), C));
+    }
+    if (i < m) {
+      const o = <usize>i << 3;
+      store<f64>(pv + o, load<f64>(pu + o) + c);
+    }
+    return;
+  }
+  const ONE = f64x2.splat(1);
+  const INV = f64x2.splat(inv);
+  const times = q > 0 ? q : -q;
+  for (; i + 1 < m; i += 2) {
+    const o = <usize>i << 3;
+    const a = v128.load(pa + o);
+    const b = q > 0 ? a : f64x2.div(ONE, a);
+    let p = b;
+    for (let t = 1; t < times; t++) p = f64x2.mul(p, b);
+    v128.store(pv + o, f64x2.add(f64x2.mul(f64x2.sub(p, ONE), INV), C));
+  }
+  if (i < m) {
+    const o = <usize>i << 3;
+    const a = load<f64>(pa + o);
+    const b = q > 0 ? a : 1 / a;
+    let p = b;
+    for (let t = 1; t < times; t++) p *= b;
+    store<f64>(pv + o, (p - 1) * inv + c);
+  }
+}
+
+/**
+ * d[i] = w′(λ) at row i from u[i] and w[i] (the transform with its constant c0): the series
+ * u²(1/2 + x(1/3 + x(1/8 + x/30))), x = λu, where |x| < 1e-4 or λ is (nearly) zero, else
+ * (u(λ(w − c0) + 1) − (w − c0))/λ; plus c1. For i < m.
+ */
+export function slopeSide(pd: usize, pw: usize, pu: usize, m: i32, lambda: f64, c0: f64, c1: f64): void {
+  const small = abs<f64>(lambda) < 1e-12;
+  const L = f64x2.splat(lambda);
+  const C0 = f64x2.splat(c0);
+  const C1 = f64x2.splat(c1);
+  const ONE = f64x2.splat(1);
+  const HALF = f64x2.splat(0.5);
+  const THIRD = f64x2.splat(1.0 / 3.0);
+  const EIGHTH = f64x2.splat(1.0 / 8.0);
+  const THIRTY = f64x2.splat(30);
+  const NEAR = f64x2.splat(1e-4);
+  const ALL = i64x2.splat(small ? -1 : 0);
+  let i = 0;
+  for (; i + 1 < m; i += 2) {
+    const o = <usize>i << 3;
+    const v = v128.load(pu + o);
+    const x = f64x2.mul(L, v);
+    const wi = f64x2.sub(v128.load(pw + o), C0);
+    const series = f64x2.mul(f64x2.mul(v, v), f64x2.add(HALF, f64x2.mul(x, f64x2.add(THIRD, f64x2.mul(x, f64x2.add(EIGHTH, f64x2.div(x, THIRTY)))))));
+    const exact = f64x2.div(f64x2.sub(f64x2.mul(v, f64x2.add(f64x2.mul(L, wi), ONE)), wi), L);
+    const near = v128.or(ALL, f64x2.lt(f64x2.abs(x), NEAR));
+    v128.store(pd + o, f64x2.add(v128.bitselect(series, exact, near), C1));
+  }
+  if (i < m) {
+    const o = <usize>i << 3;
+    const v = load<f64>(pu + o);
+    const x = lambda * v;
+    const wi = load<f64>(pw + o) - c0;
+    store<f64>(pd + o, (small || abs<f64>(x) < 1e-4 ? v * v * (0.5 + x * (1.0 / 3.0 + x * (1.0 / 8.0 + x / 30))) : (v * (lambda * wi + 1) - wi) / lambda) + c1);
+  }
+}
