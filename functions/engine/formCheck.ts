@@ -203,15 +203,19 @@ export function boxCoxProfileOf(X: Float64Array[], qr: QrFit, intercept: boolean
   const seed = (l: number, r: Float64Array, unit: number): void => {
     if (known.has(l)) return;
     const c = shift(l);
-    transform(l, c[0], yt, 0, 0, n);
-    const dt = new Float64Array(n);
-    derivative(l, c, yt, dt, 0, n);
+    // block by block in the sides workspace: w(λ) into V, its derivative into D, then V ← r·unit
+    const ws = kernel().sidesWorkspace(1, 1, SIDE_ROWS);
+    const { V } = ws;
     let rss = 0;
     let cross = 0;
-    for (let i = 0; i < n; i++) {
-      const e = r[i] * unit;
-      rss += e * e;
-      cross += e * dt[i];
+    for (let start = 0; start < n; start += SIDE_ROWS) {
+      const m = Math.min(SIDE_ROWS, n - start);
+      transform(l, c[0], V, 0, start, m);
+      ws.aux(u, null, start, m);
+      ws.slope(0, m, l, c[0], c[1]);
+      for (let i = 0; i < m; i++) V[i] = r[start + i] * unit;
+      rss += ws.selfDot(0, m);
+      cross += ws.crossDot(0, m);
     }
     known.set(l, { ll: value(rss), slope: (-n * cross) / rss });
   };
