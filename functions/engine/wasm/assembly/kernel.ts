@@ -560,6 +560,18 @@ function expm1Pair(o: usize, lambda: f64, c0: f64): i32 {
   const hx = i64x2.shr_u(ax, 32);
   const reduced = i64x2.gt_s(hx, i64x2.splat(0x3fd62e42));
   const tiny = i64x2.gt_s(i64x2.splat(0x3c900000), hx);
+  if (!v128.any_true(v128.or(reduced, tiny))) {
+    // both lanes in fdlibm's first form (2^−54 ≤ |x| ≤ ln2/2, no reduction): only its steps, the
+    // same operations as the selection below would keep
+    const hfx0 = f64x2.mul(half, x);
+    const hxs0 = f64x2.mul(x, hfx0);
+    const r10 = f64x2.add(one, f64x2.mul(hxs0, f64x2.add(f64x2.splat(Q1), f64x2.mul(hxs0, f64x2.add(f64x2.splat(Q2), f64x2.mul(hxs0, f64x2.add(f64x2.splat(Q3), f64x2.mul(hxs0, f64x2.add(f64x2.splat(Q4), f64x2.mul(hxs0, f64x2.splat(Q5)))))))))));
+    const t0 = f64x2.sub(f64x2.splat(3.0), f64x2.mul(r10, hfx0));
+    const e0 = f64x2.mul(hxs0, f64x2.div(f64x2.sub(r10, t0), f64x2.sub(f64x2.splat(6.0), f64x2.mul(x, t0))));
+    const first = f64x2.sub(x, f64x2.sub(f64x2.mul(x, e0), hxs0));
+    v128.store(o, f64x2.add(f64x2.div(first, f64x2.splat(lambda)), f64x2.splat(c0)));
+    return 0;
+  }
   const dk = reductionK(x, hx);
   const hi = f64x2.sub(x, f64x2.mul(dk, f64x2.splat(LN2_HI)));
   const lo = f64x2.mul(dk, f64x2.splat(LN2_LO));
