@@ -449,7 +449,7 @@ function addedVariableT(X: Float64Array[], z0: Float64Array, y0: Float64Array, s
  * RᵀR = X_sᵀX_s up to rounding of the order of ε‖X_s‖². Null when fewer than half the rows are kept or
  * they leave the design ill-conditioned (or singular): then they are factorised anew.
  */
-function keptRowsFactor(X: Float64Array[], qr: QrFit, keep: number[]): QrFit | null {
+function keptRowsFactor(X: Float64Array[], qr: QrFit, keep: Int32Array): QrFit | null {
   // RᵀR − X_DᵀX_D cancels when most rows go: then the rows kept are factorised anew
   if (keep.length < qr.n / 2) return null;
   const k = qr.k;
@@ -508,8 +508,7 @@ function addedVariableOnFactor(X: Float64Array[], qr: QrFit, e: Float64Array, z0
   if (df <= 0) return null;
   const zt = new Float64Array(n);
   const zz = projectOnFactor(X, qr, z, zt).rss;
-  let z2 = 0;
-  for (let i = 0; i < n; i++) z2 += z[i] * z[i];
+  const z2 = kernel().sumSquares(z);
   if (!(zz > 1e4 * RANK_TOL * RANK_TOL * z2)) return null;
   let ze = 0;
   for (let i = 0; i < n; i++) ze += zt[i] * e[i];
@@ -523,19 +522,24 @@ function addedVariableOnFactor(X: Float64Array[], qr: QrFit, e: Float64Array, z0
     }
     v = ss / df / zz;
   } else {
-    const h = se === "HC2" || se === "HC3" ? leverages() : null;
-    const hc1 = n / df;
+    // one loop per kind, so that the loop holds no test of the kind
     let s = 0;
-    for (let i = 0; i < n; i++) {
-      const u = e[i] - b * zt[i];
-      let w = u * u;
-      if (se === "HC1") w *= hc1;
-      else if (h) {
+    if (se === "HC0" || se === "HC1") {
+      const f = se === "HC1" ? n / df : 1; // u²·1 is u² exactly
+      for (let i = 0; i < n; i++) {
+        const u = e[i] - b * zt[i];
+        s += zt[i] * zt[i] * (u * u * f);
+      }
+    } else {
+      const h = leverages();
+      const hc3 = se === "HC3";
+      for (let i = 0; i < n; i++) {
+        const u = e[i] - b * zt[i];
         const hi = h[i] + (zt[i] * zt[i]) / zz;
         if (hi >= 1 - LEVERAGE_TOL) return null;
-        w = se === "HC2" ? w / (1 - hi) : w / ((1 - hi) * (1 - hi));
+        const w = u * u;
+        s += zt[i] * zt[i] * (hc3 ? w / ((1 - hi) * (1 - hi)) : w / (1 - hi));
       }
-      s += zt[i] * zt[i] * w;
     }
     v = s / (zz * zz);
   }
@@ -556,17 +560,19 @@ export function peTest(logFit: OlsFit, levelFit: LevelModel, se: SeType, lags: n
   // Both fits have the same design (and so the same leverages); computed once, when needed.
   const leverages = () => logFit.memo("designLeverages", () => leveragesOf(logFit.design, logFit.qr));
   // Level model + log(ŷ_levels) − ŷ_logs, on rows with ŷ_levels > 0.
-  const keep: number[] = [];
-  for (let i = 0; i < n; i++) if (fl[i] > 0) keep.push(i);
+  let kept = 0;
+  for (let i = 0; i < n; i++) if (fl[i] > 0) kept++;
   let a: { t: number; df: number } | null = null;
   const k = kernel();
-  if (keep.length === n) {
-    const zLevels = Float64Array.from(fl);
+  if (kept === n) {
+    const zLevels = fl.slice();
     k.logInPlace(zLevels);
     for (let i = 0; i < n; i++) zLevels[i] -= fg[i];
     a = addedVariableOnFit(levelFit, zLevels, se, leverages) ?? addedVariableT(levelFit.design, zLevels, levelFit.data.y, se, lags);
   } else {
-    const m = keep.length;
+    const m = kept;
+    const keep = new Int32Array(m);
+    for (let i = 0, j = 0; i < n; i++) if (fl[i] > 0) keep[j++] = i;
     const sub = (c: Float64Array) => {
       const out = new Float64Array(m);
       for (let i = 0; i < m; i++) out[i] = c[keep[i]];
@@ -590,7 +596,7 @@ export function peTest(logFit: OlsFit, levelFit: LevelModel, se: SeType, lags: n
   for (let i = 0; i < n; i++) zLogs[i] = fl[i] - zLogs[i];
   const b = addedVariableOnFit(logFit, zLogs, se, leverages) ?? addedVariableT(logFit.design, zLogs, logFit.data.y, se, lags);
   return {
-    levels: { t: a.t, p: studentTwoSided(a.t, a.df), leftOut: n - keep.length },
+    levels: { t: a.t, p: studentTwoSided(a.t, a.df), leftOut: n - kept },
     logs: { t: b.t, p: studentTwoSided(b.t, b.df), leftOut: 0 },
   };
 }
