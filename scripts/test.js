@@ -4,11 +4,13 @@
  * ELX_JEST_JSON names a file, Jest's JSON report goes there (CI prints the "N passed, N failed" line
  * from it).
  *
- * Without arguments, two Jest runs side by side, one core each: the browser suites (test/browser/)
- * one after another, and every other suite. Two headless browsers at once on two cores leave a page's
- * main thread waiting for a core for 50 to 230 ms at a time (measured: long tasks in 4 of 14 runs of
- * the 200,000-row pane fit beside another browser suite, none in 10 beside the Node suites), and the
- * browser tests measure that thread's longest task. The other run's output is printed when it ends.
+ * Without arguments, first the big-range browser suite alone (test/browser/bigRange.test.ts), which
+ * measures the page's main thread's longest task during the 200,000-row pane fit: that bound is about
+ * the page's own work, and with a test run beside it on two cores the page's thread waits for a core
+ * (measured: tasks of 50 to 230 ms in 4 of 14 runs beside another browser suite; a 79 ms task beside
+ * the Node suites on a busy day, none when alone). Then two Jest runs side by side, one core each: the
+ * other browser suites one after another, and every other suite; the second run's output is printed
+ * when it ends.
  * With arguments (`npm test -- test/engine`), one Jest run with them, as Jest's own command line.
  */
 const { spawn, spawnSync } = require("child_process");
@@ -55,10 +57,12 @@ function jestRun(name, args, live) {
 }
 
 (async () => {
-  const browser = jestRun("browser", ["--runInBand", "--testPathPatterns", "test/browser/"], true);
+  const BIG = "test/browser/bigRange.test.ts";
+  const alone = await jestRun("big range", ["--runInBand", "--testPathPatterns", BIG], true);
+  const browser = jestRun("browser", ["--runInBand", "--testPathPatterns", "test/browser/", "--testPathIgnorePatterns", BIG], true);
   const rest = jestRun("rest", ["--runInBand", "--testPathIgnorePatterns", "test/browser/"], false);
-  const runs = await Promise.all([browser, rest]);
-  const other = runs[1];
+  const runs = [alone, ...(await Promise.all([browser, rest]))];
+  const other = runs[2];
   process.stderr.write(`\n── the other Jest run (every suite outside test/browser/) ──\n${other.output}`);
   const sum = (k) => runs.reduce((s, r) => s + (r.json ? r.json[k] || 0 : 0), 0);
   const missing = runs.filter((r) => !r.json).map((r) => r.name);
@@ -75,7 +79,7 @@ function jestRun(name, args, live) {
   };
   const failedSuites = merged.testResults.filter((t) => t.status === "failed").map((t) => path.relative(root, t.name));
   process.stderr.write(
-    `\nBoth runs: ${merged.numPassedTestSuites} of ${merged.numTotalTestSuites} suites passed; ${merged.numPassedTests} tests passed, ${merged.numFailedTests} failed` +
+    `\nAll three runs: ${merged.numPassedTestSuites} of ${merged.numTotalTestSuites} suites passed; ${merged.numPassedTests} tests passed, ${merged.numFailedTests} failed` +
       (merged.numPendingTests ? `, ${merged.numPendingTests} skipped` : "") +
       (failedSuites.length ? `\nFailed suites: ${failedSuites.join(", ")}` : "") +
       (missing.length ? `\nNo report from the ${missing.join(" and ")} run (it stopped before writing one).` : "") +
