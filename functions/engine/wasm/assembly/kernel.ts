@@ -544,6 +544,19 @@ export function expColumn(p: usize, m: i32, sc: f64): i32 {
 }
 
 /**
+ * fdlibm expm1's correction term e of the reduced argument xr, with hxs = xr·(xr/2): r1 = 1 + hxs·Q(hxs),
+ * t = 3 − r1·xr/2, e = hxs·((r1 − t)/(6 − xr·t)).
+ */
+// @ts-ignore: decorator
+@inline
+function expm1E(xr: v128, hxs: v128): v128 {
+  const hfx = f64x2.mul(f64x2.splat(0.5), xr);
+  const r1 = f64x2.add(f64x2.splat(1.0), f64x2.mul(hxs, f64x2.add(f64x2.splat(Q1), f64x2.mul(hxs, f64x2.add(f64x2.splat(Q2), f64x2.mul(hxs, f64x2.add(f64x2.splat(Q3), f64x2.mul(hxs, f64x2.add(f64x2.splat(Q4), f64x2.mul(hxs, f64x2.splat(Q5)))))))))));
+  const t = f64x2.sub(f64x2.splat(3.0), f64x2.mul(r1, hfx));
+  return f64x2.mul(hxs, f64x2.div(f64x2.sub(r1, t), f64x2.sub(f64x2.splat(6.0), f64x2.mul(xr, t))));
+}
+
+/**
  * expm1(λ·a)/λ + c0 of the pair at o by fdlibm's expm1, stored back; 1 when a lane of λ·a is outside
  * (−38, 38) or NaN (where fdlibm returns −1, overflows or passes specials through). The reduction as
  * expPair's, with its correction c = (hi − x) − lo; fdlibm's seven forms by k (0, −1, 1, ≤ −2, 2 … 19,
@@ -563,11 +576,8 @@ function expm1Pair(o: usize, lambda: f64, c0: f64): i32 {
   if (!v128.any_true(v128.or(reduced, tiny))) {
     // both lanes in fdlibm's first form (2^−54 ≤ |x| ≤ ln2/2, no reduction): only its steps, the
     // same operations as the selection below would keep
-    const hfx0 = f64x2.mul(half, x);
-    const hxs0 = f64x2.mul(x, hfx0);
-    const r10 = f64x2.add(one, f64x2.mul(hxs0, f64x2.add(f64x2.splat(Q1), f64x2.mul(hxs0, f64x2.add(f64x2.splat(Q2), f64x2.mul(hxs0, f64x2.add(f64x2.splat(Q3), f64x2.mul(hxs0, f64x2.add(f64x2.splat(Q4), f64x2.mul(hxs0, f64x2.splat(Q5)))))))))));
-    const t0 = f64x2.sub(f64x2.splat(3.0), f64x2.mul(r10, hfx0));
-    const e0 = f64x2.mul(hxs0, f64x2.div(f64x2.sub(r10, t0), f64x2.sub(f64x2.splat(6.0), f64x2.mul(x, t0))));
+    const hxs0 = f64x2.mul(x, f64x2.mul(half, x));
+    const e0 = expm1E(x, hxs0);
     const first = f64x2.sub(x, f64x2.sub(f64x2.mul(x, e0), hxs0));
     v128.store(o, f64x2.add(f64x2.div(first, f64x2.splat(lambda)), f64x2.splat(c0)));
     return 0;
@@ -577,11 +587,8 @@ function expm1Pair(o: usize, lambda: f64, c0: f64): i32 {
   const lo = f64x2.mul(dk, f64x2.splat(LN2_LO));
   const xr = v128.bitselect(f64x2.sub(hi, lo), x, reduced);
   const cc = v128.and(f64x2.sub(f64x2.sub(hi, xr), lo), reduced);
-  const hfx = f64x2.mul(half, xr);
-  const hxs = f64x2.mul(xr, hfx);
-  const r1 = f64x2.add(one, f64x2.mul(hxs, f64x2.add(f64x2.splat(Q1), f64x2.mul(hxs, f64x2.add(f64x2.splat(Q2), f64x2.mul(hxs, f64x2.add(f64x2.splat(Q3), f64x2.mul(hxs, f64x2.add(f64x2.splat(Q4), f64x2.mul(hxs, f64x2.splat(Q5)))))))))));
-  const t = f64x2.sub(f64x2.splat(3.0), f64x2.mul(r1, hfx));
-  const e = f64x2.mul(hxs, f64x2.div(f64x2.sub(r1, t), f64x2.sub(f64x2.splat(6.0), f64x2.mul(xr, t))));
+  const hxs = f64x2.mul(xr, f64x2.mul(half, xr));
+  const e = expm1E(xr, hxs);
   const res0 = f64x2.sub(xr, f64x2.sub(f64x2.mul(xr, e), hxs));
   const e2 = f64x2.sub(f64x2.sub(f64x2.mul(xr, f64x2.sub(e, cc)), cc), hxs);
   const resM1 = f64x2.sub(f64x2.mul(half, f64x2.sub(xr, e2)), half);
