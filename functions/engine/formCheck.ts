@@ -115,16 +115,26 @@ export function boxCoxProfileOf(X: Float64Array[], qr: QrFit, intercept: boolean
     }
     return stepExp;
   };
-  // w′(λ) from u and w(λ) (without its constant c[0]), plus the constant's derivative c[1]; the kernel's
-  // slope holds the same arithmetic for a block of the sides workspace
-  const derivative = (lambda: number, c: [number, number], w: Float64Array, D: Float64Array, start: number, m: number) => {
-    const small = Math.abs(lambda) < 1e-12;
-    for (let i = 0; i < m; i++) {
-      const v = u[start + i];
-      const x = lambda * v;
-      const wi = w[start + i] - c[0];
-      D[i] = (small || Math.abs(x) < 1e-4 ? v * v * (0.5 + x * (1 / 3 + x * (1 / 8 + x / 30))) : (v * (lambda * wi + 1) - wi) / lambda) + c[1];
+  /**
+   * ‖r·unit‖² and (r·unit)ᵀw′(λ), block by block in the sides workspace: w(λ) into V (from `w` when
+   * it is already made, else transformed), its derivative into D by the kernel's slope, then V ← r·unit.
+   */
+  const residualSums = (l: number, c: [number, number], w: Float64Array | null, r: Float64Array, unit: number): { rss: number; cross: number } => {
+    const ws = kernel().sidesWorkspace(1, 1, SIDE_ROWS);
+    const { V } = ws;
+    let rss = 0;
+    let cross = 0;
+    for (let start = 0; start < n; start += SIDE_ROWS) {
+      const m = Math.min(SIDE_ROWS, n - start);
+      if (w) V.set(w.subarray(start, start + m));
+      else transform(l, c[0], V, 0, start, m);
+      ws.aux(u, null, start, m);
+      ws.slope(0, m, l, c[0], c[1]);
+      for (let i = 0; i < m; i++) V[i] = r[start + i] * unit;
+      rss += ws.selfDot(0, m);
+      cross += ws.crossDot(0, m);
     }
+    return { rss, cross };
   };
   const reused = !qr.refined && qr.condition < REUSE_CONDITION;
   const known = new Map<number, { ll: number; slope: number }>();
@@ -139,10 +149,7 @@ export function boxCoxProfileOf(X: Float64Array[], qr: QrFit, intercept: boolean
       transform(l, c[0], yt, 0, 0, n);
       const ls = leastSquares(X, yt);
       if (!ls.qr) return unavailable("the design is singular");
-      const dt = new Float64Array(n);
-      derivative(l, c, yt, dt, 0, n);
-      let cross = 0;
-      for (let r = 0; r < n; r++) cross += ls.qr.resid[r] * dt[r];
+      const { cross } = residualSums(l, c, yt, ls.qr.resid, 1);
       got = { ll: value(ls.qr.rss), slope: (-n * cross) / ls.qr.rss };
     } else {
       // the transform is computed once, in the first pass, and kept for the second
@@ -203,20 +210,7 @@ export function boxCoxProfileOf(X: Float64Array[], qr: QrFit, intercept: boolean
   const seed = (l: number, r: Float64Array, unit: number): void => {
     if (known.has(l)) return;
     const c = shift(l);
-    // block by block in the sides workspace: w(λ) into V, its derivative into D, then V ← r·unit
-    const ws = kernel().sidesWorkspace(1, 1, SIDE_ROWS);
-    const { V } = ws;
-    let rss = 0;
-    let cross = 0;
-    for (let start = 0; start < n; start += SIDE_ROWS) {
-      const m = Math.min(SIDE_ROWS, n - start);
-      transform(l, c[0], V, 0, start, m);
-      ws.aux(u, null, start, m);
-      ws.slope(0, m, l, c[0], c[1]);
-      for (let i = 0; i < m; i++) V[i] = r[start + i] * unit;
-      rss += ws.selfDot(0, m);
-      cross += ws.crossDot(0, m);
-    }
+    const { rss, cross } = residualSums(l, c, null, r, unit);
     known.set(l, { ll: value(rss), slope: (-n * cross) / rss });
   };
   return { ll: (l) => compute(l).ll, slope: (l) => compute(l).slope, screen, rough, computed, seed, reused };
